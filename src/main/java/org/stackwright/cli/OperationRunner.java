@@ -1,0 +1,230 @@
+package org.stackwright.cli;
+
+import java.io.IOException;
+import java.io.PrintStream;
+import java.io.UncheckedIOException;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Path;
+import java.nio.file.Paths;
+import java.util.LinkedHashMap;
+import java.util.Locale;
+import java.util.Map;
+import java.util.concurrent.atomic.AtomicBoolean;
+
+import ij.ImagePlus;
+
+import org.stackwright.op.Json;
+import org.stackwright.op.Operation;
+import org.stackwright.op.Param;
+import org.stackwright.op.Result;
+import org.stackwright.op.RunContext;
+import org.stackwright.op.Values;
+import org.stackwright.parallel.CancelledException;
+import org.stackwright.volume.OutputFiles;
+import org.stackwright.volume.TiffFiles;
+
+import picocli.CommandLine.Model.CommandSpec;
+import picocli.CommandLine.Model.OptionSpec;
+import picocli.CommandLine.ParseResult;
+
+/**
+ * The command-line door of one operation: turns {@code --key value} options into {@link Values}, reads input
+ * TIFFs, checks every output path before any work, runs, then writes outputs (each complete or not at all) and
+ * the JSON record.
+ */
+final class OperationRunner {
+
+    private final Operation op;
+    private final PrintStream out;
+    private final PrintStream err;
+
+    OperationRunner(Operation op, PrintStream out, PrintStream err) {
+        this.op = op;
+        this.out = out;
+        this.err = err;
+    }
+
+    /** The picocli description of the operation's options, built from its parameters. */
+    static CommandSpec spec(Operation op) {
+        CommandSpec spec = CommandSpec.create().name(op.name());
+        spec.mixinStandardHelpOptions(true);
+        spec.usageMessage().description(op.summary());
+        for (Param p : op.params()) {
+            OptionSpec.Builder b = OptionSpec.builder("--" + p.key()).type(String.class).description(describe(p));
+            if (p.kind() == Param.Kind.FLAG) {
+                b.arity("0..1").fallbackValue("true").paramLabel("");
+            } else {
+                b.arity("1").paramLabel(label(p));
+            }
+            spec.addOption(b.build());
+        }
+        spec.addOption(OptionSpec.builder("--threads").type(String.class).paramLabel("N")
+                .description("worker threads (default: all cores)").build());
+        spec.addOption(OptionSpec.builder("--overwrite").arity("0").type(boolean.class)
+                .description("replace output files that exist (default: refuse)").build());
+        return spec;
+    }
+
+    private static String label(Param p) {
+        return switch (p.kind()) {
+            case IMAGE, OUTPUT_IMAGE -> "FILE.tif";
+            case OUTPUT_FILE -> "FILE.json";
+            case CHOICE -> String.join("|", p.choices());
+            case INTEGER -> "N";
+            case NUMBER -> p.unit().isEmpty() ? "X" : p.unit().toUpperCase(Locale.ROOT).replace('/', '_');
+            default -> "TEXT";
+        };
+    }
+
+    private static String describe(Param p) {
+        StringBuilder sb = new StringBuilder(p.help());
+        if (!p.unit().isEmpty() && p.kind() == Param.Kind.NUMBER) {
+            sb.append(" (").append(p.unit()).append(')');
+        }
+        if (p.required()) {
+            sb.append(" [required]");
+        } else if (p.defaultValue() != null && p.kind() != Param.Kind.FLAG) {
+            sb.append(" [default ").append(p.defaultValue()).append(']');
+        }
+        return sb.toString();
+    }
+
+    int run(ParseResult pr) {
+        Map<String, String> raw = new LinkedHashMap<>();
+        int threads = Runtime.getRuntime().availableProcessors();
+        boolean overwrite = false;
+        try {
+            for (OptionSpec o : pr.matchedOptions()) {
+                String key = o.longestName().substring(2);
+                Object value = o.getValue();
+                if (key.equals("threads")) {
+                    threads = parseThreads(String.valueOf(value));
+                } else if (key.equals("overwrite")) {
+                    overwrite = true;
+                } else if (!key.equals("help") && !key.equals("version")) {
+                    raw.put(key, value == null ? "true" : value.toString());
+                }
+            }
+            Values values = Values.parse(op.name(), op.params(), raw);
+            Map<String, Path> outputs = new LinkedHashMap<>();
+            Map<Path, String> inputs = new LinkedHashMap<>();
+            for (Param p : op.params()) {
+                String v = raw.get(p.key());
+                if (p.kind() == Param.Kind.IMAGE) {
+                    if (v == null) {
+                        if (p.required()) {
+                            throw new IllegalArgumentException("--" + p.key() + " is required: " + p.help());
+                        }
+                        continue;
+                    }
+                    Path path = Paths.get(v);
+                    values.withImage(p.key(), TiffFiles.open(path, "--" + p.key()));
+                    inputs.put(path.toAbsolutePath().normalize(), p.key());
+                } else if (p.kind() == Param.Kind.OUTPUT_IMAGE || p.kind() == Param.Kind.OUTPUT_FILE) {
+                    if (v == null) {
+                        if (p.required()) {
+                            throw new IllegalArgumentException("--" + p.key() + " is required: " + p.help());
+                        }
+                        continue;
+                    }
+                    outputs.put(p.key(), Paths.get(v));
+                }
+            }
+            checkOutputs(outputs, inputs, overwrite);
+            AtomicBoolean cancelled = new AtomicBoolean();
+            Thread hook = new Thread(() -> cancelled.set(true));
+            Runtime.getRuntime().addShutdownHook(hook);
+            RunContext ctx = new RunContext(threads, new CliProgress(err), w -> err.println("warning: " + w), cancelled::get);
+            long t0 = System.nanoTime();
+            Result result;
+            try {
+                result = op.run(values, ctx);
+            } finally {
+                try {
+                    Runtime.getRuntime().removeShutdownHook(hook);
+                } catch (IllegalStateException ignored) {
+                    // already shutting down
+                }
+            }
+            err.print(CliProgress.CLEAR);
+            result.record().putIfAbsent("seconds", (System.nanoTime() - t0) * 1e-9);
+            if (!ctx.warnings().isEmpty()) {
+                result.record().put("warnings", ctx.warnings());
+            }
+            writeOutputs(result, outputs, overwrite);
+            for (String line : result.report()) {
+                out.println(line);
+            }
+            return Main.OK;
+        } catch (IllegalArgumentException e) {
+            err.println("stackwright " + op.name() + ": " + e.getMessage());
+            return Main.BAD_INPUT;
+        } catch (CancelledException e) {
+            err.println("stackwright " + op.name() + ": cancelled; no output written");
+            return Main.FAILED;
+        } catch (OutOfMemoryError e) {
+            err.println("stackwright " + op.name() + ": out of memory; give Java more heap (java -Xmx...) or use a smaller image");
+            return Main.FAILED;
+        } catch (RuntimeException e) {
+            err.println("stackwright " + op.name() + ": failed: " + e);
+            return Main.FAILED;
+        }
+    }
+
+    static int parseThreads(String v) {
+        try {
+            int t = Integer.parseInt(v.trim());
+            if (t >= 1 && t <= 1024) {
+                return t;
+            }
+        } catch (NumberFormatException ignored) {
+            // fall through to the message
+        }
+        throw new IllegalArgumentException("--threads = '" + v + "' is not allowed; give a whole number from 1 to 1024");
+    }
+
+    private static void checkOutputs(Map<String, Path> outputs, Map<Path, String> inputs, boolean overwrite) {
+        Map<Path, String> seen = new LinkedHashMap<>();
+        for (Map.Entry<String, Path> e : outputs.entrySet()) {
+            Path abs = e.getValue().toAbsolutePath().normalize();
+            String input = inputs.get(abs);
+            if (input != null) {
+                throw new IllegalArgumentException("--" + e.getKey() + " " + e.getValue() + " is the same file as --" + input
+                        + "; the input is never overwritten: choose another output name");
+            }
+            String other = seen.put(abs, e.getKey());
+            if (other != null) {
+                throw new IllegalArgumentException("--" + e.getKey() + " and --" + other + " name the same file " + e.getValue());
+            }
+            try {
+                TiffFiles.checkWritable(abs, overwrite);
+            } catch (IllegalArgumentException ex) {
+                throw new IllegalArgumentException("--" + e.getKey() + ": " + ex.getMessage());
+            }
+        }
+    }
+
+    private void writeOutputs(Result result, Map<String, Path> outputs, boolean overwrite) {
+        for (Map.Entry<String, Path> e : outputs.entrySet()) {
+            Path path = e.getValue();
+            Param p = op.params().stream().filter(q -> q.key().equals(e.getKey())).findFirst().orElseThrow();
+            if (p.kind() == Param.Kind.OUTPUT_FILE) {
+                try {
+                    OutputFiles.writeText(Json.write(result.record()).getBytes(StandardCharsets.UTF_8), path, overwrite);
+                } catch (IOException ex) {
+                    throw new UncheckedIOException("could not write " + path + ": " + ex.getMessage(), ex);
+                }
+                continue;
+            }
+            ImagePlus imp = result.images().get(e.getKey());
+            if (imp == null) {
+                err.println("note: " + op.name() + " made no " + e.getKey() + " for this input; " + path + " not written");
+            } else if (path.getFileName().toString().toLowerCase(Locale.ROOT).endsWith(".png")) {
+                OutputFiles.writePng(imp, path, overwrite);
+            } else {
+                TiffFiles.write(imp, path, overwrite);
+            }
+        }
+    }
+
+}

@@ -1,0 +1,122 @@
+package org.stackwright.fft;
+
+import org.stackwright.parallel.Workers;
+import org.stackwright.volume.Volume;
+
+/**
+ * Periodic convolution and correlation with one fixed kernel on one fixed grid, through the FFT.
+ *
+ * <p>The kernel's centre voxel (index n/2 along each axis) is placed at the grid origin and wrapped, and its
+ * transfer function (the OTF for a PSF) is computed once. {@link #convolve} computes H x and {@link #correlate}
+ * computes the adjoint H^T x (correlation with the kernel), each with one forward and one inverse transform and
+ * no allocation. For a non-periodic ("same" size, zero outside) result, embed the data in a grid at least
+ * data + kernel - 1 large: see {@link Convolution}.
+ *
+ * <p>Not safe to call from two threads at once (it owns its work buffer).
+ */
+public final class Convolver {
+
+    private final RealFft3D fft;
+    private final Workers workers;
+    private final float[] otf;
+    private final float[] work;
+
+    /**
+     * @param kernel the kernel (a PSF), used as given (not normalised); not modified
+     * @param nx grid width
+     * @param ny grid height
+     * @param nz grid depth
+     * @param workers the threads (not closed by this object)
+     */
+    public Convolver(Volume kernel, int nx, int ny, int nz, Workers workers) {
+        this.fft = new RealFft3D(nx, ny, nz, workers);
+        this.workers = workers;
+        float[] wrapped = new float[nx * ny * nz];
+        wrapCentred(kernel, nx, ny, nz, wrapped);
+        this.otf = fft.newSpectrum();
+        fft.forward(wrapped, otf);
+        this.work = fft.newSpectrum();
+    }
+
+    /**
+     * Places the kernel's centre voxel (n/2 along each axis) at the origin of an nx x ny x nz grid, wrapping
+     * around (values that land on the same grid voxel are added, so a kernel larger than the grid is folded).
+     */
+    static void wrapCentred(Volume k, int nx, int ny, int nz, float[] out) {
+        int cx = k.width() / 2;
+        int cy = k.height() / 2;
+        int cz = k.depth() / 2;
+        float[] kd = k.data();
+        for (int z = 0; z < k.depth(); z++) {
+            int gz = Math.floorMod(z - cz, nz);
+            for (int y = 0; y < k.height(); y++) {
+                int gy = Math.floorMod(y - cy, ny);
+                int row = (gz * ny + gy) * nx;
+                int krow = (z * k.height() + y) * k.width();
+                for (int x = 0; x < k.width(); x++) {
+                    out[row + Math.floorMod(x - cx, nx)] += kd[krow + x];
+                }
+            }
+        }
+    }
+
+    public int nx() {
+        return fft.nx();
+    }
+
+    public int ny() {
+        return fft.ny();
+    }
+
+    public int nz() {
+        return fft.nz();
+    }
+
+    /** @return number of voxels of the grid */
+    public int gridLength() {
+        return fft.realLength();
+    }
+
+    /**
+     * out = kernel (*) in, periodic on the grid.
+     *
+     * @param in grid-sized input, not modified
+     * @param out grid-sized output, overwritten (may be the same array as in)
+     */
+    public void convolve(float[] in, float[] out) {
+        apply(in, out, false);
+    }
+
+    /**
+     * out = kernel (x) in (correlation), the adjoint of {@link #convolve}.
+     *
+     * @param in grid-sized input, not modified
+     * @param out grid-sized output, overwritten (may be the same array as in)
+     */
+    public void correlate(float[] in, float[] out) {
+        apply(in, out, true);
+    }
+
+    /** @return the transfer function's value at frequency 0: the kernel's sum */
+    public double kernelSum() {
+        return otf[0];
+    }
+
+    private void apply(float[] in, float[] out, boolean conjugate) {
+        fft.forward(in, work);
+        int n = otf.length / 2;
+        workers.forRange(n, (from, to) -> {
+            float[] w = work;
+            float[] h = otf;
+            for (int i = 2 * from, e = 2 * to; i < e; i += 2) {
+                float a = w[i];
+                float b = w[i + 1];
+                float c = h[i];
+                float d = conjugate ? -h[i + 1] : h[i + 1];
+                w[i] = a * c - b * d;
+                w[i + 1] = a * d + b * c;
+            }
+        });
+        fft.inverse(work, out);
+    }
+}

@@ -1,0 +1,266 @@
+package org.stackwright.fft;
+
+import org.jtransforms.fft.FloatFFT_1D;
+import org.stackwright.parallel.Workers;
+
+/**
+ * Real-to-complex (half-spectrum) discrete Fourier transform of a 3D real array of any size, assembled from
+ * JTransforms' 1D transforms: a real transform along x, then complex transforms along y and z.
+ *
+ * <p>Layout (known only to this package): the spectrum holds (nx/2+1) x ny x nz complex values, interleaved
+ * (re, im), kx fastest, then ky, then kz. Forward uses exp(-2 pi i k x / n); {@link #inverse} scales by 1/N so a
+ * forward-inverse round trip returns the input. 2D arrays (nz = 1) skip the z pass.
+ *
+ * <p>Every 1D line is transformed the same way whatever the thread count, so results are bit-identical across
+ * thread counts. The object holds one work buffer per thread; it is not safe to call from two threads at once.
+ */
+public final class RealFft3D {
+
+    /** Lines gathered together in the z pass: reads contiguous runs instead of single strided values. */
+    private static final int Z_BLOCK = 16;
+
+    static {
+        // Lines are distributed over our own workers; JTransforms must not start threads of its own inside a
+        // line. This is JTransforms' global setting, set once here (our copy is relocated inside the plugin jar).
+        org.jtransforms.utils.CommonUtils.setThreadsBeginN_1D_FFT_2Threads(Integer.MAX_VALUE);
+        org.jtransforms.utils.CommonUtils.setThreadsBeginN_1D_FFT_4Threads(Integer.MAX_VALUE);
+    }
+
+    private final int nx;
+    private final int ny;
+    private final int nz;
+    private final int hx;
+    private final Workers workers;
+    private final FloatFFT_1D[] fx;
+    private final FloatFFT_1D[] fy;
+    private final FloatFFT_1D[] fz;
+    private final float[][] bufX;
+    private final float[][] bufY;
+    private final float[][] bufZ;
+
+    /**
+     * @param nx size along x (fastest), at least 1
+     * @param ny size along y, at least 1
+     * @param nz size along z, at least 1
+     * @param workers the threads to use (not closed by this object)
+     */
+    public RealFft3D(int nx, int ny, int nz, Workers workers) {
+        if (nx < 1 || ny < 1 || nz < 1) {
+            throw new IllegalArgumentException("FFT size must be at least 1x1x1 (given " + nx + "x" + ny + "x" + nz + ")");
+        }
+        if ((long) (nx / 2 + 1) * ny * nz * 2 > Integer.MAX_VALUE - 8) {
+            throw new IllegalArgumentException("FFT size " + nx + "x" + ny + "x" + nz + " is too large for one array");
+        }
+        this.nx = nx;
+        this.ny = ny;
+        this.nz = nz;
+        this.hx = nx / 2 + 1;
+        this.workers = workers;
+        int t = workers.threads();
+        fx = new FloatFFT_1D[t];
+        fy = new FloatFFT_1D[t];
+        fz = new FloatFFT_1D[t];
+        bufX = new float[t][];
+        bufY = new float[t][];
+        bufZ = new float[t][];
+        for (int i = 0; i < t; i++) {
+            fx[i] = nx > 1 ? new FloatFFT_1D(nx) : null;
+            fy[i] = ny > 1 ? new FloatFFT_1D(ny) : null;
+            fz[i] = nz > 1 ? new FloatFFT_1D(nz) : null;
+            bufX[i] = new float[Math.max(nx, 2)];
+            bufY[i] = new float[2 * ny];
+            bufZ[i] = new float[2 * nz * Z_BLOCK];
+        }
+    }
+
+    public int nx() {
+        return nx;
+    }
+
+    public int ny() {
+        return ny;
+    }
+
+    public int nz() {
+        return nz;
+    }
+
+    /** @return number of floats in a spectrum array: 2 (nx/2+1) ny nz */
+    public int spectrumLength() {
+        return 2 * hx * ny * nz;
+    }
+
+    /** @return number of floats in a real array: nx ny nz */
+    public int realLength() {
+        return nx * ny * nz;
+    }
+
+    /** @return a new spectrum array */
+    public float[] newSpectrum() {
+        return new float[spectrumLength()];
+    }
+
+    /**
+     * Forward transform.
+     *
+     * @param real input, nx*ny*nz values, not modified
+     * @param spectrum output, {@link #spectrumLength()} values, overwritten
+     */
+    public void forward(float[] real, float[] spectrum) {
+        checkLengths(real, spectrum);
+        workers.forSlots(ny * nz, (slot, from, to) -> {
+            float[] b = bufX[slot];
+            for (int row = from; row < to; row++) {
+                rowForward(real, row * nx, spectrum, row * hx * 2, b, fx[slot]);
+            }
+        });
+        complexPasses(spectrum, true);
+    }
+
+    /**
+     * Inverse transform, scaled by 1/(nx ny nz).
+     *
+     * @param spectrum input, destroyed (used as work space)
+     * @param real output, overwritten
+     */
+    public void inverse(float[] spectrum, float[] real) {
+        checkLengths(real, spectrum);
+        complexPasses(spectrum, false);
+        workers.forSlots(ny * nz, (slot, from, to) -> {
+            float[] b = bufX[slot];
+            for (int row = from; row < to; row++) {
+                rowInverse(spectrum, row * hx * 2, real, row * nx, b, fx[slot]);
+            }
+        });
+    }
+
+    private void checkLengths(float[] real, float[] spectrum) {
+        if (real.length != realLength() || spectrum.length != spectrumLength()) {
+            throw new IllegalArgumentException("array lengths " + real.length + "/" + spectrum.length
+                    + " do not match FFT size " + nx + "x" + ny + "x" + nz);
+        }
+    }
+
+    /** One real row to nx/2+1 complex values, unpacking JTransforms' packed real layout. */
+    private void rowForward(float[] real, int r0, float[] spec, int s0, float[] b, FloatFFT_1D f) {
+        if (nx == 1) {
+            spec[s0] = real[r0];
+            spec[s0 + 1] = 0;
+            return;
+        }
+        System.arraycopy(real, r0, b, 0, nx);
+        f.realForward(b);
+        spec[s0] = b[0];
+        spec[s0 + 1] = 0;
+        if ((nx & 1) == 0) {
+            // a[2k] = Re k, a[2k+1] = Im k for 0 < k < n/2; a[1] = Re n/2
+            System.arraycopy(b, 2, spec, s0 + 2, nx - 2);
+            spec[s0 + nx] = b[1];
+            spec[s0 + nx + 1] = 0;
+        } else {
+            // a[2k] = Re k for 0 <= k < (n+1)/2, a[2k+1] = Im k for 0 < k < (n-1)/2, a[1] = Im (n-1)/2
+            System.arraycopy(b, 2, spec, s0 + 2, nx - 3);
+            spec[s0 + nx - 1] = b[nx - 1];
+            spec[s0 + nx] = b[1];
+        }
+    }
+
+    private void rowInverse(float[] spec, int s0, float[] real, int r0, float[] b, FloatFFT_1D f) {
+        if (nx == 1) {
+            real[r0] = spec[s0];
+            return;
+        }
+        b[0] = spec[s0];
+        if ((nx & 1) == 0) {
+            System.arraycopy(spec, s0 + 2, b, 2, nx - 2);
+            b[1] = spec[s0 + nx];
+        } else {
+            System.arraycopy(spec, s0 + 2, b, 2, nx - 3);
+            b[nx - 1] = spec[s0 + nx - 1];
+            b[1] = spec[s0 + nx];
+        }
+        f.realInverse(b, true);
+        System.arraycopy(b, 0, real, r0, nx);
+    }
+
+    private void complexPasses(float[] spec, boolean forward) {
+        if (forward) {
+            yPass(spec, true);
+            zPass(spec, true);
+        } else {
+            zPass(spec, false);
+            yPass(spec, false);
+        }
+    }
+
+    /** Complex transforms along y, one z plane per task. */
+    private void yPass(float[] spec, boolean forward) {
+        if (ny == 1) {
+            return;
+        }
+        final int rowStride = 2 * hx;
+        workers.forSlots(nz * hx, (slot, from, to) -> {
+            float[] b = bufY[slot];
+            FloatFFT_1D f = fy[slot];
+            for (int task = from; task < to; task++) {
+                int z = task / hx;
+                int kx = task % hx;
+                int base = z * ny * rowStride + 2 * kx;
+                for (int y = 0, p = base; y < ny; y++, p += rowStride) {
+                    b[2 * y] = spec[p];
+                    b[2 * y + 1] = spec[p + 1];
+                }
+                if (forward) {
+                    f.complexForward(b);
+                } else {
+                    f.complexInverse(b, true);
+                }
+                for (int y = 0, p = base; y < ny; y++, p += rowStride) {
+                    spec[p] = b[2 * y];
+                    spec[p + 1] = b[2 * y + 1];
+                }
+            }
+        });
+    }
+
+    /** Complex transforms along z, gathering up to Z_BLOCK neighbouring lines at once. */
+    private void zPass(float[] spec, boolean forward) {
+        if (nz == 1) {
+            return;
+        }
+        final int plane = 2 * hx * ny;
+        final int lines = hx * ny; // complex lines along z, one per (kx, ky)
+        final int blocks = (lines + Z_BLOCK - 1) / Z_BLOCK;
+        workers.forSlots(blocks, (slot, from, to) -> {
+            float[] b = bufZ[slot];
+            FloatFFT_1D f = fz[slot];
+            for (int blk = from; blk < to; blk++) {
+                int l0 = blk * Z_BLOCK;
+                int count = Math.min(Z_BLOCK, lines - l0);
+                int off = 2 * l0;
+                // gather: line j of the block goes to b[j*2nz ...]
+                for (int z = 0; z < nz; z++) {
+                    int p = z * plane + off;
+                    for (int j = 0; j < count; j++) {
+                        b[j * 2 * nz + 2 * z] = spec[p + 2 * j];
+                        b[j * 2 * nz + 2 * z + 1] = spec[p + 2 * j + 1];
+                    }
+                }
+                for (int j = 0; j < count; j++) {
+                    if (forward) {
+                        f.complexForward(b, j * 2 * nz);
+                    } else {
+                        f.complexInverse(b, j * 2 * nz, true);
+                    }
+                }
+                for (int z = 0; z < nz; z++) {
+                    int p = z * plane + off;
+                    for (int j = 0; j < count; j++) {
+                        spec[p + 2 * j] = b[j * 2 * nz + 2 * z];
+                        spec[p + 2 * j + 1] = b[j * 2 * nz + 2 * z + 1];
+                    }
+                }
+            }
+        });
+    }
+}

@@ -1,0 +1,135 @@
+package org.stackwright.volume;
+
+import ij.ImagePlus;
+import ij.ImageStack;
+import ij.measure.Calibration;
+import ij.process.FloatProcessor;
+import ij.process.ImageProcessor;
+
+/**
+ * Conversion between ImageJ 1.x images and {@link Volume}s. 8, 16 and 32-bit images become float; one channel
+ * and one time point of a hyperstack make one volume. Lengths are converted to micrometres from the image's unit
+ * (nm, um/micron, mm, m); an uncalibrated image gets 1 um voxels and {@link #isCalibrated} says so.
+ */
+public final class ImagePlusAdapter {
+
+    private ImagePlusAdapter() {
+    }
+
+    /** Reads channel 1, time point 1. */
+    public static Volume toVolume(ImagePlus imp) {
+        return toVolume(imp, 1, 1);
+    }
+
+    /**
+     * @param imp the image, not modified
+     * @param channel channel number from 1 to the number of channels
+     * @param frame time point from 1 to the number of frames
+     * @throws IllegalArgumentException for RGB or other unsupported types and channels/frames out of range
+     */
+    public static Volume toVolume(ImagePlus imp, int channel, int frame) {
+        if (imp == null) {
+            throw new IllegalArgumentException("no image given");
+        }
+        int type = imp.getType();
+        if (type == ImagePlus.COLOR_RGB || type == ImagePlus.COLOR_256) {
+            throw new IllegalArgumentException("image '" + imp.getTitle() + "' is " + (type == ImagePlus.COLOR_RGB
+                    ? "RGB colour" : "8-bit indexed colour") + "; use a grayscale 8, 16 or 32-bit image "
+                    + "(Image>Color>Split Channels, then process each channel)");
+        }
+        int nc = imp.getNChannels();
+        int nt = imp.getNFrames();
+        if (channel < 1 || channel > nc) {
+            throw new IllegalArgumentException("channel " + channel + " does not exist: image '" + imp.getTitle()
+                    + "' has " + nc + " channel" + (nc == 1 ? "" : "s") + " (allowed 1 to " + nc + ")");
+        }
+        if (frame < 1 || frame > nt) {
+            throw new IllegalArgumentException("time point " + frame + " does not exist: image '" + imp.getTitle()
+                    + "' has " + nt + " time point" + (nt == 1 ? "" : "s") + " (allowed 1 to " + nt + ")");
+        }
+        int w = imp.getWidth();
+        int h = imp.getHeight();
+        int d = imp.getNSlices();
+        Volume.checkSize(w, h, d);
+        float[] data = new float[w * h * d];
+        ImageStack stack = imp.getStack();
+        for (int z = 0; z < d; z++) {
+            ImageProcessor ip = stack.getProcessor(imp.getStackIndex(channel, z + 1, frame));
+            copyPlane(ip, data, z * w * h, w * h);
+        }
+        return new Volume(w, h, d, data, voxelSize(imp));
+    }
+
+    private static void copyPlane(ImageProcessor ip, float[] dst, int off, int n) {
+        Object px = ip.getPixels();
+        if (px instanceof float[] f) {
+            System.arraycopy(f, 0, dst, off, n);
+        } else if (px instanceof short[] s) {
+            for (int i = 0; i < n; i++) {
+                dst[off + i] = s[i] & 0xffff;
+            }
+        } else if (px instanceof byte[] b) {
+            for (int i = 0; i < n; i++) {
+                dst[off + i] = b[i] & 0xff;
+            }
+        } else {
+            throw new IllegalArgumentException("unsupported pixel type " + px.getClass().getSimpleName());
+        }
+    }
+
+    /** @return true when the image carries a spatial unit we can convert to micrometres */
+    public static boolean isCalibrated(ImagePlus imp) {
+        return unitToMicrometres(imp.getCalibration().getUnit()) > 0;
+    }
+
+    /** Voxel size in micrometres; 1 um when the image is uncalibrated. */
+    public static VoxelSize voxelSize(ImagePlus imp) {
+        Calibration cal = imp.getCalibration();
+        double f = unitToMicrometres(cal.getUnit());
+        if (f <= 0) {
+            return VoxelSize.UNIT;
+        }
+        double dz = cal.pixelDepth > 0 ? cal.pixelDepth : cal.pixelWidth;
+        return new VoxelSize(cal.pixelWidth * f, cal.pixelHeight * f, dz * f);
+    }
+
+    /** @return micrometres per unit, or -1 when the unit is not a known length */
+    static double unitToMicrometres(String unit) {
+        if (unit == null) {
+            return -1;
+        }
+        return switch (unit.trim().toLowerCase(java.util.Locale.ROOT)) {
+            case "um", "µm", "μm", "micron", "microns", "micrometer", "micrometre", "micrometers", "micrometres" -> 1;
+            case "nm", "nanometer", "nanometre", "nanometers", "nanometres" -> 1e-3;
+            case "mm", "millimeter", "millimetre" -> 1e3;
+            case "m", "meter", "metre" -> 1e6;
+            default -> -1;
+        };
+    }
+
+    /** A new 32-bit image (a stack when depth > 1) with the volume's pixels copied and its voxel size in um. */
+    public static ImagePlus toImagePlus(Volume v, String title) {
+        ImageStack stack = new ImageStack(v.width(), v.height());
+        int plane = v.width() * v.height();
+        for (int z = 0; z < v.depth(); z++) {
+            float[] px = new float[plane];
+            System.arraycopy(v.data(), z * plane, px, 0, plane);
+            stack.addSlice(new FloatProcessor(v.width(), v.height(), px));
+        }
+        ImagePlus imp = new ImagePlus(title, stack);
+        imp.setDimensions(1, v.depth(), 1);
+        setCalibration(imp, v.voxel());
+        imp.resetDisplayRange();
+        return imp;
+    }
+
+    /** Writes a voxel size in micrometres into the image's calibration. */
+    public static void setCalibration(ImagePlus imp, VoxelSize vs) {
+        Calibration cal = imp.getCalibration().copy();
+        cal.setUnit("micron");
+        cal.pixelWidth = vs.x();
+        cal.pixelHeight = vs.y();
+        cal.pixelDepth = vs.z();
+        imp.setCalibration(cal);
+    }
+}

@@ -1,0 +1,143 @@
+package org.stackwright.volume;
+
+import java.io.IOException;
+import java.io.InputStream;
+import java.nio.file.AtomicMoveNotSupportedException;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.nio.file.StandardCopyOption;
+
+import ij.ImagePlus;
+import ij.io.FileSaver;
+import ij.io.Opener;
+
+/**
+ * TIFF reading and writing through ImageJ 1.x, calibration included. Writing is all-or-nothing: the file is
+ * written under a temporary name in the target folder and renamed when complete.
+ */
+public final class TiffFiles {
+
+    private TiffFiles() {
+    }
+
+    /**
+     * Opens a TIFF file as an ImagePlus.
+     *
+     * @param what the name of the parameter the path came from (for messages), e.g. "--input"
+     * @throws IllegalArgumentException naming the parameter when the file is missing, unreadable, not a TIFF or
+     *     damaged
+     */
+    public static ImagePlus open(Path path, String what) {
+        if (path == null) {
+            throw new IllegalArgumentException(what + ": no file given");
+        }
+        if (!Files.exists(path)) {
+            throw new IllegalArgumentException(what + ": file " + path + " does not exist");
+        }
+        if (Files.isDirectory(path)) {
+            throw new IllegalArgumentException(what + ": " + path + " is a folder; give a TIFF file");
+        }
+        if (!Files.isReadable(path)) {
+            throw new IllegalArgumentException(what + ": file " + path + " cannot be read (check its permissions)");
+        }
+        byte[] head = new byte[4];
+        int got;
+        try (InputStream in = Files.newInputStream(path)) {
+            got = in.readNBytes(head, 0, 4);
+        } catch (IOException e) {
+            throw new IllegalArgumentException(what + ": file " + path + " cannot be read: " + e.getMessage(), e);
+        }
+        boolean tiff = got == 4 && ((head[0] == 'I' && head[1] == 'I' && head[2] == 42 && head[3] == 0)
+                || (head[0] == 'M' && head[1] == 'M' && head[2] == 0 && head[3] == 42));
+        if (!tiff) {
+            throw new IllegalArgumentException(what + ": " + path + " is not a TIFF file (save it as TIFF first)");
+        }
+        ImagePlus imp;
+        try {
+            Path abs = path.toAbsolutePath();
+            imp = new Opener().openTiff(abs.getParent().toString() + java.io.File.separator, abs.getFileName().toString());
+        } catch (RuntimeException e) {
+            throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged or unsupported ("
+                    + e.getClass().getSimpleName() + (e.getMessage() == null ? "" : ": " + e.getMessage()) + ")", e);
+        }
+        if (imp == null || imp.getStack() == null || imp.getStackSize() < 1 || imp.getProcessor() == null) {
+            throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged or truncated (ImageJ could not read its pixels)");
+        }
+        imp.setTitle(titleOf(path));
+        return imp;
+    }
+
+    /** Opens channel 1, time point 1 of a TIFF file as a volume. */
+    public static Volume read(Path path, String what) {
+        return ImagePlusAdapter.toVolume(open(path, what));
+    }
+
+    /** @return the file name without its .tif/.tiff ending */
+    public static String titleOf(Path path) {
+        String name = path.getFileName().toString();
+        return name.replaceFirst("(?i)\\.(ome\\.)?tiff?$", "");
+    }
+
+    /** Writes a volume as a 32-bit TIFF with its calibration; see {@link #write(ImagePlus, Path, boolean)}. */
+    public static void write(Volume v, Path path, boolean overwrite) {
+        write(ImagePlusAdapter.toImagePlus(v, titleOf(path)), path, overwrite);
+    }
+
+    /**
+     * Writes an image as TIFF, completely or not at all.
+     *
+     * @param overwrite whether an existing file may be replaced
+     * @throws IllegalArgumentException when the folder is missing or not writable, or the file exists and
+     *     overwrite is false
+     * @throws java.io.UncheckedIOException when writing fails (no partial file is left)
+     */
+    public static void write(ImagePlus imp, Path path, boolean overwrite) {
+        Path abs = path.toAbsolutePath();
+        Path dir = abs.getParent();
+        checkWritable(abs, overwrite);
+        Path tmp = dir.resolve("." + abs.getFileName() + ".part-" + ProcessHandle.current().pid());
+        try {
+            FileSaver saver = new FileSaver(imp);
+            boolean ok = imp.getStackSize() > 1 ? saver.saveAsTiffStack(tmp.toString()) : saver.saveAsTiff(tmp.toString());
+            if (!ok || !Files.exists(tmp)) {
+                throw new IOException("ImageJ could not write " + tmp);
+            }
+            try {
+                Files.move(tmp, abs, StandardCopyOption.REPLACE_EXISTING, StandardCopyOption.ATOMIC_MOVE);
+            } catch (AtomicMoveNotSupportedException e) {
+                Files.move(tmp, abs, StandardCopyOption.REPLACE_EXISTING);
+            }
+        } catch (IOException e) {
+            throw new java.io.UncheckedIOException("could not write " + abs + ": " + e.getMessage(), e);
+        } finally {
+            try {
+                Files.deleteIfExists(tmp);
+            } catch (IOException ignored) {
+                // the temporary file is hidden and named after the process; nothing more we can do
+            }
+        }
+    }
+
+    /**
+     * Checks an output path before any work is done.
+     *
+     * @throws IllegalArgumentException naming the path when its folder is missing or read-only, or the file exists
+     *     and overwrite is false
+     */
+    public static void checkWritable(Path path, boolean overwrite) {
+        Path abs = path.toAbsolutePath();
+        Path dir = abs.getParent();
+        if (dir == null || !Files.isDirectory(dir)) {
+            throw new IllegalArgumentException("output folder " + dir + " does not exist; create it first");
+        }
+        if (!Files.isWritable(dir)) {
+            throw new IllegalArgumentException("output folder " + dir + " is not writable");
+        }
+        if (Files.isDirectory(abs)) {
+            throw new IllegalArgumentException("output " + abs + " is a folder; give a file name");
+        }
+        if (Files.exists(abs) && !overwrite) {
+            throw new IllegalArgumentException("output file " + abs + " exists; choose another name or allow overwriting (--overwrite)");
+        }
+    }
+}
