@@ -53,6 +53,8 @@ public final class SimulateOperation implements Operation {
                 Param.text("grid", "1x1", "tile grid ROWSxCOLS for planted seams (1x1 = none)"),
                 Param.integer("seam-width", 4, 1, 1000, "seam band width in pixels"),
                 Param.integer("seed", 1, 0, Integer.MAX_VALUE, "random seed; the same seed gives the same files"),
+                Param.choice("bits", "32", List.of("16", "32"),
+                        "bit depth of the camera image: 16 rounds to whole ADU like a real camera"),
                 Param.outputImage("output", true, "the camera image (TIFF)"),
                 Param.outputImage("truth", false, "the specimen before blur and noise (TIFF)"),
                 Param.outputImage("psf-output", false, "the PSF used for the blur (TIFF)"),
@@ -89,7 +91,11 @@ public final class SimulateOperation implements Operation {
         }
         ctx.progress(1, "simulated");
         Result r = new Result();
-        r.image("output", ImagePlusAdapter.toImagePlus(out.data(), "simulated"));
+        ImagePlus data = ImagePlusAdapter.toImagePlus(out.data(), "simulated");
+        if (v.choice("bits").equals("16")) {
+            data = to16bit(data);
+        }
+        r.image("output", data);
         r.image("truth", ImagePlusAdapter.toImagePlus(out.truth(), "simulated-truth"));
         r.image("psf-output", ImagePlusAdapter.toImagePlus(psf, "simulated-psf"));
         if (out.damageMask() != null) {
@@ -106,6 +112,24 @@ public final class SimulateOperation implements Operation {
         r.line(String.format(java.util.Locale.ROOT, "simulated %s voxels of %s; PSF Gaussian sigma_xy %.4f um, sigma_z %.4f um",
                 out.data().shape(), voxel, sxy, sz));
         return r;
+    }
+
+    /** Rounds to whole ADU and clips to 0..65535, like a 16-bit camera's converter. */
+    static ImagePlus to16bit(ImagePlus imp) {
+        ImageStack in = imp.getStack();
+        ImageStack st = new ImageStack(imp.getWidth(), imp.getHeight());
+        for (int i = 1; i <= in.getSize(); i++) {
+            float[] f = (float[]) in.getPixels(i);
+            short[] s = new short[f.length];
+            for (int k = 0; k < f.length; k++) {
+                s[k] = (short) Math.max(0, Math.min(65535, Math.round(f[k])));
+            }
+            st.addSlice(new ij.process.ShortProcessor(imp.getWidth(), imp.getHeight(), s, null));
+        }
+        ImagePlus out = new ImagePlus(imp.getTitle(), st);
+        out.setDimensions(1, in.getSize(), 1);
+        out.setCalibration(imp.getCalibration().copy());
+        return out;
     }
 
     private static Specimen.Contents scaled(Specimen.Contents c, double f) {

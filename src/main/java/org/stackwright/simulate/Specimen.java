@@ -20,7 +20,7 @@ public final class Specimen {
 
         /** A field like a cultured cell: a few beads, a dozen filaments, some vesicles. */
         public static Contents cellField() {
-            return new Contents(12, 10, 6, 400, 120, 90, 8);
+            return new Contents(12, 10, 6, 800, 300, 120, 8);
         }
 
         /** Only isolated beads (for PSF measurement from beads). */
