@@ -7,9 +7,9 @@ import java.nio.charset.StandardCharsets;
 import java.nio.file.Path;
 import java.nio.file.Paths;
 import java.util.LinkedHashMap;
+import java.util.List;
 import java.util.Locale;
 import java.util.Map;
-import java.util.concurrent.atomic.AtomicBoolean;
 
 import ij.ImagePlus;
 
@@ -23,6 +23,7 @@ import org.stackwright.parallel.CancelledException;
 import org.stackwright.volume.OutputFiles;
 import org.stackwright.volume.TiffFiles;
 
+import picocli.CommandLine;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Model.OptionSpec;
 import picocli.CommandLine.ParseResult;
@@ -30,7 +31,8 @@ import picocli.CommandLine.ParseResult;
 /**
  * The command-line door of one operation: turns {@code --key value} options into {@link Values}, reads input
  * TIFFs, checks every output path before any work, runs, then writes outputs (each complete or not at all) and
- * the JSON record.
+ * the JSON record. A folder or file pattern as the main input runs a batch ({@link Batch}); SIGINT cancels at
+ * the next cancel check without partial files ({@link CancelGuard}).
  */
 final class OperationRunner {
 
@@ -89,6 +91,26 @@ final class OperationRunner {
         return sb.toString();
     }
 
+    /**
+     * Parses the arguments against the operation's options and runs it: the door {@link Main} uses, open to tests
+     * that bring their own {@link Operation}.
+     */
+    static int run(Operation op, String[] args, PrintStream out, PrintStream err) {
+        CommandLine cl = new CommandLine(spec(op));
+        ParseResult pr;
+        try {
+            pr = cl.parseArgs(args);
+        } catch (CommandLine.ParameterException e) {
+            err.println("stackwright " + op.name() + ": " + e.getMessage());
+            return Main.BAD_INPUT;
+        }
+        if (pr.isUsageHelpRequested()) {
+            cl.usage(out);
+            return Main.OK;
+        }
+        return new OperationRunner(op, out, err).run(pr);
+    }
+
     int run(ParseResult pr) {
         Map<String, String> raw = new LinkedHashMap<>();
         int threads = Runtime.getRuntime().availableProcessors();
@@ -105,70 +127,135 @@ final class OperationRunner {
                     raw.put(key, value == null ? "true" : value.toString());
                 }
             }
-            Values values = Values.parse(op.name(), op.params(), raw);
-            Map<String, Path> outputs = new LinkedHashMap<>();
-            Map<Path, String> inputs = new LinkedHashMap<>();
-            for (Param p : op.params()) {
-                String v = raw.get(p.key());
-                if (p.kind() == Param.Kind.IMAGE) {
-                    if (v == null) {
-                        if (p.required()) {
-                            throw new IllegalArgumentException("--" + p.key() + " is required: " + p.help());
-                        }
-                        continue;
-                    }
-                    Path path = Paths.get(v);
-                    values.withImage(p.key(), TiffFiles.open(path, "--" + p.key()));
-                    inputs.put(path.toAbsolutePath().normalize(), p.key());
-                } else if (p.kind() == Param.Kind.OUTPUT_IMAGE || p.kind() == Param.Kind.OUTPUT_FILE) {
-                    if (v == null) {
-                        if (p.required()) {
-                            throw new IllegalArgumentException("--" + p.key() + " is required: " + p.help());
-                        }
-                        continue;
-                    }
-                    outputs.put(p.key(), Paths.get(v));
-                }
-            }
-            checkOutputs(outputs, inputs, overwrite);
-            AtomicBoolean cancelled = new AtomicBoolean();
-            Thread hook = new Thread(() -> cancelled.set(true));
-            Runtime.getRuntime().addShutdownHook(hook);
-            RunContext ctx = new RunContext(threads, new CliProgress(err), w -> err.println("warning: " + w), cancelled::get);
-            long t0 = System.nanoTime();
-            Result result;
-            try {
-                result = op.run(values, ctx);
-            } finally {
-                try {
-                    Runtime.getRuntime().removeShutdownHook(hook);
-                } catch (IllegalStateException ignored) {
-                    // already shutting down
-                }
-            }
-            err.print(CliProgress.CLEAR);
-            result.record().putIfAbsent("seconds", (System.nanoTime() - t0) * 1e-9);
-            if (!ctx.warnings().isEmpty()) {
-                result.record().put("warnings", ctx.warnings());
-            }
-            writeOutputs(result, outputs, overwrite);
-            for (String line : result.report()) {
-                out.println(line);
-            }
-            return Main.OK;
         } catch (IllegalArgumentException e) {
             err.println("stackwright " + op.name() + ": " + e.getMessage());
             return Main.BAD_INPUT;
-        } catch (CancelledException e) {
-            err.println("stackwright " + op.name() + ": cancelled; no output written");
-            return Main.FAILED;
-        } catch (OutOfMemoryError e) {
-            err.println("stackwright " + op.name() + ": out of memory; give Java more heap (java -Xmx...) or use a smaller image");
-            return Main.FAILED;
-        } catch (RuntimeException e) {
-            err.println("stackwright " + op.name() + ": failed: " + e);
-            return Main.FAILED;
         }
+        Param main = op.params().stream().filter(p -> p.kind() == Param.Kind.IMAGE).findFirst().orElse(null);
+        try (CancelGuard guard = new CancelGuard()) {
+            if (main != null && Batch.isBatch(raw.get(main.key()))) {
+                return runBatch(main, raw, threads, overwrite, guard);
+            }
+            try {
+                runOne(raw, threads, overwrite, guard);
+                return Main.OK;
+            } catch (RuntimeException | OutOfMemoryError e) {
+                err.println("stackwright " + op.name() + ": " + describe(e));
+                return codeOf(e);
+            }
+        }
+    }
+
+    /**
+     * Batch mode: runs every matching input in turn, continues past a failing file, and ends with a summary that
+     * names each failed file and why. Cancel stops the batch after the current file's cancel check.
+     *
+     * @return OK when every file worked, BAD_INPUT when the batch itself is wrong, FAILED when any file failed
+     */
+    private int runBatch(Param main, Map<String, String> raw, int threads, boolean overwrite, CancelGuard guard) {
+        List<Path> files;
+        try {
+            files = Batch.inputs(main.key(), raw.get(main.key()));
+            for (Param p : op.params()) {
+                if ((p.kind() == Param.Kind.OUTPUT_IMAGE || p.kind() == Param.Kind.OUTPUT_FILE) && raw.containsKey(p.key())) {
+                    Batch.output(p, op.name(), raw.get(p.key()), files.get(0));
+                }
+            }
+        } catch (IllegalArgumentException e) {
+            err.println("stackwright " + op.name() + ": " + e.getMessage());
+            return Main.BAD_INPUT;
+        }
+        Map<Path, String> failed = new LinkedHashMap<>();
+        int done = 0;
+        for (Path f : files) {
+            if (guard.isCancelled()) {
+                failed.put(f, "not started: cancelled");
+                continue;
+            }
+            Map<String, String> one = new LinkedHashMap<>(raw);
+            one.put(main.key(), f.toString());
+            for (Param p : op.params()) {
+                if ((p.kind() == Param.Kind.OUTPUT_IMAGE || p.kind() == Param.Kind.OUTPUT_FILE) && raw.containsKey(p.key())) {
+                    one.put(p.key(), Batch.output(p, op.name(), raw.get(p.key()), f).toString());
+                }
+            }
+            err.println("stackwright " + op.name() + ": [" + (done + failed.size() + 1) + "/" + files.size() + "] " + f);
+            try {
+                runOne(one, threads, overwrite, guard);
+                done++;
+            } catch (RuntimeException | OutOfMemoryError e) {
+                failed.put(f, describe(e));
+                err.println("stackwright " + op.name() + ": " + f + ": " + describe(e));
+            }
+        }
+        err.println("stackwright " + op.name() + ": batch finished: " + done + " of " + files.size() + " files done, "
+                + failed.size() + " failed");
+        for (Map.Entry<Path, String> e : failed.entrySet()) {
+            err.println("  failed: " + e.getKey() + ": " + e.getValue());
+        }
+        return failed.isEmpty() ? Main.OK : Main.FAILED;
+    }
+
+    /** Runs one input: reads, checks outputs, runs, writes. Throws on any problem. */
+    private void runOne(Map<String, String> raw, int threads, boolean overwrite, CancelGuard guard) {
+        Values values = Values.parse(op.name(), op.params(), raw);
+        Map<String, Path> outputs = new LinkedHashMap<>();
+        Map<Path, String> inputs = new LinkedHashMap<>();
+        for (Param p : op.params()) {
+            String v = raw.get(p.key());
+            if (p.kind() == Param.Kind.IMAGE) {
+                if (v == null) {
+                    if (p.required()) {
+                        throw new IllegalArgumentException("--" + p.key() + " is required: " + p.help());
+                    }
+                    continue;
+                }
+                Path path = Paths.get(v);
+                values.withImage(p.key(), TiffFiles.open(path, "--" + p.key()));
+                inputs.put(path.toAbsolutePath().normalize(), p.key());
+            } else if (p.kind() == Param.Kind.OUTPUT_IMAGE || p.kind() == Param.Kind.OUTPUT_FILE) {
+                if (v == null) {
+                    if (p.required()) {
+                        throw new IllegalArgumentException("--" + p.key() + " is required: " + p.help());
+                    }
+                    continue;
+                }
+                outputs.put(p.key(), Paths.get(v));
+            }
+        }
+        checkOutputs(outputs, inputs, overwrite);
+        outputs.values().forEach(guard::watch);
+        RunContext ctx = new RunContext(threads, new CliProgress(err), w -> err.println("warning: " + w), guard::isCancelled);
+        long t0 = System.nanoTime();
+        Result result = op.run(values, ctx);
+        err.print(CliProgress.CLEAR);
+        result.record().putIfAbsent("seconds", (System.nanoTime() - t0) * 1e-9);
+        if (!ctx.warnings().isEmpty()) {
+            result.record().put("warnings", ctx.warnings());
+        }
+        writeOutputs(result, outputs, overwrite, guard);
+        for (String line : result.report()) {
+            out.println(line);
+        }
+    }
+
+    /** @return the exit code for a failure: bad input 2, anything else (cancel, memory, I/O) 1 */
+    static int codeOf(Throwable e) {
+        return e instanceof IllegalArgumentException ? Main.BAD_INPUT : Main.FAILED;
+    }
+
+    /** @return the one-line message the user sees for a failure */
+    static String describe(Throwable e) {
+        if (e instanceof IllegalArgumentException) {
+            return e.getMessage();
+        }
+        if (e instanceof CancelledException) {
+            return "cancelled; no output written";
+        }
+        if (e instanceof OutOfMemoryError) {
+            return "out of memory; give Java more heap (java -Xmx...) or use a smaller image";
+        }
+        return "failed: " + e;
     }
 
     static int parseThreads(String v) {
@@ -204,8 +291,11 @@ final class OperationRunner {
         }
     }
 
-    private void writeOutputs(Result result, Map<String, Path> outputs, boolean overwrite) {
+    private void writeOutputs(Result result, Map<String, Path> outputs, boolean overwrite, CancelGuard guard) {
         for (Map.Entry<String, Path> e : outputs.entrySet()) {
+            if (guard.isCancelled()) {
+                throw new CancelledException("cancelled before writing " + e.getValue());
+            }
             Path path = e.getValue();
             Param p = op.params().stream().filter(q -> q.key().equals(e.getKey())).findFirst().orElseThrow();
             if (p.kind() == Param.Kind.OUTPUT_FILE) {

@@ -6,6 +6,7 @@ import ij.ImagePlus;
 import ij.ImageStack;
 import ij.process.ByteProcessor;
 
+import org.stackwright.op.MemoryCheck;
 import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
@@ -76,6 +77,10 @@ public final class SimulateOperation implements Operation {
         double sz = GaussianPsf.sigmaAxial(lambda, na, n);
         int hx = Math.max(1, (int) Math.ceil(4 * sxy / voxel.x()));
         int hz = size[2] == 1 ? 0 : Math.max(1, (int) Math.ceil(4 * sz / voxel.z()));
+        // the drawn field is the view plus a PSF margin; about ten float copies of it are alive at the peak
+        // (field, blurred field, FFT grid and spectrum, truth, expected, data, output images)
+        long field = (long) (size[0] + 2 * hx) * (size[1] + 2 * hx) * (size[2] + 2 * hz);
+        MemoryCheck.require("simulate --size " + size[0] + "x" + size[1] + "x" + size[2], MemoryCheck.floats(field, 10));
         Volume psf = GaussianPsf.sampled(sxy, sz, voxel, 2 * hx + 1, 2 * hx + 1, 2 * hz + 1);
         double b = v.number("brightness");
         Specimen.Contents c = v.choice("specimen").equals("beads")

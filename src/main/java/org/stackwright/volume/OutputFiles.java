@@ -19,7 +19,7 @@ public final class OutputFiles {
     public static void writeText(byte[] bytes, Path path, boolean overwrite) throws IOException {
         Path abs = path.toAbsolutePath();
         TiffFiles.checkWritable(abs, overwrite);
-        Path tmp = abs.getParent().resolve("." + abs.getFileName() + ".part-" + ProcessHandle.current().pid());
+        Path tmp = TiffFiles.temporaryFor(abs);
         try {
             Files.write(tmp, bytes);
             moveIntoPlace(tmp, abs);
@@ -32,7 +32,7 @@ public final class OutputFiles {
     public static void writePng(ImagePlus imp, Path path, boolean overwrite) {
         Path abs = path.toAbsolutePath();
         TiffFiles.checkWritable(abs, overwrite);
-        Path tmp = abs.getParent().resolve("." + abs.getFileName() + ".part-" + ProcessHandle.current().pid() + ".png");
+        Path tmp = Path.of(TiffFiles.temporaryFor(abs) + ".png");
         try {
             if (!new FileSaver(imp).saveAsPng(tmp.toString()) || !Files.exists(tmp)) {
                 throw new IOException("ImageJ could not write " + tmp);

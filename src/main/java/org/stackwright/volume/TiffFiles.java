@@ -95,7 +95,7 @@ public final class TiffFiles {
         Path abs = path.toAbsolutePath();
         Path dir = abs.getParent();
         checkWritable(abs, overwrite);
-        Path tmp = dir.resolve("." + abs.getFileName() + ".part-" + ProcessHandle.current().pid());
+        Path tmp = temporaryFor(abs);
         try {
             FileSaver saver = new FileSaver(imp);
             boolean ok = imp.getStackSize() > 1 ? saver.saveAsTiffStack(tmp.toString()) : saver.saveAsTiff(tmp.toString());
@@ -116,6 +116,15 @@ public final class TiffFiles {
                 // the temporary file is hidden and named after the process; nothing more we can do
             }
         }
+    }
+
+    /**
+     * The hidden temporary file an output is written to before it is renamed into place: in the same folder (so
+     * the rename is atomic), named after the output and this process. PNG outputs add ".png" to it.
+     */
+    public static Path temporaryFor(Path output) {
+        Path abs = output.toAbsolutePath();
+        return abs.getParent().resolve("." + abs.getFileName() + ".part-" + ProcessHandle.current().pid());
     }
 
     /**

@@ -1,0 +1,99 @@
+package org.stackwright.cli;
+
+import java.io.IOException;
+import java.nio.file.DirectoryStream;
+import java.nio.file.FileSystems;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.nio.file.PathMatcher;
+import java.nio.file.Paths;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.Locale;
+
+import org.stackwright.op.Param;
+import org.stackwright.volume.TiffFiles;
+
+/**
+ * Batch mode of the command line: the main input names a folder (every .tif/.tiff in it) or a file pattern
+ * ({@code "data/*.tif"}, with {@code * ? [..] {a,b}} in the file name part), and each output option names a
+ * folder. Files are processed in name order; output names are {@code <title>-<operation>.tif} for the main
+ * output {@code output} and {@code <title>-<key>.tif} (or {@code .json}) for the others.
+ */
+final class Batch {
+
+    private Batch() {
+    }
+
+    /** @return true when the value names a folder or a file pattern rather than one file */
+    static boolean isBatch(String value) {
+        if (value == null) {
+            return false;
+        }
+        Path p = Paths.get(value);
+        if (Files.isDirectory(p)) {
+            return true;
+        }
+        String name = p.getFileName() == null ? "" : p.getFileName().toString();
+        return name.chars().anyMatch(c -> c == '*' || c == '?' || c == '[' || c == '{');
+    }
+
+    /**
+     * @param key the input option, for messages
+     * @param value a folder or a pattern
+     * @return the matching TIFF files, sorted by name
+     * @throws IllegalArgumentException naming the option when the folder is missing or nothing matches
+     */
+    static List<Path> inputs(String key, String value) {
+        Path p = Paths.get(value);
+        Path dir;
+        PathMatcher m;
+        if (Files.isDirectory(p)) {
+            dir = p;
+            m = FileSystems.getDefault().getPathMatcher("glob:*.{tif,tiff,TIF,TIFF}");
+        } else {
+            dir = p.getParent() == null ? Paths.get(".") : p.getParent();
+            try {
+                m = FileSystems.getDefault().getPathMatcher("glob:" + p.getFileName());
+            } catch (IllegalArgumentException e) {
+                throw new IllegalArgumentException("--" + key + " = '" + value + "' is not a valid file pattern ("
+                        + e.getMessage() + "); allowed: a file, a folder, or a pattern such as data/*.tif");
+            }
+        }
+        if (!Files.isDirectory(dir)) {
+            throw new IllegalArgumentException("--" + key + ": folder " + dir + " does not exist");
+        }
+        List<Path> files = new ArrayList<>();
+        try (DirectoryStream<Path> ds = Files.newDirectoryStream(dir)) {
+            for (Path f : ds) {
+                if (Files.isRegularFile(f) && m.matches(f.getFileName()) && !f.getFileName().toString().startsWith(".")) {
+                    files.add(f);
+                }
+            }
+        } catch (IOException e) {
+            throw new IllegalArgumentException("--" + key + ": folder " + dir + " cannot be read: " + e.getMessage(), e);
+        }
+        if (files.isEmpty()) {
+            throw new IllegalArgumentException("--" + key + " = '" + value + "' matches no file; allowed: a TIFF file,"
+                    + " a folder holding .tif files, or a pattern such as data/*.tif");
+        }
+        files.sort(null);
+        return files;
+    }
+
+    /**
+     * @return the output file for one input in an output folder
+     * @throws IllegalArgumentException naming the option when the folder does not exist
+     */
+    static Path output(Param p, String operation, String folder, Path input) {
+        Path dir = Paths.get(folder);
+        if (!Files.isDirectory(dir)) {
+            throw new IllegalArgumentException("--" + p.key() + " = '" + folder + "' is not a folder; in batch mode"
+                    + " (a folder or pattern as input) every output option names an existing folder");
+        }
+        String title = TiffFiles.titleOf(input);
+        String suffix = p.key().equals("output") ? operation : p.key();
+        String ext = p.kind() == Param.Kind.OUTPUT_FILE ? ".json" : ".tif";
+        return dir.resolve(title + "-" + suffix.toLowerCase(Locale.ROOT) + ext);
+    }
+}

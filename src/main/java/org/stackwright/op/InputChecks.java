@@ -1,0 +1,142 @@
+package org.stackwright.op;
+
+import java.util.Locale;
+
+import org.stackwright.volume.Volume;
+
+/**
+ * Checks on the pixels of an input image that every operation makes before computing, with one documented rule
+ * per case so that the doors behave the same:
+ * <ul>
+ * <li><b>NaN or infinite pixels</b>: treated as untrusted, exactly like pixels of a mask: they carry no data, a
+ * warning gives their count, and {@link Scan#nonFiniteMask()} marks them (1 = untrusted) so the operation can
+ * merge it into its own mask. {@link #finiteCopy} gives a copy in which they hold the mean of the finite pixels,
+ * so FFTs stay finite. An image with no finite pixel at all is refused.</li>
+ * <li><b>negative pixels</b>: kept as they are, with a warning (usually a camera offset or a background that was
+ * subtracted and clipped wrongly; Poisson models expect counts &ge; 0).</li>
+ * <li><b>constant image</b>: a warning (nothing to restore; the result is constant too).</li>
+ * <li><b>too small</b> (1 pixel, or smaller than an operation needs): refused by {@link #requireMinSize}.</li>
+ * </ul>
+ * An empty image (a size of 0) cannot exist as a {@link Volume}; {@link Volume#checkSize} refuses it. The input
+ * volume is never modified.
+ */
+public final class InputChecks {
+
+    /**
+     * What a scan found.
+     *
+     * @param nonFinite number of NaN or infinite pixels
+     * @param negative number of negative (finite) pixels
+     * @param min smallest finite value (NaN when there is none)
+     * @param max largest finite value (NaN when there is none)
+     * @param finiteMean mean of the finite pixels (NaN when there is none)
+     * @param nonFiniteMask one byte per pixel, 1 where the pixel is NaN or infinite; null when there is none
+     */
+    public record Scan(int nonFinite, int negative, double min, double max, double finiteMean, byte[] nonFiniteMask) {
+
+        /** @return true when every finite pixel has the same value */
+        public boolean constant() {
+            return min == max;
+        }
+    }
+
+    private InputChecks() {
+    }
+
+    /**
+     * Scans an image; no warnings, no refusals.
+     *
+     * @param v the image, not modified
+     */
+    public static Scan scan(Volume v) {
+        float[] d = v.data();
+        int bad = 0;
+        int neg = 0;
+        double min = Double.POSITIVE_INFINITY;
+        double max = Double.NEGATIVE_INFINITY;
+        double sum = 0;
+        byte[] mask = null;
+        for (int i = 0; i < d.length; i++) {
+            float f = d[i];
+            if (!Float.isFinite(f)) {
+                if (mask == null) {
+                    mask = new byte[d.length];
+                }
+                mask[i] = 1;
+                bad++;
+                continue;
+            }
+            if (f < 0) {
+                neg++;
+            }
+            min = Math.min(min, f);
+            max = Math.max(max, f);
+            sum += f;
+        }
+        int good = d.length - bad;
+        return good == 0 ? new Scan(bad, 0, Double.NaN, Double.NaN, Double.NaN, mask)
+                : new Scan(bad, neg, min, max, sum / good, mask);
+    }
+
+    /**
+     * Scans an image, refuses one without a finite pixel, and warns about NaN/infinite pixels (treated as
+     * untrusted), negative pixels and a constant image.
+     *
+     * @param key the parameter the image came from (e.g. "input"), named in messages
+     * @param v the image, not modified
+     * @param ctx where warnings go
+     * @throws IllegalArgumentException naming the key when no pixel is finite
+     */
+    public static Scan check(String key, Volume v, RunContext ctx) {
+        Scan s = scan(v);
+        if (s.nonFinite() == v.size()) {
+            throw new IllegalArgumentException(key + ": every one of the " + v.size()
+                    + " pixels is NaN or infinite; at least one finite pixel is needed");
+        }
+        if (s.nonFinite() > 0) {
+            ctx.warn(key + ": " + s.nonFinite() + " of " + v.size() + " pixels are NaN or infinite; they are treated as"
+                    + " untrusted (masked): their values are not used");
+        }
+        if (s.negative() > 0) {
+            ctx.warn(String.format(Locale.ROOT, "%s: %d pixels are negative (smallest %.6g); they are used as given;"
+                    + " check the camera offset and background settings", key, s.negative(), s.min()));
+        }
+        if (s.constant()) {
+            ctx.warn(String.format(Locale.ROOT, "%s: every finite pixel has the value %.6g; there is no structure to"
+                    + " restore and the result will be flat", key, s.min()));
+        }
+        return s;
+    }
+
+    /**
+     * @param v the image, not modified
+     * @param s its scan
+     * @return v itself when every pixel is finite, otherwise a copy whose NaN/infinite pixels hold the mean of the
+     *     finite pixels (a neutral value that keeps FFTs finite; those pixels stay untrusted)
+     */
+    public static Volume finiteCopy(Volume v, Scan s) {
+        if (s.nonFinite() == 0) {
+            return v;
+        }
+        float fill = (float) s.finiteMean();
+        float[] d = v.data().clone();
+        for (int i = 0; i < d.length; i++) {
+            if (!Float.isFinite(d[i])) {
+                d[i] = fill;
+            }
+        }
+        return v.withData(d);
+    }
+
+    /**
+     * Refuses an image smaller than an operation can use (a 1-pixel image, a 2-pixel-wide strip ...).
+     *
+     * @throws IllegalArgumentException naming the key, the size given and the smallest size allowed
+     */
+    public static void requireMinSize(String key, Volume v, int minWidth, int minHeight, int minDepth) {
+        if (v.width() < minWidth || v.height() < minHeight || v.depth() < minDepth) {
+            throw new IllegalArgumentException(key + ": image is " + v.shape() + " pixels; allowed: at least "
+                    + minWidth + "x" + minHeight + "x" + minDepth);
+        }
+    }
+}
