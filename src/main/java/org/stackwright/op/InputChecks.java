@@ -98,12 +98,12 @@ public final class InputChecks {
                     + " untrusted (masked): their values are not used");
         }
         if (s.negative() > 0) {
-            ctx.warn(String.format(Locale.ROOT, "%s: %d pixels are negative (smallest %.6g); they are used as given;"
-                    + " check the camera offset and background settings", key, s.negative(), s.min()));
+            ctx.warn(key + ": " + s.negative() + " pixels are negative (smallest " + num(s.min()) + "); they are used as"
+                    + " given; check the camera offset and background settings");
         }
         if (s.constant()) {
-            ctx.warn(String.format(Locale.ROOT, "%s: every finite pixel has the value %.6g; there is no structure to"
-                    + " restore and the result will be flat", key, s.min()));
+            ctx.warn(key + ": every finite pixel has the value " + num(s.min()) + "; there is no structure to restore and"
+                    + " the result will be flat");
         }
         return s;
     }
@@ -126,6 +126,10 @@ public final class InputChecks {
             }
         }
         return v.withData(d);
+    }
+
+    private static String num(double v) {
+        return v == Math.rint(v) && Math.abs(v) < 1e15 ? Long.toString((long) v) : String.format(Locale.ROOT, "%.6g", v);
     }
 
     /**

@@ -52,6 +52,7 @@ public final class TiffFiles {
         if (!tiff) {
             throw new IllegalArgumentException(what + ": " + path + " is not a TIFF file (save it as TIFF first)");
         }
+        TiffCheck.requireComplete(path, what);
         ImagePlus imp;
         try {
             Path abs = path.toAbsolutePath();

@@ -1,0 +1,80 @@
+package org.stackwright.volume;
+
+import java.io.File;
+import java.io.IOException;
+import java.nio.file.Files;
+import java.nio.file.Path;
+
+import ij.io.FileInfo;
+import ij.io.TiffDecoder;
+
+/**
+ * Checks that a TIFF file holds all the pixel data its header promises before ImageJ reads it. ImageJ's reader
+ * fills a truncated stack silently (it returns the planes that are there, or zeros), which would give a silently
+ * wrong result; a damaged header can also ask for absurd sizes. TIFF has no checksum, so flipped bits inside the
+ * pixel data cannot be detected by any reader; flipped bits in the header are caught when they point outside the
+ * file or give impossible sizes.
+ */
+final class TiffCheck {
+
+    private TiffCheck() {
+    }
+
+    /**
+     * @param path an existing, readable file starting with a TIFF signature
+     * @param what the parameter the path came from, for messages
+     * @throws IllegalArgumentException naming the parameter when the header cannot be read or the pixel data
+     *     would extend past the end of the file
+     */
+    static void requireComplete(Path path, String what) {
+        Path abs = path.toAbsolutePath();
+        long length;
+        FileInfo[] info;
+        try {
+            length = Files.size(abs);
+            info = new TiffDecoder(abs.getParent().toString() + File.separator, abs.getFileName().toString()).getTiffInfo();
+        } catch (IOException e) {
+            if (e.getMessage() != null && e.getMessage().startsWith("Unsupported")) {
+                throw new IllegalArgumentException(what + ": TIFF file " + path + " is of a kind that cannot be read ("
+                        + e.getMessage() + "); allowed: 8, 16 or 32-bit grayscale (convert 64-bit images to 32-bit)", e);
+            }
+            throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged: its header cannot be read ("
+                    + e.getMessage() + ")", e);
+        } catch (RuntimeException e) {
+            throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged: its header cannot be read ("
+                    + e.getClass().getSimpleName() + (e.getMessage() == null ? "" : ": " + e.getMessage()) + ")", e);
+        }
+        if (info == null || info.length == 0) {
+            throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged: it describes no image");
+        }
+        for (FileInfo fi : info) {
+            if (fi.width < 1 || fi.height < 1 || fi.nImages < 1) {
+                throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged: it gives an image size of "
+                        + fi.width + "x" + fi.height + " with " + fi.nImages + " planes");
+            }
+            long end = dataEnd(fi);
+            if (end > length || end < 0) {
+                throw new IllegalArgumentException(what + ": TIFF file " + path + " is truncated or damaged: its pixel data"
+                        + " would end at byte " + end + " but the file has " + length + " bytes");
+            }
+        }
+    }
+
+    /** @return the byte after the last pixel byte the header describes */
+    private static long dataEnd(FileInfo fi) {
+        long end = 0;
+        if (fi.stripOffsets != null && fi.stripLengths != null && fi.stripOffsets.length == fi.stripLengths.length
+                && fi.nImages == 1) {
+            for (int i = 0; i < fi.stripOffsets.length; i++) {
+                end = Math.max(end, Integer.toUnsignedLong(fi.stripOffsets[i]) + Integer.toUnsignedLong(fi.stripLengths[i]));
+            }
+        }
+        if (fi.compression <= FileInfo.COMPRESSION_NONE) {
+            long plane = (long) fi.width * fi.height * Math.max(1, fi.getBytesPerPixel());
+            long first = fi.getOffset();
+            long stack = first + fi.nImages * plane + (fi.nImages - 1) * Math.max(0L, fi.getGap());
+            end = Math.max(end, stack);
+        }
+        return end;
+    }
+}
