@@ -77,7 +77,7 @@ final class Fixtures implements AutoCloseable {
 
     /** A good stack cut to the given fraction of its length (pixels missing). */
     Path truncated(String name, double fraction) {
-        Path good = tiff("." + name + ".whole.tif", 16, 16, 4);
+        Path good = tiff(hidden(name), 16, 16, 4);
         try {
             byte[] b = Files.readAllBytes(good);
             Path p = path(name);
@@ -90,7 +90,7 @@ final class Fixtures implements AutoCloseable {
 
     /** A good TIFF whose header points its first image directory past the end of the file. */
     Path damagedHeader(String name) {
-        Path good = tiff("." + name + ".whole.tif", 8, 8, 2);
+        Path good = tiff(hidden(name), 8, 8, 2);
         try {
             byte[] b = Files.readAllBytes(good);
             boolean little = b[0] == 'I';
@@ -104,6 +104,12 @@ final class Fixtures implements AutoCloseable {
         } catch (IOException e) {
             throw new UncheckedIOException(e);
         }
+    }
+
+    /** @return a hidden sibling name for the intact original of a damaged file */
+    private static String hidden(String name) {
+        int slash = name.lastIndexOf('/');
+        return name.substring(0, slash + 1) + "." + name.substring(slash + 1) + ".whole.tif";
     }
 
     Path rgb(String name) {
