@@ -3,6 +3,7 @@ package org.stackwright.cli;
 import java.io.IOException;
 import java.nio.file.DirectoryStream;
 import java.nio.file.FileSystems;
+import java.nio.file.InvalidPathException;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.nio.file.PathMatcher;
@@ -30,7 +31,12 @@ final class Batch {
         if (value == null) {
             return false;
         }
-        Path p = Paths.get(value);
+        Path p;
+        try {
+            p = Paths.get(value);
+        } catch (InvalidPathException e) {
+            return false; // not a usable path at all; the input check names the option
+        }
         if (Files.isDirectory(p)) {
             return true;
         }

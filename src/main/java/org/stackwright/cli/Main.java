@@ -42,7 +42,7 @@ public final class Main {
         try {
             pr = cl.parseArgs(args);
         } catch (CommandLine.ParameterException e) {
-            err.println("stackwright: " + e.getMessage());
+            err.println("stackwright: " + clip(e.getMessage()));
             err.println("Run 'stackwright " + (e.getCommandLine() == cl ? "" : e.getCommandLine().getCommandName() + " ")
                     + "--help' for the options.");
             return BAD_INPUT;
@@ -66,6 +66,11 @@ public final class Main {
         }
         Operation op = Operations.byName(name).orElseThrow();
         return new OperationRunner(op, out, err).run(sub);
+    }
+
+    /** Cuts a message that quotes a very long value down to a readable length (at most 500 characters). */
+    static String clip(String message) {
+        return message == null || message.length() <= 500 ? message : message.substring(0, 497) + "...";
     }
 
     static CommandSpec rootSpec() {

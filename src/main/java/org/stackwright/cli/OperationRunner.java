@@ -101,7 +101,7 @@ final class OperationRunner {
         try {
             pr = cl.parseArgs(args);
         } catch (CommandLine.ParameterException e) {
-            err.println("stackwright " + op.name() + ": " + e.getMessage());
+            err.println("stackwright " + op.name() + ": " + Main.clip(e.getMessage()));
             return Main.BAD_INPUT;
         }
         if (pr.isUsageHelpRequested()) {
@@ -128,7 +128,7 @@ final class OperationRunner {
                 }
             }
         } catch (IllegalArgumentException e) {
-            err.println("stackwright " + op.name() + ": " + e.getMessage());
+            err.println("stackwright " + op.name() + ": " + Main.clip(e.getMessage()));
             return Main.BAD_INPUT;
         }
         Param main = op.params().stream().filter(p -> p.kind() == Param.Kind.IMAGE).findFirst().orElse(null);
@@ -162,7 +162,7 @@ final class OperationRunner {
                 }
             }
         } catch (IllegalArgumentException e) {
-            err.println("stackwright " + op.name() + ": " + e.getMessage());
+            err.println("stackwright " + op.name() + ": " + Main.clip(e.getMessage()));
             return Main.BAD_INPUT;
         }
         Map<Path, String> failed = new LinkedHashMap<>();
@@ -247,7 +247,7 @@ final class OperationRunner {
     /** @return the one-line message the user sees for a failure */
     static String describe(Throwable e) {
         if (e instanceof IllegalArgumentException) {
-            return e.getMessage();
+            return Main.clip(e.getMessage());
         }
         if (e instanceof CancelledException) {
             return "cancelled; no output written";
@@ -255,7 +255,7 @@ final class OperationRunner {
         if (e instanceof OutOfMemoryError) {
             return "out of memory; give Java more heap (java -Xmx...) or use a smaller image";
         }
-        return "failed: " + e;
+        return Main.clip("failed: " + e);
     }
 
     static int parseThreads(String v) {

@@ -110,7 +110,7 @@ public final class Values {
             throw new IllegalArgumentException(key + " = '" + shorten(value) + "' is not a number");
         }
         if (!Double.isFinite(d)) {
-            throw new IllegalArgumentException(key + " = " + value + " is not a finite number");
+            throw new IllegalArgumentException(key + " = " + shorten(value) + " is not a finite number");
         }
         return d;
     }

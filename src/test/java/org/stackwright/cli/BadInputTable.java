@@ -163,6 +163,8 @@ final class BadInputTable {
                 "--input", f("nothing.tif"), "--output", out));
         t.add(op("input unreadable", scale, 2, "cannot be read (check its permissions)",
                 "--input", f("locked.tif"), "--output", out));
+        t.add(op("input path with a NUL character", scale, 2, "input contains a NUL character", "--input", "in\0.tif", "--output", out));
+        t.add(cli("output path with a NUL character", 2, "output contains a NUL character", "simulate", "--output", "o\0.tif"));
         t.add(op("input not a TIFF", scale, 2, "notes.tif is not a TIFF file", "--input", f("notes.tif"), "--output", out));
         t.add(op("input empty file", scale, 2, "empty.tif is not a TIFF file", "--input", f("empty.tif"), "--output", out));
         t.add(op("input truncated TIFF", scale, 2, "is truncated or damaged: its pixel data would end at byte",
