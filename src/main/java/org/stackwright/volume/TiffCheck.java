@@ -32,6 +32,10 @@ final class TiffCheck {
         FileInfo[] info;
         try {
             length = Files.size(abs);
+            String problem = TiffStructure.problem(abs);
+            if (problem != null) {
+                throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged: " + problem);
+            }
             info = new TiffDecoder(abs.getParent().toString() + File.separator, abs.getFileName().toString()).getTiffInfo();
         } catch (IOException e) {
             if (e.getMessage() != null && e.getMessage().startsWith("Unsupported")) {
