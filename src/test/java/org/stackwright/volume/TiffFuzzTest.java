@@ -64,7 +64,7 @@ class TiffFuzzTest {
             ImagePlusAdapter.toVolume(imp, 1, 1);
             return "ok";
         } catch (IllegalArgumentException e) {
-            assertTrue(e.getMessage() != null && e.getMessage().contains("--input") || e.getMessage().contains("image '"),
+            assertTrue(e.getMessage() != null && (e.getMessage().contains("--input") || e.getMessage().contains("image '")),
                     "message does not name the input: " + e.getMessage());
             return "refused";
         }
@@ -118,7 +118,7 @@ class TiffFuzzTest {
         Path cut = dir.resolve("cut.tif");
         // ImageJ writes header, directory and description first, then the pixels; find where they end
         int pixelEnd = -1;
-        for (int len = b.length; len > 0; len -= 7) {
+        for (int len = b.length; len > 0; len -= 13) {
             Files.write(cut, Arrays.copyOf(b, len));
             boolean refused = open(cut).equals("refused");
             if (refused && pixelEnd < 0) {
