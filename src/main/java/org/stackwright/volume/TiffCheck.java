@@ -30,12 +30,17 @@ final class TiffCheck {
         Path abs = path.toAbsolutePath();
         long length;
         FileInfo[] info;
+        String problem;
+        try {
+            problem = TiffStructure.problem(abs);
+        } catch (IOException e) {
+            problem = "it cannot be read (" + e.getMessage() + ")";
+        }
+        if (problem != null) {
+            throw new IllegalArgumentException(what + ": TIFF file " + path + " is truncated or damaged: " + problem);
+        }
         try {
             length = Files.size(abs);
-            String problem = TiffStructure.problem(abs);
-            if (problem != null) {
-                throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged: " + problem);
-            }
             info = new TiffDecoder(abs.getParent().toString() + File.separator, abs.getFileName().toString()).getTiffInfo();
         } catch (IOException e) {
             if (e.getMessage() != null && e.getMessage().startsWith("Unsupported")) {

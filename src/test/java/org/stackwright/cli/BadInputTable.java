@@ -116,6 +116,7 @@ final class BadInputTable {
         x.text("notes.tif", "this is a text file, not an image\n");
         x.text("empty.tif", "");
         x.truncated("truncated.tif", 0.6);
+        x.truncated("truncated-plane.tif", 0.6, 1);
         x.damagedHeader("damaged.tif");
         x.rgb("colour.tif");
         x.float64("double.tif", 1.5, -2.25, 1e-3, 12345.678);
@@ -167,9 +168,12 @@ final class BadInputTable {
         t.add(cli("output path with a NUL character", 2, "output contains a NUL character", "simulate", "--output", "o\0.tif"));
         t.add(op("input not a TIFF", scale, 2, "notes.tif is not a TIFF file", "--input", f("notes.tif"), "--output", out));
         t.add(op("input empty file", scale, 2, "empty.tif is not a TIFF file", "--input", f("empty.tif"), "--output", out));
-        t.add(op("input truncated TIFF", scale, 2, "is truncated or damaged: its pixel data would end at byte",
+        t.add(op("input truncated TIFF stack", scale, 2, "truncated.tif is truncated or damaged: image directory 2 would start at byte",
                 "--input", f("truncated.tif"), "--output", out));
-        t.add(op("input TIFF header damaged", scale, 2, "damaged.tif is damaged", "--input", f("damaged.tif"), "--output", out));
+        t.add(op("input truncated TIFF plane", scale, 2, "truncated-plane.tif is truncated or damaged: its pixel data would end at byte",
+                "--input", f("truncated-plane.tif"), "--output", out));
+        t.add(op("input TIFF header damaged", scale, 2, "damaged.tif is truncated or damaged: image directory 1 would start at byte",
+                "--input", f("damaged.tif"), "--output", out));
         t.add(op("input RGB", scale, 2, "is RGB colour; use a grayscale 8, 16 or 32-bit image",
                 "--input", f("colour.tif"), "--output", out));
         t.add(op("input 64-bit float", scale, 2, "double.tif is of a kind that cannot be read (Unsupported BitsPerSample: 64);"

@@ -77,7 +77,12 @@ final class Fixtures implements AutoCloseable {
 
     /** A good stack cut to the given fraction of its length (pixels missing). */
     Path truncated(String name, double fraction) {
-        Path good = tiff(hidden(name), 16, 16, 4);
+        return truncated(name, fraction, 4);
+    }
+
+    /** A good 16x16xdepth image cut to the given fraction of its length. */
+    Path truncated(String name, double fraction, int depth) {
+        Path good = tiff(hidden(name), 16, 16, depth);
         try {
             byte[] b = Files.readAllBytes(good);
             Path p = path(name);
