@@ -250,7 +250,8 @@ final class OperationRunner {
             return Main.clip(e.getMessage());
         }
         if (e instanceof CancelledException) {
-            return "cancelled; no output written";
+            return e.getMessage() != null && e.getMessage().startsWith("cancelled; complete before the cancel")
+                    ? e.getMessage() : "cancelled; no output written";
         }
         if (e instanceof OutOfMemoryError) {
             return "out of memory; give Java more heap (java -Xmx...) or use a smaller image";
@@ -292,15 +293,18 @@ final class OperationRunner {
     }
 
     private void writeOutputs(Result result, Map<String, Path> outputs, boolean overwrite, CancelGuard guard) {
+        List<Path> written = new java.util.ArrayList<>();
         for (Map.Entry<String, Path> e : outputs.entrySet()) {
             if (guard.isCancelled()) {
-                throw new CancelledException("cancelled before writing " + e.getValue());
+                throw new CancelledException(written.isEmpty() ? "cancelled; no output written"
+                        : "cancelled; complete before the cancel: " + written + "; not written: the others");
             }
             Path path = e.getValue();
             Param p = op.params().stream().filter(q -> q.key().equals(e.getKey())).findFirst().orElseThrow();
             if (p.kind() == Param.Kind.OUTPUT_FILE) {
                 try {
                     OutputFiles.writeText(Json.write(result.record()).getBytes(StandardCharsets.UTF_8), path, overwrite);
+                    written.add(path);
                 } catch (IOException ex) {
                     throw new UncheckedIOException("could not write " + path + ": " + ex.getMessage(), ex);
                 }
@@ -311,8 +315,10 @@ final class OperationRunner {
                 err.println("note: " + op.name() + " made no " + e.getKey() + " for this input; " + path + " not written");
             } else if (path.getFileName().toString().toLowerCase(Locale.ROOT).endsWith(".png")) {
                 OutputFiles.writePng(imp, path, overwrite);
+                written.add(path);
             } else {
                 TiffFiles.write(imp, path, overwrite);
+                written.add(path);
             }
         }
     }

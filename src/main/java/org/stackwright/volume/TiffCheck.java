@@ -49,6 +49,11 @@ final class TiffCheck {
             }
             throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged: its header cannot be read ("
                     + e.getMessage() + ")", e);
+        } catch (OutOfMemoryError e) {
+            // the decoder reads only headers and metadata; asking for the whole heap means a damaged count (one
+            // failed huge allocation, which frees nothing and leaves the heap as it was)
+            throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged: its header asks for an"
+                    + " impossible amount of memory", e);
         } catch (RuntimeException e) {
             throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged: its header cannot be read ("
                     + e.getClass().getSimpleName() + (e.getMessage() == null ? "" : ": " + e.getMessage()) + ")", e);
