@@ -134,7 +134,7 @@ public final class ChannelRunner {
             parts.add(new Part(c, t, values.get(i), r, partWarnings));
         }
         Map<String, ImagePlus> images = new LinkedHashMap<>();
-        String base = main == null ? op.name() : main.getShortTitle() + "-" + op.name();
+        String base = baseTitle(op, main);
         for (Param p : op.params()) {
             if (p.kind() != Param.Kind.OUTPUT_IMAGE || !settings.outputs().contains(p.key())) {
                 continue;
@@ -150,6 +150,19 @@ public final class ChannelRunner {
             }
         }
         return new Outcome(main, parts, images);
+    }
+
+    /**
+     * @return "&lt;title&gt;-&lt;operation&gt;": the input's title without its file extension (spaces kept), or the
+     *     operation name when there is no input image
+     */
+    public static String baseTitle(Operation op, ImagePlus main) {
+        if (main == null) {
+            return op.name();
+        }
+        String t = main.getTitle().replaceFirst(
+                "(?i)\\.(ome\\.tiff?|tiff?|png|jpe?g|gif|bmp|zip|raw|ics|ids|lsm|czi|nd2|lif|oib|oif|dv|ims)$", "");
+        return t + "-" + op.name();
     }
 
     private static void checkMatches(String key, ImagePlus imp, int nc, int nt, String mainKey) {

@@ -135,7 +135,7 @@ public class OperationPlugin implements PlugIn {
             imp.show();
         }
         RunReport.table(op.name(), outcome);
-        String base = outcome.mainInput() == null ? op.name() : outcome.mainInput().getShortTitle() + "-" + op.name();
+        String base = ChannelRunner.baseTitle(op, outcome.mainInput());
         Plot plot = RunReport.convergence(base, outcome);
         if (plot != null) {
             plot.show();
