@@ -48,7 +48,7 @@ public final class OperationDialog {
     /** @return every macro key the dialog of this operation reads */
     public static Set<String> macroKeys(Operation op) {
         Set<String> keys = new LinkedHashSet<>();
-        for (Param p : op.params()) {
+        for (Param p : dialogOrder(op)) {
             if (inDialog(p)) {
                 keys.add(p.key());
             }
@@ -57,6 +57,30 @@ public final class OperationDialog {
             keys.add(DoorSettings.OVERWRITE);
         }
         return keys;
+    }
+
+    /**
+     * @return the parameters in dialog order: input images first, then the settings in the operation's order,
+     *     then the outputs
+     */
+    public static List<Param> dialogOrder(Operation op) {
+        List<Param> out = new ArrayList<>();
+        for (Param p : op.params()) {
+            if (p.kind() == Param.Kind.IMAGE) {
+                out.add(p);
+            }
+        }
+        for (Param p : op.params()) {
+            if (!p.isImageOrFile()) {
+                out.add(p);
+            }
+        }
+        for (Param p : op.params()) {
+            if (p.kind() == Param.Kind.OUTPUT_IMAGE || p.kind() == Param.Kind.OUTPUT_FILE) {
+                out.add(p);
+            }
+        }
+        return out;
     }
 
     static boolean hasFiles(Operation op) {
@@ -74,7 +98,7 @@ public final class OperationDialog {
         gd.addMessage(op.summary());
         String[] titles = WindowManager.getImageTitles();
         boolean firstImage = true;
-        for (Param p : op.params()) {
+        for (Param p : dialogOrder(op)) {
             String label = label(p);
             switch (p.kind()) {
                 case IMAGE -> {
@@ -147,7 +171,7 @@ public final class OperationDialog {
      */
     public static DoorSettings read(GenericDialog gd, Operation op) {
         DoorSettings s = new DoorSettings();
-        for (Param p : op.params()) {
+        for (Param p : dialogOrder(op)) {
             switch (p.kind()) {
                 case IMAGE -> {
                     String t = gd.getNextChoice();
