@@ -53,7 +53,7 @@ for (i = 0; i < list.length; i++) {
         continue;
     }
     getVoxelSize(pw, ph, pd, unit);
-    if (unit != "micron" && unit != "um" && unit != "µm") {
+    if (!startsWith(unit, "micron") && unit != "um" && unit != "µm") {
         skipped = skipped + name + ": not calibrated in micrometres (Image>Properties)\n";
         close(title);
         continue;
@@ -72,7 +72,7 @@ for (i = 0; i < list.length; i++) {
     close("*");
     done++;
 }
-Table.save(output + "runs.csv", "Stackwright Runs");
+if (isOpen("Stackwright Runs")) Table.save(output + "runs.csv", "Stackwright Runs");
 if (skipped != "") File.saveString(skipped, output + "skipped.txt");
 print("Deconvolved " + done + " files into " + output);
 if (skipped != "") print("Skipped:\n" + skipped);

@@ -14,6 +14,7 @@ import ij.Prefs;
 import ij.WindowManager;
 import ij.gui.GenericDialog;
 import ij.gui.Plot;
+import ij.macro.Interpreter;
 import ij.plugin.PlugIn;
 
 import org.stackwright.op.Json;
@@ -28,8 +29,9 @@ import org.stackwright.volume.TiffFiles;
  * The ImageJ 1.x door of every operation: {@code plugins.config} names this class with the operation's name as
  * argument. It shows the operation's recordable dialog (or reads the macro options), runs on the chosen images
  * (hyperstacks channel by channel and time point by time point, see {@link ChannelRunner}), shows the outputs as
- * new images titled {@code <title>-<operation>} (hidden in batch mode, where a macro can select them), adds a row
- * to the table "Stackwright Runs", plots convergence and writes the run record when asked. Progress goes to the
+ * new images titled {@code <title>-<operation>} (hidden in batch mode, where a macro can select them; the main
+ * output is shown last, so it is the current image afterwards), adds a row to the table "Stackwright Runs", plots
+ * convergence (not in batch mode: the history is in the record) and writes the run record when asked. Progress goes to the
  * status bar, warnings to the Log, Esc cancels within one iteration and then nothing is shown. Errors go to
  * IJ.error, which in a macro aborts the macro with the message.
  */
@@ -131,14 +133,20 @@ public class OperationPlugin implements PlugIn {
                 throw new UncheckedIOException("could not write " + f.getKey() + " " + path + ": " + e.getMessage(), e);
             }
         }
-        for (ImagePlus imp : outcome.images().values()) {
-            imp.show();
-        }
         RunReport.table(op.name(), outcome);
-        String base = ChannelRunner.baseTitle(op, outcome.mainInput());
-        Plot plot = RunReport.convergence(base, outcome);
+        Plot plot = Interpreter.isBatchMode() ? null
+                : RunReport.convergence(ChannelRunner.baseTitle(op, outcome.mainInput()), outcome);
         if (plot != null) {
             plot.show();
+        }
+        // the main output is shown last, so that it is the current image for the next macro line
+        for (Map.Entry<String, ImagePlus> e : outcome.images().entrySet()) {
+            if (!e.getKey().equals("output")) {
+                e.getValue().show();
+            }
+        }
+        if (outcome.images().containsKey("output")) {
+            outcome.images().get("output").show();
         }
         IJ.showProgress(1.0);
         IJ.showStatus(op.name() + ": done in " + String.format(java.util.Locale.ROOT, "%.1f s", seconds));

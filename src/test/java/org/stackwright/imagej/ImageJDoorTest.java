@@ -106,7 +106,18 @@ class ImageJDoorTest {
         assertEquals(2, rt.getValue("frame", last), 0);
         assertEquals(2, rt.getValue("record.iterations", last), 0);
         assertEquals("fixed", rt.getStringValue("record.stop_reason", last));
-        assertNotNull(WindowManager.getImage("cells-test-offset convergence"), "convergence plot");
+    }
+
+    @Test
+    void outsideBatchModeAConvergencePlotIsShownAndTheOutputIsCurrent() {
+        ImagePlus in = hyperstack("plain", 1, 2, 1);
+        in.show();
+        String err = ImageJHarness.runMacro("run(\"Offset Test...\", \"input=plain iterations=5\");"
+                + "if (getTitle() != 'plain-test-offset') exit('current image is ' + getTitle());", "");
+        assertNull(err, err);
+        ImagePlus plot = WindowManager.getImage("plain-test-offset convergence");
+        assertNotNull(plot, "convergence plot");
+        assertNotNull(plot.getWindow(), "shown");
     }
 
     @Test
