@@ -149,7 +149,9 @@ public class OperationPlugin implements PlugIn {
             outcome.images().get("output").show();
         }
         IJ.showProgress(1.0);
-        IJ.showStatus(op.name() + ": done in " + String.format(java.util.Locale.ROOT, "%.1f s", seconds));
+        Object stop = outcome.parts().get(outcome.parts().size() - 1).result().record().get("stop_reason");
+        IJ.showStatus(op.name() + ": done in " + String.format(java.util.Locale.ROOT, "%.1f s", seconds)
+                + (stop == null ? "" : "; stopped: " + stop));
     }
 
     private static String stack(Throwable e) {
