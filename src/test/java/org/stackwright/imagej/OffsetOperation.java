@@ -42,6 +42,8 @@ public final class OffsetOperation implements Operation {
                 Param.integer("iterations", 4, 1, 1000, "steps"),
                 Param.integer("cancel-at", 0, 0, 1000, "press Esc during this step (0 = never)"),
                 Param.text("note", "a b", "free text with a space"),
+                Param.number("read-noise", 2.0, 0, 100, "ADU", "a key that ends with another key"),
+                Param.choice("noise", "poisson", List.of("poisson", "gaussian"), "the key the other one ends with"),
                 Param.outputImage("output", true, "the result"),
                 Param.outputImage("extra", false, "a copy of the input"),
                 Param.outputFile("record", "the run record"));
