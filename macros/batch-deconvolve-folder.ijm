@@ -9,7 +9,8 @@
 //
 // Run it from Plugins>Macros>Run..., or unattended on a server (ImageJ 1.x needs a display, so give it a
 // virtual one):
-//   xvfb-run -a ImageJ -batch batch-deconvolve-folder.ijm "images=[/data/in] output=[/data/out]"
+//   xvfb-run -a java -Dplugins.dir=ImageJ/plugins -jar ImageJ/ij.jar -batch batch-deconvolve-folder.ijm \
+//       "images=[/data/in] output=[/data/out]"
 // Without arguments it uses the demo images in test-images/ beside this macros/ folder.
 //
 // Caution: deconvolved pixels are estimates, not measurements. Check the residuals (Plugins>Stackwright>Inspect)

@@ -12,7 +12,6 @@ import java.util.Map;
 import ij.ImagePlus;
 
 import org.scijava.ItemIO;
-import org.scijava.command.Command;
 import org.scijava.command.ContextCommand;
 import org.scijava.log.LogService;
 import org.scijava.plugin.Parameter;
@@ -235,10 +234,5 @@ public abstract class OperationCommand extends ContextCommand {
             return Long.toString(d.longValue());
         }
         return v.toString();
-    }
-
-    /** Every SciJava command of the suite is a {@link Command}; this names the type for tests and scripts. */
-    public static Class<Command> type() {
-        return Command.class;
     }
 }

@@ -154,11 +154,12 @@ class ImageJDoorTest {
         ImagePlus in = hyperstack("a b", 1, 2, 1);
         in.show();
         String err = ImageJHarness.runMacro("setBatchMode(true); run(\"Offset Test...\", "
-                + "\"extra input=[a b] method=[other words] note=[x y] record=[" + dir.resolve("r.json") + "]\");"
+                + "\"extra input=[a b] method=[other words] note=[x y] verbose record=[" + dir.resolve("r.json") + "]\");"
                 + " setBatchMode('exit and display');", "");
         assertNull(err, err);
         assertNotNull(WindowManager.getImage("a b-test-offset"));
         assertNotNull(WindowManager.getImage("a b-test-offset-extra"));
+        assertTrue(IJ.getLog().contains("test-offset warning: verbose is on"), "warnings go to the Log");
     }
 
     @Test
