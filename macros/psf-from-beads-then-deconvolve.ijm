@@ -37,7 +37,8 @@ psf = getTitle();   // saveAs renames the window to the file name
 
 // 2. Check its width before trusting it: compare with what your objective should give.
 run("Measure PSF Width...", "input=[" + psf + "]");
-Table.save(output + "psf-width.csv", "Stackwright Runs");
+if (isOpen("measure-psf results")) Table.save(output + "psf-width.csv", "measure-psf results");
+else Table.save(output + "psf-width.csv", "Stackwright Runs");
 
 // 3. Deconvolve the specimen with the measured PSF (resampled with a note if its voxel size differs).
 open(images + specimen);

@@ -40,9 +40,12 @@ public final class OperationDialog {
         };
     }
 
-    /** @return true when the parameter has an item in the dialog (required output images are always made) */
+    /**
+     * @return true when the parameter has an item in the dialog: the main output image ("output") and required
+     *     output images are always made, other output images are ticked
+     */
     public static boolean inDialog(Param p) {
-        return !(p.kind() == Param.Kind.OUTPUT_IMAGE && p.required());
+        return !(p.kind() == Param.Kind.OUTPUT_IMAGE && (p.required() || p.key().equals("output")));
     }
 
     /** @return every macro key the dialog of this operation reads */

@@ -31,7 +31,8 @@ import org.stackwright.volume.TiffFiles;
  * (hyperstacks channel by channel and time point by time point, see {@link ChannelRunner}), shows the outputs as
  * new images titled {@code <title>-<operation>} (hidden in batch mode, where a macro can select them; the main
  * output is shown last, so it is the current image afterwards), adds a row to the table "Stackwright Runs", plots
- * convergence (not in batch mode: the history is in the record) and writes the run record when asked. Progress goes to the
+ * convergence (not in batch mode: the history is in the record), shows the operation's own rows (widths, metrics)
+ * in the table "&lt;operation&gt; results" and writes the run record when asked. Progress goes to the
  * status bar, warnings to the Log, Esc cancels within one iteration and then nothing is shown. Errors go to
  * IJ.error, which in a macro aborts the macro with the message.
  */
@@ -134,6 +135,7 @@ public class OperationPlugin implements PlugIn {
             }
         }
         RunReport.table(op.name(), outcome);
+        RunReport.rows(op.name(), outcome);
         Plot plot = Interpreter.isBatchMode() ? null
                 : RunReport.convergence(ChannelRunner.baseTitle(op, outcome.mainInput()), outcome);
         if (plot != null) {

@@ -60,6 +60,41 @@ final class RunReport {
         return rt;
     }
 
+    /**
+     * Shows the operation's own table rows (bead widths, metrics, regions ...) in the table
+     * "&lt;operation&gt; results", each row with the input, channel and time point it came from.
+     *
+     * @return the table, or null when the run made no rows
+     */
+    static ResultsTable rows(String operation, ChannelRunner.Outcome outcome) {
+        if (outcome.parts().stream().allMatch(p -> p.result().rows().isEmpty())) {
+            return null;
+        }
+        String title = rowsTitle(operation);
+        ResultsTable rt = ResultsTable.getResultsTable(title);
+        if (rt == null) {
+            rt = new ResultsTable();
+        }
+        for (ChannelRunner.Part part : outcome.parts()) {
+            for (Map<String, Object> row : part.result().rows()) {
+                rt.incrementCounter();
+                rt.addValue("input", outcome.mainInput() == null ? "" : outcome.mainInput().getTitle());
+                rt.addValue("channel", part.channel());
+                rt.addValue("frame", part.frame());
+                for (Map.Entry<String, Object> e : row.entrySet()) {
+                    add(rt, e.getKey(), String.valueOf(e.getValue()));
+                }
+            }
+        }
+        rt.show(title);
+        return rt;
+    }
+
+    /** @return the title of an operation's own table */
+    static String rowsTitle(String operation) {
+        return operation + " results";
+    }
+
     private static void add(ResultsTable rt, String column, String value) {
         try {
             double d = Double.parseDouble(value);

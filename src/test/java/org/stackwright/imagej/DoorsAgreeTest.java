@@ -119,7 +119,7 @@ class DoorsAgreeTest {
             }
         }
         for (String out : c.outputs()) {
-            if (!op.params().stream().filter(p -> p.key().equals(out)).findFirst().orElseThrow().required()) {
+            if (OperationDialog.inDialog(op.params().stream().filter(p -> p.key().equals(out)).findFirst().orElseThrow())) {
                 options.append(out).append(' ');
             }
         }

@@ -106,6 +106,12 @@ class ImageJDoorTest {
         assertEquals(2, rt.getValue("frame", last), 0);
         assertEquals(2, rt.getValue("record.iterations", last), 0);
         assertEquals("fixed", rt.getStringValue("record.stop_reason", last));
+        ResultsTable rows = ResultsTable.getResultsTable("test-offset results");
+        assertNotNull(rows, "the operation's own rows");
+        int lastRow = rows.size() - 1;
+        assertEquals(2, rows.getValue("channel", lastRow), 0);
+        assertEquals(2, rows.getValue("frame", lastRow), 0);
+        assertTrue(rows.getValue("added", lastRow) > 600, "channel 2 adds 600 plus its PSF's sum");
     }
 
     @Test

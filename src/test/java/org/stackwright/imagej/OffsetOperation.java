@@ -80,6 +80,7 @@ public final class OffsetOperation implements Operation {
         r.record("stop_reason", "fixed");
         r.record("added", add);
         r.record("history", history);
+        r.row(java.util.Map.of("added", add));
         return r;
     }
 }
