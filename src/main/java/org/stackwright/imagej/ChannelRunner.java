@@ -144,7 +144,7 @@ public final class ChannelRunner {
                 got.add(part.result().images().get(p.key()));
             }
             String title = p.key().equals("output") ? base : base + "-" + p.key();
-            ImagePlus out = Hyperstacks.assemble(got, nc, nt, main, title, warnings);
+            ImagePlus out = Hyperstacks.assemble(got, nc, nt, main, settings.images().values(), title, warnings);
             if (out != null) {
                 images.put(p.key(), out);
             }

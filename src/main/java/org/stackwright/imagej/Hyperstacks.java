@@ -1,5 +1,6 @@
 package org.stackwright.imagej;
 
+import java.util.Collection;
 import java.util.List;
 import java.util.function.Consumer;
 
@@ -37,16 +38,19 @@ final class Hyperstacks {
      *
      * @param parts one image per part, in run order; an entry may be null when that part made no such image
      * @param input the main input (for its calibration), or null
+     * @param inputs every input image of the run (compared by identity)
      * @return the image, or null when no part made it or the parts do not fit together (then a warning says why)
      */
-    static ImagePlus assemble(List<ImagePlus> parts, int nc, int nt, ImagePlus input, String title,
-            Consumer<String> warnings) {
+    static ImagePlus assemble(List<ImagePlus> parts, int nc, int nt, ImagePlus input, Collection<ImagePlus> inputs,
+            String title, Consumer<String> warnings) {
         ImagePlus first = parts.get(0);
         if (parts.size() == 1) {
             if (first == null) {
                 return null;
             }
-            ImagePlus out = first == input ? first.duplicate() : first;
+            // an operation that hands back one of its inputs must not rename the user's window
+            boolean given = inputs.stream().anyMatch(i -> i == first);
+            ImagePlus out = given ? first.duplicate() : first;
             out.setTitle(title);
             carryCalibration(out, first, input);
             return out;
