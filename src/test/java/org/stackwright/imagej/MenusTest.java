@@ -85,6 +85,19 @@ class MenusTest {
     }
 
     @Test
+    void helpPageListsEveryKeyWithUnitAndAllowedValues() {
+        for (Operation op : Operations.all()) {
+            String html = HelpText.html(op);
+            for (org.stackwright.op.Param p : op.params()) {
+                if (OperationDialog.inDialog(p)) {
+                    assertTrue(html.contains("<td>" + p.key() + "</td><td>" + p.unit() + "</td>"), op.name() + " " + p.key());
+                }
+            }
+            assertTrue(html.contains("estimates"), "cautions on every help page");
+        }
+    }
+
+    @Test
     void aboutNamesTheVersionAndTheCautions() {
         String text = About.text();
         assertTrue(text.startsWith("Stackwright "));
