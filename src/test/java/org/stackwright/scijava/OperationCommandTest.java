@@ -111,6 +111,17 @@ class OperationCommandTest {
         }
     }
 
+    /** The committed command classes are what {@link CommandSource} writes from the Params. */
+    @Test
+    void committedCommandClassesAreWhatTheGeneratorWrites() throws Exception {
+        for (Operation op : Operations.all()) {
+            java.nio.file.Path file = java.nio.file.Paths.get(System.getProperty("stackwright.project.dir", "."),
+                    "src/main/java/org/stackwright/scijava", CommandSource.className(op) + ".java");
+            assertEquals(CommandSource.source(op), java.nio.file.Files.readString(file),
+                    file + " differs from the Params; regenerate it with CommandSource " + op.name());
+        }
+    }
+
     private static Class<?> typeOf(Param p) {
         return switch (p.kind()) {
             case NUMBER -> Double.class;
