@@ -66,7 +66,8 @@ public class OperationPlugin implements PlugIn {
             if (options != null) {
                 MacroOptions mo = MacroOptions.parse(options);
                 mo.checkKeys(op.name(), OperationDialog.macroKeys(op));
-                Macro.setOptions(mo.canonical());
+                // " " keeps macro mode (all defaults); an empty string would make the dialog appear and wait
+                Macro.setOptions(mo.canonical().isEmpty() ? " " : mo.canonical());
             }
             boolean needsImage = op.params().stream().anyMatch(p -> p.kind() == Param.Kind.IMAGE && p.required());
             if (needsImage && WindowManager.getImageCount() == 0) {

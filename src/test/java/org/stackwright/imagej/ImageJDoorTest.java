@@ -115,6 +115,20 @@ class ImageJDoorTest {
     }
 
     @Test
+    void aMacroWithoutKeysUsesTheDefaultsAndTheCurrentImage() {
+        ImagePlus other = hyperstack("other", 1, 2, 1);
+        other.show();
+        ImagePlus current = hyperstack("current", 1, 2, 1);
+        current.show();
+        String err = ImageJHarness.runMacro("selectImage('current'); run(\"Offset Test...\", \" \");", "");
+        assertNull(err, err);
+        ImagePlus out = WindowManager.getImage("current-test-offset");
+        assertNotNull(out, "the current image is the default input");
+        float in0 = ((float[]) current.getStack().getPixels(1))[0];
+        assertEquals(in0 + 500f, ((float[]) out.getStack().getPixels(1))[0], "default wavelength 500 added");
+    }
+
+    @Test
     void outsideBatchModeAConvergencePlotIsShownAndTheOutputIsCurrent() {
         ImagePlus in = hyperstack("plain", 1, 2, 1);
         in.show();
