@@ -61,7 +61,18 @@ public abstract class OperationCommand extends ContextCommand {
 
     protected OperationCommand(String operationName) {
         this.operationName = operationName;
-        Operations.byName(operationName).ifPresent(this::fillDefaults);
+        Operation op = lookup(operationName);
+        if (op != null) {
+            fillDefaults(op);
+        }
+    }
+
+    /**
+     * @return the operation of this name, or null when this build has none; tests override it to add operations
+     *     of their own (called from the constructor: an override must not use the subclass's fields)
+     */
+    protected Operation lookup(String name) {
+        return Operations.byName(name).orElse(null);
     }
 
     /**
@@ -136,7 +147,7 @@ public abstract class OperationCommand extends ContextCommand {
 
     @Override
     public void run() {
-        Operation op = Operations.byName(operationName).orElse(null);
+        Operation op = lookup(operationName);
         if (op == null) {
             cancel("this build of Stackwright has no operation '" + operationName + "'");
             return;

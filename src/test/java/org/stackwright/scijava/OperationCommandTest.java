@@ -111,6 +111,39 @@ class OperationCommandTest {
         }
     }
 
+    /** Hyperstacks through the SciJava door: per-channel PSF, dimensions, calibration, the input untouched. */
+    @Test
+    void hyperstackWithAPsfPerChannel() throws Exception {
+        ImagePlus in = org.stackwright.imagej.ImageJDoorTestData.hyperstack("cells", 2, 3, 2);
+        ImagePlus psf = org.stackwright.imagej.ImageJDoorTestData.hyperstack("psf", 2, 1, 1);
+        float before = ((float[]) in.getStack().getPixels(1))[5];
+        Map<String, Object> inputs = new HashMap<>();
+        inputs.put("input", in);
+        inputs.put("psf", psf);
+        inputs.put("wavelength", 600.0);
+        inputs.put("threads", 1);
+        CommandModule module = commands.run(new CommandInfo(OffsetCommand.class), true, inputs).get();
+        assertFalse(module.isCanceled(), () -> module.getCancelReason());
+        ImagePlus out = (ImagePlus) module.getOutput("output");
+        assertArrayEquals(in.getDimensions(), out.getDimensions());
+        assertEquals(0.09, out.getCalibration().pixelWidth, 0);
+        assertEquals(2.5, out.getCalibration().frameInterval, 0);
+        double psfSum2 = 0;
+        for (float f : (float[]) psf.getStack().getPixels(psf.getStackIndex(2, 1, 1))) {
+            psfSum2 += f;
+        }
+        int idx = in.getStackIndex(2, 2, 2);
+        float a = ((float[]) in.getStack().getPixels(idx))[7];
+        assertEquals((float) (a + 600 + psfSum2), ((float[]) out.getStack().getPixels(out.getStackIndex(2, 2, 2)))[7]);
+        assertEquals(before, ((float[]) in.getStack().getPixels(1))[5], "input unchanged");
+        assertTrue(((String) module.getOutput("json")).contains("\"parts\""));
+
+        inputs.put("wavelength", 5.0);
+        CommandModule bad = commands.run(new CommandInfo(OffsetCommand.class), true, inputs).get();
+        assertTrue(bad.isCanceled());
+        assertTrue(bad.getCancelReason().startsWith("test-offset: wavelength = 5.0 is out of range"), bad.getCancelReason());
+    }
+
     /** The committed command classes are what {@link CommandSource} writes from the Params. */
     @Test
     void committedCommandClassesAreWhatTheGeneratorWrites() throws Exception {
