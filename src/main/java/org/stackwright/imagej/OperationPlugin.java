@@ -95,6 +95,9 @@ public class OperationPlugin implements PlugIn {
             IJ.error(title, op.name() + " ran out of memory: give ImageJ more memory (Edit>Options>Memory & "
                     + "Threads) or use a smaller image.");
         } catch (RuntimeException e) {
+            if (Macro.MACRO_CANCELED.equals(e.getMessage())) {
+                throw e; // ImageJ aborting the macro (Esc, an earlier error): let it pass
+            }
             IJ.showProgress(1.0);
             IJ.log(op.name() + " failed: " + e + "\n" + stack(e));
             IJ.error(title, op.name() + " failed: " + e);
