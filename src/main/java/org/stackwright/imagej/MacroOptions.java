@@ -1,0 +1,133 @@
+package org.stackwright.imagej;
+
+import java.util.ArrayList;
+import java.util.Comparator;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Set;
+
+/**
+ * The options string of a macro call {@code run("…", "key=value key=[a value] flag")}, read exactly.
+ *
+ * <p>Why this exists: ImageJ's dialogs find a key by searching for {@code key=} not preceded by a letter, so
+ * {@code output=} also matches inside {@code psf-output=}, and {@code noise=} inside {@code read-noise=}. We read the
+ * string ourselves, refuse keys the operation does not have (ImageJ would silently ignore a misspelt key), and write
+ * it back in an order where every key comes before any longer key that ends with it; the dialog then reads the
+ * right value for every key.
+ */
+public final class MacroOptions {
+
+    private final Map<String, String> values;
+
+    private MacroOptions(Map<String, String> values) {
+        this.values = values;
+    }
+
+    /**
+     * Reads an options string.
+     *
+     * @param options the string given to run(); not modified
+     * @return key to value; a bare word (ticked checkbox) maps to null
+     * @throws IllegalArgumentException for an unclosed bracket or quote, naming the key
+     */
+    public static MacroOptions parse(String options) {
+        Map<String, String> m = new LinkedHashMap<>();
+        String s = options == null ? "" : options;
+        int i = 0;
+        int n = s.length();
+        while (i < n) {
+            while (i < n && Character.isWhitespace(s.charAt(i))) {
+                i++;
+            }
+            if (i >= n) {
+                break;
+            }
+            int start = i;
+            while (i < n && !Character.isWhitespace(s.charAt(i)) && s.charAt(i) != '=') {
+                i++;
+            }
+            String key = s.substring(start, i).toLowerCase(java.util.Locale.ROOT);
+            if (i < n && s.charAt(i) == '=') {
+                i++;
+                String value;
+                if (i < n && (s.charAt(i) == '[' || s.charAt(i) == '\'')) {
+                    int end = s.charAt(i) == '[' ? closingBracket(s, i) : s.indexOf('\'', i + 1);
+                    if (end < 0) {
+                        throw new IllegalArgumentException("macro option " + key + ": the value starting with "
+                                + s.charAt(i) + " is not closed; write " + key + "=[value with spaces]");
+                    }
+                    value = s.substring(i + 1, end);
+                    i = end + 1;
+                } else {
+                    int vs = i;
+                    while (i < n && !Character.isWhitespace(s.charAt(i))) {
+                        i++;
+                    }
+                    value = s.substring(vs, i);
+                }
+                m.put(key, value);
+            } else {
+                m.put(key, null);
+            }
+        }
+        return new MacroOptions(m);
+    }
+
+    private static int closingBracket(String s, int open) {
+        int depth = 0;
+        for (int k = open; k < s.length(); k++) {
+            char c = s.charAt(k);
+            if (c == '[') {
+                depth++;
+            } else if (c == ']' && --depth == 0) {
+                return k;
+            }
+        }
+        return -1;
+    }
+
+    /** @return key to value (null for a bare word), in the order given */
+    public Map<String, String> values() {
+        return values;
+    }
+
+    /**
+     * @param allowed the keys the dialog has
+     * @throws IllegalArgumentException naming the first key that is not allowed and listing the allowed ones
+     */
+    public void checkKeys(String operation, Set<String> allowed) {
+        for (String k : values.keySet()) {
+            if (!allowed.contains(k)) {
+                throw new IllegalArgumentException("unknown macro key '" + k + "' for " + operation + "; allowed: "
+                        + String.join(", ", allowed));
+            }
+        }
+    }
+
+    /**
+     * @return the same options written so that ImageJ's key search finds each key's own value: shorter keys
+     *     first, every value in brackets
+     */
+    public String canonical() {
+        List<String> keys = new ArrayList<>(values.keySet());
+        keys.sort(Comparator.comparingInt(String::length));
+        StringBuilder sb = new StringBuilder();
+        for (String k : keys) {
+            String v = values.get(k);
+            if (sb.length() > 0) {
+                sb.append(' ');
+            }
+            sb.append(k);
+            if (v != null) {
+                sb.append("=[").append(v).append(']');
+            }
+        }
+        return sb.toString();
+    }
+
+    /** Writes one value as ImageJ's recorder does: in brackets when it is empty or holds a space. */
+    public static String quote(String value) {
+        return value.isEmpty() || value.indexOf(' ') >= 0 ? "[" + value + "]" : value;
+    }
+}

@@ -1,0 +1,61 @@
+package org.stackwright.scijava;
+
+import java.io.File;
+
+import ij.ImagePlus;
+
+import org.scijava.ItemIO;
+import org.scijava.command.Command;
+import org.scijava.plugin.Parameter;
+import org.scijava.plugin.Plugin;
+
+/**
+ * SciJava command for the {@code deconvolve} operation: one field per setting, named after its key (see
+ * {@link OperationCommand}); a null field keeps the default.
+ */
+@Plugin(type = Command.class, headless = true, label = "Deconvolve Stack")
+public final class DeconvolveCommand extends OperationCommand {
+
+    @Parameter(persist = false, required = false, label = "input")
+    private ImagePlus input;
+
+    @Parameter(persist = false, required = false, label = "psf")
+    private ImagePlus psf;
+
+    @Parameter(persist = false, required = false, label = "method")
+    private String method;
+
+    @Parameter(persist = false, required = false, label = "iterations")
+    private Integer iterations;
+
+    @Parameter(persist = false, required = false, label = "stop")
+    private String stop;
+
+    @Parameter(persist = false, required = false, label = "offset")
+    private Double offset;
+
+    @Parameter(persist = false, required = false, label = "background")
+    private String background;
+
+    @Parameter(persist = false, required = false, label = "regularization")
+    private Double regularization;
+
+    @Parameter(persist = false, required = false, label = "mask")
+    private ImagePlus mask;
+
+    @Parameter(persist = false, required = false, label = "boundary")
+    private String boundary;
+
+    @Parameter(persist = false, required = false, label = "acceleration")
+    private String acceleration;
+
+    @Parameter(type = ItemIO.OUTPUT, label = "output")
+    private ImagePlus output;
+
+    @Parameter(persist = false, required = false, label = "record")
+    private File record;
+
+    public DeconvolveCommand() {
+        super("deconvolve");
+    }
+}

@@ -1,0 +1,35 @@
+package org.stackwright.scijava;
+
+import ij.ImagePlus;
+
+import org.scijava.ItemIO;
+import org.scijava.command.Command;
+import org.scijava.plugin.Parameter;
+import org.scijava.plugin.Plugin;
+
+/**
+ * SciJava command for the {@code inpaint} operation: one field per setting, named after its key (see
+ * {@link OperationCommand}); a null field keeps the default.
+ */
+@Plugin(type = Command.class, headless = true, label = "Fill Masked Pixels")
+public final class InpaintCommand extends OperationCommand {
+
+    @Parameter(persist = false, required = false, label = "input")
+    private ImagePlus input;
+
+    @Parameter(persist = false, required = false, label = "mask")
+    private ImagePlus mask;
+
+    @Parameter(persist = false, required = false, label = "method")
+    private String method;
+
+    @Parameter(persist = false, required = false, label = "mode")
+    private String mode;
+
+    @Parameter(type = ItemIO.OUTPUT, label = "output")
+    private ImagePlus output;
+
+    public InpaintCommand() {
+        super("inpaint");
+    }
+}

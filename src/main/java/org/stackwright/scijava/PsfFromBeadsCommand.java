@@ -1,0 +1,32 @@
+package org.stackwright.scijava;
+
+import ij.ImagePlus;
+
+import org.scijava.ItemIO;
+import org.scijava.command.Command;
+import org.scijava.plugin.Parameter;
+import org.scijava.plugin.Plugin;
+
+/**
+ * SciJava command for the {@code psf-from-beads} operation: one field per setting, named after its key (see
+ * {@link OperationCommand}); a null field keeps the default.
+ */
+@Plugin(type = Command.class, headless = true, label = "PSF from Beads")
+public final class PsfFromBeadsCommand extends OperationCommand {
+
+    @Parameter(persist = false, required = false, label = "input")
+    private ImagePlus input;
+
+    @Parameter(persist = false, required = false, label = "size")
+    private String size;
+
+    @Parameter(persist = false, required = false, label = "bead-diameter")
+    private Double beadDiameter;
+
+    @Parameter(type = ItemIO.OUTPUT, label = "output")
+    private ImagePlus output;
+
+    public PsfFromBeadsCommand() {
+        super("psf-from-beads");
+    }
+}

@@ -1,0 +1,41 @@
+package org.stackwright.scijava;
+
+import ij.ImagePlus;
+
+import org.scijava.ItemIO;
+import org.scijava.command.Command;
+import org.scijava.plugin.Parameter;
+import org.scijava.plugin.Plugin;
+
+/**
+ * SciJava command for the {@code seam-mask} operation: one field per setting, named after its key (see
+ * {@link OperationCommand}); a null field keeps the default.
+ */
+@Plugin(type = Command.class, headless = true, label = "Tile Seam Mask")
+public final class SeamMaskCommand extends OperationCommand {
+
+    @Parameter(persist = false, required = false, label = "grid")
+    private String grid;
+
+    @Parameter(persist = false, required = false, label = "tile")
+    private String tile;
+
+    @Parameter(persist = false, required = false, label = "overlap")
+    private Integer overlap;
+
+    @Parameter(persist = false, required = false, label = "seam-width")
+    private Integer seamWidth;
+
+    @Parameter(persist = false, required = false, label = "detect")
+    private Boolean detect;
+
+    @Parameter(persist = false, required = false, label = "input")
+    private ImagePlus input;
+
+    @Parameter(type = ItemIO.OUTPUT, label = "output")
+    private ImagePlus output;
+
+    public SeamMaskCommand() {
+        super("seam-mask");
+    }
+}
