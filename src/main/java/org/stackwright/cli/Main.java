@@ -47,13 +47,13 @@ public final class Main {
                     + "--help' for the options.");
             return BAD_INPUT;
         }
-        if (pr.isUsageHelpRequested() || !pr.hasSubcommand()) {
-            cl.usage(out);
-            return pr.hasSubcommand() || pr.isUsageHelpRequested() ? OK : BAD_INPUT;
-        }
         if (pr.isVersionHelpRequested()) {
             out.println("stackwright " + Version.get());
             return OK;
+        }
+        if (pr.isUsageHelpRequested() || !pr.hasSubcommand()) {
+            cl.usage(out);
+            return pr.hasSubcommand() || pr.isUsageHelpRequested() ? OK : BAD_INPUT;
         }
         ParseResult sub = pr.subcommand();
         if (sub.isUsageHelpRequested()) {
