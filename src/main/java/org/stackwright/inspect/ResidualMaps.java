@@ -1,6 +1,7 @@
 package org.stackwright.inspect;
 
 import org.stackwright.parallel.Workers;
+import org.stackwright.volume.Padding;
 import org.stackwright.volume.Volume;
 
 /**
@@ -77,6 +78,35 @@ public record ResidualMaps(Volume predicted, Volume raw, Volume normalised, doub
         int[] border = {k.width() / 2, k.height() / 2, k.depth() / 2};
         return new ResidualMaps(data.withData(mu), data.withData(raw), data.withData(r), chi2 / n, chi2Slice,
                 meanSlice, mean / n, hx, border);
+    }
+
+    /**
+     * @return the maps inside a box, with chi^2 and means recomputed for the box (the border field keeps the PSF
+     *     half-width)
+     */
+    public ResidualMaps crop(int x0, int y0, int z0, int w, int h, int d) {
+        Volume r = Padding.crop(normalised, x0, y0, z0, w, h, d);
+        float[] v = r.data();
+        int plane = w * h;
+        double[] chi2Slice = new double[d];
+        double[] meanSlice = new double[d];
+        double chi2 = 0;
+        double mean = 0;
+        for (int z = 0; z < d; z++) {
+            double s1 = 0;
+            double s2 = 0;
+            for (int i = z * plane, e = i + plane; i < e; i++) {
+                s1 += v[i];
+                s2 += (double) v[i] * v[i];
+            }
+            chi2Slice[z] = s2 / plane;
+            meanSlice[z] = s1 / plane;
+            chi2 += s2;
+            mean += s1;
+        }
+        return new ResidualMaps(Padding.crop(predicted, x0, y0, z0, w, h, d), Padding.crop(raw, x0, y0, z0, w, h, d),
+                r, chi2 / v.length, chi2Slice, meanSlice, mean / v.length, Padding.crop(blurred, x0, y0, z0, w, h, d),
+                border);
     }
 
     private static void check(Volume data, Volume estimate, Volume psf) {

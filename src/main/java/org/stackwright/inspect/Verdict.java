@@ -70,6 +70,35 @@ public record Verdict(String code, List<Cause> causes, String text) {
     /** Decides. */
     public static Verdict decide(ResidualMaps maps, ResidualSpectrum spectrum, ResidualRegions regions, MismatchFit fit,
             SliceTrend meanTrend, SliceTrend chi2Trend) {
+        return decide(maps, spectrum, regions, fit, meanTrend, chi2Trend, Double.NaN, null);
+    }
+
+    /**
+     * Decides on the interior of a stack and adds a sentence about the border band when it fits worse.
+     *
+     * @param maps the interior maps
+     * @param chi2Band chi^2 per voxel in the border band, NaN when there is none
+     * @param box the interior box (x0, y0, z0, w, h, d) in the whole stack, for positions; null for none
+     */
+    public static Verdict decide(ResidualMaps maps, ResidualSpectrum spectrum, ResidualRegions regions, MismatchFit fit,
+            SliceTrend meanTrend, SliceTrend chi2Trend, double chi2Band, int[] box) {
+        Verdict v = decideInterior(maps, spectrum, regions, fit, meanTrend, chi2Trend, box);
+        if (Double.isFinite(chi2Band) && chi2Band > Math.max(CHI2_HIGH, maps.chi2PerVoxel() + 0.1) && box != null) {
+            String note = String.format(Locale.ROOT, " The border band (%d, %d, %d voxels from the faces in x, y, z)"
+                    + " fits worse (chi^2 per voxel %.3f): light from objects outside the field of view, which an"
+                    + " estimate on the data grid cannot hold; it is left out of the verdict.", box[0], box[1], box[2],
+                    chi2Band);
+            return new Verdict(v.code(), v.causes(), v.text() + note);
+        }
+        return v;
+    }
+
+    private static Verdict decideInterior(ResidualMaps maps, ResidualSpectrum spectrum, ResidualRegions regions,
+            MismatchFit fit, SliceTrend meanTrend, SliceTrend chi2Trend, int[] box) {
+        int ox = box == null ? 0 : box[0];
+        int oy = box == null ? 0 : box[1];
+        int oz = box == null ? 0 : box[2];
+        String where = box == null || (box[0] == 0 && box[1] == 0 && box[2] == 0) ? "" : " inside the border band";
         long n = maps.normalised().size();
         double chi2 = maps.chi2PerVoxel();
         double width = 5 * Math.sqrt(2.0 / n);
@@ -85,8 +114,8 @@ public record Verdict(String code, List<Cause> causes, String text) {
             causes.add(new Cause("isolated-regions", regions.chi2Share(maps.normalised()), String.format(Locale.ROOT,
                     "%d isolated region%s with |r| > 4 (largest %d voxels at x %.0f, y %.0f, z %.0f, data %s the"
                     + " prediction): saturation, hot or dead pixels or other defects; mask them before measuring.",
-                    regions.listedCount(), regions.listedCount() == 1 ? "" : "s", big.voxels(), big.x(), big.y(),
-                    big.z(), big.peak() < 0 ? "below" : "above")));
+                    regions.listedCount(), regions.listedCount() == 1 ? "" : "s", big.voxels(), big.x() + ox,
+                    big.y() + oy, big.z() + oz, big.peak() < 0 ? "below" : "above")));
         }
         boolean bg = fit.explainedByBackground() >= minExplained;
         boolean psf = fit.explainedByPsf() >= minExplained;
@@ -146,8 +175,8 @@ public record Verdict(String code, List<Cause> causes, String text) {
         causes.sort(Comparator.comparingDouble(Cause::share).reversed());
         if (causes.isEmpty()) {
             return new Verdict(FITS, List.of(), String.format(Locale.ROOT, "Fits the noise model: chi^2 per voxel"
-                    + " %.3f, flat residual spectrum (low/high frequency power %.2f), no isolated regions.", chi2,
-                    spectrum.lowFrequencyRatio()));
+                    + " %.3f%s, flat residual spectrum (low/high frequency power %.2f), no isolated regions.", chi2,
+                    where, spectrum.lowFrequencyRatio()));
         }
         List<Cause> named = new ArrayList<>();
         double first = causes.get(0).share();
@@ -157,7 +186,7 @@ public record Verdict(String code, List<Cause> causes, String text) {
             }
         }
         StringBuilder sb = new StringBuilder(String.format(Locale.ROOT,
-                "Does not fit the noise model (chi^2 per voxel %.3f).", chi2));
+                "Does not fit the noise model (chi^2 per voxel %.3f%s).", chi2, where));
         for (Cause c : named) {
             sb.append(' ').append(c.sentence());
         }
