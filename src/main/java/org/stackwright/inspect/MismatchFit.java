@@ -187,6 +187,15 @@ public record MismatchFit(double offsetShift, double curvatureXy, double curvatu
         return Math.max(0, s);
     }
 
+    /**
+     * @param factor (nz - 1) of the whole stack over (nz - 1) of the slices fitted
+     * @return the same fit with the fading extrapolated linearly from the fitted slices to the whole stack
+     */
+    public MismatchFit withFadingOver(double factor) {
+        return new MismatchFit(offsetShift, curvatureXy, curvatureZ, fading * factor, explainedByBackground,
+                explainedByPsf, explainedByFading, explainedByBoth, usedVoxels, unexplained);
+    }
+
     /** @return extra lateral blur variance the data show over the prediction, voxel^2 (2 c_xy) */
     public double extraVarianceXy() {
         return 2 * curvatureXy;

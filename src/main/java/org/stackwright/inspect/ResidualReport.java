@@ -58,6 +58,10 @@ public record ResidualReport(ResidualMaps maps, ResidualHistogram histogram, Res
         MismatchFit firstFit = MismatchFit.fit(inner, model, first.mask());
         ResidualRegions unexplained = ResidualRegions.find(inner.normalised().withData(firstFit.unexplained()));
         MismatchFit fit = MismatchFit.fit(inner, model, unexplained.mask());
+        if (box[5] > 1) {
+            // report the fading from the first to the last slice of the whole stack, not of the interior
+            fit = fit.withFadingOver((data.depth() - 1) / (double) (box[5] - 1));
+        }
         ResidualSpectrum spectrum = ResidualSpectrum.of(inner.normalised(), unexplained.mask(), workers);
         ResidualHistogram histogram = ResidualHistogram.of(maps.normalised().data());
         SliceTrend[] trends = trends(inner, fit, unexplained.mask());
