@@ -149,6 +149,24 @@ class ResidualPartsTest {
     }
 
     @Test
+    void sameResultForOneAndTwoThreads() {
+        Volume truth = Specimen.draw(40, 36, 12, VOXEL, Specimen.Contents.cellField(), 21);
+        Volume psf = GaussianPsf.sampled(0.11, 0.45, VOXEL, 9, 9, 11);
+        Volume data = Camera.photonCounting().record(constant(40, 36, 12, 25f), 2);
+        ResidualModel m = new ResidualModel(0, 20, new PoissonNoise());
+        ResidualReport a;
+        ResidualReport b;
+        try (Workers w1 = new Workers(1); Workers w2 = new Workers(2)) {
+            a = ResidualReport.analyse(data, truth, psf, m, w1);
+            b = ResidualReport.analyse(data, truth, psf, m, w2);
+        }
+        org.junit.jupiter.api.Assertions.assertArrayEquals(a.maps().normalised().data(), b.maps().normalised().data());
+        assertEquals(a.maps().chi2PerVoxel(), b.maps().chi2PerVoxel(), 0);
+        org.junit.jupiter.api.Assertions.assertArrayEquals(a.spectrum().power(), b.spectrum().power(), 0);
+        assertEquals(a.verdict().text(), b.verdict().text());
+    }
+
+    @Test
     void badInputNamesTheSetting() {
         Volume a = constant(10, 10, 1, 1f);
         Volume b = constant(11, 10, 1, 1f);
