@@ -125,6 +125,25 @@ class InspectOperationsTest {
     }
 
     @Test
+    void summaryOfATwoDimensionalImage() {
+        Volume truth = Specimen.draw(60, 50, 1, VOXEL, Specimen.Contents.cellField(), 4);
+        Volume psf = GaussianPsf.sampled(0.11, 0.45, VOXEL, 9, 9, 1);
+        try (Workers w = new Workers(1)) {
+            Volume mean = ForwardBlur.blur(truth, psf, w);
+            for (int i = 0; i < mean.size(); i++) {
+                mean.data()[i] = Math.max(0, mean.data()[i]) + 5;
+            }
+            Volume data = Camera.photonCounting().record(mean, 6);
+            ResidualReport r = ResidualReport.analyse(data, truth, psf, new ResidualModel(0, 5,
+                    new org.stackwright.model.PoissonNoise()), w);
+            ImagePlus sum = SummaryPicture.render("flat", data, truth, r);
+            assertEquals(ImagePlus.COLOR_RGB, sum.getType());
+            assertTrue(sum.getProcessor().getStatistics().stdDev > 0);
+            assertEquals(1, r.maps().chi2PerSlice().length);
+        }
+    }
+
+    @Test
     void plotsRenderHeadless() {
         // ij.gui.Plot draws into an ImageProcessor without a display (java.awt.headless=true in the tests)
         ResidualHistogram h = ResidualHistogram.of(new float[] {-1, 0, 0.5f, 1, 2});
