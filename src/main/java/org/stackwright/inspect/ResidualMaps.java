@@ -20,9 +20,13 @@ import org.stackwright.volume.Volume;
  * @param blurred H x alone (ADU above offset and background), used by the cause analysis
  * @param border the PSF half-width (x, y, z) in voxels: the outer band where the estimate's mirror continuation
  *     is a guess (see {@link ForwardBlur})
+ * @param deviance the signed deviance residual sign(y - mu) sqrt(2 deviance(y, mu)) of the noise model, close to
+ *     normal even at low counts where the Pearson residual is skewed (McCullagh & Nelder, Generalized Linear
+ *     Models, 2nd ed., 1989, sec. 2.4.2); equal to r for Gaussian noise. Used to keep low-count noise out of the
+ *     region list.
  */
 public record ResidualMaps(Volume predicted, Volume raw, Volume normalised, double chi2PerVoxel, double[] chi2PerSlice,
-        double[] meanPerSlice, double meanNormalised, Volume blurred, int[] border) {
+        double[] meanPerSlice, double meanNormalised, Volume blurred, int[] border, Volume deviance) {
 
     /**
      * Computes the maps.
@@ -44,6 +48,7 @@ public record ResidualMaps(Volume predicted, Volume raw, Volume normalised, doub
         float[] mu = new float[n];
         float[] raw = new float[n];
         float[] r = new float[n];
+        float[] dev = new float[n];
         double offset = model.offset();
         double bg = model.background();
         workers.forRange(n, (from, to) -> {
@@ -54,6 +59,8 @@ public record ResidualMaps(Volume predicted, Volume raw, Volume normalised, doub
                 mu[i] = (float) m;
                 raw[i] = (float) d;
                 r[i] = (float) (d / Math.sqrt(model.noise().variance(above)));
+                double dv = Math.sqrt(2 * Math.max(0, model.noise().deviance(y[i] - offset, above)));
+                dev[i] = (float) (d < 0 ? -dv : dv);
             }
         });
         int plane = data.width() * data.height();
@@ -77,7 +84,7 @@ public record ResidualMaps(Volume predicted, Volume raw, Volume normalised, doub
         Volume k = data.depth() == 1 && psf.depth() > 1 ? ForwardBlur.centrePlane(unit) : unit;
         int[] border = {k.width() / 2, k.height() / 2, k.depth() / 2};
         return new ResidualMaps(data.withData(mu), data.withData(raw), data.withData(r), chi2 / n, chi2Slice,
-                meanSlice, mean / n, hx, border);
+                meanSlice, mean / n, hx, border, data.withData(dev));
     }
 
     /**
@@ -106,7 +113,7 @@ public record ResidualMaps(Volume predicted, Volume raw, Volume normalised, doub
         }
         return new ResidualMaps(Padding.crop(predicted, x0, y0, z0, w, h, d), Padding.crop(raw, x0, y0, z0, w, h, d),
                 r, chi2 / v.length, chi2Slice, meanSlice, mean / v.length, Padding.crop(blurred, x0, y0, z0, w, h, d),
-                border);
+                border, Padding.crop(deviance, x0, y0, z0, w, h, d));
     }
 
     private static void check(Volume data, Volume estimate, Volume psf) {

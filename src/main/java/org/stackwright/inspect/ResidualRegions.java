@@ -17,6 +17,11 @@ import org.stackwright.volume.Volume;
  * |r| >= {@value #STRONG} (p below 1e-20 for a normal variable): a saturated patch, a hot or dead pixel (a column
  * through z in a stack), or a defect. Smaller hits are only counted.
  *
+ * <p>At low counts (expected values near or below 1) the Pearson residual is far from normal: with mu = 0.1 a
+ * count of 2 already gives r = 6. So when the deviance residual is given, a voxel must also pass |d| > 4 to belong
+ * to a region, and a single-voxel region must reach |d| >= {@value #STRONG_DEVIANCE}; the deviance residual stays
+ * close to normal at low counts (for Gaussian noise d = r and nothing changes).
+ *
  * @param listed the listed regions, largest first (at most {@value #MAX_LISTED})
  * @param listedCount number of regions that qualify for listing (may exceed the list)
  * @param scatteredVoxels voxels with |r| > 4 outside listed regions
@@ -30,6 +35,8 @@ public record ResidualRegions(List<Region> listed, int listedCount, long scatter
     public static final int MIN_VOXELS = 3;
     /** A region with a voxel this far out is listed whatever its size. */
     public static final double STRONG = 10;
+    /** A single voxel is listed when its deviance residual also reaches this. */
+    public static final double STRONG_DEVIANCE = 6;
     /** Longest list kept. */
     public static final int MAX_LISTED = 100;
 
@@ -56,6 +63,15 @@ public record ResidualRegions(List<Region> listed, int listedCount, long scatter
 
     /** Finds the regions of a normalised residual (not modified). */
     public static ResidualRegions find(Volume r) {
+        return find(r, null);
+    }
+
+    /**
+     * @param r the normalised (Pearson) residual, not modified
+     * @param deviance the signed deviance residual of the same voxels, or null; not modified
+     */
+    public static ResidualRegions find(Volume r, Volume deviance) {
+        float[] dv = deviance == null ? null : deviance.data();
         int w = r.width();
         int h = r.height();
         int d = r.depth();
@@ -68,7 +84,7 @@ public record ResidualRegions(List<Region> listed, int listedCount, long scatter
         long scattered = 0;
         int[] list = new int[64];
         for (int start = 0; start < n; start++) {
-            if (seen[start] || !(Math.abs(v[start]) > THRESHOLD)) {
+            if (seen[start] || !hit(v, dv, start)) {
                 continue;
             }
             int size = 0;
@@ -80,6 +96,7 @@ public record ResidualRegions(List<Region> listed, int listedCount, long scatter
             double sz = 0;
             double chi2 = 0;
             double peak = 0;
+            int peakAt = start;
             int x0 = w;
             int y0 = h;
             int z0 = d;
@@ -101,6 +118,7 @@ public record ResidualRegions(List<Region> listed, int listedCount, long scatter
                 chi2 += (double) v[i] * v[i];
                 if (Math.abs(v[i]) > Math.abs(peak)) {
                     peak = v[i];
+                    peakAt = i;
                 }
                 x0 = Math.min(x0, x);
                 y0 = Math.min(y0, y);
@@ -124,7 +142,7 @@ public record ResidualRegions(List<Region> listed, int listedCount, long scatter
                                 continue;
                             }
                             int j = (zz * h + yy) * w + xx;
-                            if (!seen[j] && Math.abs(v[j]) > THRESHOLD) {
+                            if (!seen[j] && hit(v, dv, j)) {
                                 seen[j] = true;
                                 if (top == stack.length) {
                                     stack = java.util.Arrays.copyOf(stack, 2 * top);
@@ -135,7 +153,8 @@ public record ResidualRegions(List<Region> listed, int listedCount, long scatter
                     }
                 }
             }
-            if (size >= MIN_VOXELS || Math.abs(peak) >= STRONG) {
+            boolean strong = Math.abs(peak) >= STRONG && (dv == null || Math.abs(dv[peakAt]) >= STRONG_DEVIANCE);
+            if (size >= MIN_VOXELS || strong) {
                 all.add(new Region(size, sx / size, sy / size, sz / size, x0, y0, z0, x1, y1, z1, peak, chi2));
                 for (int k = 0; k < size; k++) {
                     mask[list[k]] = true;
@@ -148,6 +167,10 @@ public record ResidualRegions(List<Region> listed, int listedCount, long scatter
         int count = all.size();
         List<Region> listed = List.copyOf(all.subList(0, Math.min(MAX_LISTED, count)));
         return new ResidualRegions(listed, count, scattered, mask);
+    }
+
+    private static boolean hit(float[] r, float[] d, int i) {
+        return Math.abs(r[i]) > THRESHOLD && (d == null || Math.abs(d[i]) > THRESHOLD);
     }
 
     /** @return sum of r^2 over all listed-quality regions, divided by the number of voxels n */

@@ -44,7 +44,7 @@ public record ResidualReport(ResidualMaps maps, ResidualHistogram histogram, Res
     public static ResidualReport analyse(Volume data, Volume estimate, Volume psf, ResidualModel model,
             Workers workers) {
         ResidualMaps maps = ResidualMaps.compute(data, estimate, psf, model, workers);
-        ResidualRegions regions = ResidualRegions.find(maps.normalised());
+        ResidualRegions regions = ResidualRegions.find(maps.normalised(), maps.deviance());
         int[] box = interior(data, maps.border());
         ResidualMaps inner = maps.crop(box[0], box[1], box[2], box[3], box[4], box[5]);
         long nAll = data.size();
@@ -54,9 +54,10 @@ public record ResidualReport(ResidualMaps maps, ResidualHistogram histogram, Res
         // Regions that a background or PSF-width error explains (bright objects under a wrong PSF) are not
         // defects: fit the model causes without the regions, then keep only the regions still present in the
         // residual left after that fit, and refit without them.
-        ResidualRegions first = ResidualRegions.find(inner.normalised());
+        ResidualRegions first = ResidualRegions.find(inner.normalised(), inner.deviance());
         MismatchFit firstFit = MismatchFit.fit(inner, model, first.mask());
-        ResidualRegions unexplained = ResidualRegions.find(inner.normalised().withData(firstFit.unexplained()));
+        ResidualRegions unexplained = ResidualRegions.find(inner.normalised().withData(firstFit.unexplained()),
+                inner.deviance());
         MismatchFit fit = MismatchFit.fit(inner, model, unexplained.mask());
         if (box[5] > 1) {
             // report the fading from the first to the last slice of the whole stack, not of the interior

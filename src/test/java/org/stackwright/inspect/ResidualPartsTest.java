@@ -121,6 +121,29 @@ class ResidualPartsTest {
     }
 
     @Test
+    void lowCountNoiseMakesNoRegionsButAHotPixelStillShows() {
+        // Poisson mean 0.1: a count of 2 gives a Pearson residual of 6, so |r| > 4 alone would list thousands of
+        // noise voxels; the deviance residual keeps them out (McCullagh & Nelder 1989, sec. 2.4.2)
+        int nx = 200;
+        int ny = 200;
+        int nz = 10;
+        Volume data = Camera.photonCounting().record(constant(nx, ny, nz, 0.1f), 8);
+        data.set(50, 60, 4, 60f);
+        try (Workers w = new Workers(1)) {
+            ResidualReport r = ResidualReport.analyse(data, constant(nx, ny, nz, 0f), constant(1, 1, 1, 1f),
+                    new ResidualModel(0, 0.1, new PoissonNoise()), w);
+            assertEquals(1, r.regions().listedCount(), r.regions().listed().toString());
+            ResidualRegions.Region g = r.regions().listed().get(0);
+            assertEquals(50, g.x(), 0);
+            assertEquals(60, g.y(), 0);
+            assertEquals(4, g.z(), 0);
+            // elementary Poisson statistics: chi^2 per voxel about 1 at any mean (4e5 voxels, sd about 0.01 at
+            // mu = 0.1 where the variance of r^2 is 2 + 1/mu; the hot voxel adds 0.09)
+            assertEquals(1.09, r.maps().chi2PerVoxel(), 0.05);
+        }
+    }
+
+    @Test
     void bleachingIsNamedAsASliceTrend() {
         // the specimen fades by 40 % from the first to the last slice; the estimate is the time-averaged object
         VoxelSize v = VOXEL;
