@@ -159,7 +159,8 @@ public record Verdict(String code, List<Cause> causes, String text) {
         if (lowFrequency && !bg && !psf && !fading) {
             causes.add(new Cause("low-frequency-structure", Math.max(0, spectrum.lowExcess()), String.format(
                     Locale.ROOT, "Structure is left at low spatial frequency (power %.2f times the high-frequency"
-                            + " level): the PSF is likely too narrow or too wide, or the background is wrong.",
+                            + " level): the PSF may have the wrong width or shape, the background may be wrong, or the"
+                            + " specimen moved.",
                     spectrum.lowFrequencyRatio())));
         }
         if (causes.isEmpty() && chi2 > high) {

@@ -172,6 +172,35 @@ class ResidualPartsTest {
     }
 
     @Test
+    void lateralDriftIsNamedAsASliceTrend() {
+        // the specimen moves sideways during the acquisition, one voxel over the whole stack; the estimate is the
+        // object at its start position, so the misfit grows from slice to slice
+        Volume truth = Specimen.draw(64, 64, 40, VOXEL, Specimen.Contents.cellField(), 9);
+        Volume psf = GaussianPsf.sampled(0.11, 0.45, VOXEL, 11, 11, 15);
+        try (Workers w = new Workers(2)) {
+            Volume blurred = ForwardBlur.blur(truth, psf, w);
+            Volume moved = blurred.copy();
+            for (int z = 0; z < 40; z++) {
+                double s = 1.5 * z / 39.0;
+                for (int y = 0; y < 64; y++) {
+                    for (int x = 0; x < 64; x++) {
+                        double sx = Math.max(0, Math.min(63, x - s));
+                        int x0 = (int) Math.floor(sx);
+                        int x1 = Math.min(63, x0 + 1);
+                        double f = sx - x0;
+                        moved.set(x, y, z, (float) (Math.max(0, (1 - f) * blurred.get(x0, y, z)
+                                + f * blurred.get(x1, y, z)) + 20));
+                    }
+                }
+            }
+            Volume data = Camera.photonCounting().record(moved, 17);
+            ResidualReport r = ResidualReport.analyse(data, truth, psf, new ResidualModel(0, 20, new PoissonNoise()), w);
+            assertEquals("slice-trend", r.verdict().code(), r.verdict().text());
+            assertTrue(r.chi2Trend().last() > r.chi2Trend().first());
+        }
+    }
+
+    @Test
     void sameResultForOneAndTwoThreads() {
         Volume truth = Specimen.draw(40, 36, 12, VOXEL, Specimen.Contents.cellField(), 21);
         Volume psf = GaussianPsf.sampled(0.11, 0.45, VOXEL, 9, 9, 11);
