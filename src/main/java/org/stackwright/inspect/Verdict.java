@@ -74,7 +74,8 @@ public record Verdict(String code, List<Cause> causes, String text) {
     }
 
     /**
-     * Decides on the interior of a stack and adds a sentence about the border band when it fits worse.
+     * Decides on the interior of a stack and, when the interior fits, adds a sentence about the border band if
+     * that fits worse.
      *
      * @param maps the interior maps
      * @param chi2Band chi^2 per voxel in the border band, NaN when there is none
@@ -83,7 +84,9 @@ public record Verdict(String code, List<Cause> causes, String text) {
     public static Verdict decide(ResidualMaps maps, ResidualSpectrum spectrum, ResidualRegions regions, MismatchFit fit,
             SliceTrend meanTrend, SliceTrend chi2Trend, double chi2Band, int[] box) {
         Verdict v = decideInterior(maps, spectrum, regions, fit, meanTrend, chi2Trend, box);
-        if (Double.isFinite(chi2Band) && chi2Band > Math.max(CHI2_HIGH, maps.chi2PerVoxel() + 0.1) && box != null) {
+        // only when the interior fits: otherwise the band may just show the interior's mismatch more strongly
+        if (v.fits() && Double.isFinite(chi2Band) && chi2Band > Math.max(CHI2_HIGH, maps.chi2PerVoxel() + 0.1)
+                && box != null) {
             String note = String.format(Locale.ROOT, " The border band (%d, %d, %d voxels from the faces in x, y, z)"
                     + " fits worse (chi^2 per voxel %.3f): light from objects outside the field of view, which an"
                     + " estimate on the data grid cannot hold; it is left out of the verdict.", box[0], box[1], box[2],

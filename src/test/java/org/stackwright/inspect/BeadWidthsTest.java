@@ -61,7 +61,6 @@ class BeadWidthsTest {
     void noiseFreeGaussianBeads() {
         List<BeadWidths.Bead> found = new BeadWidths(8, 8, 0.3).measure(beads(32, 1000, 10));
         check(found, true);
-        System.out.println("noise-free: " + found);
     }
 
     @Test
@@ -82,7 +81,6 @@ class BeadWidthsTest {
                 .toArray();
         assertEquals(fxy, BeadWidths.median(all), 0.02 * fxy);
         assertEquals(fz, BeadWidths.median(found.stream().mapToDouble(BeadWidths.Bead::fwhmZ).toArray()), 0.02 * fz);
-        System.out.println("noisy: " + found);
     }
 
     @Test

@@ -78,14 +78,11 @@ class ResidualReportTest {
         assertEquals(0, r.regions().listedCount());
         // the white residual has a flat spectrum at 1 (Parseval): low/high ratio within a few percent of 1
         assertEquals(1, r.spectrum().lowFrequencyRatio(), 0.05);
-        System.out.printf("correct model: chi2 %.4f mean %.5f ratio %.3f verdict %s%n", chi2,
-                r.maps().meanNormalised(), r.spectrum().lowFrequencyRatio(), r.verdict().text());
     }
 
     @Test
     void psfTooNarrowIsNamed() {
         ResidualReport r = analyse(data, psf(0.7), BACKGROUND);
-        System.out.printf("PSF 0.7: chi2 %.4f explained psf %.4f bg %.4f all %.4f verdict %s%n", r.maps().chi2PerVoxel(), r.fit().explainedByPsf(), r.fit().explainedByBackground(), r.fit().explainedByBoth(), r.verdict().text());
         assertTrue(r.maps().chi2PerVoxel() > 1.2, "chi^2 " + r.maps().chi2PerVoxel());
         assertEquals("psf-too-narrow", r.verdict().code(), r.verdict().text());
         assertTrue(r.verdict().text().contains("PSF"));
@@ -94,7 +91,6 @@ class ResidualReportTest {
     @Test
     void psfTooWideIsNamed() {
         ResidualReport r = analyse(data, psf(1.3), BACKGROUND);
-        System.out.printf("PSF 1.3: chi2 %.4f verdict %s%n", r.maps().chi2PerVoxel(), r.verdict().text());
         assertTrue(r.maps().chi2PerVoxel() > 1.1, "chi^2 " + r.maps().chi2PerVoxel());
         assertEquals("psf-too-wide", r.verdict().code(), r.verdict().text());
     }
@@ -102,7 +98,6 @@ class ResidualReportTest {
     @Test
     void backgroundTwentyPercentHighIsNamed() {
         ResidualReport r = analyse(data, psf, 1.2 * BACKGROUND);
-        System.out.printf("background +20%%: chi2 %.4f verdict %s%n", r.maps().chi2PerVoxel(), r.verdict().text());
         assertTrue(r.maps().chi2PerVoxel() > 1.2);
         assertEquals("background-too-high", r.verdict().code(), r.verdict().text());
         assertEquals(-0.2 * BACKGROUND, r.fit().offsetShift(), 0.5);
@@ -112,7 +107,6 @@ class ResidualReportTest {
     @Test
     void backgroundTwentyPercentLowIsNamed() {
         ResidualReport r = analyse(data, psf, 0.8 * BACKGROUND);
-        System.out.printf("background -20%%: chi2 %.4f verdict %s%n", r.maps().chi2PerVoxel(), r.verdict().text());
         assertTrue(r.maps().chi2PerVoxel() > 1.2);
         assertEquals("background-too-low", r.verdict().code(), r.verdict().text());
         assertEquals(0.2 * BACKGROUND, r.fit().offsetShift(), 0.5);
@@ -125,8 +119,6 @@ class ResidualReportTest {
         double full = 0.7 * expected.data()[peak];
         Volume clipped = new Camera(1, 0, 0, full).record(expected, 11);
         ResidualReport r = analyse(clipped, psf, BACKGROUND);
-        System.out.printf("saturated: chi2 %.4f regions %d verdict %s%n", r.maps().chi2PerVoxel(),
-                r.regions().listedCount(), r.verdict().text());
         assertTrue(r.regions().listedCount() >= 1);
         int px = peak % 100;
         int py = (peak / 100) % 100;
