@@ -201,6 +201,25 @@ class ResidualPartsTest {
     }
 
     @Test
+    void wrongGainIsNamedAsAWrongNoiseVariance() {
+        // photon counts (gain 1) checked with gain 0.5 or 2: the model variance g mu is half or twice the true mu,
+        // so chi^2 per voxel is about 2 or 0.5 (E[(y - mu)^2] = mu for Poisson counts)
+        Volume data = Camera.photonCounting().record(constant(200, 200, 1, 50f), 12);
+        Volume est = constant(200, 200, 1, 0f);
+        Volume psf = constant(1, 1, 1, 1f);
+        try (Workers w = new Workers(1)) {
+            ResidualReport low = ResidualReport.analyse(data, est, psf,
+                    new ResidualModel(0, 50, ResidualModel.noiseModel("poisson", 0.5, 0)), w);
+            assertEquals(2, low.maps().chi2PerVoxel(), 0.05);
+            assertEquals("noise-understated", low.verdict().code(), low.verdict().text());
+            ResidualReport high = ResidualReport.analyse(data, est, psf,
+                    new ResidualModel(0, 50, ResidualModel.noiseModel("poisson", 2, 0)), w);
+            assertEquals(0.5, high.maps().chi2PerVoxel(), 0.02);
+            assertEquals("noise-overstated-or-overfit", high.verdict().code(), high.verdict().text());
+        }
+    }
+
+    @Test
     void sameResultForOneAndTwoThreads() {
         Volume truth = Specimen.draw(40, 36, 12, VOXEL, Specimen.Contents.cellField(), 21);
         Volume psf = GaussianPsf.sampled(0.11, 0.45, VOXEL, 9, 9, 11);
