@@ -3,6 +3,8 @@ package org.stackwright.op;
 import java.util.List;
 import java.util.Optional;
 
+import org.stackwright.inspect.CompareOperation;
+import org.stackwright.inspect.ResidualsOperation;
 import org.stackwright.simulate.SimulateOperation;
 
 /**
@@ -17,7 +19,9 @@ public final class Operations {
     /** @return every operation, in the order help lists them */
     public static List<Operation> all() {
         return List.of(
-                new SimulateOperation());
+                new SimulateOperation(),
+                new ResidualsOperation(),
+                new CompareOperation());
     }
 
     /** @return the operation with this command-line name */

@@ -1,0 +1,129 @@
+package org.stackwright.inspect;
+
+import java.util.ArrayList;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+
+import ij.ImagePlus;
+
+import org.stackwright.model.NoiseModel;
+import org.stackwright.op.Operation;
+import org.stackwright.op.Param;
+import org.stackwright.op.Result;
+import org.stackwright.op.RunContext;
+import org.stackwright.op.Values;
+import org.stackwright.parallel.Workers;
+import org.stackwright.volume.ImagePlusAdapter;
+import org.stackwright.volume.Volume;
+
+/**
+ * {@code residuals}: turns the forward model back onto an estimate and shows, in the data's noise units, what it
+ * fails to explain. Writes the normalised residual stack, optionally a one-page summary picture and a JSON record
+ * (chi^2 per voxel and per slice, verdict, histogram, spectrum, regions); prints chi^2 per voxel and the verdict.
+ * The maths lives in {@link ResidualReport}.
+ */
+public final class ResidualsOperation implements Operation {
+
+    @Override
+    public String name() {
+        return "residuals";
+    }
+
+    @Override
+    public String summary() {
+        return "check an estimate against its data: normalised residuals, chi^2 and a verdict in words";
+    }
+
+    @Override
+    public List<Param> params() {
+        return List.of(
+                Param.image("input", true, "the data (camera image) the estimate was made from"),
+                Param.image("estimate", true, "the estimate (e.g. a deconvolution result), same size as the input,"
+                        + " in ADU above the offset"),
+                Param.image("psf", true, "the PSF used (odd sizes, peak at the centre, same voxel size)"),
+                Param.number("offset", 0.0, -1e9, 1e9, "ADU", "camera offset (bias) added to the prediction"),
+                Param.number("background", 0.0, -1e9, 1e9, "ADU", "background per voxel above the offset"),
+                Param.choice("noise", "poisson", List.of("poisson", "poisson-gaussian", "gaussian"),
+                        "noise model: photon counting, camera (gain and read noise) or constant Gaussian"),
+                Param.number("gain", 1.0, 1e-9, 1e9, "ADU/e-", "camera gain (poisson, poisson-gaussian)"),
+                Param.number("read-noise", 0.0, 0, 1e9, "ADU",
+                        "read noise (poisson-gaussian) or the noise standard deviation (gaussian)"),
+                Param.outputImage("output", true, "the normalised residual stack (32-bit TIFF)"),
+                Param.outputImage("summary", false, "a one-page summary picture (PNG)"),
+                Param.outputFile("record", "run record (JSON) with chi^2, verdict, histogram, spectrum and regions"));
+    }
+
+    @Override
+    public Result run(Values v, RunContext ctx) {
+        ImagePlus dataImp = v.image("input");
+        Volume data = ImagePlusAdapter.toVolume(dataImp);
+        Volume estimate = ImagePlusAdapter.toVolume(v.image("estimate"));
+        ImagePlus psfImp = v.image("psf");
+        Volume psf = ImagePlusAdapter.toVolume(psfImp);
+        if (!ImagePlusAdapter.isCalibrated(psfImp) && !psf.voxel().sameAs(data.voxel())) {
+            ctx.warn("the PSF carries no calibration; taking the input's voxel size " + data.voxel());
+            psf = psf.withVoxel(data.voxel());
+        }
+        if (!ImagePlusAdapter.isCalibrated(v.image("estimate")) && !estimate.voxel().sameAs(data.voxel())) {
+            estimate = estimate.withVoxel(data.voxel());
+        }
+        NoiseModel noise = ResidualModel.noiseModel(v.choice("noise"), v.number("gain"), v.number("read-noise"));
+        ResidualModel model = new ResidualModel(v.number("offset"), v.number("background"), noise);
+        ctx.progress(0.1, "computing residuals");
+        ResidualReport report;
+        try (Workers w = new Workers(ctx.threads())) {
+            report = ResidualReport.analyse(data, estimate, psf, model, w);
+        }
+        ctx.checkCancelled();
+        ctx.progress(0.8, "writing");
+        String title = dataImp.getTitle() == null ? "data" : dataImp.getTitle();
+        Result r = new Result();
+        r.image("output", ImagePlusAdapter.toImagePlus(report.maps().normalised(), title + "-residuals"));
+        if (v.given("summary")) {
+            r.image("summary", SummaryPicture.render(title, data, estimate, report));
+        }
+        ResidualRecord.fill(r, report, v.effective());
+        Verdict verdict = report.verdict();
+        r.line(String.format(Locale.ROOT, "chi^2 per pixel: %.4f (about 1 when the data fit the noise model)",
+                report.maps().chi2PerVoxel()));
+        if (Double.isFinite(report.chi2Band())) {
+            r.line(String.format(Locale.ROOT, "chi^2 per pixel inside the border band (used for the verdict): %.4f;"
+                    + " in the band: %.4f", report.chi2Interior(), report.chi2Band()));
+        }
+        r.line("verdict: " + verdict.code());
+        r.line(verdict.text());
+        List<ResidualRegions.Region> regions = report.regions().listed();
+        if (!regions.isEmpty()) {
+            r.line(String.format(Locale.ROOT, "regions with |r| > 4 (%d, largest first):", report.regions().listedCount()));
+            r.line("  voxels        x        y        z   peak r");
+            for (int i = 0; i < Math.min(10, regions.size()); i++) {
+                ResidualRegions.Region g = regions.get(i);
+                r.line(String.format(Locale.ROOT, "  %6d %8.1f %8.1f %8.1f %8.1f", g.voxels(), g.x(), g.y(), g.z(),
+                        g.peak()));
+            }
+            if (regions.size() > 10) {
+                r.line("  ... (all in the record)");
+            }
+        }
+        for (ResidualRegions.Region g : regions) {
+            r.row(ResidualRecord.row(g, data));
+        }
+        ctx.progress(1, "done");
+        return r;
+    }
+
+    /** @return the causes as record maps */
+    static List<Map<String, Object>> causes(Verdict v) {
+        List<Map<String, Object>> out = new ArrayList<>();
+        for (Verdict.Cause c : v.causes()) {
+            Map<String, Object> m = new LinkedHashMap<>();
+            m.put("code", c.code());
+            m.put("chi2_explained_per_pixel", c.share());
+            m.put("text", c.sentence());
+            out.add(m);
+        }
+        return out;
+    }
+}
