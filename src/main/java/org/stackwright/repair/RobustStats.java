@@ -35,17 +35,33 @@ final class RobustStats {
         return new double[] {med, MAD_TO_SIGMA * median(dev, n)};
     }
 
-    /** Median of 9 values (sorted in place; the array is modified). */
-    static float median9(float[] a) {
-        // insertion sort: 9 values, branch-light enough and allocation free
-        for (int i = 1; i < 9; i++) {
-            float t = a[i];
+    /** Median of the first m values; sorts them in place (insertion sort, allocation free: for small m). */
+    static double medianInPlace(double[] a, int m) {
+        for (int i = 1; i < m; i++) {
+            double t = a[i];
             int j = i - 1;
             while (j >= 0 && a[j] > t) {
                 a[j + 1] = a[j];
                 j--;
             }
             a[j + 1] = t;
+        }
+        return m % 2 == 1 ? a[m / 2] : 0.5 * (a[m / 2 - 1] + a[m / 2]);
+    }
+
+    /** Median of 9 values (sorted in place; the array is modified). */
+    static float median9(float[] a) {
+        // partial selection: the 5 smallest in order, the 5th is the median
+        for (int i = 0; i < 5; i++) {
+            int best = i;
+            for (int j = i + 1; j < 9; j++) {
+                if (a[j] < a[best]) {
+                    best = j;
+                }
+            }
+            float t = a[i];
+            a[i] = a[best];
+            a[best] = t;
         }
         return a[4];
     }

@@ -117,7 +117,7 @@ public final class SeamDetector {
                         window[m++] = f[p - (k - 1) * step] - f[p - k * step];
                         window[m++] = f[p + (k + 1) * step] - f[p + k * step];
                     }
-                    double e = d - median(window, m);
+                    double e = d - RobustStats.medianInPlace(window, m);
                     if (e > 0) {
                         plus[i]++;
                     } else if (e < 0) {
@@ -132,20 +132,6 @@ public final class SeamDetector {
             z[i] = (plus[i] - minus[i]) / all;
         }
         return z;
-    }
-
-    /** Median of the first m values; sorts them in place (insertion sort: m is small). */
-    static double median(double[] a, int m) {
-        for (int i = 1; i < m; i++) {
-            double t = a[i];
-            int j = i - 1;
-            while (j >= 0 && a[j] > t) {
-                a[j + 1] = a[j];
-                j--;
-            }
-            a[j + 1] = t;
-        }
-        return m % 2 == 1 ? a[m / 2] : 0.5 * (a[m / 2 - 1] + a[m / 2]);
     }
 
     static List<Band> bands(double[] zIn, double threshold, int stepWidth, int n) {
