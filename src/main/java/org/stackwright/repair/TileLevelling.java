@@ -54,34 +54,12 @@ public final class TileLevelling {
         for (int r = 0; r < rows; r++) {
             for (int c = 0; c < cols; c++) {
                 if (c + 1 < cols) {
-                    double[] ratios = new double[(y1[r] - y0[r]) * image.depth()];
-                    int m = 0;
-                    for (int z = 0; z < image.depth(); z++) {
-                        for (int y = y0[r]; y < y1[r]; y++) {
-                            double centre = 0.5 * (x1[c] + x0[c + 1] - 1);
-                            double a = extrapolate(image, x1[c] - strip, x1[c], y, z, true, centre) - offset;
-                            double b = extrapolate(image, x0[c + 1], x0[c + 1] + strip, y, z, true, centre) - offset;
-                            if (a > 0 && b > 0 && Double.isFinite(a) && Double.isFinite(b)) {
-                                ratios[m++] = b / a;
-                            }
-                        }
-                    }
-                    addPair(eq, r * cols + c, r * cols + c + 1, ratios, m);
+                    addPair(eq, r * cols + c, r * cols + c + 1,
+                            ratios(image, y0[r], y1[r], x1[c], x0[c + 1], strip, true, offset));
                 }
                 if (r + 1 < rows) {
-                    double[] ratios = new double[(x1[c] - x0[c]) * image.depth()];
-                    int m = 0;
-                    for (int z = 0; z < image.depth(); z++) {
-                        for (int x = x0[c]; x < x1[c]; x++) {
-                            double centre = 0.5 * (y1[r] + y0[r + 1] - 1);
-                            double a = extrapolate(image, y1[r] - strip, y1[r], x, z, false, centre) - offset;
-                            double b = extrapolate(image, y0[r + 1], y0[r + 1] + strip, x, z, false, centre) - offset;
-                            if (a > 0 && b > 0 && Double.isFinite(a) && Double.isFinite(b)) {
-                                ratios[m++] = b / a;
-                            }
-                        }
-                    }
-                    addPair(eq, r * cols + c, (r + 1) * cols + c, ratios, m);
+                    addPair(eq, r * cols + c, (r + 1) * cols + c,
+                            ratios(image, x0[c], x1[c], y1[r], y0[r + 1], strip, false, offset));
                 }
             }
         }
@@ -114,10 +92,31 @@ public final class TileLevelling {
         return new Gains(rows, cols, g, eq.size(), Math.sqrt(ss / eq.size()));
     }
 
-    private static void addPair(List<double[]> eq, int ta, int tb, double[] ratios, int m) {
-        if (m > 0) {
-            eq.add(new double[] {ta, tb, Math.log(RobustStats.median(ratios, m))});
+    private static void addPair(List<double[]> eq, int ta, int tb, double[] ratios) {
+        if (ratios.length > 0) {
+            eq.add(new double[] {ta, tb, Math.log(RobustStats.median(ratios, ratios.length))});
         }
+    }
+
+    /**
+     * Ratios b / a above the offset for every line [lineFrom, lineTo) across one seam whose band is
+     * [bandStart, bandEnd) along x (alongX) or y, in every slice.
+     */
+    private static double[] ratios(Volume image, int lineFrom, int lineTo, int bandStart, int bandEnd, int strip,
+            boolean alongX, double offset) {
+        double[] out = new double[(lineTo - lineFrom) * image.depth()];
+        int m = 0;
+        double centre = 0.5 * (bandStart + bandEnd - 1);
+        for (int z = 0; z < image.depth(); z++) {
+            for (int l = lineFrom; l < lineTo; l++) {
+                double a = extrapolate(image, bandStart - strip, bandStart, l, z, alongX, centre) - offset;
+                double b = extrapolate(image, bandEnd, bandEnd + strip, l, z, alongX, centre) - offset;
+                if (a > 0 && b > 0 && Double.isFinite(a) && Double.isFinite(b)) {
+                    out[m++] = b / a;
+                }
+            }
+        }
+        return java.util.Arrays.copyOf(out, m);
     }
 
     /** Tile extents between seam bands: tile k spans [lo[k], hi[k]). */
