@@ -12,10 +12,11 @@ import org.stackwright.volume.Volume;
 /**
  * Estimates a gain per tile of a stitched image from the bands beside each seam (where neighbouring tiles
  * overlapped): just left and right of a vertical seam (above and below a horizontal one) the two tiles see nearly
- * the same specimen, so for each line across the seam the ratio of the two sides above the dark level, each side's strip fitted by a
- * straight line and carried to the seam centre (so that a slope of the specimen is not taken for a gain step),
- * (I_b - offset) / (I_a - offset), estimates g_b / g_a; the median over all lines ignores the few lines
- * where structure differs across the seam. The log gains of
+ * the same specimen, so for each line across the seam each side's strip is fitted by a straight line and carried to the seam centre
+ * (so that a slope of the specimen is not taken for a gain step), and the ratio of the medians over all lines of
+ * the two sides above the dark level, median(I_b - offset) / median(I_a - offset), estimates g_b / g_a (medians
+ * ignore defective pixels and the lines where structure differs across the seam). A structure that runs along a
+ * seam over most of its length biases the pair; the misfit around closed loops of tiles (rmsLogResidual) shows it. The log gains of
  * all tiles follow by linear least squares over every neighbouring pair, with their mean fixed at 0 (gains
  * relative to the average tile). This is a report: nothing is changed unless {@link #apply} is called on request.
  */
@@ -92,31 +93,39 @@ public final class TileLevelling {
         return new Gains(rows, cols, g, eq.size(), Math.sqrt(ss / eq.size()));
     }
 
-    private static void addPair(List<double[]> eq, int ta, int tb, double[] ratios) {
-        if (ratios.length > 0) {
-            eq.add(new double[] {ta, tb, Math.log(RobustStats.median(ratios, ratios.length))});
+    private static void addPair(List<double[]> eq, int ta, int tb, double[][] sides) {
+        int m = sides[0].length;
+        if (m == 0) {
+            return;
+        }
+        double a = RobustStats.median(sides[0], m);
+        double b = RobustStats.median(sides[1], m);
+        if (a > 0 && b > 0) {
+            eq.add(new double[] {ta, tb, Math.log(b / a)});
         }
     }
 
     /**
-     * Ratios b / a above the offset for every line [lineFrom, lineTo) across one seam whose band is
-     * [bandStart, bandEnd) along x (alongX) or y, in every slice.
+     * The two sides' values above the offset, carried to the seam centre, for every line [lineFrom, lineTo)
+     * across one seam whose band is [bandStart, bandEnd) along x (alongX) or y, in every slice.
      */
-    private static double[] ratios(Volume image, int lineFrom, int lineTo, int bandStart, int bandEnd, int strip,
+    private static double[][] ratios(Volume image, int lineFrom, int lineTo, int bandStart, int bandEnd, int strip,
             boolean alongX, double offset) {
-        double[] out = new double[(lineTo - lineFrom) * image.depth()];
+        double[] outA = new double[(lineTo - lineFrom) * image.depth()];
+        double[] outB = new double[outA.length];
         int m = 0;
         double centre = 0.5 * (bandStart + bandEnd - 1);
         for (int z = 0; z < image.depth(); z++) {
             for (int l = lineFrom; l < lineTo; l++) {
                 double a = extrapolate(image, bandStart - strip, bandStart, l, z, alongX, centre) - offset;
                 double b = extrapolate(image, bandEnd, bandEnd + strip, l, z, alongX, centre) - offset;
-                if (a > 0 && b > 0 && Double.isFinite(a) && Double.isFinite(b)) {
-                    out[m++] = b / a;
+                if (Double.isFinite(a) && Double.isFinite(b)) {
+                    outA[m] = a;
+                    outB[m++] = b;
                 }
             }
         }
-        return java.util.Arrays.copyOf(out, m);
+        return new double[][] {java.util.Arrays.copyOf(outA, m), java.util.Arrays.copyOf(outB, m)};
     }
 
     /** Tile extents between seam bands: tile k spans [lo[k], hi[k]). */
