@@ -31,6 +31,9 @@ final class ConjugateGradient {
     private final double[] z;
     private final double[] p;
     private final double[] ap;
+    /** step length and direction update of the current iteration (read by the loop bodies) */
+    private volatile double alpha;
+    private volatile double beta;
 
     /**
      * @param n system size
@@ -57,13 +60,31 @@ final class ConjugateGradient {
      */
     Outcome solve(Operator a, double[] diagonal, double[] b, double[] x) {
         int n = b.length;
-        double bNorm = Math.sqrt(workers.sum(n, (f, t) -> dot(b, b, f, t)));
         if (n == 0) {
             return new Outcome(0, 0, true);
         }
+        double bNorm = Math.sqrt(workers.sum(n, (f, t) -> dot(b, b, f, t)));
         if (bNorm == 0) {
             bNorm = 1;
         }
+        // loop bodies made once: the iterations below allocate nothing
+        Workers.RangeSum rDotZ = (f, t) -> dot(r, z, f, t);
+        Workers.RangeSum rDotR = (f, t) -> dot(r, r, f, t);
+        Workers.RangeSum pDotAp = (f, t) -> dot(p, ap, f, t);
+        Workers.RangeBody step = (f, t) -> {
+            double al = alpha;
+            for (int i = f; i < t; i++) {
+                x[i] += al * p[i];
+                r[i] -= al * ap[i];
+                z[i] = r[i] / diagonal[i];
+            }
+        };
+        Workers.RangeBody direction = (f, t) -> {
+            double be = beta;
+            for (int i = f; i < t; i++) {
+                p[i] = z[i] + be * p[i];
+            }
+        };
         a.apply(x, ap);
         workers.forRange(n, (f, t) -> {
             for (int i = f; i < t; i++) {
@@ -72,32 +93,22 @@ final class ConjugateGradient {
                 p[i] = z[i];
             }
         });
-        double rz = workers.sum(n, (f, t) -> dot(r, z, f, t));
-        double rNorm = Math.sqrt(workers.sum(n, (f, t) -> dot(r, r, f, t)));
+        double rz = workers.sum(n, rDotZ);
+        double rNorm = Math.sqrt(workers.sum(n, rDotR));
         int it = 0;
         while (rNorm > tolerance * bNorm && it < maxIterations) {
             a.apply(p, ap);
-            double pap = workers.sum(n, (f, t) -> dot(p, ap, f, t));
+            double pap = workers.sum(n, pDotAp);
             if (!(pap > 0)) {
                 break;
             }
-            final double alpha = rz / pap;
-            workers.forRange(n, (f, t) -> {
-                for (int i = f; i < t; i++) {
-                    x[i] += alpha * p[i];
-                    r[i] -= alpha * ap[i];
-                    z[i] = r[i] / diagonal[i];
-                }
-            });
-            double rzNew = workers.sum(n, (f, t) -> dot(r, z, f, t));
-            final double beta = rzNew / rz;
+            alpha = rz / pap;
+            workers.forRange(n, step);
+            double rzNew = workers.sum(n, rDotZ);
+            beta = rzNew / rz;
             rz = rzNew;
-            workers.forRange(n, (f, t) -> {
-                for (int i = f; i < t; i++) {
-                    p[i] = z[i] + beta * p[i];
-                }
-            });
-            rNorm = Math.sqrt(workers.sum(n, (f, t) -> dot(r, r, f, t)));
+            workers.forRange(n, direction);
+            rNorm = Math.sqrt(workers.sum(n, rDotR));
             it++;
         }
         return new Outcome(it, rNorm / bNorm, rNorm <= tolerance * bNorm);

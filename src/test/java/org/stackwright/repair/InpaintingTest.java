@@ -314,4 +314,20 @@ class InpaintingTest {
             assertArrayEquals(one, two, mode.toString());
         }
     }
+
+    // A NaN among the trusted pixels cannot serve as boundary value: it is filled too and listed in the filled mask.
+    @Test
+    void nonFiniteTrustedPixelsAreFilledAndReported() {
+        Volume img = randomImage(20, 16, 1, 4);
+        img.data()[5 * 20 + 7] = Float.NaN;
+        Volume m = mask(20, 16, 1, i -> i == 3 * 20 + 3);
+        try (Workers workers = new Workers(1)) {
+            Inpainting.Outcome o = Inpainting.run(img, m, Inpainting.Settings.of(Inpainting.Method.HARMONIC,
+                    Inpainting.Mode.SLICES), workers);
+            assertEquals(2, o.filledCount());
+            assertEquals((byte) 255, o.filledMask()[5 * 20 + 7]);
+            assertTrue(Float.isFinite(o.filled().data()[5 * 20 + 7]));
+            assertTrue(o.notes().get(0).contains("NaN"), o.notes().toString());
+        }
+    }
 }
