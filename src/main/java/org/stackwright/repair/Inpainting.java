@@ -145,6 +145,7 @@ public final class Inpainting {
         } else if (d == 1) {
             solve(f, fill, w, h, 1, spacing, settings, workers, out, iterations, ok, 0);
         } else {
+            // each slice is solved on one thread; the slices run in parallel
             Workers single = new Workers(1);
             workers.forRange(d, (z0, z1) -> {
                 for (int z = z0; z < z1; z++) {
