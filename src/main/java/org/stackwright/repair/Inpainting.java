@@ -146,21 +146,22 @@ public final class Inpainting {
             solve(f, fill, w, h, 1, spacing, settings, workers, out, iterations, ok, 0);
         } else {
             // each slice is solved on one thread; the slices run in parallel
-            Workers single = new Workers(1);
-            workers.forRange(d, (z0, z1) -> {
-                for (int z = z0; z < z1; z++) {
-                    float[] fz = slice(f, z, plane);
-                    boolean[] mz = new boolean[plane];
-                    System.arraycopy(fill, z * plane, mz, 0, plane);
-                    float[] oz = fz.clone();
-                    solve(fz, mz, w, h, 1, spacing, settings, single, oz, iterations, ok, z);
-                    for (int p = 0; p < plane; p++) {
-                        if (mz[p]) {
-                            out[z * plane + p] = oz[p];
+            try (Workers single = new Workers(1)) {
+                workers.forRange(d, (z0, z1) -> {
+                    for (int z = z0; z < z1; z++) {
+                        float[] fz = slice(f, z, plane);
+                        boolean[] mz = new boolean[plane];
+                        System.arraycopy(fill, z * plane, mz, 0, plane);
+                        float[] oz = fz.clone();
+                        solve(fz, mz, w, h, 1, spacing, settings, single, oz, iterations, ok, z);
+                        for (int p = 0; p < plane; p++) {
+                            if (mz[p]) {
+                                out[z * plane + p] = oz[p];
+                            }
                         }
                     }
-                }
-            });
+                });
+            }
         }
         byte[] filledMask = new byte[f.length];
         int count = 0;
