@@ -5,6 +5,9 @@ import java.util.Optional;
 
 import org.stackwright.inspect.CompareOperation;
 import org.stackwright.inspect.ResidualsOperation;
+import org.stackwright.repair.FindDefectsOperation;
+import org.stackwright.repair.InpaintOperation;
+import org.stackwright.repair.SeamMaskOperation;
 import org.stackwright.simulate.SimulateOperation;
 
 /**
@@ -20,6 +23,9 @@ public final class Operations {
     public static List<Operation> all() {
         return List.of(
                 new SimulateOperation(),
+                new FindDefectsOperation(),
+                new SeamMaskOperation(),
+                new InpaintOperation(),
                 new ResidualsOperation(),
                 new CompareOperation());
     }

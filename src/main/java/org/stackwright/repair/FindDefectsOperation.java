@@ -1,0 +1,91 @@
+package org.stackwright.repair;
+
+import java.util.List;
+import java.util.Locale;
+
+import ij.ImagePlus;
+
+import org.stackwright.op.Operation;
+import org.stackwright.op.Param;
+import org.stackwright.op.Result;
+import org.stackwright.op.RunContext;
+import org.stackwright.op.Values;
+import org.stackwright.parallel.Workers;
+import org.stackwright.volume.ImagePlusAdapter;
+import org.stackwright.volume.Volume;
+
+/**
+ * {@code find-defects}: a mask of hot, dead and stuck camera pixels, from dark and/or flat frames when given
+ * ({@link FrameDefectFinder}), otherwise from the image itself ({@link ImageDefectFinder}).
+ */
+public final class FindDefectsOperation implements Operation {
+
+    @Override
+    public String name() {
+        return "find-defects";
+    }
+
+    @Override
+    public String summary() {
+        return "find hot, dead and stuck camera pixels (from dark/flat frames or the image itself); 255 = defective";
+    }
+
+    @Override
+    public List<Param> params() {
+        return List.of(
+                Param.image("input", true, "the image the mask is for (also searched when no frames are given)"),
+                Param.image("dark", false, "stack of dark frames (no light), one exposure per slice"),
+                Param.image("flat", false, "stack of flat frames (even light), one exposure per slice"),
+                Param.number("threshold", 5.0, 1, 1000, "sigmas", "robust sigmas a pixel must deviate by"),
+                Param.number("fraction", 0.5, 0.01, 1, "", "image search: share of slices/time points in which "
+                        + "the deviation must be seen"),
+                Param.outputImage("output", true, "the 8-bit defect mask, 255 = defective (TIFF)"),
+                Param.outputFile("record", "run record with counts per kind (JSON)"));
+    }
+
+    @Override
+    public Result run(Values v, RunContext ctx) {
+        ImagePlus input = v.image("input");
+        ImagePlus darkImp = v.image("dark");
+        ImagePlus flatImp = v.image("flat");
+        double k = v.number("threshold");
+        DefectMap map;
+        if (darkImp != null || flatImp != null) {
+            Volume dark = darkImp == null ? null : MaskImages.allPlanes(darkImp);
+            Volume flat = flatImp == null ? null : MaskImages.allPlanes(flatImp);
+            checkSize("dark", dark, input);
+            checkSize("flat", flat, input);
+            ctx.progress(0.2, "scoring calibration frames");
+            map = FrameDefectFinder.find(dark, flat, k);
+        } else {
+            Volume img = MaskImages.allPlanes(input);
+            ctx.progress(0.2, "scoring " + img.depth() + " planes");
+            try (Workers w = new Workers(ctx.threads())) {
+                map = ImageDefectFinder.find(img, k, v.number("fraction"), w);
+            }
+            if (img.depth() < 3) {
+                ctx.warn("with fewer than 3 planes stuck pixels cannot be told from hot ones, and dead pixels in dim "
+                        + "regions may be missed; dark or flat frames find them reliably");
+            }
+        }
+        ctx.progress(1, "done");
+        Result r = new Result();
+        r.image("output", MaskImages.toImage(map.mask(), map.width(), map.height(), 1,
+                ImagePlusAdapter.voxelSize(input), input.getTitle() + "-find-defects"));
+        r.record("operation", name());
+        r.record("settings", v.effective());
+        r.record("source", map.source());
+        r.record("counts", map.counts());
+        r.line(String.format(Locale.ROOT, "%d defective pixels (%d hot, %d dead, %d stuck) from %s, threshold %.3g sigmas",
+                map.total(), map.count(PixelDefect.HOT), map.count(PixelDefect.DEAD), map.count(PixelDefect.STUCK),
+                map.source(), k));
+        return r;
+    }
+
+    private static void checkSize(String key, Volume frames, ImagePlus input) {
+        if (frames != null && (frames.width() != input.getWidth() || frames.height() != input.getHeight())) {
+            throw new IllegalArgumentException(key + " frames are " + frames.width() + "x" + frames.height()
+                    + " but input is " + input.getWidth() + "x" + input.getHeight() + "; give frames of the same camera size");
+        }
+    }
+}

@@ -1,0 +1,68 @@
+package org.stackwright.repair;
+
+import java.util.Arrays;
+
+/**
+ * Median and median absolute deviation (MAD). The MAD times 1.4826 estimates the standard deviation of normally
+ * distributed data and ignores a minority of outliers (Hampel, "The influence curve and its role in robust
+ * estimation", J. Am. Stat. Assoc. 69:383-393, 1974; the factor is 1 / Phi^-1(3/4)).
+ */
+final class RobustStats {
+
+    /** 1 / Phi^-1(3/4): makes the MAD a consistent estimate of a normal standard deviation */
+    static final double MAD_TO_SIGMA = 1.4826;
+
+    private RobustStats() {
+    }
+
+    /** @return the median of the first n values (the array is not modified) */
+    static double median(double[] v, int n) {
+        if (n == 0) {
+            return Double.NaN;
+        }
+        double[] c = Arrays.copyOf(v, n);
+        Arrays.sort(c);
+        return n % 2 == 1 ? c[n / 2] : 0.5 * (c[n / 2 - 1] + c[n / 2]);
+    }
+
+    /** @return median and robust sigma (1.4826 MAD) of the first n values, not modified */
+    static double[] medianSigma(double[] v, int n) {
+        double med = median(v, n);
+        double[] dev = new double[n];
+        for (int i = 0; i < n; i++) {
+            dev[i] = Math.abs(v[i] - med);
+        }
+        return new double[] {med, MAD_TO_SIGMA * median(dev, n)};
+    }
+
+    /** Median of the first m values; sorts them in place (insertion sort, allocation free: for small m). */
+    static double medianInPlace(double[] a, int m) {
+        for (int i = 1; i < m; i++) {
+            double t = a[i];
+            int j = i - 1;
+            while (j >= 0 && a[j] > t) {
+                a[j + 1] = a[j];
+                j--;
+            }
+            a[j + 1] = t;
+        }
+        return m % 2 == 1 ? a[m / 2] : 0.5 * (a[m / 2 - 1] + a[m / 2]);
+    }
+
+    /** Median of 9 values (sorted in place; the array is modified). */
+    static float median9(float[] a) {
+        // partial selection: the 5 smallest in order, the 5th is the median
+        for (int i = 0; i < 5; i++) {
+            int best = i;
+            for (int j = i + 1; j < 9; j++) {
+                if (a[j] < a[best]) {
+                    best = j;
+                }
+            }
+            float t = a[i];
+            a[i] = a[best];
+            a[best] = t;
+        }
+        return a[4];
+    }
+}

