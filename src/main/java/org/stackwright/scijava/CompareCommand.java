@@ -19,6 +19,9 @@ public final class CompareCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "input")
     private ImagePlus input;
 
+    @Parameter(persist = false, required = false, label = "data-range")
+    private Double dataRange;
+
     public CompareCommand() {
         super("compare");
     }

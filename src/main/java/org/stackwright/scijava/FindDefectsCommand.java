@@ -1,5 +1,7 @@
 package org.stackwright.scijava;
 
+import java.io.File;
+
 import ij.ImagePlus;
 
 import org.scijava.ItemIO;
@@ -26,8 +28,14 @@ public final class FindDefectsCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "threshold")
     private Double threshold;
 
+    @Parameter(persist = false, required = false, label = "fraction")
+    private Double fraction;
+
     @Parameter(type = ItemIO.OUTPUT, label = "output")
     private ImagePlus output;
+
+    @Parameter(persist = false, required = false, label = "record")
+    private File record;
 
     public FindDefectsCommand() {
         super("find-defects");

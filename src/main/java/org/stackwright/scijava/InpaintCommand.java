@@ -1,5 +1,7 @@
 package org.stackwright.scijava;
 
+import java.io.File;
+
 import ij.ImagePlus;
 
 import org.scijava.ItemIO;
@@ -26,8 +28,20 @@ public final class InpaintCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "mode")
     private String mode;
 
+    @Parameter(persist = false, required = false, label = "iterations")
+    private Integer iterations;
+
+    @Parameter(persist = false, required = false, label = "tolerance")
+    private Double tolerance;
+
     @Parameter(type = ItemIO.OUTPUT, label = "output")
     private ImagePlus output;
+
+    @Parameter(type = ItemIO.OUTPUT, label = "filled-output")
+    private ImagePlus filledOutput;
+
+    @Parameter(persist = false, required = false, label = "record")
+    private File record;
 
     public InpaintCommand() {
         super("inpaint");

@@ -1,5 +1,7 @@
 package org.stackwright.scijava;
 
+import java.io.File;
+
 import ij.ImagePlus;
 
 import org.scijava.ItemIO;
@@ -21,7 +23,10 @@ public final class SeamMaskCommand extends OperationCommand {
     private String tile;
 
     @Parameter(persist = false, required = false, label = "overlap")
-    private Integer overlap;
+    private String overlap;
+
+    @Parameter(persist = false, required = false, label = "order")
+    private String order;
 
     @Parameter(persist = false, required = false, label = "seam-width")
     private Integer seamWidth;
@@ -32,8 +37,26 @@ public final class SeamMaskCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "input")
     private ImagePlus input;
 
+    @Parameter(persist = false, required = false, label = "threshold")
+    private Double threshold;
+
+    @Parameter(persist = false, required = false, label = "level")
+    private Boolean level;
+
+    @Parameter(persist = false, required = false, label = "offset")
+    private Double offset;
+
+    @Parameter(persist = false, required = false, label = "strip")
+    private Integer strip;
+
     @Parameter(type = ItemIO.OUTPUT, label = "output")
     private ImagePlus output;
+
+    @Parameter(type = ItemIO.OUTPUT, label = "levelled-output")
+    private ImagePlus levelledOutput;
+
+    @Parameter(persist = false, required = false, label = "record")
+    private File record;
 
     public SeamMaskCommand() {
         super("seam-mask");
