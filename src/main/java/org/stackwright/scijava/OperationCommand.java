@@ -78,8 +78,11 @@ public abstract class OperationCommand extends ContextCommand {
     /**
      * Puts each setting's default into its field before the host sees the command. Why: SciJava's default-value
      * step fills every input that was not passed and is null with a number's minimum or zero, which would silently
-     * replace the operation's default. A number without a default is NaN, which means "not given".
+     * replace the operation's default. A number without a default is NaN (a whole number {@link #NOT_GIVEN_INTEGER}), which means "not given".
      */
+    /** Marks a whole-number setting without a default as "not given" (SciJava would fill a null with 0). */
+    static final int NOT_GIVEN_INTEGER = Integer.MIN_VALUE;
+
     private void fillDefaults(Operation op) {
         Map<String, Field> fields = settingFields(getClass());
         for (Param p : op.params()) {
@@ -95,8 +98,8 @@ public abstract class OperationCommand extends ContextCommand {
                 Class<?> t = f.getType();
                 if (t == Double.class) {
                     f.set(this, d == null ? Double.NaN : Double.valueOf(d));
-                } else if (d != null && t == Integer.class) {
-                    f.set(this, Integer.valueOf(d));
+                } else if (t == Integer.class) {
+                    f.set(this, d == null ? NOT_GIVEN_INTEGER : Integer.valueOf(d));
                 } else if (d != null && t == Boolean.class) {
                     f.set(this, Boolean.valueOf(d));
                 } else if (d != null && t == String.class) {
@@ -228,6 +231,7 @@ public abstract class OperationCommand extends ContextCommand {
                 }
                 default -> {
                     boolean notGiven = v == null || (v instanceof Double d && d.isNaN())
+                            || (v instanceof Integer i && i == NOT_GIVEN_INTEGER)
                             || (v instanceof String t && t.isEmpty() && p.defaultValue() == null);
                     if (!notGiven) {
                         s.text().put(p.key(), text(p, v));
