@@ -18,8 +18,9 @@ Per convolution case NAME (listed in cases.txt as "NAME nx ny nz kx ky kz period
                      fits in the image, cross-checked against (and otherwise replaced by) a direct sum of
                      shifted copies (numpy.roll); only when periodic = 1
 Padding (padding.txt lists "NAME nx ny nz before_x after_x before_y after_y before_z after_z"):
-  pad-image.raw and pad-MODE.raw for numpy.pad modes 'constant' (zero), 'symmetric' (mirror, edge repeated)
-  and 'wrap' (periodic).
+  pad-image.raw, pad-zero.raw and pad-mirror.raw from numpy.pad modes 'constant' and 'symmetric' (mirror, edge
+  repeated), pad-periodic.raw from indices taken modulo the size (numpy.take), cross-checked against numpy.pad
+  mode 'wrap' where its widths do not exceed the size.
 """
 import os
 import sys
@@ -99,7 +100,18 @@ def main():
     widths = ((bz, az), (by, ay), (bx, ax))
     write(name + "-zero.raw", np.pad(image, widths, mode="constant"))
     write(name + "-mirror.raw", np.pad(image, widths, mode="symmetric"))
-    write(name + "-periodic.raw", np.pad(image, widths, mode="wrap"))
+    # numpy 1.24's mode 'wrap' is not periodic when a width exceeds the size on both sides (np.pad(arange(5),
+    # (2, 7), 'wrap') ends in ... 4 3 4), so the periodic reference takes indices modulo the size (the definition),
+    # checked against numpy.pad 'wrap' on widths it handles.
+    periodic = image
+    for axis, (b, a) in enumerate(widths):
+        n = image.shape[axis]
+        periodic = np.take(periodic, np.arange(-b, n + a) % n, axis=axis)
+        small = ((0, 0),) * axis + ((min(b, n), min(a, n)),) + ((0, 0),) * (2 - axis)
+        check = np.take(image, np.arange(-min(b, n), n + min(a, n)) % n, axis=axis)
+        if not np.array_equal(check, np.pad(image, small, mode="wrap")):
+            sys.exit("numpy.pad 'wrap' disagrees with indices modulo the size along axis %d" % axis)
+    write(name + "-periodic.raw", periodic)
     with open(os.path.join(OUT, "padding.txt"), "w") as f:
         f.write("# name nx ny nz before_x after_x before_y after_y before_z after_z\n")
         f.write("%s %d %d %d %d %d %d %d %d %d\n" % (name, nx, ny, nz, bx, ax, by, ay, bz, az))
