@@ -47,13 +47,18 @@ public final class Main {
                     + "--help' for the options.");
             return BAD_INPUT;
         }
-        if (pr.isUsageHelpRequested() || !pr.hasSubcommand()) {
-            cl.usage(out);
-            return pr.hasSubcommand() || pr.isUsageHelpRequested() ? OK : BAD_INPUT;
-        }
         if (pr.isVersionHelpRequested()) {
             out.println("stackwright " + Version.get());
             return OK;
+        }
+        if (pr.isUsageHelpRequested()) {
+            cl.usage(out);
+            return OK;
+        }
+        if (!pr.hasSubcommand()) {
+            // no operation named: the list goes to stderr, as for any other bad input
+            cl.usage(err);
+            return BAD_INPUT;
         }
         ParseResult sub = pr.subcommand();
         if (sub.isUsageHelpRequested()) {
