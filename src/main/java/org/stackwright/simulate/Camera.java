@@ -1,6 +1,5 @@
 package org.stackwright.simulate;
 
-import org.apache.commons.math3.distribution.PoissonDistribution;
 import org.apache.commons.math3.random.RandomGenerator;
 import org.apache.commons.math3.random.Well19937c;
 import org.stackwright.volume.Volume;
@@ -61,9 +60,8 @@ public record Camera(double gain, double offset, double readNoise, double fullSc
         return expectedPhotons.withData(out);
     }
 
-    /** One Poisson sample with the given mean (commons-math3's exact sampler). */
+    /** One Poisson sample with the given mean, in constant expected time (see {@link PoissonSampler}). */
     static double poisson(RandomGenerator rng, double mean) {
-        return new PoissonDistribution(rng, mean, PoissonDistribution.DEFAULT_EPSILON,
-                PoissonDistribution.DEFAULT_MAX_ITERATIONS).sample();
+        return PoissonSampler.sample(rng, mean);
     }
 }
