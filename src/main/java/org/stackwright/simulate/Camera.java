@@ -27,6 +27,10 @@ public record Camera(double gain, double offset, double readNoise, double fullSc
         if (!Double.isFinite(offset)) {
             throw new IllegalArgumentException("camera offset must be finite (given " + offset + ")");
         }
+        if (!(fullScale > offset)) {
+            throw new IllegalArgumentException("camera full scale must be above the offset " + offset + " (given "
+                    + fullScale + ")");
+        }
     }
 
     /** A photon-counting detector: gain 1, no offset, no read noise, no saturation. */

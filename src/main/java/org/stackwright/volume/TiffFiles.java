@@ -102,7 +102,9 @@ public final class TiffFiles {
         long images = 0;
         for (FileInfo fi : info) {
             long n = Math.max(1, fi.nImages);
-            images += n;
+            if (fi.width == info[0].width && fi.height == info[0].height) {
+                images += n; // pages of another size (thumbnails) are not part of the stack ImageJ opens
+            }
             long end;
             if (fi.compression == FileInfo.COMPRESSION_NONE) {
                 long bytes = (long) fi.width * fi.height * fi.getBytesPerPixel();

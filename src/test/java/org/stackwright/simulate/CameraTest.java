@@ -79,5 +79,7 @@ class CameraTest {
         assertTrue(e.getMessage().contains("gain"), e.getMessage());
         e = assertThrows(IllegalArgumentException.class, () -> new Camera(1, 100, -1, 1e4));
         assertTrue(e.getMessage().contains("read noise"), e.getMessage());
+        e = assertThrows(IllegalArgumentException.class, () -> new Camera(1, 100, 1, 50));
+        assertTrue(e.getMessage().contains("full scale") && e.getMessage().contains("offset"), e.getMessage());
     }
 }
