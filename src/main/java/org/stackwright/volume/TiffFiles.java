@@ -51,6 +51,12 @@ public final class TiffFiles {
         }
         boolean tiff = got == 4 && ((head[0] == 'I' && head[1] == 'I' && head[2] == 42 && head[3] == 0)
                 || (head[0] == 'M' && head[1] == 'M' && head[2] == 0 && head[3] == 42));
+        boolean bigTiff = got == 4 && ((head[0] == 'I' && head[1] == 'I' && head[2] == 43 && head[3] == 0)
+                || (head[0] == 'M' && head[1] == 'M' && head[2] == 0 && head[3] == 43));
+        if (bigTiff) {
+            throw new IllegalArgumentException(what + ": " + path + " is a BigTIFF file, which ImageJ 1.x cannot read; "
+                    + "save it as a standard TIFF (under 4 GB) first");
+        }
         if (!tiff) {
             throw new IllegalArgumentException(what + ": " + path + " is not a TIFF file (save it as TIFF first)");
         }

@@ -54,6 +54,11 @@ class TiffFilesTest {
         Files.write(empty, new byte[0]);
         m = message(() -> TiffFiles.open(empty, "--mask"));
         assertTrue(m.startsWith("--mask") && m.contains("is not a TIFF file"), m);
+        // BigTIFF header (version 43 instead of 42)
+        Path big = dir.resolve("big.tif");
+        Files.write(big, new byte[] {'I', 'I', 43, 0, 8, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0});
+        m = message(() -> TiffFiles.open(big, "--input"));
+        assertTrue(m.startsWith("--input") && m.contains("BigTIFF"), m);
     }
 
     @Test
