@@ -79,8 +79,10 @@ public final class TiffFiles {
             throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged or truncated (ImageJ could not read its pixels)");
         }
         if (imp.getStackSize() < images) {
-            throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged or truncated: it describes "
-                    + images + " images but only " + imp.getStackSize() + " could be read");
+            throw new IllegalArgumentException(what + ": TIFF file " + path + " describes " + images + " images of "
+                    + imp.getWidth() + "x" + imp.getHeight() + " but ImageJ read only " + imp.getStackSize()
+                    + " (the file is damaged, or mixes pages of other sizes such as thumbnails: save the stack alone"
+                    + " as TIFF)");
         }
         imp.setTitle(titleOf(path));
         return imp;

@@ -77,6 +77,34 @@ class TiffFilesTest {
         }
     }
 
+    /** Copies a reference TIFF (made by tools/reference/make_tiff_references.py with tifffile 2023.2.3). */
+    private Path reference(String name) throws IOException {
+        Path p = dir.resolve(name);
+        try (java.io.InputStream in = getClass().getResourceAsStream("/reference/tiff/" + name)) {
+            Files.copy(in, p);
+        }
+        return p;
+    }
+
+    @Test
+    void multipageFilesFromAnotherLibraryAreRead() throws IOException {
+        for (String name : new String[] {"multipage.tif", "multipage-zlib.tif"}) {
+            Volume v = TiffFiles.read(reference(name), "--input");
+            assertEquals("16x12x5", v.shape(), name);
+            for (int z = 0; z < 5; z++) {
+                for (int y = 0; y < 12; y++) {
+                    for (int x = 0; x < 16; x++) {
+                        assertEquals((16 * 12 * z + 16 * y + x) % 251, v.get(x, y, z), 0, name);
+                    }
+                }
+            }
+        }
+        // ImageJ 1.x stacks only the first page when the pages differ in size: refused, not silently cut to 1 plane
+        Path thumb = reference("with-thumbnail.tif");
+        String m = message(() -> TiffFiles.open(thumb, "--input"));
+        assertTrue(m.startsWith("--input") && m.contains("describes 5 images") && m.contains("read only 1"), m);
+    }
+
     @Test
     void writeRoundTripsAndLeavesNoTemporaryFile() throws IOException {
         Volume v = sample();
