@@ -51,9 +51,14 @@ public final class Main {
             out.println("stackwright " + Version.get());
             return OK;
         }
-        if (pr.isUsageHelpRequested() || !pr.hasSubcommand()) {
+        if (pr.isUsageHelpRequested()) {
             cl.usage(out);
-            return pr.hasSubcommand() || pr.isUsageHelpRequested() ? OK : BAD_INPUT;
+            return OK;
+        }
+        if (!pr.hasSubcommand()) {
+            // no operation named: the list goes to stderr, as for any other bad input
+            cl.usage(err);
+            return BAD_INPUT;
         }
         ParseResult sub = pr.subcommand();
         if (sub.isUsageHelpRequested()) {

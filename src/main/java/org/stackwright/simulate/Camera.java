@@ -1,6 +1,5 @@
 package org.stackwright.simulate;
 
-import org.apache.commons.math3.distribution.PoissonDistribution;
 import org.apache.commons.math3.random.RandomGenerator;
 import org.apache.commons.math3.random.Well19937c;
 import org.stackwright.volume.Volume;
@@ -27,6 +26,10 @@ public record Camera(double gain, double offset, double readNoise, double fullSc
         }
         if (!Double.isFinite(offset)) {
             throw new IllegalArgumentException("camera offset must be finite (given " + offset + ")");
+        }
+        if (!(fullScale > offset)) {
+            throw new IllegalArgumentException("camera full scale must be above the offset " + offset + " (given "
+                    + fullScale + ")");
         }
     }
 
@@ -61,9 +64,8 @@ public record Camera(double gain, double offset, double readNoise, double fullSc
         return expectedPhotons.withData(out);
     }
 
-    /** One Poisson sample with the given mean (commons-math3's exact sampler). */
+    /** One Poisson sample with the given mean, in constant expected time (see {@link PoissonSampler}). */
     static double poisson(RandomGenerator rng, double mean) {
-        return new PoissonDistribution(rng, mean, PoissonDistribution.DEFAULT_EPSILON,
-                PoissonDistribution.DEFAULT_MAX_ITERATIONS).sample();
+        return PoissonSampler.sample(rng, mean);
     }
 }

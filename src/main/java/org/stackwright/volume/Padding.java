@@ -28,6 +28,9 @@ public final class Padding {
      * @param oz where the input's z = 0 lands
      */
     public static Volume pad(Volume v, int nx, int ny, int nz, int ox, int oy, int oz, Mode mode) {
+        if (mode == null) {
+            throw new IllegalArgumentException("padding mode must be given (ZERO, MIRROR or PERIODIC)");
+        }
         if (ox < 0 || oy < 0 || oz < 0 || nx < v.width() + ox || ny < v.height() + oy || nz < v.depth() + oz) {
             throw new IllegalArgumentException("padded size " + nx + "x" + ny + "x" + nz + " with offset " + ox + ","
                     + oy + "," + oz + " does not hold the volume " + v.shape());
