@@ -3,6 +3,9 @@ package org.stackwright.op;
 import java.util.List;
 import java.util.Optional;
 
+import org.stackwright.psf.MeasurePsfOperation;
+import org.stackwright.psf.PsfFromBeadsOperation;
+import org.stackwright.psf.PsfOperation;
 import org.stackwright.simulate.SimulateOperation;
 
 /**
@@ -17,7 +20,8 @@ public final class Operations {
     /** @return every operation, in the order help lists them */
     public static List<Operation> all() {
         return List.of(
-                new SimulateOperation());
+                new SimulateOperation(),
+                new PsfOperation(), new PsfFromBeadsOperation(), new MeasurePsfOperation());
     }
 
     /** @return the operation with this command-line name */

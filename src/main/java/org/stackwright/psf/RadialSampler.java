@@ -56,7 +56,7 @@ final class RadialSampler {
                         double f = t - i;
                         for (int tap = -1; tap <= 2; tap++) {
                             int idx = Math.abs(i + tap);
-                            local[idx] += share * keys(tap - f);
+                            local[idx] += share * KeysCubic.kernel(tap - f);
                             lo = Math.min(lo, idx);
                             hi = Math.max(hi, idx);
                         }
@@ -83,17 +83,6 @@ final class RadialSampler {
         needed = most;
     }
 
-    /** Keys cubic convolution kernel, a = -0.5. */
-    private static double keys(double s) {
-        double x = Math.abs(s);
-        if (x <= 1) {
-            return (1.5 * x - 2.5) * x * x + 1;
-        }
-        if (x < 2) {
-            return ((-0.5 * x + 2.5) * x - 4) * x + 2;
-        }
-        return 0;
-    }
 
     /** @return how many radial samples a profile must hold */
     int neededRadii() {
