@@ -70,19 +70,25 @@ public final class SamplingCheck {
         Limits lim = limits(optics, model);
         List<String> out = new ArrayList<>();
         double pixel = Math.max(voxel.x(), voxel.y());
-        String optic = String.format(Locale.ROOT, "NA %.3g at %.0f nm", optics.na(), "two-photon".equals(model)
-                ? optics.excitationOrEmissionNm() : optics.wavelengthNm());
+        String optic = String.format(Locale.ROOT, "NA %s at %s nm", num(optics.na()), num("two-photon".equals(model)
+                ? optics.excitationOrEmissionNm() : optics.wavelengthNm()));
         if (pixel > lim.lateralUm() * (1 + 1e-9)) {
-            out.add(String.format(Locale.ROOT, "the pixel size %.4g um is larger than the Nyquist limit %.4g um for %s"
+            out.add(String.format(Locale.ROOT, "the pixel size %s um is larger than the Nyquist limit %s um for %s"
                     + " (%s): the stack is undersampled in x and y, so the finest detail the objective passes is lost "
-                    + "or aliased and no deconvolution can bring it back; use pixels of at most %.4g um",
-                    pixel, lim.lateralUm(), optic, model, lim.lateralUm()));
+                    + "or aliased and no deconvolution can bring it back; use pixels of at most %s um",
+                    num(pixel), num(lim.lateralUm()), optic, model, num(lim.lateralUm())));
         }
         if (threeD && voxel.z() > lim.axialUm() * (1 + 1e-9)) {
-            out.add(String.format(Locale.ROOT, "the z step %.4g um is larger than the Nyquist limit %.4g um for %s in "
-                    + "a medium of index %.4g (%s): the stack is undersampled in z; use steps of at most %.4g um",
-                    voxel.z(), lim.axialUm(), optic, optics.immersionIndex(), model, lim.axialUm()));
+            out.add(String.format(Locale.ROOT, "the z step %s um is larger than the Nyquist limit %s um for %s in "
+                    + "a medium of index %s (%s): the stack is undersampled in z; use steps of at most %s um",
+                    num(voxel.z()), num(lim.axialUm()), optic, num(optics.immersionIndex()), model, num(lim.axialUm())));
         }
         return out;
+    }
+
+    /** Four significant digits without trailing zeros. */
+    private static String num(double v) {
+        String s = String.format(Locale.ROOT, "%.4g", v);
+        return s.contains("e") || !s.contains(".") ? s : s.replaceFirst("0+$", "").replaceFirst("\\.$", "");
     }
 }
