@@ -57,8 +57,14 @@ final class PupilIntegral {
         this.dr = dr;
         this.radii = (int) Math.ceil(rMax / dr) + 4;
         double besselCycles = k * na * rhoMax * (radii * dr) / (2 * Math.PI);
-        double phaseCycles = Math.max(phaseVariation(s, k, aberrated, rhoMax, zMax),
-                phaseVariation(s, k, aberrated, rhoMax, -zMax)) / (2 * Math.PI);
+        double[] up = phaseVariation(s, k, aberrated, rhoMax, zMax);
+        double[] down = phaseVariation(s, k, aberrated, rhoMax, -zMax);
+        double[] fixed = phaseVariation(s, k, aberrated, rhoMax, 0);
+        // cycles over the aperture: the total phase change; the aberration term of a deep emitter in a sample of
+        // lower index oscillates much faster near the rim than on average, so its fastest local rate (at most
+        // three times its total) counts when it is larger
+        double total = Math.max(up[0], down[0]);
+        double phaseCycles = Math.max(total, Math.min(fixed[1], 3 * fixed[0])) / (2 * Math.PI);
         int n = (int) Math.ceil(16 * (besselCycles + phaseCycles)) + 64;
         this.nodes = n + (n % 2) + 1;
         weights = new double[nodes];
@@ -105,19 +111,28 @@ final class PupilIntegral {
         return Math.sqrt(Math.max(0, 1 - sin * sin));
     }
 
-    private static double phaseVariation(PsfSettings s, double k, boolean aberrated, double rhoMax, double z) {
+    /**
+     * @return {total phase change over the aperture, the largest local rate of change times the aperture width}
+     *     (radians), probed on 2048 intervals; the last interval is left out of the rate (square-root edge)
+     */
+    private static double[] phaseVariation(PsfSettings s, double k, boolean aberrated, double rhoMax, double z) {
         int probes = 2048;
         double total = 0;
+        double fastest = 0;
         double prev = 0;
         for (int j = 0; j <= probes; j++) {
             double[] w = pathTerms(s, rhoMax * j / probes, aberrated);
             double ph = k * (w[0] + z * w[1]);
             if (j > 0) {
-                total += Math.abs(ph - prev);
+                double step = Math.abs(ph - prev);
+                total += step;
+                if (j < probes) {
+                    fastest = Math.max(fastest, step * probes);
+                }
             }
             prev = ph;
         }
-        return total;
+        return new double[] {total, fastest};
     }
 
     /** @return number of radial samples available (r = 0, dr, 2 dr, ...) */

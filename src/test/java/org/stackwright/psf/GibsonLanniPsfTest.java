@@ -52,7 +52,7 @@ class GibsonLanniPsfTest extends TwoWorkers {
 
     /**
      * The pupil integral against an independent evaluation of the same Gibson-Lanni integral by SciPy's adaptive
-     * quadrature (tools/reference/gibson_lanni_profiles.py): agreement within 1e-3 of the largest intensity.
+     * quadrature (tools/reference/gibson_lanni_profiles.py): agreement within 2e-4 of the largest intensity.
      */
     @Test
     void profilesMatchAdaptiveQuadrature() throws java.io.IOException {
@@ -78,7 +78,7 @@ class GibsonLanniPsfTest extends TwoWorkers {
             for (double[] ref : e.getValue()) {
                 double[] profile = GIBSON_LANNI.radialProfile(s, ref[1], workers);
                 double got = profile[(int) Math.round(ref[0] / dr)];
-                assertEquals(ref[2], got, 1e-3 * largest, e.getKey() + " r " + ref[0] + " z " + ref[1]);
+                assertEquals(ref[2], got, 2e-4 * largest, e.getKey() + " r " + ref[0] + " z " + ref[1]);
             }
         }
     }
