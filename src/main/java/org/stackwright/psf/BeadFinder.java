@@ -108,7 +108,8 @@ final class BeadFinder {
                 }
             }
             if (clipped > 0) {
-                return String.format(Locale.ROOT, "saturated (%d voxels at the saturation level %.6g)", clipped, level);
+                return String.format(Locale.ROOT, "saturated (%d voxel%s next to the peak at the saturation level %.6g)",
+                        clipped, clipped == 1 ? "" : "s", level);
             }
         }
         double nearest = Double.MAX_VALUE;
@@ -162,7 +163,10 @@ final class BeadFinder {
         return new double[] {median, Math.max(1.4826 * sample[sample.length / 2], 1e-12)};
     }
 
-    /** @return the stack maximum when two or more voxels reach it (a clipping level), else NaN */
+    /**
+     * @return the stack maximum when it looks like a clipping level: three or more voxels share it (a flat top),
+     *     or it is a common camera full scale (2^k - 1 for 8, 10, 12, 14 or 16 bits); else NaN
+     */
     static double detectSaturation(float[] d) {
         float max = Float.NEGATIVE_INFINITY;
         for (float v : d) {
@@ -174,6 +178,10 @@ final class BeadFinder {
                 count++;
             }
         }
-        return count >= 2 ? max : Double.NaN;
+        boolean fullScale = false;
+        for (int bits : new int[] {8, 10, 12, 14, 16}) {
+            fullScale |= max == (1 << bits) - 1;
+        }
+        return count >= 3 || fullScale ? max : Double.NaN;
     }
 }
