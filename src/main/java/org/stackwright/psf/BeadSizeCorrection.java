@@ -1,6 +1,7 @@
 package org.stackwright.psf;
 
 import org.stackwright.fft.Convolution;
+import org.stackwright.fft.Convolver;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
 
@@ -8,7 +9,8 @@ import org.stackwright.volume.Volume;
  * Removes the blur of a bead's own size from an averaged bead image. The image of a uniformly fluorescent bead
  * is the PSF convolved with a solid ball of the bead's diameter; the ball (voxel-integrated on 5x5x5 sub-voxels)
  * is used as the blur of a short Richardson-Lucy run (Richardson, JOSA 62(1):55-59, 1972; Lucy, Astronomical
- * Journal 79:745-754, 1974) that starts from the bead image itself. Few iterations are used on purpose: the
+ * Journal 79:745-754, 1974) that starts from the bead image itself, with zero-padded convolutions that do not wrap
+ * around and work buffers made once. Few iterations are used on purpose: the
  * correction is small for sub-resolution beads and more iterations would amplify noise.
  */
 final class BeadSizeCorrection {
@@ -32,22 +34,44 @@ final class BeadSizeCorrection {
      */
     static Volume correct(Volume measured, double diameterUm, Workers workers) {
         Volume ball = ball(measured, diameterUm);
-        Volume estimate = measured.copy();
-        float[] e = estimate.data();
+        int nx = measured.width();
+        int ny = measured.height();
+        int nz = measured.depth();
+        // zero-padded grid large enough that the periodic convolution does not wrap; buffers made once
+        int gx = Convolution.paddedSize(nx, ball.width());
+        int gy = Convolution.paddedSize(ny, ball.height());
+        int gz = Convolution.paddedSize(nz, ball.depth());
+        Convolver blur = new Convolver(ball, gx, gy, gz, workers);
+        float[] estimate = new float[gx * gy * gz];
+        float[] work = new float[estimate.length];
         float[] y = measured.data();
-        for (int it = 0; it < ITERATIONS; it++) {
-            float[] blurred = Convolution.convolve(estimate, ball, workers).data();
-            float[] ratio = new float[e.length];
-            for (int i = 0; i < e.length; i++) {
-                ratio[i] = blurred[i] > 0 ? y[i] / blurred[i] : 0;
-            }
-            float[] back = Convolution.apply(estimate.withData(ratio), ball, Convolution.Boundary.ZERO, true, workers)
-                    .data();
-            for (int i = 0; i < e.length; i++) {
-                e[i] *= back[i];
+        for (int z = 0; z < nz; z++) {
+            for (int r = 0; r < ny; r++) {
+                System.arraycopy(y, measured.index(0, r, z), estimate, (z * gy + r) * gx, nx);
             }
         }
-        return BeadAverager.centreAndNormalise(estimate);
+        for (int it = 0; it < ITERATIONS; it++) {
+            blur.convolve(estimate, work);
+            for (int z = 0; z < gz; z++) {
+                for (int r = 0; r < gy; r++) {
+                    for (int x = 0, g = (z * gy + r) * gx; x < gx; x++, g++) {
+                        boolean inside = x < nx && r < ny && z < nz;
+                        work[g] = inside && work[g] > 0 ? y[measured.index(x, r, z)] / work[g] : 0;
+                    }
+                }
+            }
+            blur.correlate(work, work);
+            for (int g = 0; g < estimate.length; g++) {
+                estimate[g] *= work[g];
+            }
+        }
+        Volume out = Volume.zeros(nx, ny, nz, measured.voxel());
+        for (int z = 0; z < nz; z++) {
+            for (int r = 0; r < ny; r++) {
+                System.arraycopy(estimate, (z * gy + r) * gx, out.data(), out.index(0, r, z), nx);
+            }
+        }
+        return BeadAverager.centreAndNormalise(out);
     }
 
     /** A solid ball of the diameter, voxel-integrated, unit sum, odd size. */
