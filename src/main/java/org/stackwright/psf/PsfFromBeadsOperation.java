@@ -65,6 +65,8 @@ public final class PsfFromBeadsOperation implements Operation {
                     v.number("immersion-index"), stack.voxel(), 1, 1, 1);
             optics.check("widefield");
             SamplingCheck.warnings(stack.voxel(), optics, "widefield", stack.depth() > 1).forEach(ctx::warn);
+        } else if (v.given("na") || v.given("wavelength")) {
+            ctx.warn("sampling not checked: give both na and wavelength to compare the voxel size with the Nyquist limit");
         }
         double saturation = v.number("saturation") > 0 ? v.number("saturation") : Double.NaN;
         ctx.progress(0.1, "finding beads");
