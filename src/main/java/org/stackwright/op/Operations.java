@@ -8,6 +8,9 @@ import org.stackwright.inspect.ResidualsOperation;
 import org.stackwright.repair.FindDefectsOperation;
 import org.stackwright.repair.InpaintOperation;
 import org.stackwright.repair.SeamMaskOperation;
+import org.stackwright.psf.MeasurePsfOperation;
+import org.stackwright.psf.PsfFromBeadsOperation;
+import org.stackwright.psf.PsfOperation;
 import org.stackwright.simulate.SimulateOperation;
 
 /**
@@ -23,6 +26,9 @@ public final class Operations {
     public static List<Operation> all() {
         return List.of(
                 new SimulateOperation(),
+                new PsfOperation(),
+                new PsfFromBeadsOperation(),
+                new MeasurePsfOperation(),
                 new FindDefectsOperation(),
                 new SeamMaskOperation(),
                 new InpaintOperation(),

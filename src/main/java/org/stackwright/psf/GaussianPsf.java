@@ -1,5 +1,6 @@
 package org.stackwright.psf;
 
+import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
 
@@ -9,9 +10,26 @@ import org.stackwright.volume.VoxelSize;
  * models", Applied Optics 46(10):1819-1829, 2007. Fast and smooth, but it has no side lobes and underestimates the
  * axial spread of a real widefield PSF: use it for quick work and simulations, not for quantitative results.
  */
-public final class GaussianPsf {
+public final class GaussianPsf implements PsfModel {
 
-    private GaussianPsf() {
+    /** The model; the static helpers below can also be used directly. */
+    public GaussianPsf() {
+    }
+
+    @Override
+    public String name() {
+        return "gaussian";
+    }
+
+    /**
+     * The Gaussian for the emission wavelength, NA and immersion index of the settings, integrated over each
+     * voxel. Other settings (sample, coverslip, depth, pinhole) are not part of this approximation.
+     */
+    @Override
+    public Volume compute(PsfSettings s, Workers workers) {
+        s.check(name());
+        return sampled(sigmaLateral(s.wavelengthNm(), s.na()), sigmaAxial(s.wavelengthNm(), s.na(), s.immersionIndex()),
+                s.voxel(), s.nx(), s.ny(), s.nz());
     }
 
     /** @return lateral standard deviation in micrometres for emission wavelength (nm) and NA */
