@@ -1,5 +1,7 @@
 package org.stackwright.scijava;
 
+import java.io.File;
+
 import ij.ImagePlus;
 
 import org.scijava.command.Command;
@@ -15,6 +17,9 @@ public final class MeasurePsfCommand extends OperationCommand {
 
     @Parameter(persist = false, required = false, label = "input")
     private ImagePlus input;
+
+    @Parameter(persist = false, required = false, label = "record")
+    private File record;
 
     public MeasurePsfCommand() {
         super("measure-psf");

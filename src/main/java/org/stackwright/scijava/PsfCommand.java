@@ -1,5 +1,7 @@
 package org.stackwright.scijava;
 
+import java.io.File;
+
 import ij.ImagePlus;
 
 import org.scijava.ItemIO;
@@ -35,6 +37,12 @@ public final class PsfCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "coverslip-index")
     private Double coverslipIndex;
 
+    @Parameter(persist = false, required = false, label = "coverslip-thickness")
+    private Double coverslipThickness;
+
+    @Parameter(persist = false, required = false, label = "coverslip-design-thickness")
+    private Double coverslipDesignThickness;
+
     @Parameter(persist = false, required = false, label = "depth")
     private Double depth;
 
@@ -52,6 +60,9 @@ public final class PsfCommand extends OperationCommand {
 
     @Parameter(type = ItemIO.OUTPUT, label = "output")
     private ImagePlus output;
+
+    @Parameter(persist = false, required = false, label = "record")
+    private File record;
 
     public PsfCommand() {
         super("psf");

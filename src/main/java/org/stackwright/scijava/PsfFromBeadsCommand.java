@@ -1,5 +1,7 @@
 package org.stackwright.scijava;
 
+import java.io.File;
+
 import ij.ImagePlus;
 
 import org.scijava.ItemIO;
@@ -23,8 +25,23 @@ public final class PsfFromBeadsCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "bead-diameter")
     private Double beadDiameter;
 
+    @Parameter(persist = false, required = false, label = "saturation")
+    private Double saturation;
+
+    @Parameter(persist = false, required = false, label = "na")
+    private Double na;
+
+    @Parameter(persist = false, required = false, label = "wavelength")
+    private Double wavelength;
+
+    @Parameter(persist = false, required = false, label = "immersion-index")
+    private Double immersionIndex;
+
     @Parameter(type = ItemIO.OUTPUT, label = "output")
     private ImagePlus output;
+
+    @Parameter(persist = false, required = false, label = "record")
+    private File record;
 
     public PsfFromBeadsCommand() {
         super("psf-from-beads");
