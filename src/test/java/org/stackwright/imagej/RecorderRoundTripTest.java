@@ -173,7 +173,12 @@ class RecorderRoundTripTest {
                     case OUTPUT_FILE -> ((TextField) texts.next()).setText("/tmp/run record " + p.key() + ".json");
                     case NUMBER -> ((TextField) texts.next()).setText(otherNumber(p));
                     case INTEGER -> ((TextField) texts.next()).setText(otherInteger(p));
-                    default -> texts.next();
+                    default -> {
+                        TextField t = (TextField) texts.next();
+                        if (p.required() && p.defaultValue() == null) {
+                            t.setText(exampleFromHelp(p));
+                        }
+                    }
                 }
             }
             if (boxes.hasNext()) {
@@ -196,6 +201,15 @@ class RecorderRoundTripTest {
             Button ok = gd.getButtons()[0];
             gd.actionPerformed(new ActionEvent(ok, ActionEvent.ACTION_PERFORMED, ok.getLabel()));
         });
+    }
+
+    /** A required text setting without a default gets the example its help gives ("... (e.g. 65x65x41)"). */
+    static String exampleFromHelp(Param p) {
+        java.util.regex.Matcher m = java.util.regex.Pattern.compile("e\\.g\\. ([^ ),;]+)").matcher(p.help());
+        if (!m.find()) {
+            throw new AssertionError(p.key() + " is required without a default; its help should give an example (e.g. ...)");
+        }
+        return m.group(1);
     }
 
     private static String other(List<String> choices, String def) {
