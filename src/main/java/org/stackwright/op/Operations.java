@@ -4,6 +4,7 @@ import java.util.List;
 import java.util.Optional;
 
 import org.stackwright.simulate.SimulateOperation;
+import org.stackwright.solve.DeconvolveOperation;
 
 /**
  * The list of all operations: the one place a new operation is registered. Every door (command line, ImageJ
@@ -17,7 +18,8 @@ public final class Operations {
     /** @return every operation, in the order help lists them */
     public static List<Operation> all() {
         return List.of(
-                new SimulateOperation());
+                new SimulateOperation(),
+                new DeconvolveOperation());
     }
 
     /** @return the operation with this command-line name */
