@@ -12,6 +12,7 @@ import java.util.Locale;
 import org.stackwright.inspect.Pictures;
 import org.stackwright.op.Json;
 import org.stackwright.op.RunContext;
+import org.stackwright.solve.ConvergencePlot;
 import org.stackwright.solve.Deconvolution;
 import org.stackwright.solve.DeconvolutionSettings;
 import org.stackwright.solve.IterationListener;
@@ -81,6 +82,8 @@ final class DemoCommand {
             Path png = dir.resolve("demo-side-by-side.png");
             OutputFiles.writePng(Pictures.sideBySide(List.of(data, o.result(), truth),
                     List.of("camera data", "deconvolved", "invented truth"), "demo"), png, true);
+            Path curve = dir.resolve("demo-convergence.png");
+            OutputFiles.writePng(ConvergencePlot.of(o.solution(), "mean KL divergence per pixel", 0.5), curve, true);
             double bg = ((Number) ((java.util.Map<?, ?>) o.record().get("settings")).get("background_adu")).doubleValue();
             out.println(String.format(Locale.ROOT, "deconvolved %s (accelerated Richardson-Lucy): %d iterations, "
                     + "%.2f s; stopped by %s", data.shape(), o.solution().iterations(), o.solution().seconds(),
@@ -91,6 +94,7 @@ final class DemoCommand {
             out.println("wrote " + tif);
             out.println("wrote " + json);
             out.println("wrote " + png);
+            out.println("wrote " + curve);
             return Main.OK;
         } catch (IllegalArgumentException e) {
             err.println("stackwright demo: " + e.getMessage());

@@ -53,14 +53,10 @@ public final class WienerFilter implements Solver {
         int nz = p.gridDepth();
         float[] y = p.data();
         float b = p.background();
-        int w = nx;
-        int h = ny;
-        int d = nz;
-        // the data window: the corner box of pixels that hold data or lie inside the image
-        int[] box = dataBox(p);
-        w = box[0];
-        h = box[1];
-        d = box[2];
+        // the image occupies the corner [0, w) x [0, h) x [0, d) of the grid
+        int w = p.imageWidth();
+        int h = p.imageHeight();
+        int d = p.imageDepth();
         double sum = 0;
         int count = 0;
         for (float v : y) {
@@ -95,10 +91,6 @@ public final class WienerFilter implements Solver {
             out[i] = Math.max(g[i], 0f);
         }
         return out;
-    }
-
-    private static int[] dataBox(DeconvolutionProblem p) {
-        return new int[] {p.imageWidth(), p.imageHeight(), p.imageDepth()};
     }
 
     /** Mirror index into [0, n) about the edge voxels' outer faces (period 2n). */
