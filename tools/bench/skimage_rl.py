@@ -3,7 +3,7 @@
 (org.stackwright.solve.DeconvolutionBenchmark calls this script; it is not needed by the tests).
 
   skimage_rl.py periter IMAGE.raw D H W PSF.raw PD PH PW ITER
-      prints "periter SECONDS": (time of ITER+1 iterations - time of 1 iteration) / ITER
+      prints "periter WALL CPU": (time of ITER+1 iterations - time of 1 iteration) / ITER, wall and CPU seconds
   skimage_rl.py best IMAGE.raw D H W PSF.raw PD PH PW TRUTH.raw K1,K2,...
       runs num_iter = K for each K, prints "run K SECONDS NRMSE" per K
 Raw files: little-endian float32, x fastest. NRMSE = ||x - truth|| / ||truth||.
@@ -27,12 +27,12 @@ def main():
     print("skimage", skimage.__version__, flush=True)
     if mode == "periter":
         n = int(sys.argv[10])
-        t0 = time.perf_counter()
+        t0, c0 = time.perf_counter(), time.process_time()
         richardson_lucy(img, psf, num_iter=1, clip=False)
-        t1 = time.perf_counter()
+        t1, c1 = time.perf_counter(), time.process_time()
         richardson_lucy(img, psf, num_iter=n + 1, clip=False)
-        t2 = time.perf_counter()
-        print("periter %.6f" % (((t2 - t1) - (t1 - t0)) / n), flush=True)
+        t2, c2 = time.perf_counter(), time.process_time()
+        print("periter %.6f %.6f" % (((t2 - t1) - (t1 - t0)) / n, ((c2 - c1) - (c1 - c0)) / n), flush=True)
     else:
         truth = load(sys.argv[10], img.shape).astype(np.float64)
         for k in (int(v) for v in sys.argv[11].split(",")):

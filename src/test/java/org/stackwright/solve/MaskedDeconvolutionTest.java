@@ -40,6 +40,9 @@ class MaskedDeconvolutionTest {
         try (Workers w = new Workers(2)) {
             double[] masked = errors(damaged, mask, near, sim.truth(), w);
             double[] unmasked = errors(damaged, null, near, sim.truth(), w);
+            if (System.getenv("STACKWRIGHT_PRINT") != null) {
+                System.out.println("masked near " + masked[0] + " elsewhere " + masked[1] + "; unmasked near " + unmasked[0] + " elsewhere " + unmasked[1]);
+            }
             assertTrue(masked[0] <= 1.5 * masked[1], "masked: NRMSE near defects " + masked[0] + ", elsewhere " + masked[1]);
             assertTrue(unmasked[0] >= 2 * masked[0], "unmasked: NRMSE near defects " + unmasked[0]
                     + " should be clearly worse than masked " + masked[0]);

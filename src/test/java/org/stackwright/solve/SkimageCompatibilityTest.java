@@ -72,6 +72,9 @@ class SkimageCompatibilityTest {
                 err = Math.max(err, Math.abs(ours[i] - expected[i]));
                 scale = Math.max(scale, Math.abs(expected[i]));
             }
+            if (System.getenv("STACKWRIGHT_PRINT") != null) {
+                System.out.println(name + ": max relative difference " + err / scale);
+            }
             assertTrue(err / scale <= 1e-4, name + ": max relative difference " + err / scale);
         }
     }
