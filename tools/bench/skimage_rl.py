@@ -5,7 +5,7 @@
   skimage_rl.py periter IMAGE.raw D H W PSF.raw PD PH PW ITER
       prints "periter WALL CPU": (time of ITER+1 iterations - time of 1 iteration) / ITER, wall and CPU seconds
   skimage_rl.py best IMAGE.raw D H W PSF.raw PD PH PW TRUTH.raw K1,K2,...
-      runs num_iter = K for each K, prints "run K SECONDS NRMSE" per K
+      runs num_iter = K for each K, prints "run K WALL NRMSE CPU" per K (seconds)
 Raw files: little-endian float32, x fastest. NRMSE = ||x - truth|| / ||truth||.
 """
 import sys
@@ -36,11 +36,11 @@ def main():
     else:
         truth = load(sys.argv[10], img.shape).astype(np.float64)
         for k in (int(v) for v in sys.argv[11].split(",")):
-            t0 = time.perf_counter()
+            t0, c0 = time.perf_counter(), time.process_time()
             x = richardson_lucy(img, psf, num_iter=k, clip=False)
-            t = time.perf_counter() - t0
+            t, c = time.perf_counter() - t0, time.process_time() - c0
             e = np.sqrt(np.sum((x - truth) ** 2) / np.sum(truth ** 2))
-            print("run %d %.6f %.6f" % (k, t, e), flush=True)
+            print("run %d %.6f %.6f %.6f" % (k, t, e, c), flush=True)
 
 
 if __name__ == "__main__":
