@@ -27,7 +27,8 @@ import org.stackwright.volume.VoxelSize;
  * {@link #compatible} reproduces the textbook variant of a widely used library (zero-padded "same" convolution,
  * object only on the data grid, no normalisation, start 0.5).
  *
- * <p>Internally, a pixel without likelihood is stored as y = -1 (data are never negative after the clamp at 0).
+ * <p>Internally the data are held on the image window only (not on the padded grid, which saves memory), and a
+ * pixel without likelihood is stored as y = -1 (data are never negative after the clamp at 0).
  */
 public final class DeconvolutionProblem {
 
@@ -84,6 +85,7 @@ public final class DeconvolutionProblem {
     private final VoxelSize voxel;
     private final Boundary boundary;
     private final Camera camera;
+    /** data on the image window (w x h x d), photo-electrons, NO_DATA where a pixel carries no likelihood */
     private final float[] y;
     private final float[] norm;
     private final float background;
@@ -129,25 +131,19 @@ public final class DeconvolutionProblem {
         Volume.checkSize(nx, ny, nz);
         int n = nx * ny * nz;
         this.blur = new BlurOperator(psf, nx, ny, nz, workers);
-        this.y = new float[n];
-        java.util.Arrays.fill(y, NO_DATA);
+        this.y = new float[w * h * d];
         double s = (camera.readNoise() / camera.gain()) * (camera.readNoise() / camera.gain());
         this.background = (float) (camera.background() / camera.gain() + s);
         float[] src = data.data();
         int count = 0;
-        for (int z = 0; z < d; z++) {
-            for (int yy = 0; yy < h; yy++) {
-                int row = (z * ny + yy) * nx;
-                int srow = (z * h + yy) * w;
-                for (int x = 0; x < w; x++) {
-                    float v = src[srow + x];
-                    if ((mask != null && mask[srow + x] != 0) || !Float.isFinite(v)) {
-                        continue;
-                    }
-                    y[row + x] = (float) Math.max(0, (v - camera.offset()) / camera.gain() + s);
-                    count++;
-                }
+        for (int i = 0; i < y.length; i++) {
+            float v = src[i];
+            if ((mask != null && mask[i] != 0) || !Float.isFinite(v)) {
+                y[i] = NO_DATA;
+                continue;
             }
+            y[i] = (float) Math.max(0, (v - camera.offset()) / camera.gain() + s);
+            count++;
         }
         if (count == 0) {
             throw new IllegalArgumentException("mask covers every pixel of the image " + data.shape()
@@ -161,8 +157,14 @@ public final class DeconvolutionProblem {
             }
             this.start = start;
         } else {
-            for (int i = 0; i < n; i++) {
-                norm[i] = y[i] >= 0 ? 1f : 0f;
+            for (int z = 0; z < d; z++) {
+                for (int yy = 0; yy < h; yy++) {
+                    int row = (z * ny + yy) * nx;
+                    int wrow = (z * h + yy) * w;
+                    for (int x = 0; x < w; x++) {
+                        norm[row + x] = y[wrow + x] >= 0 ? 1f : 0f;
+                    }
+                }
             }
             blur.applyAdjoint(norm, norm);
             float max = 0;
@@ -195,7 +197,7 @@ public final class DeconvolutionProblem {
 
     /** @return number of voxels of the object grid */
     public int gridLength() {
-        return y.length;
+        return norm.length;
     }
 
     public int gridWidth() {
@@ -256,9 +258,27 @@ public final class DeconvolutionProblem {
         return background;
     }
 
-    /** @return the data on the grid in photo-electrons, -1 where a pixel carries no likelihood; do not modify */
-    public float[] data() {
+    /**
+     * @return the data on the image window (w x h x d, x fastest) in photo-electrons, -1 where a pixel carries no
+     *     likelihood; shared, do not modify
+     */
+    public float[] dataWindow() {
         return y;
+    }
+
+    /**
+     * @return a new grid-sized array with the data in the image window and -1 (no likelihood) elsewhere, for
+     *     solvers that loop over the grid
+     */
+    public float[] dataOnGrid() {
+        float[] g = new float[gridLength()];
+        java.util.Arrays.fill(g, NO_DATA);
+        for (int z = 0; z < d; z++) {
+            for (int yy = 0; yy < h; yy++) {
+                System.arraycopy(y, (z * h + yy) * w, g, (z * ny + yy) * nx, w);
+            }
+        }
+        return g;
     }
 
     /** @return H^T w on the grid, 0 where the object is held at zero; do not modify */
@@ -301,21 +321,7 @@ public final class DeconvolutionProblem {
      * @return sum over trusted pixels of the Kullback-Leibler divergence y ln(y / m) - y + m with m = H x + b
      */
     public double ratioAndFit(float[] mu) {
-        final float b = background;
-        return workers.sum(mu.length, (from, to) -> {
-            double kl = 0;
-            for (int i = from; i < to; i++) {
-                float yi = y[i];
-                if (yi < 0) {
-                    mu[i] = 0f;
-                    continue;
-                }
-                double m = Math.max(mu[i] + b, TINY);
-                mu[i] = (float) (yi / m);
-                kl += yi > 0 ? yi * Math.log(yi / m) - yi + m : m;
-            }
-            return kl;
-        });
+        return pass(mu, true);
     }
 
     /**
@@ -323,16 +329,42 @@ public final class DeconvolutionProblem {
      * @return the sum over trusted pixels of the Kullback-Leibler divergence of y from H x + b
      */
     public double fit(float[] mu) {
+        return pass(mu, false);
+    }
+
+    /** One parallel pass over the grid rows; rows and columns outside the image window carry no likelihood. */
+    private double pass(float[] mu, boolean ratio) {
         final float b = background;
-        return workers.sum(mu.length, (from, to) -> {
+        return workers.sum(nz * ny, (from, to) -> {
             double kl = 0;
-            for (int i = from; i < to; i++) {
-                float yi = y[i];
-                if (yi < 0) {
+            for (int r = from; r < to; r++) {
+                int z = r / ny;
+                int yy = r % ny;
+                int g = r * nx;
+                if (z >= d || yy >= h) {
+                    if (ratio) {
+                        java.util.Arrays.fill(mu, g, g + nx, 0f);
+                    }
                     continue;
                 }
-                double m = Math.max(mu[i] + b, TINY);
-                kl += yi > 0 ? yi * Math.log(yi / m) - yi + m : m;
+                int wrow = (z * h + yy) * w;
+                for (int x = 0; x < w; x++) {
+                    float yi = y[wrow + x];
+                    if (yi < 0) {
+                        if (ratio) {
+                            mu[g + x] = 0f;
+                        }
+                        continue;
+                    }
+                    double m = Math.max(mu[g + x] + b, TINY);
+                    if (ratio) {
+                        mu[g + x] = (float) (yi / m);
+                    }
+                    kl += yi > 0 ? yi * Math.log(yi / m) - yi + m : m;
+                }
+                if (ratio && w < nx) {
+                    java.util.Arrays.fill(mu, g + w, g + nx, 0f);
+                }
             }
             return kl;
         });

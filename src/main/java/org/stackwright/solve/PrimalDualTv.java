@@ -77,7 +77,7 @@ public final class PrimalDualTv implements Solver {
 
     @Override
     public double gridArrays() {
-        return 8;
+        return 9;
     }
 
     @Override
@@ -86,7 +86,7 @@ public final class PrimalDualTv implements Solver {
         BlurOperator h = p.blur();
         Workers workers = p.workers();
         float[] norm = p.normalisation();
-        float[] y = p.data();
+        float[] y = p.dataOnGrid();
         float b = p.background();
         TotalVariation tv = new TotalVariation(p.gridWidth(), p.gridHeight(), p.gridDepth(), p.zWeight(), workers);
         float[] x = new float[n];

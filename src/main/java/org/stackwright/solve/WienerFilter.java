@@ -51,7 +51,7 @@ public final class WienerFilter implements Solver {
         int nx = p.gridWidth();
         int ny = p.gridHeight();
         int nz = p.gridDepth();
-        float[] y = p.data();
+        float[] y = p.dataWindow();
         float b = p.background();
         // the image occupies the corner [0, w) x [0, h) x [0, d) of the grid
         int w = p.imageWidth();
@@ -72,7 +72,7 @@ public final class WienerFilter implements Solver {
             for (int yy = 0; yy < ny; yy++) {
                 int sy = mirror(yy, h);
                 for (int x = 0; x < nx; x++) {
-                    float v = y[(sz * ny + sy) * nx + mirror(x, w)];
+                    float v = y[(sz * h + sy) * w + mirror(x, w)];
                     g[(z * ny + yy) * nx + x] = v >= 0 ? v - b : mean;
                 }
             }
