@@ -64,6 +64,11 @@ public final class DeconvolveOperation implements Operation {
         DeconvolutionSettings s = settings(v);
         ImagePlus in = v.image("input");
         ImagePlus psfImp = v.image("psf");
+        if (in.getNChannels() > 1 || in.getNFrames() > 1) {
+            throw new IllegalArgumentException("input '" + in.getTitle() + "' has " + in.getNChannels() + " channels and "
+                    + in.getNFrames() + " time points; give one channel and one time point (each channel needs its own "
+                    + "PSF: split the hyperstack first)");
+        }
         Volume data = ImagePlusAdapter.toVolume(in);
         Volume psf = ImagePlusAdapter.toVolume(psfImp);
         if (!ImagePlusAdapter.isCalibrated(psfImp)) {

@@ -132,7 +132,7 @@ public final class DeconvolutionBenchmark {
                 Path ps = tmp.resolve("bench-psf.raw");
                 writeRaw(data.data(), img);
                 writeRaw(psf.data(), ps);
-                List<String> out = runPython("periter", img, size, ps, psfSize, "1");
+                List<String> out = runPython("periter", img, size, ps, psfSize, Integer.toString(reps));
                 for (String line : out) {
                     if (line.startsWith("periter")) {
                         double theirs = Double.parseDouble(line.split(" ")[1]);
