@@ -44,7 +44,7 @@ public final class PrimalDualTv implements Solver {
     /** Safety bound on x, in units of the brightest data value; never reached by a sensible estimate. */
     private static final double BOX = 1000;
     /** Primal / dual step balance in units of the mean signal (chosen by trial on invented specimens). */
-    static double STEP_BALANCE = 10;
+    private static final double STEP_BALANCE = 10;
 
     private final Stopping stopping;
     private final double lambda;
