@@ -87,7 +87,7 @@ public final class DeconvolveOperation implements Operation {
             r.record(e.getKey(), e.getValue());
         }
         double[] hist = out.solution().objective();
-        r.line(String.format(Locale.ROOT, "deconvolved %s with %s: %d iterations, %.2f s; stopped by %s",
+        r.line(String.format(Locale.ROOT, "deconvolved %s with %s: %d iteration(s), %.2f s; stopped by %s",
                 data.shape(), s.method(), out.solution().iterations(), out.solution().seconds(), out.solution().stopReason()));
         Map<String, Object> row = new LinkedHashMap<>();
         row.put("method", s.method());
