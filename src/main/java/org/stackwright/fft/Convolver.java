@@ -102,6 +102,34 @@ public final class Convolver {
         return otf[0];
     }
 
+    /**
+     * One-step Tikhonov-regularised inverse filter (a Wiener filter with a flat noise-to-signal ratio):
+     * out = F^-1[ conj(K) F(in) / (|K|^2 + lambda) ].
+     *
+     * @param in grid-sized input, not modified
+     * @param out grid-sized output, overwritten (may be the same array as in)
+     * @param lambda regularisation, positive
+     */
+    public void tikhonov(float[] in, float[] out, double lambda) {
+        fft.forward(in, work);
+        int n = otf.length / 2;
+        final float lam = (float) lambda;
+        workers.forRange(n, (from, to) -> {
+            float[] w = work;
+            float[] h = otf;
+            for (int i = 2 * from, e = 2 * to; i < e; i += 2) {
+                float a = w[i];
+                float b = w[i + 1];
+                float c = h[i];
+                float d = -h[i + 1];
+                float s = 1f / (c * c + d * d + lam);
+                w[i] = (a * c - b * d) * s;
+                w[i + 1] = (a * d + b * c) * s;
+            }
+        });
+        fft.inverse(work, out);
+    }
+
     private void apply(float[] in, float[] out, boolean conjugate) {
         fft.forward(in, work);
         int n = otf.length / 2;

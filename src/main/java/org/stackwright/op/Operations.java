@@ -12,6 +12,7 @@ import org.stackwright.psf.MeasurePsfOperation;
 import org.stackwright.psf.PsfFromBeadsOperation;
 import org.stackwright.psf.PsfOperation;
 import org.stackwright.simulate.SimulateOperation;
+import org.stackwright.solve.DeconvolveOperation;
 
 /**
  * The list of all operations: the one place a new operation is registered. Every door (command line, ImageJ
@@ -33,7 +34,8 @@ public final class Operations {
                 new SeamMaskOperation(),
                 new InpaintOperation(),
                 new ResidualsOperation(),
-                new CompareOperation());
+                new CompareOperation(),
+                new DeconvolveOperation());
     }
 
     /** @return the operation with this command-line name */

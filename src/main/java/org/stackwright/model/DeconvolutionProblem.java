@@ -1,0 +1,410 @@
+package org.stackwright.model;
+
+import org.stackwright.fft.Convolution;
+import org.stackwright.parallel.Workers;
+import org.stackwright.volume.Volume;
+import org.stackwright.volume.VoxelSize;
+
+/**
+ * One deconvolution problem in the form every solver uses: data y on a grid, blur H on that grid, weights w
+ * (1 = trusted data pixel, 0 = no likelihood) and a background b, with the camera statistics turned into a
+ * Poisson model.
+ *
+ * <p><b>Camera units.</b> Camera data y_adu = gain * Poisson(x) + offset + N(0, readNoise^2) are turned into the
+ * shifted-Poisson form of Snyder, Hammoud &amp; White (JOSA A 10(5), 1993): y = (y_adu - offset) / gain + s with
+ * s = (readNoise / gain)^2, modelled as Poisson(Hx + b) with b = background / gain + s. The data are never
+ * background-subtracted and clipped beforehand; the object x is in photo-electrons and {@link #toVolume} returns
+ * it in ADU above the offset (x * gain).
+ *
+ * <p><b>Boundaries and damaged pixels, one mechanism.</b> With {@link Boundary#EXTENDED} the object lives on a grid
+ * of at least data + PSF - 1 voxels per axis (rounded up to a fast FFT size); the data occupy the corner
+ * [0, w) x [0, h) x [0, d) and the periodic blur on the larger grid equals the linear blur of an object that reaches
+ * past the image edges. The padding and masked pixels (dead, saturated, seams) get weight 0, and the
+ * normalisation of the multiplicative updates is H^T w instead of H^T 1 (Bertero &amp; Boccacci, "A simple method
+ * for the reduction of boundary effects in the Richardson-Lucy approach to image deconvolution", A&amp;A 437, 2005).
+ * Object voxels where H^T w is below 1e-3 of its maximum see (almost) no data and are held at zero (common
+ * practice). {@link Boundary#PERIODIC} uses the data grid itself (the object wraps around).
+ * {@link #compatible} reproduces the textbook variant of a widely used library (zero-padded "same" convolution,
+ * object only on the data grid, no normalisation, start 0.5).
+ *
+ * <p>Internally the data are held on the image window only (not on the padded grid, which saves memory), and a
+ * pixel without likelihood is stored as y = -1 (data are never negative after the clamp at 0).
+ */
+public final class DeconvolutionProblem {
+
+    /** How the image edges are treated. */
+    public enum Boundary {
+        /** object on a larger grid, padding carries no likelihood (non-circular) */
+        EXTENDED,
+        /** object and data on the same grid, blur wraps around */
+        PERIODIC,
+        /** object on the data grid only, zero outside, no normalisation: compatibility with a reference library */
+        ZERO_SAME
+    }
+
+    /**
+     * Camera and background, all in ADU.
+     *
+     * @param offset camera offset (bias)
+     * @param background background above the offset (light that is not the object), at least 0
+     * @param gain ADU per photo-electron, positive
+     * @param readNoise read noise standard deviation, at least 0
+     */
+    public record Camera(double offset, double background, double gain, double readNoise) {
+        public Camera {
+            if (!(gain > 0) || !Double.isFinite(gain)) {
+                throw new IllegalArgumentException("gain = " + gain + " is not allowed; give a positive number of ADU per photo-electron");
+            }
+            if (!(readNoise >= 0) || !Double.isFinite(readNoise)) {
+                throw new IllegalArgumentException("read-noise = " + readNoise + " is not allowed; give 0 or more ADU");
+            }
+            if (!(background >= 0) || !Double.isFinite(background)) {
+                throw new IllegalArgumentException("background = " + background + " is not allowed; give 0 or more ADU above the offset");
+            }
+            if (!Double.isFinite(offset)) {
+                throw new IllegalArgumentException("offset = " + offset + " is not a finite number of ADU");
+            }
+        }
+
+        /** Photon-counting data: no offset, no background, gain 1, no read noise. */
+        public static Camera photonCounting() {
+            return new Camera(0, 0, 1, 0);
+        }
+    }
+
+    static final float NO_DATA = -1f;
+    private static final double SUPPORT_CUTOFF = 1e-3;
+    private static final double TINY = 1e-12;
+
+    private final int w;
+    private final int h;
+    private final int d;
+    private final int nx;
+    private final int ny;
+    private final int nz;
+    private final VoxelSize voxel;
+    private final Boundary boundary;
+    private final Camera camera;
+    /** data on the image window (w x h x d), photo-electrons, NO_DATA where a pixel carries no likelihood */
+    private final float[] y;
+    private final float[] norm;
+    private final float background;
+    private final BlurOperator blur;
+    private final Workers workers;
+    private final int trusted;
+    private final float start;
+
+    /**
+     * @param data camera data (ADU), not modified; non-finite pixels get no likelihood
+     * @param psf the PSF at the data's voxel size (odd sizes, unit sum: see {@code solve.PsfCheck}); not modified
+     * @param mask pixels that carry no likelihood (nonzero = untrusted), one per data voxel, or null
+     * @param boundary how the edges are treated
+     * @param camera offset, background, gain and read noise
+     * @param workers the threads (not closed here)
+     */
+    public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera, Workers workers) {
+        this(data, psf, mask, boundary, camera, workers, Float.NaN);
+    }
+
+    private DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
+            Workers workers, float start) {
+        if (mask != null && mask.length != data.size()) {
+            throw new IllegalArgumentException("mask has " + mask.length + " pixels but the image " + data.shape()
+                    + " has " + data.size() + "; give a mask of the same size");
+        }
+        this.w = data.width();
+        this.h = data.height();
+        this.d = data.depth();
+        this.voxel = data.voxel();
+        this.boundary = boundary;
+        this.camera = camera;
+        this.workers = workers;
+        if (boundary == Boundary.PERIODIC) {
+            nx = w;
+            ny = h;
+            nz = d;
+        } else {
+            nx = Convolution.paddedSize(w, psf.width());
+            ny = Convolution.paddedSize(h, psf.height());
+            nz = Convolution.paddedSize(d, psf.depth());
+        }
+        Volume.checkSize(nx, ny, nz);
+        int n = nx * ny * nz;
+        this.blur = new BlurOperator(psf, nx, ny, nz, workers);
+        this.y = new float[w * h * d];
+        double s = (camera.readNoise() / camera.gain()) * (camera.readNoise() / camera.gain());
+        this.background = (float) (camera.background() / camera.gain() + s);
+        float[] src = data.data();
+        int count = 0;
+        for (int i = 0; i < y.length; i++) {
+            float v = src[i];
+            if ((mask != null && mask[i] != 0) || !Float.isFinite(v)) {
+                y[i] = NO_DATA;
+                continue;
+            }
+            y[i] = (float) Math.max(0, (v - camera.offset()) / camera.gain() + s);
+            count++;
+        }
+        if (count == 0) {
+            throw new IllegalArgumentException("mask covers every pixel of the image " + data.shape()
+                    + ": nothing is left to deconvolve");
+        }
+        this.trusted = count;
+        this.norm = new float[n];
+        if (boundary == Boundary.ZERO_SAME) {
+            for (int i = 0; i < n; i++) {
+                norm[i] = inWindow(i) ? 1f : 0f;
+            }
+            this.start = start;
+        } else {
+            for (int z = 0; z < d; z++) {
+                for (int yy = 0; yy < h; yy++) {
+                    int row = (z * ny + yy) * nx;
+                    int wrow = (z * h + yy) * w;
+                    for (int x = 0; x < w; x++) {
+                        norm[row + x] = y[wrow + x] >= 0 ? 1f : 0f;
+                    }
+                }
+            }
+            blur.applyAdjoint(norm, norm);
+            float max = 0;
+            for (float v : norm) {
+                max = Math.max(max, v);
+            }
+            float cut = (float) (SUPPORT_CUTOFF * max);
+            for (int i = 0; i < n; i++) {
+                if (norm[i] < cut) {
+                    norm[i] = 0;
+                }
+            }
+            this.start = start;
+        }
+    }
+
+    /**
+     * The compatibility problem: object only on the data grid and zero outside, zero-padded "same" convolution,
+     * no normalisation (H^T 1 taken as 1), no background, start value 0.5 everywhere.
+     */
+    public static DeconvolutionProblem compatible(Volume data, Volume psf, Workers workers) {
+        return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), workers, 0.5f);
+    }
+
+    private boolean inWindow(int i) {
+        int x = i % nx;
+        int r = i / nx;
+        return x < w && r % ny < h && r / ny < d;
+    }
+
+    /** @return number of voxels of the object grid */
+    public int gridLength() {
+        return norm.length;
+    }
+
+    public int gridWidth() {
+        return nx;
+    }
+
+    public int gridHeight() {
+        return ny;
+    }
+
+    public int gridDepth() {
+        return nz;
+    }
+
+    /** @return the image width (data window) */
+    public int imageWidth() {
+        return w;
+    }
+
+    /** @return the image height */
+    public int imageHeight() {
+        return h;
+    }
+
+    /** @return the image depth */
+    public int imageDepth() {
+        return d;
+    }
+
+    public VoxelSize voxel() {
+        return voxel;
+    }
+
+    public Boundary boundary() {
+        return boundary;
+    }
+
+    public Camera camera() {
+        return camera;
+    }
+
+    public Workers workers() {
+        return workers;
+    }
+
+    /** @return the blur H on the object grid */
+    public BlurOperator blur() {
+        return blur;
+    }
+
+    /** @return number of pixels that carry likelihood */
+    public int trustedPixels() {
+        return trusted;
+    }
+
+    /** @return the background b in photo-electrons (including the read-noise shift) */
+    public float background() {
+        return background;
+    }
+
+    /**
+     * @return the data on the image window (w x h x d, x fastest) in photo-electrons, -1 where a pixel carries no
+     *     likelihood; shared, do not modify
+     */
+    public float[] dataWindow() {
+        return y;
+    }
+
+    /**
+     * @return a new grid-sized array with the data in the image window and -1 (no likelihood) elsewhere, for
+     *     solvers that loop over the grid
+     */
+    public float[] dataOnGrid() {
+        float[] g = new float[gridLength()];
+        java.util.Arrays.fill(g, NO_DATA);
+        for (int z = 0; z < d; z++) {
+            for (int yy = 0; yy < h; yy++) {
+                System.arraycopy(y, (z * h + yy) * w, g, (z * ny + yy) * nx, w);
+            }
+        }
+        return g;
+    }
+
+    /** @return H^T w on the grid, 0 where the object is held at zero; do not modify */
+    public float[] normalisation() {
+        return norm;
+    }
+
+    /** @return weight of the z differences in total variation: voxel width / voxel depth (anisotropy) */
+    public double zWeight() {
+        return voxel.x() / voxel.z();
+    }
+
+    /**
+     * Writes the start estimate: 0.5 in compatibility mode, else the mean of (y - b) over trusted pixels
+     * (at least 1e-3 photo-electrons) wherever the object is not held at zero.
+     *
+     * @param x grid-sized, overwritten
+     */
+    public void initialEstimate(float[] x) {
+        float v = start;
+        if (Float.isNaN(v)) {
+            double s = 0;
+            for (float yi : y) {
+                if (yi >= 0) {
+                    s += yi - background;
+                }
+            }
+            v = (float) Math.max(s / trusted, 1e-3);
+        }
+        for (int i = 0; i < x.length; i++) {
+            x[i] = norm[i] > 0 ? v : 0f;
+        }
+    }
+
+    /**
+     * The Richardson-Lucy ratio, fused with the data fit: on entry mu holds H x; on exit it holds
+     * w y / (H x + b) (0 where a pixel carries no likelihood).
+     *
+     * @param mu grid-sized, modified
+     * @return sum over trusted pixels of the Kullback-Leibler divergence y ln(y / m) - y + m with m = H x + b
+     */
+    public double ratioAndFit(float[] mu) {
+        return pass(mu, true);
+    }
+
+    /**
+     * @param mu H x on the grid, not modified
+     * @return the sum over trusted pixels of the Kullback-Leibler divergence of y from H x + b
+     */
+    public double fit(float[] mu) {
+        return pass(mu, false);
+    }
+
+    /** One parallel pass over the grid rows; rows and columns outside the image window carry no likelihood. */
+    private double pass(float[] mu, boolean ratio) {
+        final float b = background;
+        return workers.sum(nz * ny, (from, to) -> {
+            double kl = 0;
+            for (int r = from; r < to; r++) {
+                int z = r / ny;
+                int yy = r % ny;
+                int g = r * nx;
+                if (z >= d || yy >= h) {
+                    if (ratio) {
+                        java.util.Arrays.fill(mu, g, g + nx, 0f);
+                    }
+                    continue;
+                }
+                int wrow = (z * h + yy) * w;
+                for (int x = 0; x < w; x++) {
+                    float yi = y[wrow + x];
+                    if (yi < 0) {
+                        if (ratio) {
+                            mu[g + x] = 0f;
+                        }
+                        continue;
+                    }
+                    double m = Math.max(mu[g + x] + b, TINY);
+                    if (ratio) {
+                        mu[g + x] = (float) (yi / m);
+                    }
+                    kl += yi > 0 ? yi * Math.log(yi / m) - yi + m : m;
+                }
+                if (ratio && w < nx) {
+                    java.util.Arrays.fill(mu, g + w, g + nx, 0f);
+                }
+            }
+            return kl;
+        });
+    }
+
+    /**
+     * The data fit of an estimate, per trusted pixel (costs one blur).
+     *
+     * @param x grid-sized estimate, not modified
+     * @param work grid-sized, overwritten
+     * @return mean Kullback-Leibler divergence per trusted pixel
+     */
+    public double meanFit(float[] x, float[] work) {
+        blur.apply(x, work);
+        return fit(work) / trusted;
+    }
+
+    /**
+     * The expected mean data fit when the model equals the truth: 1/2 per pixel for Poisson data with counts
+     * well above 1 (2 KL is asymptotically chi-square with one degree of freedom per pixel; Bertero, Boccacci,
+     * Talenti, Zanella &amp; Zanni, "A discrepancy principle for Poisson data", Inverse Problems 26, 2010).
+     */
+    public double expectedFit() {
+        return new PoissonNoise().expectedDeviance();
+    }
+
+    /** @return the estimate on the data grid, in ADU above the offset (x * gain), as a new volume */
+    public Volume toVolume(float[] x) {
+        Volume out = Volume.zeros(w, h, d, voxel);
+        float[] o = out.data();
+        float g = (float) camera.gain();
+        for (int z = 0; z < d; z++) {
+            for (int yy = 0; yy < h; yy++) {
+                int row = (z * ny + yy) * nx;
+                int orow = (z * h + yy) * w;
+                for (int i = 0; i < w; i++) {
+                    o[orow + i] = x[row + i] * g;
+                }
+            }
+        }
+        return out;
+    }
+}

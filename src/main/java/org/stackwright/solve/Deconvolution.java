@@ -1,0 +1,126 @@
+package org.stackwright.solve;
+
+import java.util.ArrayList;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+
+import org.stackwright.model.DeconvolutionProblem;
+import org.stackwright.op.RunContext;
+import org.stackwright.parallel.Workers;
+import org.stackwright.volume.Volume;
+
+/**
+ * Runs one deconvolution from camera data, a PSF and settings: prepares the PSF, estimates the background when
+ * asked, checks memory, builds the {@link DeconvolutionProblem}, runs the solver and writes the run record. Used
+ * by the {@code deconvolve} operation, the demo and the benchmark; no ImageJ needed.
+ */
+public final class Deconvolution {
+
+    /**
+     * @param result the estimate on the image grid, ADU above the offset
+     * @param solution the solver's output (history, stop reason)
+     * @param record the run record (JSON-ready map)
+     */
+    public record Outcome(Volume result, Solution solution, Map<String, Object> record) {
+    }
+
+    private Deconvolution() {
+    }
+
+    /**
+     * @param data camera data, not modified
+     * @param psf the PSF as read (any voxel size; prepared by {@link PsfCheck}), not modified
+     * @param psfName where the PSF came from, for the record
+     * @param mask untrusted pixels (nonzero), one per data voxel, or null
+     * @param s settings
+     * @param ctx threads, progress, cancel, warnings
+     * @param listener told about each iteration
+     */
+    public static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
+            RunContext ctx, IterationListener listener) {
+        List<String> notes = new ArrayList<>();
+        Volume p = PsfCheck.prepare(psf, data.voxel(), data.depth(), m -> {
+            notes.add(m);
+            ctx.warn(m);
+        });
+        double bg = s.background();
+        boolean estimated = Double.isNaN(bg);
+        if (estimated) {
+            bg = BackgroundEstimate.estimate(data, mask, s.offset());
+        }
+        DeconvolutionProblem.Camera camera = new DeconvolutionProblem.Camera(s.offset(), bg, s.gain(), s.readNoise());
+        DeconvolutionProblem.Boundary boundary = s.boundary().equals("periodic")
+                ? DeconvolutionProblem.Boundary.PERIODIC : DeconvolutionProblem.Boundary.EXTENDED;
+        Solver solver = s.solver();
+        long grid = gridVoxels(data, p, boundary);
+        long need = MemoryCheck.estimate(grid, solver.gridArrays(), data.size());
+        MemoryCheck.require(need, "the image " + data.shape() + " (grid " + gridShape(data, p, boundary) + ")");
+        ctx.progress(0, "preparing " + s.method());
+        Solution sol;
+        DeconvolutionProblem problem;
+        try (Workers workers = new Workers(ctx.threads())) {
+            problem = new DeconvolutionProblem(data, p, mask, boundary, camera, workers);
+            sol = solver.solve(problem, ctx, listener);
+        }
+        Volume result = problem.toVolume(sol.estimate());
+        Map<String, Object> r = new LinkedHashMap<>();
+        r.put("operation", "deconvolve");
+        r.put("method", s.method());
+        r.put("iterations", sol.iterations());
+        r.put("stop_reason", sol.stopReason());
+        r.put("seconds", sol.seconds());
+        r.put("objective", solver.objectiveName());
+        r.put("history", sol.objective());
+        r.put("change_history", sol.change());
+        Map<String, Object> set = new LinkedHashMap<>();
+        set.put("stop", s.stopping().rule().word());
+        set.put("max_iterations", s.stopping().maxIterations());
+        set.put("tolerance", s.stopping().tolerance());
+        set.put("offset_adu", s.offset());
+        set.put("background_adu", bg);
+        set.put("background_estimated", estimated);
+        set.put("gain", s.gain());
+        set.put("read_noise_adu", s.readNoise());
+        set.put("regularization", s.method().equals("richardson-lucy") ? 0.0 : s.lambda());
+        set.put("boundary", s.boundary());
+        set.put("acceleration", s.method().equals("richardson-lucy") && s.accelerated());
+        set.put("noise", s.noise());
+        set.put("threads", ctx.threads());
+        r.put("settings", set);
+        Map<String, Object> psfInfo = new LinkedHashMap<>();
+        psfInfo.put("source", psfName);
+        psfInfo.put("shape_as_read", psf.shape());
+        psfInfo.put("voxel_um_as_read", List.of(psf.voxel().x(), psf.voxel().y(), psf.voxel().z()));
+        psfInfo.put("shape_used", p.shape());
+        psfInfo.put("sum_as_read", psf.sum());
+        psfInfo.put("changes", notes);
+        r.put("psf", psfInfo);
+        r.put("image_shape", data.shape());
+        r.put("voxel_um", List.of(data.voxel().x(), data.voxel().y(), data.voxel().z()));
+        r.put("grid_shape", problem.gridWidth() + "x" + problem.gridHeight() + "x" + problem.gridDepth());
+        r.put("trusted_pixels", problem.trustedPixels());
+        r.put("peak_memory_estimate_bytes", need);
+        r.put("result_units", "ADU above the camera offset (background removed)");
+        return new Outcome(result, sol, r);
+    }
+
+    private static int[] gridDims(Volume data, Volume p, DeconvolutionProblem.Boundary b) {
+        if (b == DeconvolutionProblem.Boundary.PERIODIC) {
+            return new int[] {data.width(), data.height(), data.depth()};
+        }
+        return new int[] {org.stackwright.fft.Convolution.paddedSize(data.width(), p.width()),
+            org.stackwright.fft.Convolution.paddedSize(data.height(), p.height()),
+            org.stackwright.fft.Convolution.paddedSize(data.depth(), p.depth())};
+    }
+
+    private static long gridVoxels(Volume data, Volume p, DeconvolutionProblem.Boundary b) {
+        int[] g = gridDims(data, p, b);
+        return (long) g[0] * g[1] * g[2];
+    }
+
+    private static String gridShape(Volume data, Volume p, DeconvolutionProblem.Boundary b) {
+        int[] g = gridDims(data, p, b);
+        return g[0] + "x" + g[1] + "x" + g[2];
+    }
+}

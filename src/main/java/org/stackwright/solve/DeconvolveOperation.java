@@ -1,0 +1,143 @@
+package org.stackwright.solve;
+
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+
+import ij.ImagePlus;
+
+import org.stackwright.op.Operation;
+import org.stackwright.op.Param;
+import org.stackwright.op.Result;
+import org.stackwright.op.RunContext;
+import org.stackwright.op.Values;
+import org.stackwright.volume.ImagePlusAdapter;
+import org.stackwright.volume.Volume;
+
+/**
+ * {@code deconvolve}: restores a z-stack (or 2D image) with a PSF by Richardson-Lucy (optionally accelerated),
+ * Richardson-Lucy with total variation, primal-dual total variation or a Wiener filter. The result is an
+ * estimate in ADU above the camera offset, with the background removed; the run record says what was done.
+ * Thin door over {@link Deconvolution}.
+ */
+public final class DeconvolveOperation implements Operation {
+
+    @Override
+    public String name() {
+        return "deconvolve";
+    }
+
+    @Override
+    public String summary() {
+        return "deconvolve a z-stack with a PSF (Richardson-Lucy, RL with total variation, primal-dual TV, Wiener)";
+    }
+
+    @Override
+    public List<Param> params() {
+        return List.of(
+                Param.image("input", true, "camera data to deconvolve (raw ADU; do not subtract the offset or background)"),
+                Param.image("psf", true, "the PSF (odd sizes, centre at n/2; resampled when its voxel size differs)"),
+                Param.outputImage("output", true, "the deconvolved estimate, 32-bit, ADU above the offset"),
+                Param.choice("method", "richardson-lucy", DeconvolutionSettings.METHODS, "deconvolution method"),
+                Param.integer("iterations", 50, 1, 100_000, "maximum number of iterations (wiener: ignored)"),
+                Param.choice("stop", "noise", List.of("fixed", "change", "noise"),
+                        "fixed = all iterations; change = relative change below tolerance; noise = data fit reaches "
+                                + "its expected value (discrepancy principle)"),
+                Param.number("tolerance", 1e-3, 1e-12, 1, "", "tolerance of the change rule (total-variation: relative primal-dual gap)"),
+                Param.number("offset", 0.0, -1e9, 1e9, "ADU", "camera offset (bias), part of the forward model"),
+                Param.text("background", "auto", "background above the offset in ADU, or auto to estimate it"),
+                Param.number("gain", 1.0, 1e-9, 1e9, "ADU/e-", "camera gain"),
+                Param.number("read-noise", 0.0, 0, 1e9, "ADU", "camera read noise (standard deviation)"),
+                Param.number("regularization", null, 0, 1e9, "", "lambda: richardson-lucy-tv default 0.002, "
+                        + "total-variation 0.01, wiener 0.001; ignored by richardson-lucy"),
+                Param.image("mask", false, "pixels to exclude from the data fit: nonzero = dead, saturated, seam"),
+                Param.choice("boundary", "extended", List.of("extended", "periodic"),
+                        "extended = object larger than the image, no wrap-around; periodic = wraps around (smaller, faster)"),
+                Param.choice("acceleration", "on", List.of("on", "off"), "vector extrapolation for richardson-lucy"),
+                Param.choice("noise", "poisson", List.of("poisson", "gaussian"), "data term of total-variation"),
+                Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history"));
+    }
+
+    @Override
+    public Result run(Values v, RunContext ctx) {
+        DeconvolutionSettings s = settings(v);
+        ImagePlus in = v.image("input");
+        ImagePlus psfImp = v.image("psf");
+        if (in.getNChannels() > 1 || in.getNFrames() > 1) {
+            throw new IllegalArgumentException("input '" + in.getTitle() + "' has " + in.getNChannels() + " channels and "
+                    + in.getNFrames() + " time points; give one channel and one time point (each channel needs its own "
+                    + "PSF: split the hyperstack first)");
+        }
+        Volume data = ImagePlusAdapter.toVolume(in);
+        Volume psf = ImagePlusAdapter.toVolume(psfImp);
+        if (!ImagePlusAdapter.isCalibrated(psfImp)) {
+            psf = psf.withVoxel(data.voxel());
+            ctx.warn("psf: '" + psfImp.getTitle() + "' has no calibration; taken to have the image's voxel size " + data.voxel());
+        }
+        byte[] mask = null;
+        ImagePlus m = v.image("mask");
+        if (m != null) {
+            mask = mask(ImagePlusAdapter.toVolume(m), data);
+        }
+        Deconvolution.Outcome out = Deconvolution.run(data, psf, psfImp.getTitle(), mask, s, ctx, IterationListener.NONE);
+        Result r = new Result();
+        r.image("output", ImagePlusAdapter.toImagePlus(out.result(), in.getTitle() + "-deconvolve"));
+        for (Map.Entry<String, Object> e : out.record().entrySet()) {
+            r.record(e.getKey(), e.getValue());
+        }
+        double[] hist = out.solution().objective();
+        r.line(String.format(Locale.ROOT, "deconvolved %s with %s: %d iteration(s), %.2f s; stopped by %s",
+                data.shape(), s.method(), out.solution().iterations(), out.solution().seconds(), out.solution().stopReason()));
+        Map<String, Object> row = new LinkedHashMap<>();
+        row.put("method", s.method());
+        row.put("iterations", out.solution().iterations());
+        row.put("stop_reason", out.solution().stopReason());
+        row.put("seconds", out.solution().seconds());
+        row.put("final_objective", hist.length > 0 ? hist[hist.length - 1] : Double.NaN);
+        r.row(row);
+        return r;
+    }
+
+    /** Reads and checks the settings. */
+    static DeconvolutionSettings settings(Values v) {
+        String bgText = v.text("background");
+        double bg;
+        if (bgText == null || bgText.equals("auto")) {
+            bg = Double.NaN;
+        } else {
+            try {
+                bg = Double.parseDouble(bgText);
+            } catch (NumberFormatException e) {
+                throw new IllegalArgumentException("background = '" + bgText + "' is not allowed; give a number of ADU (0 or more) or auto");
+            }
+            if (!(bg >= 0) || Double.isInfinite(bg)) {
+                throw new IllegalArgumentException("background = '" + bgText + "' is not allowed; give a number of ADU (0 or more) or auto");
+            }
+        }
+        String method = v.choice("method");
+        double lambda = v.given("regularization") ? v.number("regularization") : Double.NaN;
+        if (!Double.isNaN(lambda) && lambda <= 0 && (method.equals("wiener") || method.equals("total-variation"))) {
+            throw new IllegalArgumentException("regularization = " + lambda + " is not allowed for " + method + "; give a positive number");
+        }
+        Stopping stopping = new Stopping(StopRule.of(v.choice("stop")), v.integer("iterations"), v.number("tolerance"));
+        return new DeconvolutionSettings(method, stopping, v.number("offset"), bg, v.number("gain"), v.number("read-noise"),
+                lambda, v.choice("boundary"), v.choice("acceleration").equals("on"), v.choice("noise"));
+    }
+
+    private static byte[] mask(Volume m, Volume data) {
+        if (m.width() != data.width() || m.height() != data.height()
+                || (m.depth() != data.depth() && m.depth() != 1)) {
+            throw new IllegalArgumentException("mask is " + m.shape() + " but the input is " + data.shape()
+                    + "; give a mask of the same size (or one plane, used for every plane)");
+        }
+        byte[] out = new byte[data.size()];
+        int plane = data.width() * data.height();
+        float[] md = m.data();
+        for (int i = 0; i < out.length; i++) {
+            float f = m.depth() == 1 ? md[i % plane] : md[i];
+            out[i] = (byte) (f != 0 ? 1 : 0);
+        }
+        return out;
+    }
+}

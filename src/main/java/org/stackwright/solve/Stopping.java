@@ -1,0 +1,50 @@
+package org.stackwright.solve;
+
+import java.util.Locale;
+
+/**
+ * A stopping rule with its maximum number of iterations and tolerance, and the check a solver calls after each
+ * iteration.
+ *
+ * @param rule the rule
+ * @param maxIterations upper bound on iterations, at least 1 (always applied)
+ * @param tolerance for {@link StopRule#CHANGE}: the relative change (or primal-dual gap) to reach, positive
+ */
+public record Stopping(StopRule rule, int maxIterations, double tolerance) {
+
+    public Stopping {
+        if (maxIterations < 1) {
+            throw new IllegalArgumentException("iterations = " + maxIterations + " is not allowed; give 1 or more");
+        }
+        if (!(tolerance > 0) || !Double.isFinite(tolerance)) {
+            throw new IllegalArgumentException("tolerance = " + tolerance + " is not allowed; give a positive number");
+        }
+    }
+
+    /** Exactly n iterations. */
+    public static Stopping fixed(int n) {
+        return new Stopping(StopRule.FIXED, n, 1e-3);
+    }
+
+    /**
+     * @param iteration iterations done so far (1-based)
+     * @param meanFit mean data fit per trusted pixel (NaN when not known)
+     * @param expectedFit its expected value under the noise model
+     * @param change relative change (or gap) of this iteration (NaN when not known)
+     * @return why the run stops now, or null to go on
+     */
+    public String check(int iteration, double meanFit, double expectedFit, double change) {
+        if (rule == StopRule.CHANGE && change < tolerance) {
+            return String.format(Locale.ROOT, "change: relative change %.3g fell below the tolerance %.3g", change, tolerance);
+        }
+        if (rule == StopRule.NOISE && meanFit <= expectedFit) {
+            return String.format(Locale.ROOT, "noise: mean data fit %.4f per pixel reached its expected value %.4f "
+                    + "(discrepancy principle)", meanFit, expectedFit);
+        }
+        if (iteration >= maxIterations) {
+            return rule == StopRule.FIXED ? "fixed: " + maxIterations + " iterations done"
+                    : "maximum: " + maxIterations + " iterations reached before the " + rule.word() + " rule was met";
+        }
+        return null;
+    }
+}

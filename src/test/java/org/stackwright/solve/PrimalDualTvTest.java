@@ -1,0 +1,63 @@
+package org.stackwright.solve;
+
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import org.junit.jupiter.api.Test;
+import org.stackwright.fft.Convolution;
+import org.stackwright.model.DeconvolutionProblem;
+import org.stackwright.op.RunContext;
+import org.stackwright.parallel.Workers;
+import org.stackwright.volume.Volume;
+
+/**
+ * The primal-dual method of Chambolle &amp; Pock (J Math Imaging Vis 40, 2011) converges: the primal-dual gap (a
+ * certificate: P(x) - P* &lt;= gap) falls to the tolerance, and the solution then matches a much longer run.
+ */
+class PrimalDualTvTest {
+
+    @Test
+    void gapFallsToTheToleranceAndTheSolutionMatchesALongRun() {
+        Volume truth = SpecimenDeconvolutionTest.spheres(24, 24, 8, 3);
+        try (Workers w = new Workers(2)) {
+            Volume data = SpecimenDeconvolutionTest.poisson(Convolution.convolve(truth, TestSpecimens.psf(), w), 1, 4);
+            DeconvolutionProblem p = new DeconvolutionProblem(data, TestSpecimens.psf(), null,
+                    DeconvolutionProblem.Boundary.EXTENDED, new DeconvolutionProblem.Camera(0, 1, 1, 0), w);
+            double tol = 1e-5;
+            Solution s = new PrimalDualTv(new Stopping(StopRule.CHANGE, 3000, tol), 0.1, PrimalDualTv.DataTerm.POISSON)
+                    .solve(p, RunContext.quiet(2), IterationListener.NONE);
+            assertTrue(s.stopReason().startsWith("change"), s.stopReason());
+            double[] gap = s.change();
+            assertTrue(gap[gap.length - 1] < tol);
+            assertTrue(gap[9] > 100 * tol, "the gap starts well above the tolerance: " + gap[9]);
+            // the gap is not monotone from one iteration to the next (Chambolle & Pock bound it on average), but it
+            // decreases overall: the smallest gap of each quarter of the run is below that of the quarter before
+            int q = gap.length / 4;
+            for (int k = 1; k < 4; k++) {
+                assertTrue(min(gap, k * q, (k + 1) * q) < min(gap, (k - 1) * q, k * q), "gap stalled in quarter " + (k + 1)
+                        + " of " + gap.length + " iterations");
+            }
+            Solution longRun = new PrimalDualTv(Stopping.fixed(2 * s.iterations()), 0.1, PrimalDualTv.DataTerm.POISSON)
+                    .solve(p, RunContext.quiet(2), IterationListener.NONE);
+            double d = relativeDifference(p.toVolume(s.estimate()).data(), p.toVolume(longRun.estimate()).data());
+            assertTrue(d <= 1e-3, "relative difference to a run of " + longRun.iterations() + " iterations: " + d);
+        }
+    }
+
+    private static double min(double[] a, int from, int to) {
+        double m = Double.POSITIVE_INFINITY;
+        for (int i = from; i < to; i++) {
+            m = Math.min(m, a[i]);
+        }
+        return m;
+    }
+
+    static double relativeDifference(float[] a, float[] b) {
+        double e = 0;
+        double t = 0;
+        for (int i = 0; i < a.length; i++) {
+            e += (a[i] - b[i]) * (double) (a[i] - b[i]);
+            t += b[i] * (double) b[i];
+        }
+        return Math.sqrt(e / t);
+    }
+}
