@@ -22,6 +22,9 @@ public final class DeconvolveCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "psf")
     private ImagePlus psf;
 
+    @Parameter(type = ItemIO.OUTPUT, label = "output")
+    private ImagePlus output;
+
     @Parameter(persist = false, required = false, label = "method")
     private String method;
 
@@ -31,11 +34,20 @@ public final class DeconvolveCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "stop")
     private String stop;
 
+    @Parameter(persist = false, required = false, label = "tolerance")
+    private Double tolerance;
+
     @Parameter(persist = false, required = false, label = "offset")
     private Double offset;
 
     @Parameter(persist = false, required = false, label = "background")
     private String background;
+
+    @Parameter(persist = false, required = false, label = "gain")
+    private Double gain;
+
+    @Parameter(persist = false, required = false, label = "read-noise")
+    private Double readNoise;
 
     @Parameter(persist = false, required = false, label = "regularization")
     private Double regularization;
@@ -49,8 +61,8 @@ public final class DeconvolveCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "acceleration")
     private String acceleration;
 
-    @Parameter(type = ItemIO.OUTPUT, label = "output")
-    private ImagePlus output;
+    @Parameter(persist = false, required = false, label = "noise")
+    private String noise;
 
     @Parameter(persist = false, required = false, label = "record")
     private File record;
