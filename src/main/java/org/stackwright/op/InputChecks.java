@@ -109,6 +109,22 @@ public final class InputChecks {
     }
 
     /**
+     * Refuses NaN or infinite pixels, for the images an operation cannot compute around (an estimate that is
+     * blurred again, both images of a comparison whose SSIM windows cannot skip pixels, a bead stack).
+     *
+     * @param key the parameter the image came from, named in the message
+     * @param v the image, not modified
+     * @throws IllegalArgumentException naming the key and the count
+     */
+    public static void requireFinite(String key, Volume v) {
+        int bad = v.countNonFinite();
+        if (bad > 0) {
+            throw new IllegalArgumentException(key + ": " + bad + " of " + v.size() + " pixels are NaN or infinite;"
+                    + " allowed: finite values only for this image");
+        }
+    }
+
+    /**
      * @param v the image, not modified
      * @param s its scan
      * @return v itself when every pixel is finite, otherwise a copy whose NaN/infinite pixels hold the mean of the

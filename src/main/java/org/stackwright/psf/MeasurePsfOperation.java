@@ -42,10 +42,8 @@ public final class MeasurePsfOperation implements Operation {
             ctx.warn("the image has no spatial calibration: widths are given for 1 um voxels, i.e. in voxels");
         }
         Volume psf = ImagePlusAdapter.toVolume(imp);
-        if (psf.countNonFinite() > 0) {
-            throw new IllegalArgumentException("input holds " + psf.countNonFinite() + " NaN or infinite voxels; "
-                    + "give a PSF with finite values");
-        }
+        // only the value rules: a bead image to be measured may be off-centre, even-sized and on a background
+        PsfChecks.requireUsableValues("input", psf);
         Fwhm.Widths w = Fwhm.measure(psf);
         Map<String, Object> row = new LinkedHashMap<>();
         row.put("image", imp.getTitle());
