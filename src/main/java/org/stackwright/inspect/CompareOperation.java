@@ -50,8 +50,8 @@ public final class CompareOperation implements Operation {
         // both images (read and as volumes) and the five double-precision filtered moments of SSIM
         MemoryCheck.require("compare of " + refImp.getWidth() + "x" + refImp.getHeight() + "x" + refImp.getNSlices(),
                 MemoryCheck.floats((long) refImp.getWidth() * refImp.getHeight() * refImp.getNSlices(), 14));
-        Volume ref = ImagePlusAdapter.toVolume(refImp);
-        Volume img = ImagePlusAdapter.toVolume(imgImp);
+        Volume ref = InputChecks.oneVolume("reference", refImp);
+        Volume img = InputChecks.oneVolume("input", imgImp);
         InputChecks.requireFinite("reference", ref);
         InputChecks.requireFinite("input", img);
         double range = v.given("data-range") ? v.number("data-range") : Double.NaN;

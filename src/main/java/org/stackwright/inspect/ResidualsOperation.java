@@ -68,9 +68,9 @@ public final class ResidualsOperation implements Operation {
                 * (dataImp.getNSlices() + psfImp.getNSlices());
         MemoryCheck.require("residuals of " + dataImp.getWidth() + "x" + dataImp.getHeight() + "x"
                 + dataImp.getNSlices(), MemoryCheck.floats(voxels, 14) + MemoryCheck.floats(grid, 3));
-        Volume data = ImagePlusAdapter.toVolume(dataImp);
-        Volume estimate = ImagePlusAdapter.toVolume(v.image("estimate"));
-        Volume psf = ImagePlusAdapter.toVolume(psfImp);
+        Volume data = InputChecks.oneVolume("input", dataImp);
+        Volume estimate = InputChecks.oneVolume("estimate", v.image("estimate"));
+        Volume psf = InputChecks.oneVolume("psf", psfImp);
         InputChecks.Scan scan = InputChecks.check("input", data, ctx);
         InputChecks.requireFinite("estimate", estimate);
         if (!ImagePlusAdapter.isCalibrated(psfImp) && !psf.voxel().sameAs(data.voxel())) {

@@ -61,7 +61,7 @@ public final class PsfFromBeadsOperation implements Operation {
         // the stack, the filtered copies of the bead search and the bead cut-outs (an estimate)
         MemoryCheck.require("psf-from-beads of " + imp.getWidth() + "x" + imp.getHeight() + "x" + imp.getNSlices(),
                 MemoryCheck.floats((long) imp.getWidth() * imp.getHeight() * imp.getNSlices(), 4));
-        Volume stack = ImagePlusAdapter.toVolume(imp);
+        Volume stack = InputChecks.oneVolume("input", imp);
         InputChecks.requireFinite("input", stack);
         if (v.given("na") && v.given("wavelength")) {
             PsfSettings optics = PsfSettings.matched(v.number("na"), v.number("wavelength"),
