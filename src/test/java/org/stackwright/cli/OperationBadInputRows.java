@@ -6,6 +6,11 @@ import java.util.Arrays;
 import java.util.List;
 import java.util.function.Consumer;
 
+import ij.IJ;
+
+import org.stackwright.imagej.ChannelRunner;
+import org.stackwright.imagej.DoorSettings;
+import org.stackwright.inspect.ResidualsOperation;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
 
@@ -150,7 +155,7 @@ final class OperationBadInputRows {
                 "seam-mask", "--grid", "2x2", "--output", out));
         t.add(cli("seam-mask overlap as large as the tile", 2, "overlap = 8x8 px is not allowed; it must be at least 0 and smaller than the tile (8x8)",
                 "seam-mask", "--grid", "2x2", "--tile", "8x8", "--overlap", "8", "--output", out));
-        t.add(cli("seam-mask grid with a 0", 2, "grid", "seam-mask", "--grid", "0x2", "--tile", "8x8", "--output", out));
+        t.add(cli("seam-mask grid with a 0", 2, "grid = '0x2': each size must be from 1 to 100000", "seam-mask", "--grid", "0x2", "--tile", "8x8", "--output", out));
         t.add(cli("seam-mask detect without input", 2, "input is required with detect", "seam-mask", "--detect", "--output", out));
 
         // --- psf ---
@@ -169,6 +174,21 @@ final class OperationBadInputRows {
                 "psf", "--model", "two-photon", "--pixel", "0.1", "--step", "0.3", "--output", out,
                 "--na", "1.2", "--wavelength", "520", "--immersion-index", "1.33", "--size", "5x5x3"));
 
+        // --- hyperstacks: the command line takes one channel and time point; ImageJ runs each channel in turn ---
+        String channels2 = x.path("channels2.tif").toString();
+        t.add(cli("measure-psf hyperstack with 2 channels", 2, "input: image 'channels2' has 2 channel(s) and 1 time"
+                + " point(s); allowed: one channel and one time point", "measure-psf", "--input", channels2));
+        t.add(cli("compare reference with 2 channels", 2, "reference: image 'channels2' has 2 channel(s)",
+                "compare", "--reference", channels2, "--input", small));
+        t.add(cli("residuals PSF with 2 channels", 2, "psf: image 'channels2' has 2 channel(s)",
+                res, "--input", data, "--estimate", data, "--psf", channels2, "--output", out));
+        t.add(BadInputTable.lib("ImageJ door: PSF with 3 channels for a 2-channel input", 2,
+                "psf = 'psf3' has 3 channels but input has 2; give one channel (used for all) or one per channel",
+                c -> ChannelRunner.run(new ResidualsOperation(), hyperstacks(3, null), 1, (f, m) -> { }, w -> { }, () -> false)));
+        t.add(BadInputTable.lib("ImageJ door: per-channel list of the wrong length", 2,
+                "offset = '1,2,3' gives 3 values; give one value, or one per channel (2)",
+                c -> ChannelRunner.run(new ResidualsOperation(), hyperstacks(2, "1,2,3"), 1, (f, m) -> { }, w -> { }, () -> false)));
+
         // --- psf-from-beads ---
         t.add(cli("psf-from-beads on an image without beads", 2, "input: no usable bead",
                 "psf-from-beads", "--input", data, "--size", "3x3x1", "--output", out));
@@ -178,6 +198,18 @@ final class OperationBadInputRows {
                 "psf-from-beads", "--input", data, "--size", "31x31x5", "--output", out));
         t.add(cli("psf-from-beads NaN pixels", 2, "input: 1 of 1280 pixels are NaN or infinite; allowed: finite values only",
                 "psf-from-beads", "--input", dataNan, "--size", "3x3x1", "--output", out));
+    }
+
+    /** Door settings for residuals: a 2-channel input and estimate, a PSF of {@code psfChannels} channels. */
+    private static DoorSettings hyperstacks(int psfChannels, String offset) {
+        DoorSettings s = new DoorSettings();
+        s.images().put("input", IJ.createImage("in2", "32-bit ramp", 16, 16, 2, 5, 1));
+        s.images().put("estimate", IJ.createImage("est2", "32-bit ramp", 16, 16, 2, 5, 1));
+        s.images().put("psf", IJ.createImage("psf" + psfChannels, "32-bit ramp", 5, 5, psfChannels, 3, 1));
+        if (offset != null) {
+            s.text().put("offset", offset);
+        }
+        return s;
     }
 
     private static String[] with(String[] base, String... more) {
