@@ -3,6 +3,10 @@ package org.stackwright.inspect;
 import java.util.List;
 import java.util.Locale;
 
+import ij.ImagePlus;
+
+import org.stackwright.op.InputChecks;
+import org.stackwright.op.MemoryCheck;
 import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
@@ -35,8 +39,21 @@ public final class CompareOperation implements Operation {
 
     @Override
     public Result run(Values v, RunContext ctx) {
-        Volume ref = ImagePlusAdapter.toVolume(v.image("reference"));
-        Volume img = ImagePlusAdapter.toVolume(v.image("input"));
+        ImagePlus refImp = v.image("reference");
+        ImagePlus imgImp = v.image("input");
+        if (refImp.getWidth() != imgImp.getWidth() || refImp.getHeight() != imgImp.getHeight()
+                || refImp.getNSlices() != imgImp.getNSlices()) {
+            throw new IllegalArgumentException("input is " + imgImp.getWidth() + "x" + imgImp.getHeight() + "x"
+                    + imgImp.getNSlices() + " but reference is " + refImp.getWidth() + "x" + refImp.getHeight() + "x"
+                    + refImp.getNSlices() + "; allowed: images of the same size");
+        }
+        // both images (read and as volumes) and the five double-precision filtered moments of SSIM
+        MemoryCheck.require("compare of " + refImp.getWidth() + "x" + refImp.getHeight() + "x" + refImp.getNSlices(),
+                MemoryCheck.floats((long) refImp.getWidth() * refImp.getHeight() * refImp.getNSlices(), 14));
+        Volume ref = InputChecks.oneVolume("reference", refImp);
+        Volume img = InputChecks.oneVolume("input", imgImp);
+        InputChecks.requireFinite("reference", ref);
+        InputChecks.requireFinite("input", img);
         double range = v.given("data-range") ? v.number("data-range") : Double.NaN;
         QualityMetrics q = QualityMetrics.of(ref, img, range);
         Result r = new Result();

@@ -9,12 +9,15 @@ import java.util.Map;
 import ij.ImagePlus;
 
 import org.stackwright.model.NoiseModel;
+import org.stackwright.op.InputChecks;
+import org.stackwright.op.MemoryCheck;
 import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
 import org.stackwright.op.RunContext;
 import org.stackwright.op.Values;
 import org.stackwright.parallel.Workers;
+import org.stackwright.psf.PsfChecks;
 import org.stackwright.volume.ImagePlusAdapter;
 import org.stackwright.volume.Volume;
 
@@ -58,10 +61,18 @@ public final class ResidualsOperation implements Operation {
     @Override
     public Result run(Values v, RunContext ctx) {
         ImagePlus dataImp = v.image("input");
-        Volume data = ImagePlusAdapter.toVolume(dataImp);
-        Volume estimate = ImagePlusAdapter.toVolume(v.image("estimate"));
         ImagePlus psfImp = v.image("psf");
-        Volume psf = ImagePlusAdapter.toVolume(psfImp);
+        // data, estimate, five maps and their interior crops, the padded blur grid and its spectrum (an estimate)
+        long voxels = (long) dataImp.getWidth() * dataImp.getHeight() * dataImp.getNSlices();
+        long grid = (long) (dataImp.getWidth() + psfImp.getWidth()) * (dataImp.getHeight() + psfImp.getHeight())
+                * (dataImp.getNSlices() + psfImp.getNSlices());
+        MemoryCheck.require("residuals of " + dataImp.getWidth() + "x" + dataImp.getHeight() + "x"
+                + dataImp.getNSlices(), MemoryCheck.floats(voxels, 14) + MemoryCheck.floats(grid, 3));
+        Volume data = InputChecks.oneVolume("input", dataImp);
+        Volume estimate = InputChecks.oneVolume("estimate", v.image("estimate"));
+        Volume psf = InputChecks.oneVolume("psf", psfImp);
+        InputChecks.Scan scan = InputChecks.check("input", data, ctx);
+        InputChecks.requireFinite("estimate", estimate);
         if (!ImagePlusAdapter.isCalibrated(psfImp) && !psf.voxel().sameAs(data.voxel())) {
             ctx.warn("the PSF carries no calibration; taking the input's voxel size " + data.voxel());
             psf = psf.withVoxel(data.voxel());
@@ -69,11 +80,23 @@ public final class ResidualsOperation implements Operation {
         if (!ImagePlusAdapter.isCalibrated(v.image("estimate")) && !estimate.voxel().sameAs(data.voxel())) {
             estimate = estimate.withVoxel(data.voxel());
         }
+        if (data.depth() == 1 && psf.depth() > 1) {
+            ctx.warn("psf is 3D (" + psf.shape() + ") and the input 2D: its centre plane (the in-focus plane of a thin"
+                    + " specimen) is used");
+            psf = ForwardBlur.centrePlane(psf);
+        }
+        psf = PsfChecks.prepare("psf", psf, data, ctx).withVoxel(data.voxel());
         NoiseModel noise = ResidualModel.noiseModel(v.choice("noise"), v.number("gain"), v.number("read-noise"));
         ResidualModel model = new ResidualModel(v.number("offset"), v.number("background"), noise);
         ctx.progress(0.1, "computing residuals");
         ResidualReport report;
         try (Workers w = new Workers(ctx.threads())) {
+            if (scan.nonFinite() > 0) {
+                data = predictionWhereUntrusted(data, estimate, psf, model, scan.nonFiniteMask(), w);
+                ctx.warn(String.format(Locale.ROOT, "input: the %d untrusted pixels are given the prediction"
+                        + " (residual 0), so they count as a perfect fit and lower chi^2 per pixel by up to %.3g %%",
+                        scan.nonFinite(), 100.0 * scan.nonFinite() / data.size()));
+            }
             report = ResidualReport.analyse(data, estimate, psf, model, w);
         }
         ctx.checkCancelled();
@@ -112,6 +135,22 @@ public final class ResidualsOperation implements Operation {
         }
         ctx.progress(1, "done");
         return r;
+    }
+
+    /**
+     * @return a copy of the data whose untrusted (NaN or infinite) pixels hold the prediction offset + background
+     *     + H x, so that they carry no residual
+     */
+    static Volume predictionWhereUntrusted(Volume data, Volume estimate, Volume psf, ResidualModel model,
+            byte[] untrusted, Workers w) {
+        float[] hx = ForwardBlur.blur(estimate, psf, w).data();
+        float[] y = data.data().clone();
+        for (int i = 0; i < y.length; i++) {
+            if (untrusted[i] != 0) {
+                y[i] = (float) (model.offset() + model.background() + hx[i]);
+            }
+        }
+        return data.withData(y);
     }
 
     /** @return the causes as record maps */

@@ -2,6 +2,9 @@ package org.stackwright.op;
 
 import java.util.Locale;
 
+import ij.ImagePlus;
+
+import org.stackwright.volume.ImagePlusAdapter;
 import org.stackwright.volume.Volume;
 
 /**
@@ -106,6 +109,40 @@ public final class InputChecks {
                     + " the result will be flat");
         }
         return s;
+    }
+
+    /**
+     * Reads an image that must be one channel and one time point (the ImageJ doors split hyperstacks before an
+     * operation runs; on the command line a hyperstack would otherwise be cut to its first channel unnoticed).
+     *
+     * @param key the parameter the image came from, named in the message
+     * @param imp the image, not modified
+     * @return its pixels as a volume
+     * @throws IllegalArgumentException naming the key and the channel and time point counts
+     */
+    public static Volume oneVolume(String key, ImagePlus imp) {
+        if (imp != null && (imp.getNChannels() > 1 || imp.getNFrames() > 1)) {
+            throw new IllegalArgumentException(key + ": image '" + imp.getTitle() + "' has " + imp.getNChannels()
+                    + " channel(s) and " + imp.getNFrames() + " time point(s); allowed: one channel and one time point"
+                    + " (split the hyperstack, or run from ImageJ, which runs each channel in turn)");
+        }
+        return ImagePlusAdapter.toVolume(imp);
+    }
+
+    /**
+     * Refuses NaN or infinite pixels, for the images an operation cannot compute around (an estimate that is
+     * blurred again, both images of a comparison whose SSIM windows cannot skip pixels, a bead stack).
+     *
+     * @param key the parameter the image came from, named in the message
+     * @param v the image, not modified
+     * @throws IllegalArgumentException naming the key and the count
+     */
+    public static void requireFinite(String key, Volume v) {
+        int bad = v.countNonFinite();
+        if (bad > 0) {
+            throw new IllegalArgumentException(key + ": " + bad + " of " + v.size() + " pixels are NaN or infinite;"
+                    + " allowed: finite values only for this image");
+        }
     }
 
     /**

@@ -7,6 +7,7 @@ import java.util.Map;
 
 import ij.ImagePlus;
 
+import org.stackwright.op.InputChecks;
 import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
@@ -41,11 +42,9 @@ public final class MeasurePsfOperation implements Operation {
         if (!ImagePlusAdapter.isCalibrated(imp)) {
             ctx.warn("the image has no spatial calibration: widths are given for 1 um voxels, i.e. in voxels");
         }
-        Volume psf = ImagePlusAdapter.toVolume(imp);
-        if (psf.countNonFinite() > 0) {
-            throw new IllegalArgumentException("input holds " + psf.countNonFinite() + " NaN or infinite voxels; "
-                    + "give a PSF with finite values");
-        }
+        Volume psf = InputChecks.oneVolume("input", imp);
+        // only the value rules: a bead image to be measured may be off-centre, even-sized and on a background
+        PsfChecks.requireUsableValues("input", psf);
         Fwhm.Widths w = Fwhm.measure(psf);
         Map<String, Object> row = new LinkedHashMap<>();
         row.put("image", imp.getTitle());

@@ -43,27 +43,17 @@ public final class PsfChecks {
      */
     public static Volume prepare(String key, Volume psf, Volume image, RunContext ctx) {
         float[] d = psf.data();
-        int nonFinite = 0;
+        requireUsableValues(key, psf);
         int negative = 0;
         double pos = 0;
         double neg = 0;
         for (float f : d) {
-            if (!Float.isFinite(f)) {
-                nonFinite++;
-            } else if (f > 0) {
+            if (f > 0) {
                 pos += f;
             } else if (f < 0) {
                 negative++;
                 neg -= f;
             }
-        }
-        if (nonFinite > 0) {
-            throw new IllegalArgumentException(key + " has " + nonFinite + " NaN or infinite values; allowed: finite"
-                    + " values only (a PSF is a light intensity distribution)");
-        }
-        if (!(pos > 0)) {
-            throw new IllegalArgumentException(key + " has no positive value (sum of positive values " + fmt(pos)
-                    + "); allowed: a PSF with positive values and positive sum");
         }
         float[] work = d.clone();
         if (negative > 0) {
@@ -123,6 +113,34 @@ public final class PsfChecks {
             out[i] = (float) (out[i] / sum);
         }
         return p.withData(out);
+    }
+
+    /**
+     * Rules 1 and 2 alone (finite values, some positive value): the rules that hold for any PSF or bead image,
+     * also one that is measured rather than used (off-centre, even-sized, with a background).
+     *
+     * @param key the parameter key, named in messages
+     * @param psf the PSF or bead image, not modified
+     * @throws IllegalArgumentException naming the key
+     */
+    public static void requireUsableValues(String key, Volume psf) {
+        int nonFinite = 0;
+        double pos = 0;
+        for (float f : psf.data()) {
+            if (!Float.isFinite(f)) {
+                nonFinite++;
+            } else if (f > 0) {
+                pos += f;
+            }
+        }
+        if (nonFinite > 0) {
+            throw new IllegalArgumentException(key + " has " + nonFinite + " NaN or infinite values; allowed: finite"
+                    + " values only (a PSF is a light intensity distribution)");
+        }
+        if (!(pos > 0)) {
+            throw new IllegalArgumentException(key + " has no positive value (sum of positive values " + fmt(pos)
+                    + "); allowed: a PSF with positive values and positive sum");
+        }
     }
 
     private static void requireOdd(String key, Volume p) {

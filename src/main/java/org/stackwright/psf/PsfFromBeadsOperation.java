@@ -8,6 +8,8 @@ import java.util.Map;
 
 import ij.ImagePlus;
 
+import org.stackwright.op.InputChecks;
+import org.stackwright.op.MemoryCheck;
 import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
@@ -56,10 +58,11 @@ public final class PsfFromBeadsOperation implements Operation {
         if (!ImagePlusAdapter.isCalibrated(imp)) {
             ctx.warn("the bead stack has no spatial calibration: the PSF gets 1 um voxels; set the voxel size first");
         }
-        Volume stack = ImagePlusAdapter.toVolume(imp);
-        if (stack.countNonFinite() > 0) {
-            throw new IllegalArgumentException("input holds " + stack.countNonFinite() + " NaN or infinite voxels");
-        }
+        // the stack, the filtered copies of the bead search and the bead cut-outs (an estimate)
+        MemoryCheck.require("psf-from-beads of " + imp.getWidth() + "x" + imp.getHeight() + "x" + imp.getNSlices(),
+                MemoryCheck.floats((long) imp.getWidth() * imp.getHeight() * imp.getNSlices(), 4));
+        Volume stack = InputChecks.oneVolume("input", imp);
+        InputChecks.requireFinite("input", stack);
         if (v.given("na") && v.given("wavelength")) {
             PsfSettings optics = PsfSettings.matched(v.number("na"), v.number("wavelength"),
                     v.number("immersion-index"), stack.voxel(), 1, 1, 1);

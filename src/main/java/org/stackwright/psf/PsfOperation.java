@@ -5,6 +5,7 @@ import java.util.List;
 import java.util.Locale;
 import java.util.Map;
 
+import org.stackwright.op.MemoryCheck;
 import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
@@ -77,6 +78,9 @@ public final class PsfOperation implements Operation {
         PsfModel model = PsfModel.byName(v.choice("model"));
         PsfSettings s = settings(v);
         s.check(model.name());
+        // the PSF, its unit-sum copy and the output image
+        MemoryCheck.require("psf --size " + s.nx() + "x" + s.ny() + "x" + s.nz(),
+                MemoryCheck.floats((long) s.nx() * s.ny() * s.nz(), 3));
         for (String w : SamplingCheck.warnings(s.voxel(), s, model.name(), s.nz() > 1)) {
             ctx.warn(w);
         }

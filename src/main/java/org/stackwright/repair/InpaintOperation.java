@@ -8,6 +8,9 @@ import ij.ImageStack;
 import ij.process.ByteProcessor;
 import ij.process.FloatProcessor;
 
+import org.stackwright.op.InputChecks;
+import org.stackwright.op.MaskChecks;
+import org.stackwright.op.MemoryCheck;
 import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
@@ -74,6 +77,11 @@ public final class InpaintOperation implements Operation {
         int nt = input.getNFrames();
         int w = input.getWidth();
         int h = input.getHeight();
+        // the output planes of every part, plus per part its volume, the repaired copy and the solver's vectors
+        long part = (long) w * h * nz;
+        MemoryCheck.require("inpaint of " + w + "x" + h + "x" + nz + (nc * nt > 1 ? " (" + nc * nt + " parts)" : ""),
+                MemoryCheck.floats(part * nc * nt, 2) + MemoryCheck.floats(part, 12));
+        MaskChecks.check("mask", mask, ImagePlusAdapter.toVolume(input, 1, 1), ctx);
         ImageStack out = new ImageStack(w, h);
         ImageStack filled = new ImageStack(w, h);
         int plane = w * h;
@@ -89,6 +97,7 @@ public final class InpaintOperation implements Operation {
                     ctx.checkCancelled();
                     ctx.progress(((t - 1) * nc + c - 1) / (double) (nc * nt), "filling channel " + c + ", time point " + t);
                     Volume vol = ImagePlusAdapter.toVolume(input, c, t);
+                    InputChecks.check("input", vol, ctx);
                     Inpainting.Outcome o = Inpainting.run(vol, mask, s, workers);
                     total += o.filledCount();
                     maxIt = Math.max(maxIt, o.iterations());

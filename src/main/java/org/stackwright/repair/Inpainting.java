@@ -132,7 +132,8 @@ public final class Inpainting {
             fill[i] = masked;
         }
         if (nonFinite > 0) {
-            notes.add(nonFinite + " trusted pixels were NaN or infinite and were filled too (they are in the filled mask)");
+            notes.add("input: " + nonFinite + " NaN or infinite pixels outside the mask were treated as untrusted and"
+                    + " filled too (they are in the filled mask)");
         }
         boolean volume = settings.mode() == Mode.VOLUME && d > 1;
         checkCoverage(fill, plane, d, volume);

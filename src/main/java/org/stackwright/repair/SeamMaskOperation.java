@@ -8,6 +8,7 @@ import java.util.Map;
 
 import ij.ImagePlus;
 
+import org.stackwright.op.InputChecks;
 import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
@@ -65,7 +66,7 @@ public final class SeamMaskOperation implements Operation {
             throw new IllegalArgumentException("input is required with " + (detect ? "detect" : "level")
                     + ": give the stitched image");
         }
-        Volume img = input == null ? null : ImagePlusAdapter.toVolume(input);
+        Volume img = input == null ? null : InputChecks.oneVolume("input", input);
         Result r = new Result();
         r.record("operation", name());
         r.record("settings", v.effective());

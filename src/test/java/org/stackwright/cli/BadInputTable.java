@@ -242,6 +242,7 @@ final class BadInputTable {
                 c -> MaskChecks.check("mask", vol(32, 32, 1, 0), img, c)));
         t.add(lib("mask covering everything", 2, "mask marks all 16384 pixels as untrusted",
                 c -> MaskChecks.check("mask", vol(32, 32, 1, 255), img, c)));
+        OperationBadInputRows.add(t, x);
         return t;
     }
 }

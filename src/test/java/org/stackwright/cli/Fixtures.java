@@ -57,6 +57,13 @@ final class Fixtures implements AutoCloseable {
         return recorded(p);
     }
 
+    /** A 32-bit TIFF of a volume (its pixels and voxel size as given). */
+    Path volume(String name, Volume v) {
+        Path p = path(name);
+        TiffFiles.write(v, p, true);
+        return recorded(p);
+    }
+
     /** A hyperstack TIFF with the given channels, slices and frames. */
     Path hyperstack(String name, int channels, int slices, int frames) {
         ImagePlus imp = IJ.createImage(name, "32-bit ramp", 8, 8, channels, slices, frames);

@@ -81,7 +81,7 @@ class RepairCommandLineTest {
         TiffFiles.write(Volume.zeros(16, 12, 1, org.stackwright.volume.VoxelSize.UNIT), img, false);
         assertEquals(Main.BAD_INPUT, run("inpaint", "--input", img.toString(), "--mask", all.toString(),
                 "--output", dir.resolve("o.tif").toString()));
-        assertTrue(err.toString().contains("mask covers every pixel"), err.toString());
+        assertTrue(err.toString().contains("mask marks all 192 pixels as untrusted"), err.toString());
         assertEquals(Main.BAD_INPUT, run("inpaint", "--input", img.toString(), "--mask", all.toString(),
                 "--method", "smear", "--output", dir.resolve("o.tif").toString()));
         assertTrue(err.toString().contains("method = 'smear'"), err.toString());
