@@ -25,6 +25,7 @@ MODEL = "gaussian";    // PSF model: gaussian, widefield, gibson-lanni, confocal
                        //  gibson-lanni for real widefield data)
 PSF_SIZE = "33x33x21"; // PSF extent in voxels (odd sizes)
 OFFSET = 100;          // camera offset (ADU): part of the model, never subtract it yourself
+READ_NOISE = 2;        // camera read noise (ADU, standard deviation): the noise-based stop needs it
 ITERATIONS = 50;       // the most iterations; the noise-based stop usually ends earlier
 // -----------------------------------------------------
 
@@ -66,7 +67,7 @@ for (i = 0; i < list.length; i++) {
     // 2. deconvolve; the run record goes next to the result
     selectImage(title);
     run("Deconvolve Stack...", "input=[" + title + "] psf=[" + psf + "] method=richardson-lucy iterations="
-        + ITERATIONS + " stop=noise offset=" + OFFSET + " background=auto boundary=extended acceleration=on"
+        + ITERATIONS + " stop=noise offset=" + OFFSET + " read-noise=" + READ_NOISE + " background=auto boundary=extended acceleration=on"
         + " record=[" + output + base + "-run.json] overwrite");
     selectImage(base + "-deconvolve");
     saveAs("Tiff", output + base + "-deconvolve.tif");

@@ -13,8 +13,9 @@
 // Caution: deconvolved pixels are estimates, not measurements; follow your facility's validated protocol.
 
 BEAD_DIAMETER = 0;     // bead diameter in um to correct for (0 = no correction)
-PSF_SIZE = "33x33x21"; // extent of the averaged PSF in voxels (odd sizes)
+PSF_SIZE = "25x25x15"; // extent of the averaged PSF in voxels (odd sizes; beads nearer an edge are rejected)
 OFFSET = 100;          // camera offset (ADU)
+READ_NOISE = 2;        // camera read noise (ADU, standard deviation): the noise-based stop needs it
 ITERATIONS = 30;
 
 args = getArgument();
@@ -45,7 +46,7 @@ open(images + specimen);
 title = getTitle();
 base = File.getNameWithoutExtension(title);
 run("Deconvolve Stack...", "input=[" + title + "] psf=[" + psf + "] method=richardson-lucy iterations=" + ITERATIONS
-    + " stop=noise offset=" + OFFSET + " background=auto boundary=extended acceleration=on"
+    + " stop=noise offset=" + OFFSET + " read-noise=" + READ_NOISE + " background=auto boundary=extended acceleration=on"
     + " record=[" + output + base + "-run.json] overwrite");
 selectImage(base + "-deconvolve");
 saveAs("Tiff", output + base + "-deconvolve.tif");

@@ -110,6 +110,36 @@ public final class MacroOptions {
      *     first, every value in brackets
      */
     public String canonical() {
+        return write();
+    }
+
+    /**
+     * Gives every absent number, whole-number, text or choice setting whose key ImageJ would find inside a longer
+     * key that is present (e.g. {@code noise} inside {@code read-noise=2}) its default explicitly, so that the
+     * dialog does not read the longer key's value for it. Settings without a default get an empty value, which
+     * the dialog reads as "not given".
+     *
+     * @param params the operation's settings; not modified
+     */
+    public void fillShadowedKeys(List<org.stackwright.op.Param> params) {
+        for (org.stackwright.op.Param p : params) {
+            String k = p.key();
+            boolean valued = switch (p.kind()) {
+                case NUMBER, INTEGER, TEXT, CHOICE -> true;
+                default -> false;
+            };
+            if (!valued || values.containsKey(k)) {
+                continue;
+            }
+            boolean shadowed = values.keySet().stream().anyMatch(o -> o.length() > k.length() && o.endsWith(k)
+                    && !Character.isLetter(o.charAt(o.length() - k.length() - 1)));
+            if (shadowed) {
+                values.put(k, p.defaultValue() == null ? "" : p.defaultValue());
+            }
+        }
+    }
+
+    private String write() {
         List<String> keys = new ArrayList<>(values.keySet());
         keys.sort(Comparator.comparingInt(String::length));
         StringBuilder sb = new StringBuilder();

@@ -66,6 +66,7 @@ public class OperationPlugin implements PlugIn {
             if (options != null) {
                 MacroOptions mo = MacroOptions.parse(options);
                 mo.checkKeys(op.name(), OperationDialog.macroKeys(op));
+                mo.fillShadowedKeys(op.params());
                 // " " keeps macro mode (all defaults); an empty string would make the dialog appear and wait
                 Macro.setOptions(mo.canonical().isEmpty() ? " " : mo.canonical());
             }

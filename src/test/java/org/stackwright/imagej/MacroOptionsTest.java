@@ -41,6 +41,23 @@ class MacroOptionsTest {
     }
 
     @Test
+    void anAbsentKeyHiddenInsideALongerOneGetsItsDefault() {
+        // "noise" is absent; ImageJ's search alone would read "2" from read-noise=2 for it
+        String given = "read-noise=2 offset=100";
+        assertEquals("2", Macro.getValue(given, "noise", null), "the flaw this guards against");
+        MacroOptions mo = MacroOptions.parse(given);
+        mo.fillShadowedKeys(java.util.List.of(
+                org.stackwright.op.Param.choice("noise", "poisson", java.util.List.of("poisson", "gaussian"), "noise"),
+                org.stackwright.op.Param.number("read-noise", 0.0, 0, 100, "ADU", "read noise"),
+                org.stackwright.op.Param.number("offset", 0.0, -1e6, 1e6, "ADU", "offset"),
+                org.stackwright.op.Param.number("set", null, 0, 1, "", "not hidden anywhere")));
+        String c = mo.canonical();
+        assertEquals("poisson", Macro.getValue(c, "noise", null));
+        assertEquals("2", Macro.getValue(c, "read-noise", null));
+        assertNull(Macro.getValue(c, "set", null), "a key hidden nowhere stays absent");
+    }
+
+    @Test
     void unknownKeysAndUnclosedBracketsAreRefusedWithTheirName() {
         IllegalArgumentException e = assertThrows(IllegalArgumentException.class,
                 () -> MacroOptions.parse("na=1 wavelenght=500").checkKeys("psf", Set.of("na", "wavelength")));
