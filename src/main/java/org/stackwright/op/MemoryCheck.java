@@ -61,7 +61,15 @@ public final class MemoryCheck {
             System.gc();
             have = available();
         }
-        require(what, bytes, have, limit());
+        try {
+            require(what, bytes, have, limit());
+        } catch (IllegalArgumentException e) {
+            if (System.getProperty(LIMIT_PROPERTY) == null) {
+                throw e;
+            }
+            throw new IllegalArgumentException(e.getMessage() + " (the limit is lowered by -D" + LIMIT_PROPERTY + "="
+                    + System.getProperty(LIMIT_PROPERTY) + ")");
+        }
     }
 
     /** As {@link #require(String, long)} with the available and maximum heap given (for tests). */

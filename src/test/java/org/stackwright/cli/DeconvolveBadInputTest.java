@@ -181,7 +181,9 @@ class DeconvolveBadInputTest {
      * use to 2 MB, below the estimate of this 64x64x16 run (about 5 MB), so no huge image is needed.
      */
     private static BadInputTable.Case memoryRow() {
-        BadInputTable.Case inner = row("allocation larger than the memory", 2, "MB of memory but only 2 MB are free for Java",
+        BadInputTable.Case inner = row("allocation larger than the memory", 2, "MB of memory but only 2 MB are free for Java (maximum heap 2 MB); give Java more memory (java -Xmx..., or"
+                + " Edit>Options>Memory in ImageJ) or use a smaller image (the limit is lowered by"
+                + " -Dstackwright.memory-limit-mb=2)",
                 "--input", input("cells-64.tif", cells(64, 64, 16, 6)));
         return new BadInputTable.Case(inner.name(), () -> {
             System.setProperty(MemoryCheck.LIMIT_PROPERTY, "2");
