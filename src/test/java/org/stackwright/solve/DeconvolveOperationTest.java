@@ -104,4 +104,23 @@ class DeconvolveOperationTest {
         assertTrue(changes.size() == 1 && changes.get(0).toString().contains("resampled"), changes.toString());
         assertTrue(ctx.warnings().get(0).contains("resampled"), ctx.warnings().toString());
     }
+
+    /**
+     * With the optics given, an undersampled stack gets the Nyquist warning on stderr and in the run record. Test
+     * stack: 0.1 um pixels, 0.25 um steps; NA 1.4 at 400 nm in oil (1.518) allows at most 400 / (4 x 1.4) = 71.4 nm
+     * pixels (common practice: the sampling theorem at the widefield OTF cut-off 2 NA / lambda).
+     */
+    @Test
+    void undersamplingIsWarnedAndRecorded() throws Exception {
+        Path[] f = files();
+        Path rec = dir.resolve("optics.json");
+        ByteArrayOutputStream err = new ByteArrayOutputStream();
+        int code = cli(err, "deconvolve", "--input", f[0].toString(), "--psf", f[1].toString(), "--output",
+                dir.resolve("optics.tif").toString(), "--iterations", "2", "--stop", "fixed", "--offset", "100",
+                "--na", "1.4", "--wavelength", "400", "--immersion-index", "1.518", "--record", rec.toString());
+        assertEquals(Main.OK, code, err.toString(StandardCharsets.UTF_8));
+        String warning = "the pixel size 0.1 um is larger than the Nyquist limit 0.07143 um for NA 1.4 at 400 nm";
+        assertTrue(err.toString(StandardCharsets.UTF_8).contains(warning), err.toString(StandardCharsets.UTF_8));
+        assertTrue(Files.readString(rec).contains(warning), Files.readString(rec));
+    }
 }
