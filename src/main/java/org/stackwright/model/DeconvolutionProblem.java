@@ -96,7 +96,7 @@ public final class DeconvolutionProblem {
 
     /**
      * @param data camera data (ADU), not modified; non-finite pixels get no likelihood
-     * @param psf the PSF at the data's voxel size (odd sizes, unit sum: see {@code solve.PsfCheck}); not modified
+     * @param psf the PSF at the data's voxel size (odd sizes, unit sum: see {@code psf.PsfChecks}); not modified
      * @param mask pixels that carry no likelihood (nonzero = untrusted), one per data voxel, or null
      * @param boundary how the edges are treated
      * @param camera offset, background, gain and read noise

@@ -9,10 +9,16 @@ import java.util.Locale;
  * <p>Each operation estimates what it will allocate (e.g. {@link #floats} of the padded grid times the number of
  * work buffers) and calls {@link #require}. The estimate is compared with the memory still free for Java: the
  * maximum heap minus what is in use now. That is conservative when garbage is waiting to be collected.
+ *
+ * <p>The system property {@value #LIMIT_PROPERTY} (megabytes) lowers the memory a run may use below the heap, for
+ * a shared machine that runs several jobs at once, and for tests of the refusal without a huge image.
  */
 public final class MemoryCheck {
 
     private static final double MB = 1024.0 * 1024.0;
+
+    /** System property: the most memory, in MB, a run may use (optional; never more than the heap). */
+    public static final String LIMIT_PROPERTY = "stackwright.memory-limit-mb";
 
     private MemoryCheck() {
     }
@@ -25,7 +31,21 @@ public final class MemoryCheck {
     /** @return bytes still available to Java: maximum heap minus the heap in use */
     public static long available() {
         Runtime rt = Runtime.getRuntime();
-        return rt.maxMemory() - (rt.totalMemory() - rt.freeMemory());
+        return Math.min(rt.maxMemory() - (rt.totalMemory() - rt.freeMemory()), limit());
+    }
+
+    /** @return the memory limit set by {@value #LIMIT_PROPERTY} in bytes, or the maximum heap when unset */
+    static long limit() {
+        long max = Runtime.getRuntime().maxMemory();
+        String mb = System.getProperty(LIMIT_PROPERTY);
+        if (mb == null || mb.isBlank()) {
+            return max;
+        }
+        try {
+            return Math.min(max, (long) (Double.parseDouble(mb.trim()) * MB));
+        } catch (NumberFormatException e) {
+            throw new IllegalArgumentException(LIMIT_PROPERTY + " = '" + mb + "' is not a number; give megabytes");
+        }
     }
 
     /**
@@ -36,7 +56,20 @@ public final class MemoryCheck {
      * @throws IllegalArgumentException giving both numbers and what to do
      */
     public static void require(String what, long bytes) {
-        require(what, bytes, available(), Runtime.getRuntime().maxMemory());
+        long have = available();
+        if (bytes > have) {
+            System.gc();
+            have = available();
+        }
+        try {
+            require(what, bytes, have, limit());
+        } catch (IllegalArgumentException e) {
+            if (System.getProperty(LIMIT_PROPERTY) == null) {
+                throw e;
+            }
+            throw new IllegalArgumentException(e.getMessage() + " (the limit is lowered by -D" + LIMIT_PROPERTY + "="
+                    + System.getProperty(LIMIT_PROPERTY) + ")");
+        }
     }
 
     /** As {@link #require(String, long)} with the available and maximum heap given (for tests). */

@@ -64,6 +64,15 @@ public final class DeconvolveCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "noise")
     private String noise;
 
+    @Parameter(persist = false, required = false, label = "na")
+    private Double na;
+
+    @Parameter(persist = false, required = false, label = "wavelength")
+    private Double wavelength;
+
+    @Parameter(persist = false, required = false, label = "immersion-index")
+    private Double immersionIndex;
+
     @Parameter(persist = false, required = false, label = "record")
     private File record;
 

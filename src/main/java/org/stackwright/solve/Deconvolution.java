@@ -6,14 +6,20 @@ import java.util.List;
 import java.util.Map;
 
 import org.stackwright.model.DeconvolutionProblem;
+import org.stackwright.op.InputChecks;
+import org.stackwright.op.MaskChecks;
+import org.stackwright.op.MemoryCheck;
 import org.stackwright.op.RunContext;
+import org.stackwright.psf.PsfChecks;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
 
 /**
- * Runs one deconvolution from camera data, a PSF and settings: prepares the PSF, estimates the background when
- * asked, checks memory, builds the {@link DeconvolutionProblem}, runs the solver and writes the run record. Used
- * by the {@code deconvolve} operation, the demo and the benchmark; no ImageJ needed.
+ * Runs one deconvolution from camera data, a PSF and settings: checks the pixels ({@link InputChecks}: NaN and
+ * infinite pixels are masked with a warning, joined to the caller's mask), prepares the PSF ({@link PsfChecks}),
+ * estimates the background when asked, checks memory ({@link MemoryCheck}), builds the
+ * {@link DeconvolutionProblem}, runs the solver and writes the run record. Used by the {@code deconvolve}
+ * operation, the demo and the benchmark; no ImageJ needed.
  */
 public final class Deconvolution {
 
@@ -30,20 +36,22 @@ public final class Deconvolution {
 
     /**
      * @param data camera data, not modified
-     * @param psf the PSF as read (any voxel size; prepared by {@link PsfCheck}), not modified
+     * @param psf the PSF as read (any voxel size; checked and prepared by {@link PsfChecks#prepare}), not modified
      * @param psfName where the PSF came from, for the record
-     * @param mask untrusted pixels (nonzero), one per data voxel, or null
+     * @param mask untrusted pixels (nonzero), one per data voxel, or null (checked by {@link MaskChecks#check}
+     *     when it comes from the user)
      * @param s settings
      * @param ctx threads, progress, cancel, warnings
      * @param listener told about each iteration
      */
     public static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
             RunContext ctx, IterationListener listener) {
-        List<String> notes = new ArrayList<>();
-        Volume p = PsfCheck.prepare(psf, data.voxel(), data.depth(), m -> {
-            notes.add(m);
-            ctx.warn(m);
-        });
+        InputChecks.Scan scan = InputChecks.check("input", data, ctx);
+        mask = MaskChecks.union(mask, scan.nonFiniteMask());
+        data = InputChecks.finiteCopy(data, scan);
+        int warned = ctx.warnings().size();
+        Volume p = PsfChecks.prepare("psf", psf, data, ctx);
+        List<String> notes = new ArrayList<>(ctx.warnings().subList(warned, ctx.warnings().size()));
         double bg = s.background();
         boolean estimated = Double.isNaN(bg);
         if (estimated) {
@@ -54,8 +62,10 @@ public final class Deconvolution {
                 ? DeconvolutionProblem.Boundary.PERIODIC : DeconvolutionProblem.Boundary.EXTENDED;
         Solver solver = s.solver();
         long grid = gridVoxels(data, p, boundary);
-        long need = MemoryCheck.estimate(grid, solver.gridArrays(), data.size());
-        MemoryCheck.require(need, "the image " + data.shape() + " (grid " + gridShape(data, p, boundary) + ")");
+        long need = memoryEstimate(grid, solver.gridArrays(), data.size());
+        MemoryCheck.require("deconvolve of " + data.shape() + " (grid " + gridShape(data, p, boundary)
+                + (boundary == DeconvolutionProblem.Boundary.EXTENDED ? "; --boundary periodic needs a smaller grid" : "")
+                + ")", need);
         ctx.progress(0, "preparing " + s.method());
         Solution sol;
         DeconvolutionProblem problem;
@@ -103,6 +113,24 @@ public final class Deconvolution {
         r.put("peak_memory_estimate_bytes", need);
         r.put("result_units", "ADU above the camera offset (background removed)");
         return new Outcome(result, sol, r);
+    }
+
+    /**
+     * Grid-sized float arrays every run holds besides the solver's own: the normalisation (1), the transfer
+     * function and the FFT work spectrum (2 x (nx/2+1)/nx, about 2). Image-sized arrays (input, data in
+     * photo-electrons, output) are counted separately.
+     */
+    static final double PROBLEM_ARRAYS = 3;
+
+    /**
+     * @param gridVoxels voxels of the padded grid
+     * @param solverArrays grid-sized float arrays the solver allocates
+     * @param imageVoxels voxels of the image (input and output copies)
+     * @return estimated peak bytes of a run
+     */
+    static long memoryEstimate(long gridVoxels, double solverArrays, long imageVoxels) {
+        double floats = gridVoxels * (PROBLEM_ARRAYS + solverArrays) + 3.0 * imageVoxels;
+        return (long) (floats * Float.BYTES);
     }
 
     private static int[] gridDims(Volume data, Volume p, DeconvolutionProblem.Boundary b) {

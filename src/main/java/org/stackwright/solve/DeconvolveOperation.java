@@ -7,11 +7,15 @@ import java.util.Map;
 
 import ij.ImagePlus;
 
+import org.stackwright.op.Limits;
+import org.stackwright.op.MaskChecks;
 import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
 import org.stackwright.op.RunContext;
 import org.stackwright.op.Values;
+import org.stackwright.psf.PsfSettings;
+import org.stackwright.psf.SamplingCheck;
 import org.stackwright.volume.ImagePlusAdapter;
 import org.stackwright.volume.Volume;
 
@@ -40,7 +44,7 @@ public final class DeconvolveOperation implements Operation {
                 Param.image("psf", true, "the PSF (odd sizes, centre at n/2; resampled when its voxel size differs)"),
                 Param.outputImage("output", true, "the deconvolved estimate, 32-bit, ADU above the offset"),
                 Param.choice("method", "richardson-lucy", DeconvolutionSettings.METHODS, "deconvolution method"),
-                Param.integer("iterations", 50, 1, 100_000, "maximum number of iterations (wiener: ignored)"),
+                Limits.iterations("iterations", 50, "maximum number of iterations (wiener: ignored)"),
                 Param.choice("stop", "noise", List.of("fixed", "change", "noise"),
                         "fixed = all iterations; change = relative change below tolerance; noise = data fit reaches "
                                 + "its expected value (discrepancy principle)"),
@@ -56,6 +60,9 @@ public final class DeconvolveOperation implements Operation {
                         "extended = object larger than the image, no wrap-around; periodic = wraps around (smaller, faster)"),
                 Param.choice("acceleration", "on", List.of("on", "off"), "vector extrapolation for richardson-lucy"),
                 Param.choice("noise", "poisson", List.of("poisson", "gaussian"), "data term of total-variation"),
+                Param.number("na", null, 0.01, 1.7, "", "numerical aperture, for the sampling check (optional)"),
+                Param.number("wavelength", null, 200, 2000, "nm", "emission wavelength, for the sampling check (optional)"),
+                Param.number("immersion-index", null, 1.0, 2.0, "", "immersion index, for the sampling check (optional)"),
                 Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history"));
     }
 
@@ -75,10 +82,11 @@ public final class DeconvolveOperation implements Operation {
             psf = psf.withVoxel(data.voxel());
             ctx.warn("psf: '" + psfImp.getTitle() + "' has no calibration; taken to have the image's voxel size " + data.voxel());
         }
+        samplingCheck(v, data, ctx);
         byte[] mask = null;
         ImagePlus m = v.image("mask");
         if (m != null) {
-            mask = mask(ImagePlusAdapter.toVolume(m), data);
+            mask = MaskChecks.check("mask", ImagePlusAdapter.toVolume(m), data, ctx);
         }
         Deconvolution.Outcome out = Deconvolution.run(data, psf, psfImp.getTitle(), mask, s, ctx, IterationListener.NONE);
         Result r = new Result();
@@ -125,19 +133,23 @@ public final class DeconvolveOperation implements Operation {
                 lambda, v.choice("boundary"), v.choice("acceleration").equals("on"), v.choice("noise"));
     }
 
-    private static byte[] mask(Volume m, Volume data) {
-        if (m.width() != data.width() || m.height() != data.height()
-                || (m.depth() != data.depth() && m.depth() != 1)) {
-            throw new IllegalArgumentException("mask is " + m.shape() + " but the input is " + data.shape()
-                    + "; give a mask of the same size (or one plane, used for every plane)");
+    /**
+     * Compares the image's voxel size with the Nyquist limits of the optics when na, wavelength and
+     * immersion-index are all given (no defaults: the optics are the user's to state). The widefield limits are
+     * used, the loosest of the models, so a warning means undersampled for any of them.
+     */
+    static void samplingCheck(Values v, Volume data, RunContext ctx) {
+        boolean na = v.given("na");
+        boolean wl = v.given("wavelength");
+        boolean n = v.given("immersion-index");
+        if (na && wl && n) {
+            PsfSettings optics = PsfSettings.matched(v.number("na"), v.number("wavelength"),
+                    v.number("immersion-index"), data.voxel(), 1, 1, 1);
+            optics.check("widefield");
+            SamplingCheck.warnings(data.voxel(), optics, "widefield", data.depth() > 1).forEach(ctx::warn);
+        } else if (na || wl || n) {
+            ctx.warn("sampling not checked: give na, wavelength and immersion-index together to compare the voxel size"
+                    + " with the Nyquist limit");
         }
-        byte[] out = new byte[data.size()];
-        int plane = data.width() * data.height();
-        float[] md = m.data();
-        for (int i = 0; i < out.length; i++) {
-            float f = m.depth() == 1 ? md[i % plane] : md[i];
-            out[i] = (byte) (f != 0 ? 1 : 0);
-        }
-        return out;
     }
 }

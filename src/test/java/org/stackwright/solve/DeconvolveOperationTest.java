@@ -1,7 +1,6 @@
 package org.stackwright.solve;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
-import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.io.ByteArrayOutputStream;
@@ -9,7 +8,6 @@ import java.io.PrintStream;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
-import java.util.ArrayList;
 import java.util.List;
 
 import org.junit.jupiter.api.Test;
@@ -83,39 +81,46 @@ class DeconvolveOperationTest {
         }
     }
 
+    /**
+     * The PSF goes through the shared {@code psf.PsfChecks} (refusals are rows of {@code cli.DeconvolveBadInputTest});
+     * here: a PSF at a finer voxel size is resampled to the image's, keeps its peak on the centre voxel, and the
+     * change is named in the run record.
+     */
     @Test
-    void psfIsCheckedPaddedResampledAndNormalised() {
+    void psfAtAnotherVoxelSizeIsResampledAndRecorded() {
         VoxelSize v = new VoxelSize(0.1, 0.1, 0.25);
-        Volume nan = Volume.zeros(5, 5, 3, v);
-        nan.set(2, 2, 1, Float.NaN);
-        IllegalArgumentException e = assertThrows(IllegalArgumentException.class, () -> PsfCheck.prepare(nan, v, 5, m -> { }));
-        assertTrue(e.getMessage().startsWith("psf"), e.getMessage());
-        Volume zero = Volume.zeros(5, 5, 3, v);
-        assertThrows(IllegalArgumentException.class, () -> PsfCheck.prepare(zero, v, 5, m -> { }));
-        List<String> notes = new ArrayList<>();
-        Volume even = Volume.zeros(4, 5, 3, v);
-        even.set(2, 2, 1, 3f);
-        even.set(0, 0, 0, -0.01f);
-        Volume p = PsfCheck.prepare(even, v, 5, notes::add);
-        assertEquals(5, p.width());
-        assertEquals(1.0, p.sum(), 1e-6);
-        assertEquals(p.max(), p.get(2, 2, 1));
-        assertEquals(2, notes.size(), notes.toString());
-        notes.clear();
+        Volume data = Volume.zeros(24, 24, 12, v);
+        java.util.Arrays.fill(data.data(), 5f);
+        data.set(12, 12, 6, 200f);
         Volume fine = org.stackwright.psf.GaussianPsf.sampled(0.2, 0.5, new VoxelSize(0.05, 0.05, 0.125), 21, 21, 17);
-        Volume r = PsfCheck.prepare(fine, v, 5, notes::add);
-        assertTrue(r.voxel().sameAs(v));
-        assertEquals(11, r.width());
-        assertEquals(9, r.depth());
-        assertEquals(r.max(), r.get(5, 5, 4));
-        assertTrue(notes.get(0).contains("resampled"), notes.toString());
+        org.stackwright.op.RunContext ctx = org.stackwright.op.RunContext.quiet(1);
+        Deconvolution.Outcome o = Deconvolution.run(data, fine, "fine.tif", null,
+                DeconvolutionSettings.richardsonLucy(new Stopping(StopRule.FIXED, 2, 1e-3), false), ctx,
+                IterationListener.NONE);
+        @SuppressWarnings("unchecked")
+        java.util.Map<String, Object> psf = (java.util.Map<String, Object>) o.record().get("psf");
+        assertEquals("11x11x9", psf.get("shape_used"));
+        List<?> changes = (List<?>) psf.get("changes");
+        assertTrue(changes.size() == 1 && changes.get(0).toString().contains("resampled"), changes.toString());
+        assertTrue(ctx.warnings().get(0).contains("resampled"), ctx.warnings().toString());
     }
 
+    /**
+     * With the optics given, an undersampled stack gets the Nyquist warning on stderr and in the run record. Test
+     * stack: 0.1 um pixels, 0.25 um steps; NA 1.4 at 400 nm in oil (1.518) allows at most 400 / (4 x 1.4) = 71.4 nm
+     * pixels (common practice: the sampling theorem at the widefield OTF cut-off 2 NA / lambda).
+     */
     @Test
-    void tooLittleMemoryIsRefusedWithNeedAndAvailable() {
-        IllegalArgumentException e = assertThrows(IllegalArgumentException.class,
-                () -> MemoryCheck.require(Long.MAX_VALUE / 2, "the image 2000x2000x500"));
-        assertTrue(e.getMessage().contains("2000x2000x500") && e.getMessage().contains("needs about")
-                && e.getMessage().contains("free"), e.getMessage());
+    void undersamplingIsWarnedAndRecorded() throws Exception {
+        Path[] f = files();
+        Path rec = dir.resolve("optics.json");
+        ByteArrayOutputStream err = new ByteArrayOutputStream();
+        int code = cli(err, "deconvolve", "--input", f[0].toString(), "--psf", f[1].toString(), "--output",
+                dir.resolve("optics.tif").toString(), "--iterations", "2", "--stop", "fixed", "--offset", "100",
+                "--na", "1.4", "--wavelength", "400", "--immersion-index", "1.518", "--record", rec.toString());
+        assertEquals(Main.OK, code, err.toString(StandardCharsets.UTF_8));
+        String warning = "the pixel size 0.1 um is larger than the Nyquist limit 0.07143 um for NA 1.4 at 400 nm";
+        assertTrue(err.toString(StandardCharsets.UTF_8).contains(warning), err.toString(StandardCharsets.UTF_8));
+        assertTrue(Files.readString(rec).contains(warning), Files.readString(rec));
     }
 }

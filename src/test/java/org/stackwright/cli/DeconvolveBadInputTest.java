@@ -1,0 +1,299 @@
+package org.stackwright.cli;
+
+import static org.junit.jupiter.api.Assertions.assertArrayEquals;
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.io.ByteArrayOutputStream;
+import java.io.OutputStream;
+import java.io.PrintStream;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.SplittableRandom;
+import java.util.concurrent.atomic.AtomicInteger;
+import java.util.function.Consumer;
+import java.util.regex.Matcher;
+import java.util.regex.Pattern;
+import java.util.stream.Stream;
+
+import org.junit.jupiter.api.AfterAll;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.params.ParameterizedTest;
+import org.junit.jupiter.params.provider.MethodSource;
+import org.stackwright.op.MemoryCheck;
+import org.stackwright.parallel.Workers;
+import org.stackwright.psf.GaussianPsf;
+import org.stackwright.simulate.Camera;
+import org.stackwright.simulate.Simulation;
+import org.stackwright.simulate.Specimen;
+import org.stackwright.volume.TiffFiles;
+import org.stackwright.volume.Volume;
+import org.stackwright.volume.VoxelSize;
+
+/**
+ * The bad-input cases of the data-safety issue for {@code deconvolve}, through the command line, in the row form
+ * of {@link BadInputTable} (exit code and message fragment naming the parameter, the value and what is allowed, or
+ * the warning of a documented safe behaviour); then: no input file changed, no temporary file left. Also a cancel
+ * at a random iteration of a real deconvolution leaves no file, and 1 and 2 threads write bit-identical files.
+ */
+class DeconvolveBadInputTest {
+
+    private static final VoxelSize VOXEL = new VoxelSize(0.1, 0.1, 0.3);
+    private static final Fixtures FILES = new Fixtures();
+    private static final Map<Path, String> HASHES = new LinkedHashMap<>();
+    private static final Volume GOOD = cells(32, 32, 12, 5);
+
+    private static String input(String name, Volume v) {
+        Path p = FILES.path(name);
+        if (!Files.exists(p)) {
+            TiffFiles.write(v, p, false);
+            HASHES.put(p, Fixtures.sha256(p));
+        }
+        return p.toString();
+    }
+
+    /** Invented cells blurred by a Gaussian PSF, offset 100 ADU, Poisson noise and read noise 2 ADU. */
+    private static Volume cells(int nx, int ny, int nz, long seed) {
+        try (Workers w = new Workers(1)) {
+            return Simulation.run(new Simulation.Plan(nx, ny, nz, VOXEL, Specimen.Contents.cellField(), psfVolume(),
+                    10, new Camera(1, 100, 2, 65535), 0, 1, 1, 4, seed), w).data();
+        }
+    }
+
+    private static Volume psfVolume() {
+        return GaussianPsf.sampled(0.15, 0.35, VOXEL, 9, 9, 7);
+    }
+
+    private static Volume psf(int w, int h, int d, VoxelSize voxel, Consumer<float[]> edit) {
+        Volume p = GaussianPsf.sampled(0.15, 0.35, voxel, w, h, d);
+        float[] copy = p.data().clone();
+        edit.accept(copy);
+        return p.withData(copy);
+    }
+
+    private static String out(String name) {
+        return FILES.path(name).toString();
+    }
+
+    /** A deconvolve row: 4 fixed iterations on the good stack; the extra options replace or add to those. */
+    private static BadInputTable.Case row(String name, int exit, String fragment, String... extra) {
+        Map<String, String> o = new LinkedHashMap<>();
+        o.put("--input", input("cells.tif", GOOD));
+        o.put("--psf", input("psf.tif", psfVolume()));
+        o.put("--output", out(name.replaceAll("[^A-Za-z0-9]+", "-") + ".tif"));
+        o.put("--iterations", "4");
+        o.put("--stop", "fixed");
+        o.put("--offset", "100");
+        for (int i = 0; i < extra.length; i++) {
+            boolean flag = i + 1 == extra.length || extra[i + 1].startsWith("--");
+            o.put(extra[i], flag ? null : extra[++i]);
+        }
+        List<String> a = new ArrayList<>(List.of("deconvolve"));
+        o.forEach((k, v) -> {
+            a.add(k);
+            if (v != null) {
+                a.add(v);
+            }
+        });
+        return BadInputTable.cli(name, exit, fragment, a.toArray(String[]::new));
+    }
+
+    static Stream<BadInputTable.Case> rows() {
+        Volume good = GOOD;
+        List<BadInputTable.Case> t = new ArrayList<>();
+        // iterations and regularization (op.Limits, Param ranges)
+        t.add(row("iterations 0", 2, "iterations = 0 is out of range; allowed 1 to 10000", "--iterations", "0"));
+        t.add(row("iterations negative", 2, "iterations = -3 is out of range; allowed 1 to 10000", "--iterations", "-3"));
+        t.add(row("iterations above the cap", 2, "iterations = 10001 is out of range; allowed 1 to 10000",
+                "--iterations", "10001"));
+        t.add(row("regularization negative", 2, "regularization = -0.1 is out of range", "--method",
+                "richardson-lucy-tv", "--regularization", "-0.1"));
+        t.add(row("regularization 0 for wiener", 2, "regularization = 0.0 is not allowed for wiener; give a positive number",
+                "--method", "wiener", "--regularization", "0"));
+        // the PSF (psf.PsfChecks)
+        t.add(row("PSF all zeros", 2, "psf has no positive value",
+                "--psf", input("psf-zero.tif", psf(9, 9, 7, VOXEL, d -> java.util.Arrays.fill(d, 0)))));
+        t.add(row("PSF negative", 2, "psf has 566 negative values totalling",
+                "--psf", input("psf-negative.tif", psf(9, 9, 7, VOXEL, d -> {
+                    for (int i = 0; i < d.length; i++) {
+                        d[i] = i == d.length / 2 ? d[i] : -d[i] - 1e-3f;
+                    }
+                }))));
+        t.add(row("PSF small negative values: set to 0", 0, "psf: 1 small negative values set to 0",
+                "--psf", input("psf-small-negative.tif", psf(9, 9, 7, VOXEL, d -> d[0] = -1e-6f))));
+        t.add(row("PSF NaN", 2, "psf has 1 NaN or infinite values",
+                "--psf", input("psf-nan.tif", psf(9, 9, 7, VOXEL, d -> d[5] = Float.NaN))));
+        t.add(row("PSF even-sized", 2, "psf is 8x9x7; allowed: odd sizes only",
+                "--psf", input("psf-even.tif", psf(8, 9, 7, VOXEL, d -> { }))));
+        t.add(row("PSF off-centre", 2, "psf has its peak at voxel (0, 0, 0) but its centre voxel is (4, 4, 3)",
+                "--psf", input("psf-off.tif", psf(9, 9, 7, VOXEL, d -> d[0] = 1))));
+        t.add(row("PSF larger than the image", 2, "psf is 33x9x7 at the image's voxel size but the image is only 32x32x12",
+                "--psf", input("psf-large.tif", psf(33, 9, 7, VOXEL, d -> { }))));
+        t.add(row("PSF with another voxel size: resampled with a note", 0, "psf: voxel size",
+                "--psf", input("psf-fine.tif", psf(17, 17, 13, new VoxelSize(0.05, 0.05, 0.15), d -> { }))));
+        t.add(row("2D PSF for a 3D stack", 2, "psf is 2D (9x9x1) but the image is a 3D stack (32x32x12)",
+                "--psf", input("psf-2d.tif", psf(9, 9, 1, VOXEL, d -> { }))));
+        t.add(row("3D PSF for a 2D image", 2, "psf is 3D (9x9x7) but the image is 2D (32x32x1)",
+                "--input", input("cells-2d.tif", Volume.zeros(32, 32, 1, VOXEL).withData(
+                        java.util.Arrays.copyOf(good.data(), 32 * 32)))));
+        // the mask (op.MaskChecks)
+        t.add(row("mask of the wrong size", 2, "mask is 8x8x1 but the image is 32x32x12; allowed: the same size, or 32x32x1",
+                "--mask", input("mask-small.tif", Volume.zeros(8, 8, 1, VOXEL))));
+        t.add(row("empty mask: nothing excluded", 0, "mask marks no pixel (all 0); nothing is excluded",
+                "--mask", input("mask-empty.tif", Volume.zeros(32, 32, 1, VOXEL))));
+        Volume all = Volume.zeros(32, 32, 1, VOXEL);
+        java.util.Arrays.fill(all.data(), 255);
+        t.add(row("mask covering everything", 2, "mask marks all 12288 pixels as untrusted",
+                "--mask", input("mask-all.tif", all)));
+        // the pixels (op.InputChecks)
+        float[] nan = good.data().clone();
+        nan[100] = Float.NaN;
+        nan[2000] = Float.POSITIVE_INFINITY;
+        t.add(row("NaN and infinite pixels: masked with a warning", 0,
+                "input: 2 of 12288 pixels are NaN or infinite; they are treated as untrusted",
+                "--input", input("cells-nan.tif", good.withData(nan))));
+        // camera settings
+        t.add(row("background negative", 2, "background = '-5' is not allowed; give a number of ADU (0 or more) or auto",
+                "--background", "-5"));
+        t.add(row("background not a number", 2, "background = 'dark' is not allowed", "--background", "dark"));
+        // optics for the sampling check
+        t.add(row("NA above the immersion index", 2, "na = 1.4 must be smaller than immersion-index = 1.33",
+                "--na", "1.4", "--wavelength", "520", "--immersion-index", "1.33"));
+        t.add(row("undersampled stack: a warning", 0, "the z step 0.3 um is larger than the Nyquist limit",
+                "--na", "1.4", "--wavelength", "520", "--immersion-index", "1.518"));
+        t.add(row("optics given in part: sampling not checked", 0, "sampling not checked: give na, wavelength and"
+                + " immersion-index together", "--na", "1.4"));
+        // files
+        t.add(row("output equal to input", 2, "is the same file as --input; the input is never overwritten",
+                "--output", input("cells.tif", good), "--overwrite"));
+        t.add(memoryRow());
+        return t.stream();
+    }
+
+    /**
+     * The memory refusal through the command line: {@link MemoryCheck#LIMIT_PROPERTY} lowers the memory a run may
+     * use to 2 MB, below the estimate of this 64x64x16 run (about 5 MB), so no huge image is needed.
+     */
+    private static BadInputTable.Case memoryRow() {
+        BadInputTable.Case inner = row("allocation larger than the memory", 2, "MB of memory but only 2 MB are free for Java (maximum heap 2 MB); give Java more memory (java -Xmx..., or"
+                + " Edit>Options>Memory in ImageJ) or use a smaller image (the limit is lowered by"
+                + " -Dstackwright.memory-limit-mb=2)",
+                "--input", input("cells-64.tif", cells(64, 64, 16, 6)));
+        return new BadInputTable.Case(inner.name(), () -> {
+            System.setProperty(MemoryCheck.LIMIT_PROPERTY, "2");
+            try {
+                return inner.action().get();
+            } finally {
+                System.clearProperty(MemoryCheck.LIMIT_PROPERTY);
+            }
+        }, inner.exit(), inner.fragment());
+    }
+
+    @ParameterizedTest(name = "{0}")
+    @MethodSource("rows")
+    void badInput(BadInputTable.Case c) {
+        BadInputTable.Outcome o = c.action().get();
+        assertEquals(c.exit(), o.exit(), c.name() + ": exit code; messages:\n" + o.messages());
+        assertTrue(o.messages().contains(c.fragment()), c.name() + ": message should contain\n  " + c.fragment()
+                + "\nbut was\n  " + o.messages());
+        assertFalse(o.messages().contains("Exception") || o.messages().contains("\tat "),
+                c.name() + ": an exception reached the user: " + o.messages());
+    }
+
+    /** Reports, to a test, the highest iteration the command line's progress lines have named so far. */
+    private static final class IterationWatch extends OutputStream {
+        private static final Pattern ITERATION = Pattern.compile("iteration (\\d+) of");
+        private final StringBuilder text = new StringBuilder();
+        private final AtomicInteger last = new AtomicInteger();
+
+        @Override
+        public synchronized void write(int b) {
+            text.append((char) b);
+            if (b == '\n') {
+                Matcher m = ITERATION.matcher(text);
+                while (m.find()) {
+                    last.set(Math.max(last.get(), Integer.parseInt(m.group(1))));
+                }
+            }
+        }
+
+        synchronized String text() {
+            return text.toString();
+        }
+    }
+
+    @Test
+    void cancelAtARandomIterationLeavesNoFile() throws Exception {
+        String in = input("cancel-cells.tif", cells(48, 48, 16, 7));
+        SplittableRandom r = new SplittableRandom(12);
+        for (int trial = 0; trial < 3; trial++) {
+            Path out = FILES.path("cancelled-" + trial + ".tif");
+            Path record = FILES.path("cancelled-" + trial + ".json");
+            IterationWatch watch = new IterationWatch();
+            AtomicInteger code = new AtomicInteger(-1);
+            Thread t = new Thread(() -> code.set(Main.run(new String[] {"deconvolve", "--input", in, "--psf",
+                input("psf.tif", psfVolume()), "--output", out.toString(), "--record", record.toString(),
+                "--iterations", "5000", "--stop", "fixed", "--offset", "100", "--acceleration", "off",
+                "--threads", "2"}, new PrintStream(new ByteArrayOutputStream()),
+                    new PrintStream(watch, true, StandardCharsets.UTF_8))));
+            t.start();
+            long until = System.nanoTime() + 60_000_000_000L;
+            while (watch.last.get() < 1 && t.isAlive() && System.nanoTime() < until) {
+                Thread.sleep(2);
+            }
+            Thread.sleep(r.nextInt(500));
+            int at = watch.last.get();
+            t.interrupt();
+            t.join(30_000);
+            assertFalse(t.isAlive(), "the run did not stop");
+            assertTrue(at >= 1 && at < 5000, "the cancel should come mid-run, came after iteration " + at);
+            assertEquals(Main.FAILED, code.get(), watch.text());
+            assertTrue(watch.text().contains("cancelled; no output written"), watch.text());
+            assertFalse(Files.exists(out), "output written after cancel at iteration " + at);
+            assertFalse(Files.exists(record), "record written after cancel at iteration " + at);
+            assertEquals(List.of(), Fixtures.temporaryFiles(FILES.dir));
+        }
+    }
+
+    /** The determinism rule: fixed-block reductions make 1 and 2 threads give the same bytes, for every method. */
+    @Test
+    void oneAndTwoThreadsWriteBitIdenticalFiles() throws Exception {
+        String in = input("cells.tif", GOOD);
+        String psf = input("psf.tif", psfVolume());
+        for (String method : List.of("richardson-lucy", "richardson-lucy-tv", "total-variation", "wiener")) {
+            byte[][] files = new byte[2][];
+            for (int threads = 1; threads <= 2; threads++) {
+                Path out = FILES.path("threads-" + method + "-" + threads + ".tif");
+                ByteArrayOutputStream err = new ByteArrayOutputStream();
+                int code = Main.run(new String[] {"deconvolve", "--input", in, "--psf", psf, "--output", out.toString(),
+                    "--method", method, "--iterations", "6", "--stop", "fixed", "--offset", "100", "--threads",
+                    Integer.toString(threads)}, new PrintStream(new ByteArrayOutputStream()),
+                        new PrintStream(err, true, StandardCharsets.UTF_8));
+                assertEquals(Main.OK, code, err.toString(StandardCharsets.UTF_8));
+                files[threads - 1] = Files.readAllBytes(out);
+            }
+            assertArrayEquals(files[0], files[1], method + ": 1 and 2 threads wrote different files");
+        }
+    }
+
+    @AfterAll
+    static void nothingChangedNothingLeft() {
+        try (Fixtures x = FILES) {
+            Map<Path, String> changed = new LinkedHashMap<>();
+            HASHES.forEach((p, h) -> {
+                String now = Files.exists(p) ? Fixtures.sha256(p) : "missing";
+                if (!now.equals(h)) {
+                    changed.put(p, h + " -> " + now);
+                }
+            });
+            assertTrue(changed.isEmpty(), "inputs modified: " + changed);
+            assertTrue(Fixtures.temporaryFiles(x.dir).isEmpty(), "temporary files left: " + Fixtures.temporaryFiles(x.dir));
+        }
+    }
+}
