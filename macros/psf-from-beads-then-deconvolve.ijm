@@ -13,7 +13,7 @@
 // Caution: deconvolved pixels are estimates, not measurements; follow your facility's validated protocol.
 
 BEAD_DIAMETER = 0;     // bead diameter in um to correct for (0 = no correction)
-PSF_SIZE = "25x25x15"; // extent of the averaged PSF in voxels (odd sizes; beads nearer an edge are rejected)
+PSF_SIZE = "25x25x21"; // extent of the averaged PSF in voxels (odd sizes; beads nearer an edge are rejected)
 OFFSET = 100;          // camera offset (ADU)
 READ_NOISE = 2;        // camera read noise (ADU, standard deviation): the noise-based stop needs it
 ITERATIONS = 30;

@@ -10,8 +10,8 @@ mkdir -p "$out"
 sw simulate --overwrite --specimen cells --size 128x128x32 --pixel 0.08 --step 0.2 --na 1.0 --wavelength 520 \
    --immersion-index 1.33 --background 10 --gain 1 --offset 100 --read-noise 2 --bits 16 --seed 1 \
    --output "$out/demo-cells.tif" --truth "$out/demo-cells-truth.tif" --psf-output "$out/demo-psf.tif"
-# 3D bead stack for PSF measurement: 24 sub-resolution beads (some near an edge or each other, as on a real slide).
-sw simulate --overwrite --specimen beads --beads 24 --size 128x128x48 --pixel 0.08 --step 0.2 --na 1.0 \
+# 3D bead slide for PSF measurement: 12 sub-resolution beads dried in one layer (some too close to each other).
+sw simulate --overwrite --specimen beads --beads 12 --size 128x128x48 --pixel 0.08 --step 0.2 --na 1.0 \
    --wavelength 520 --immersion-index 1.33 --background 5 --offset 100 --read-noise 2 --bits 16 --seed 2 \
    --output "$out/demo-beads.tif"
 # 2D tiled acquisition, 3 rows x 4 columns with 4-pixel seams, and 20 hot, 20 dead and 20 stuck pixels.

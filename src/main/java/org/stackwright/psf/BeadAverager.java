@@ -81,8 +81,10 @@ final class BeadAverager {
      * Support mask and no negatives (modifies v): the noise of the average is the median over voxels of the
      * standard error across beads (or, for a single bead, 1.4826 x the median absolute deviation of the box
      * faces), the average is smoothed with a Gaussian of 1.5 voxels (which divides white noise by about 12),
-     * and voxels more than one voxel away from where the smoothed average exceeds three of its noise levels are
-     * set to zero, as are negative voxels.
+     * and voxels where the smoothed average does not exceed three of its noise levels are set to zero, as are
+     * negative voxels. The support is not widened: clipping negatives leaves every pure-noise voxel kept with a
+     * mean of about 0.4 noise levels, and a one-voxel rim around the support held thousands of them, a floor that
+     * carried a quarter of the PSF's sum on the demo bead slide.
      */
     static void clean(Volume v, double standardError) {
         float[] d = v.data();
@@ -107,7 +109,7 @@ final class BeadAverager {
             for (int y = 0; y < v.height(); y++) {
                 for (int x = 0; x < v.width(); x++) {
                     int i = v.index(x, y, z);
-                    if (d[i] < 0 || !nearSupport(v, support, x, y, z)) {
+                    if (d[i] < 0 || !support[i]) {
                         d[i] = 0;
                     }
                 }
@@ -147,19 +149,6 @@ final class BeadAverager {
             }
         }
         return Arrays.copyOf(out, Math.max(1, k));
-    }
-
-    private static boolean nearSupport(Volume v, boolean[] support, int x, int y, int z) {
-        for (int k = Math.max(0, z - 1); k <= Math.min(v.depth() - 1, z + 1); k++) {
-            for (int j = Math.max(0, y - 1); j <= Math.min(v.height() - 1, y + 1); j++) {
-                for (int i = Math.max(0, x - 1); i <= Math.min(v.width() - 1, x + 1); i++) {
-                    if (support[v.index(i, j, k)]) {
-                        return true;
-                    }
-                }
-            }
-        }
-        return false;
     }
 
     /** Whole-voxel shift of the brightest voxel to the centre (zeros shifted in), then unit sum. */

@@ -60,12 +60,13 @@ public final class Specimen {
             double[] c = inside(rnd, sx, sy, sz, r + 0.3);
             shell(v, c, r, 0.12, contents.vesiclePhotons());
         }
-        // A bead slide (beads only) keeps its beads a fifth of the field away from every face, so that a PSF box
-        // around most of them fits inside the view; in a cell field beads may lie anywhere.
+        // A bead slide (beads only) has its beads dried onto the coverslip: one layer in the middle of the stack
+        // (sub-voxel jitter of +-0.1 um), 1.2 um or more from the sides, so that a PSF box around most of them fits
+        // inside the view; in a cell field beads may lie anywhere.
         boolean beadSlide = contents.filaments() == 0 && contents.vesicles() == 0 && contents.hazePhotons() == 0;
         for (int i = 0; i < contents.beads(); i++) {
             double[] c = beadSlide
-                    ? new double[] {fifth(rnd, sx), fifth(rnd, sy), nz == 1 ? uniform(rnd, sz, 0.5) : fifth(rnd, sz)}
+                    ? new double[] {uniform(rnd, sx, 1.2), uniform(rnd, sy, 1.2), nz == 1 ? uniform(rnd, sz, 0.5) : sz / 2 + 0.2 * (rnd.nextDouble() - 0.5)}
                     : inside(rnd, sx, sy, sz, 0.5);
             point(v, c, contents.beadPhotons());
         }
@@ -74,10 +75,6 @@ public final class Specimen {
 
     private static double[] inside(SplittableRandom rnd, double sx, double sy, double sz, double margin) {
         return new double[] {uniform(rnd, sx, margin), uniform(rnd, sy, margin), uniform(rnd, sz, margin)};
-    }
-
-    private static double fifth(SplittableRandom rnd, double extent) {
-        return extent / 5 + rnd.nextDouble() * extent * 3 / 5;
     }
 
     private static double uniform(SplittableRandom rnd, double extent, double margin) {
