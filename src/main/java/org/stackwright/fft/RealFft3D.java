@@ -43,6 +43,7 @@ public final class RealFft3D {
     /** vectorised line transforms along y and z (null when the size has a prime factor above 5) */
     private final LineFft[] ly;
     private final LineFft[] lz;
+    private final LineFft[] lx;
     /** per thread: re, im and two work arrays for up to LINES lines of the longer of y and z */
     private final float[][][] lineBuf;
 
@@ -74,7 +75,10 @@ public final class RealFft3D {
         ly = new LineFft[t];
         lz = new LineFft[t];
         lineBuf = new float[t][][];
+        lx = new LineFft[t];
+        boolean pairX = nx > 1 && FastSizes.isFast(nx);
         int longest = Math.max(ny > 1 && FastSizes.isFast(ny) ? ny : 0, nz > 1 && FastSizes.isFast(nz) ? nz : 0);
+        longest = Math.max(longest, pairX ? nx : 0);
         for (int i = 0; i < t; i++) {
             fx[i] = nx > 1 ? new FloatFFT_1D(nx) : null;
             fy[i] = ny > 1 ? new FloatFFT_1D(ny) : null;
@@ -84,6 +88,7 @@ public final class RealFft3D {
             bufZ[i] = new float[2 * nz * BLOCK];
             ly[i] = ny > 1 && FastSizes.isFast(ny) ? (i == 0 ? new LineFft(ny) : ly[0]) : null;
             lz[i] = nz > 1 && FastSizes.isFast(nz) ? (i == 0 ? new LineFft(nz) : lz[0]) : null;
+            lx[i] = pairX ? (i == 0 ? new LineFft(nx) : lx[0]) : null;
             if (longest > 0) {
                 lineBuf[i] = new float[4][longest * LINES];
             }
@@ -125,6 +130,11 @@ public final class RealFft3D {
      */
     public void forward(float[] real, float[] spectrum) {
         checkLengths(real, spectrum);
+        if (lx[0] != null) {
+            xPairs(real, spectrum, true);
+            complexPasses(spectrum, true);
+            return;
+        }
         workers.forSlots(ny * nz, (slot, from, to) -> {
             float[] b = bufX[slot];
             for (int row = from; row < to; row++) {
@@ -143,6 +153,10 @@ public final class RealFft3D {
     public void inverse(float[] spectrum, float[] real) {
         checkLengths(real, spectrum);
         complexPasses(spectrum, false);
+        if (lx[0] != null) {
+            xPairs(real, spectrum, false);
+            return;
+        }
         workers.forSlots(ny * nz, (slot, from, to) -> {
             float[] b = bufX[slot];
             for (int row = from; row < to; row++) {
@@ -334,6 +348,96 @@ public final class RealFft3D {
                     for (int j = 0; j < count; j++) {
                         spec[p + 2 * j] = or[q + j];
                         spec[p + 2 * j + 1] = oi[q + j];
+                    }
+                }
+            }
+        });
+    }
+
+    /**
+     * The x pass for lengths 2^a 3^b 5^c: two real rows a, b make one complex line z = a + i b, and {@link LineFft}
+     * transforms LINES such lines at once. Forward: A_k = (Z_k + conj Z_{n-k}) / 2, B_k = (Z_k - conj Z_{n-k}) / 2i
+     * (the two-for-one real FFT; Brigham, The Fast Fourier Transform and its Applications, 1988, section 9.3).
+     * Inverse: Z_k = A_k + i B_k with A_{n-k} = conj A_k, and a = Re z, b = Im z; as in a real inverse DFT the
+     * imaginary parts of the k = 0 and (n even) k = n/2 coefficients are ignored. Rows are paired by their index
+     * (2p, 2p+1), whatever the thread count.
+     */
+    private void xPairs(float[] real, float[] spec, boolean forward) {
+        final int rows = ny * nz;
+        final int perTask = 2 * LINES;
+        final int tasks = (rows + perTask - 1) / perTask;
+        final int n = nx;
+        workers.forSlots(tasks, (slot, from, to) -> {
+            float[][] w = lineBuf[slot];
+            float[] re = w[0];
+            float[] im = w[1];
+            LineFft f = lx[slot];
+            for (int task = from; task < to; task++) {
+                int r0 = task * perTask;
+                int count = Math.min(perTask, rows - r0);
+                int width = (count + 1) / 2;
+                if (forward) {
+                    for (int j = 0; j < width; j++) {
+                        int ra = (r0 + 2 * j) * n;
+                        boolean hasB = 2 * j + 1 < count;
+                        int rb = ra + n;
+                        for (int x = 0, q = j; x < n; x++, q += width) {
+                            re[q] = real[ra + x];
+                            im[q] = hasB ? real[rb + x] : 0f;
+                        }
+                    }
+                    boolean inPlace = f.transform(re, im, w[2], w[3], width, true);
+                    float[] zr = inPlace ? re : w[2];
+                    float[] zi = inPlace ? im : w[3];
+                    for (int j = 0; j < width; j++) {
+                        int sa = (r0 + 2 * j) * 2 * hx;
+                        boolean hasB = 2 * j + 1 < count;
+                        int sb = sa + 2 * hx;
+                        for (int k = 0; k < hx; k++) {
+                            int pk = k * width + j;
+                            int pm = ((n - k) % n) * width + j;
+                            float kr = zr[pk];
+                            float ki = zi[pk];
+                            float mr = zr[pm];
+                            float mi = zi[pm];
+                            spec[sa + 2 * k] = 0.5f * (kr + mr);
+                            spec[sa + 2 * k + 1] = 0.5f * (ki - mi);
+                            if (hasB) {
+                                spec[sb + 2 * k] = 0.5f * (ki + mi);
+                                spec[sb + 2 * k + 1] = -0.5f * (kr - mr);
+                            }
+                        }
+                    }
+                } else {
+                    for (int j = 0; j < width; j++) {
+                        int sa = (r0 + 2 * j) * 2 * hx;
+                        boolean hasB = 2 * j + 1 < count;
+                        int sb = sa + 2 * hx;
+                        for (int k = 0; k < n; k++) {
+                            int kk = k < hx ? k : n - k;
+                            float sign = k < hx ? 1f : -1f;
+                            boolean realOnly = kk == 0 || 2 * kk == n;
+                            float ar = spec[sa + 2 * kk];
+                            float ai = realOnly ? 0f : sign * spec[sa + 2 * kk + 1];
+                            float br = hasB ? spec[sb + 2 * kk] : 0f;
+                            float bi = hasB && !realOnly ? sign * spec[sb + 2 * kk + 1] : 0f;
+                            re[k * width + j] = ar - bi;
+                            im[k * width + j] = ai + br;
+                        }
+                    }
+                    boolean inPlace = f.transform(re, im, w[2], w[3], width, false);
+                    float[] zr = inPlace ? re : w[2];
+                    float[] zi = inPlace ? im : w[3];
+                    for (int j = 0; j < width; j++) {
+                        int ra = (r0 + 2 * j) * n;
+                        boolean hasB = 2 * j + 1 < count;
+                        int rb = ra + n;
+                        for (int x = 0, q = j; x < n; x++, q += width) {
+                            real[ra + x] = zr[q];
+                            if (hasB) {
+                                real[rb + x] = zi[q];
+                            }
+                        }
                     }
                 }
             }
