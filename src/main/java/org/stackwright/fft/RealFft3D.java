@@ -4,8 +4,10 @@ import org.jtransforms.fft.FloatFFT_1D;
 import org.stackwright.parallel.Workers;
 
 /**
- * Real-to-complex (half-spectrum) discrete Fourier transform of a 3D real array of any size, assembled from
- * JTransforms' 1D transforms: a real transform along x, then complex transforms along y and z.
+ * Real-to-complex (half-spectrum) discrete Fourier transform of a 3D real array of any size, assembled from 1D
+ * transforms: a real transform along x, then complex transforms along y and z. Lengths 2^a 3^b 5^c (all sizes
+ * {@link FastSizes} picks) go through {@link LineFft}, several lines at once (along x two real rows per complex
+ * line); other lengths through JTransforms' 1D transforms (Bluestein's algorithm for large primes).
  *
  * <p>Layout (known only to this package): the spectrum holds (nx/2+1) x ny x nz complex values, interleaved
  * (re, im), kx fastest, then ky, then kz. Forward uses exp(-2 pi i k x / n); {@link #inverse} scales by 1/N so a
