@@ -80,6 +80,27 @@ class RealFft3DTest {
     }
 
     @Test
+    void forwardMatchesTheNaiveDftWhereYAndZUseSeveralRadixStages() {
+        // y and z lengths 2^a 3^b 5^c go through LineFft: 48 = 4*4*3, 40 = 4*2*5, 18 = 2*3*3, 50 = 2*5*5 and 16
+        // = 4*4 exercise twiddles after every radix; 11 lines of x (hx = 11) leave an incomplete group of lines
+        int[][] sizes = {{20, 48, 10}, {3, 40, 18}, {4, 50, 16}};
+        try (Workers w = new Workers(2)) {
+            for (int[] s : sizes) {
+                float[] f = random(s[0] * s[1] * s[2], s[0] + 100L * s[1] + 10000L * s[2]);
+                RealFft3D fft = new RealFft3D(s[0], s[1], s[2], w);
+                float[] spectrum = fft.newSpectrum();
+                fft.forward(f, spectrum);
+                // definition of the DFT in double; float bound 1e-5 of the largest coefficient as above
+                VolumeAssert.assertClose(naiveHalfSpectrum(f, s[0], s[1], s[2]), spectrum, 1e-5,
+                        2 * (s[0] / 2 + 1), s[1], "forward " + s[0] + "x" + s[1] + "x" + s[2]);
+                float[] back = new float[f.length];
+                fft.inverse(spectrum, back);
+                VolumeAssert.assertClose(f, back, 1e-5, s[0], s[1], "round trip " + s[0] + "x" + s[1] + "x" + s[2]);
+            }
+        }
+    }
+
+    @Test
     void inverseUndoesForward() {
         int[][] sizes = {{1, 1, 1}, {2, 3, 5}, {7, 6, 1}, {17, 19, 23}, {64, 30, 9}, {45, 1, 27}};
         try (Workers w = new Workers(2)) {
