@@ -23,10 +23,12 @@ final class TiffCheck {
     /**
      * @param path an existing, readable file starting with a TIFF signature
      * @param what the parameter the path came from, for messages
+     * @return the number of images (planes) of the first image's size the file describes: pages of another size
+     *     (thumbnails) are not part of the stack ImageJ opens, so a caller can check ImageJ read them all
      * @throws IllegalArgumentException naming the parameter when the header cannot be read or the pixel data
      *     would extend past the end of the file
      */
-    static void requireComplete(Path path, String what) {
+    static long requireComplete(Path path, String what) {
         Path abs = path.toAbsolutePath();
         long length;
         FileInfo[] info;
@@ -61,6 +63,7 @@ final class TiffCheck {
         if (info == null || info.length == 0) {
             throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged: it describes no image");
         }
+        long images = 0;
         for (FileInfo fi : info) {
             if (fi.width < 1 || fi.height < 1 || fi.nImages < 1) {
                 throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged: it gives an image size of "
@@ -71,15 +74,21 @@ final class TiffCheck {
                 throw new IllegalArgumentException(what + ": TIFF file " + path + " is truncated or damaged: its pixel data"
                         + " would end at byte " + end + " but the file has " + length + " bytes");
             }
+            if (fi.width == info[0].width && fi.height == info[0].height) {
+                images += fi.nImages;
+            }
         }
+        return images;
     }
 
-    /** @return the byte after the last pixel byte the header describes */
+    /**
+     * @return the byte after the last pixel byte the header describes: the end of every strip, and for
+     *     uncompressed data the end of the last plane (first offset + planes x plane size + gaps)
+     */
     private static long dataEnd(FileInfo fi) {
         long end = 0;
-        if (fi.stripOffsets != null && fi.stripLengths != null && fi.stripOffsets.length == fi.stripLengths.length
-                && fi.nImages == 1) {
-            for (int i = 0; i < fi.stripOffsets.length; i++) {
+        if (fi.stripOffsets != null && fi.stripLengths != null) {
+            for (int i = 0; i < Math.min(fi.stripOffsets.length, fi.stripLengths.length); i++) {
                 end = Math.max(end, Integer.toUnsignedLong(fi.stripOffsets[i]) + Integer.toUnsignedLong(fi.stripLengths[i]));
             }
         }

@@ -8,10 +8,8 @@ import java.nio.file.Path;
 import java.nio.file.StandardCopyOption;
 
 import ij.ImagePlus;
-import ij.io.FileInfo;
 import ij.io.FileSaver;
 import ij.io.Opener;
-import ij.io.TiffDecoder;
 
 /**
  * TIFF reading and writing through ImageJ 1.x, calibration included. Writing is all-or-nothing: the file is
@@ -60,14 +58,13 @@ public final class TiffFiles {
         if (!tiff) {
             throw new IllegalArgumentException(what + ": " + path + " is not a TIFF file (save it as TIFF first)");
         }
-        TiffCheck.requireComplete(path, what);
+        // the structure walk and the size check run before ImageJ's reader, which trusts the header's offsets
+        long images = TiffCheck.requireComplete(path, what);
         ImagePlus imp;
-        long images;
         try {
             Path abs = path.toAbsolutePath();
             String folder = abs.getParent().toString() + java.io.File.separator;
             String name = abs.getFileName().toString();
-            images = checkComplete(path, folder, name, what);
             imp = new Opener().openTiff(folder, name);
         } catch (RuntimeException e) {
             if (e instanceof IllegalArgumentException) {
@@ -87,51 +84,6 @@ public final class TiffFiles {
         }
         imp.setTitle(titleOf(path));
         return imp;
-    }
-
-    /**
-     * Checks, before ImageJ reads the pixels, that every image the TIFF's directories describe lies inside the file:
-     * ImageJ 1.x silently fills the missing part of a truncated file with zeros or drops the missing planes.
-     *
-     * @return the number of images (planes) the file describes
-     */
-    private static long checkComplete(Path path, String folder, String name, String what) {
-        FileInfo[] info;
-        long size;
-        try {
-            info = new TiffDecoder(folder, name).getTiffInfo();
-            size = Files.size(path);
-        } catch (IOException e) {
-            throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged or truncated ("
-                    + e.getMessage() + ")", e);
-        }
-        if (info == null || info.length == 0) {
-            throw new IllegalArgumentException(what + ": TIFF file " + path + " is damaged (no image directory found)");
-        }
-        long images = 0;
-        for (FileInfo fi : info) {
-            long n = Math.max(1, fi.nImages);
-            if (fi.width == info[0].width && fi.height == info[0].height) {
-                images += n; // pages of another size (thumbnails) are not part of the stack ImageJ opens
-            }
-            long end;
-            if (fi.compression == FileInfo.COMPRESSION_NONE) {
-                long bytes = (long) fi.width * fi.height * fi.getBytesPerPixel();
-                end = fi.getOffset() + n * bytes + (n - 1) * Math.max(0, fi.gapBetweenImages);
-            } else {
-                end = 0;
-            }
-            if (fi.stripOffsets != null && fi.stripLengths != null) {
-                for (int i = 0; i < Math.min(fi.stripOffsets.length, fi.stripLengths.length); i++) {
-                    end = Math.max(end, (fi.stripOffsets[i] & 0xffffffffL) + (fi.stripLengths[i] & 0xffffffffL));
-                }
-            }
-            if (end > size) {
-                throw new IllegalArgumentException(what + ": TIFF file " + path + " is truncated or damaged: its pixels "
-                        + "need " + end + " bytes but the file has " + size);
-            }
-        }
-        return images;
     }
 
     /** Opens channel 1, time point 1 of a TIFF file as a volume. */
