@@ -4,21 +4,14 @@ import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.List;
 
-import org.apache.commons.math3.fitting.leastsquares.LeastSquaresBuilder;
-import org.apache.commons.math3.fitting.leastsquares.LeastSquaresOptimizer;
-import org.apache.commons.math3.fitting.leastsquares.LevenbergMarquardtOptimizer;
-import org.apache.commons.math3.fitting.leastsquares.MultivariateJacobianFunction;
-import org.apache.commons.math3.linear.Array2DRowRealMatrix;
-import org.apache.commons.math3.linear.ArrayRealVector;
-import org.apache.commons.math3.linear.RealVector;
-import org.apache.commons.math3.util.Pair;
+import org.stackwright.psf.Fwhm;
 import org.stackwright.volume.Volume;
 
 /**
  * Full width at half maximum (FWHM) of beads in an image, along x, y and z: bright local maxima are taken as beads,
  * and a 1D profile through each peak voxel along each axis is fitted with a Gaussian on a constant background,
- * f(t) = B + A exp(-(t - c)^2 / (2 s^2)), by Levenberg-Marquardt least squares. FWHM = 2 sqrt(2 ln 2) s = 2.3548 s,
- * converted to micrometres with the voxel size. The profile through the peak voxel of a Gaussian is a Gaussian of
+ * f(t) = B + A exp(-(t - c)^2 / (2 s^2)), by Levenberg-Marquardt least squares (the fit of {@link Fwhm}, over the
+ * whole window and without its fallback). FWHM = 2 sqrt(2 ln 2) s = 2.3548 s, converted to micrometres with the voxel size. The profile through the peak voxel of a Gaussian is a Gaussian of
  * the same width whatever the sub-voxel position of the centre, so the fit is unbiased for Gaussian beads. The
  * widths are those of the image as sampled: camera pixels add about 1/12 voxel^2 to the variance, which is not
  * removed (it is part of the PSF as the camera records it).
@@ -30,8 +23,8 @@ import org.stackwright.volume.Volume;
  */
 public final class BeadWidths {
 
-    /** 2 sqrt(2 ln 2): FWHM of a Gaussian over its standard deviation. */
-    public static final double FWHM_PER_SIGMA = 2 * Math.sqrt(2 * Math.log(2));
+    /** 2 sqrt(2 ln 2): FWHM of a Gaussian over its standard deviation (the same constant as {@link Fwhm}). */
+    public static final double FWHM_PER_SIGMA = Fwhm.FWHM_PER_SIGMA;
 
     /**
      * One bead.
@@ -150,20 +143,25 @@ public final class BeadWidths {
     /** @return the fitted FWHM in voxels of the profile through peak p along the axis, NaN when the fit fails */
     double fwhm(Volume v, int[] p, int axis, int half) {
         int n = 2 * half + 1;
-        double[] t = new double[n];
         double[] f = new double[n];
         for (int i = 0; i < n; i++) {
             int[] q = p.clone();
             q[axis] += i - half;
-            t[i] = i - half;
             f[i] = v.get(q[0], q[1], q[2]);
         }
-        double sigma = fitSigma(t, f);
+        double sigma = fitSigma(f, half);
         return sigma > 0.2 && sigma < half ? FWHM_PER_SIGMA * sigma : Double.NaN;
     }
 
-    /** Least-squares fit of B + A exp(-(t - c)^2 / (2 s^2)); @return |s|, or NaN when the fit fails. */
-    static double fitSigma(double[] t, double[] f) {
+    /**
+     * Fits the profile with {@link Fwhm#fitGaussian} over the whole window, started from the window's minimum as
+     * background and the number of samples above half maximum as width; @return |s| in samples, or NaN when the
+     * profile is flat or the fit fails.
+     *
+     * @param f profile, not modified
+     * @param centre index of the peak voxel in the profile (the start centre)
+     */
+    static double fitSigma(double[] f, int centre) {
         double lo = Arrays.stream(f).min().orElse(0);
         double hi = Arrays.stream(f).max().orElse(0);
         if (!(hi > lo)) {
@@ -177,29 +175,8 @@ public final class BeadWidths {
             }
         }
         double s0 = Math.max(0.5, above / FWHM_PER_SIGMA);
-        MultivariateJacobianFunction model = point -> {
-            double b = point.getEntry(0);
-            double a = point.getEntry(1);
-            double c = point.getEntry(2);
-            double s = point.getEntry(3);
-            RealVector value = new ArrayRealVector(t.length);
-            Array2DRowRealMatrix jac = new Array2DRowRealMatrix(t.length, 4);
-            for (int i = 0; i < t.length; i++) {
-                double u = (t[i] - c) / s;
-                double e = Math.exp(-0.5 * u * u);
-                value.setEntry(i, b + a * e);
-                jac.setEntry(i, 0, 1);
-                jac.setEntry(i, 1, e);
-                jac.setEntry(i, 2, a * e * u / s);
-                jac.setEntry(i, 3, a * e * u * u / s);
-            }
-            return new Pair<>(value, jac);
-        };
         try {
-            LeastSquaresOptimizer.Optimum opt = new LevenbergMarquardtOptimizer().optimize(new LeastSquaresBuilder()
-                    .start(new double[] {lo, hi - lo, 0, s0}).model(model).target(f).maxEvaluations(1000)
-                    .maxIterations(1000).build());
-            return Math.abs(opt.getPoint().getEntry(3));
+            return Fwhm.fitGaussian(f, 0, f.length - 1, hi - lo, centre, s0, lo);
         } catch (RuntimeException e) {
             return Double.NaN; // no convergence: reported as a failed profile
         }

@@ -139,11 +139,8 @@ public final class Fwhm {
         return i;
     }
 
-    /** Gaussian plus constant fitted to p[lo..hi]; returns sigma in samples. */
+    /** Gaussian plus constant fitted to p[lo..hi], started from moments; returns sigma in samples. */
     private static double fitSigma(double[] p, int lo, int hi, int peak, double low) {
-        int n = hi - lo + 1;
-        double[] target = new double[n];
-        System.arraycopy(p, lo, target, 0, n);
         double amp = p[peak] - low;
         double m2 = 0;
         double w = 0;
@@ -153,26 +150,46 @@ public final class Fwhm {
             w += f;
         }
         double sigma0 = Math.max(0.5, Math.sqrt(m2 / Math.max(w, 1e-300)));
+        return fitGaussian(p, lo, hi, amp, peak, sigma0, low);
+    }
+
+    /**
+     * Least-squares fit of f(i) = b + a exp(-(i - c)^2 / (2 s^2)) to the samples p[lo..hi] (sample i at position
+     * i) by commons-math3 Levenberg-Marquardt, at most 1000 iterations. The one profile fit of the project: the
+     * bead widths of the residual view use it too.
+     *
+     * @param p profile, not modified
+     * @param a start amplitude
+     * @param c start centre, in samples
+     * @param s start standard deviation, in samples
+     * @param b start background
+     * @return |s| of the fit, in samples
+     * @throws MathIllegalStateException when the fit does not converge
+     */
+    public static double fitGaussian(double[] p, int lo, int hi, double a, double c, double s, double b) {
+        int n = hi - lo + 1;
+        double[] target = new double[n];
+        System.arraycopy(p, lo, target, 0, n);
         MultivariateJacobianFunction model = params -> {
-            double a = params.getEntry(0);
+            double amp = params.getEntry(0);
             double mu = params.getEntry(1);
             double sg = params.getEntry(2);
-            double b = params.getEntry(3);
+            double bg = params.getEntry(3);
             RealVector value = new ArrayRealVector(n);
             double[][] jac = new double[n][4];
             for (int k = 0; k < n; k++) {
                 double t = (lo + k - mu) / sg;
                 double e = Math.exp(-0.5 * t * t);
-                value.setEntry(k, a * e + b);
+                value.setEntry(k, amp * e + bg);
                 jac[k][0] = e;
-                jac[k][1] = a * e * t / sg;
-                jac[k][2] = a * e * t * t / sg;
+                jac[k][1] = amp * e * t / sg;
+                jac[k][2] = amp * e * t * t / sg;
                 jac[k][3] = 1;
             }
             return new Pair<>(value, new Array2DRowRealMatrix(jac, false));
         };
         LeastSquaresOptimizer.Optimum opt = new LevenbergMarquardtOptimizer().optimize(new LeastSquaresBuilder()
-                .model(model).target(target).start(new double[] {amp, peak, sigma0, low})
+                .model(model).target(target).start(new double[] {a, c, s, b})
                 .maxEvaluations(1000).maxIterations(1000).build());
         return Math.abs(opt.getPoint().getEntry(2));
     }
