@@ -32,9 +32,23 @@ public final class OutputFiles {
     public static void writePng(ImagePlus imp, Path path, boolean overwrite) {
         Path abs = path.toAbsolutePath();
         TiffFiles.checkWritable(abs, overwrite);
-        Path tmp = Path.of(TiffFiles.temporaryFor(abs) + ".png");
+        writeWhole(abs, Path.of(TiffFiles.temporaryFor(abs) + ".png"), new FileSaver(imp)::saveAsPng);
+    }
+
+    /** An ImageJ save call: writes the file at the path, returns whether it succeeded. */
+    interface Save {
+        boolean to(String path);
+    }
+
+    /**
+     * Lets ImageJ write the temporary file, then renames it into place; no partial file is left when anything
+     * fails.
+     *
+     * @throws java.io.UncheckedIOException when writing or renaming fails
+     */
+    static void writeWhole(Path abs, Path tmp, Save save) {
         try {
-            if (!new FileSaver(imp).saveAsPng(tmp.toString()) || !Files.exists(tmp)) {
+            if (!save.to(tmp.toString()) || !Files.exists(tmp)) {
                 throw new IOException("ImageJ could not write " + tmp);
             }
             moveIntoPlace(tmp, abs);
@@ -44,7 +58,7 @@ public final class OutputFiles {
             try {
                 Files.deleteIfExists(tmp);
             } catch (IOException ignored) {
-                // hidden temporary file; nothing more to do
+                // the temporary file is hidden and named after the process; nothing more we can do
             }
         }
     }

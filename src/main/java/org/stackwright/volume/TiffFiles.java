@@ -2,10 +2,8 @@ package org.stackwright.volume;
 
 import java.io.IOException;
 import java.io.InputStream;
-import java.nio.file.AtomicMoveNotSupportedException;
 import java.nio.file.Files;
 import java.nio.file.Path;
-import java.nio.file.StandardCopyOption;
 
 import ij.ImagePlus;
 import ij.io.FileSaver;
@@ -112,29 +110,10 @@ public final class TiffFiles {
      */
     public static void write(ImagePlus imp, Path path, boolean overwrite) {
         Path abs = path.toAbsolutePath();
-        Path dir = abs.getParent();
         checkWritable(abs, overwrite);
-        Path tmp = temporaryFor(abs);
-        try {
-            FileSaver saver = new FileSaver(imp);
-            boolean ok = imp.getStackSize() > 1 ? saver.saveAsTiffStack(tmp.toString()) : saver.saveAsTiff(tmp.toString());
-            if (!ok || !Files.exists(tmp)) {
-                throw new IOException("ImageJ could not write " + tmp);
-            }
-            try {
-                Files.move(tmp, abs, StandardCopyOption.REPLACE_EXISTING, StandardCopyOption.ATOMIC_MOVE);
-            } catch (AtomicMoveNotSupportedException e) {
-                Files.move(tmp, abs, StandardCopyOption.REPLACE_EXISTING);
-            }
-        } catch (IOException e) {
-            throw new java.io.UncheckedIOException("could not write " + abs + ": " + e.getMessage(), e);
-        } finally {
-            try {
-                Files.deleteIfExists(tmp);
-            } catch (IOException ignored) {
-                // the temporary file is hidden and named after the process; nothing more we can do
-            }
-        }
+        FileSaver saver = new FileSaver(imp);
+        OutputFiles.Save save = imp.getStackSize() > 1 ? saver::saveAsTiffStack : saver::saveAsTiff;
+        OutputFiles.writeWhole(abs, temporaryFor(abs), save);
     }
 
     /**
