@@ -67,20 +67,9 @@ public record ResidualMaps(Volume predicted, Volume raw, Volume normalised, doub
         int nz = data.depth();
         double[] chi2Slice = new double[nz];
         double[] meanSlice = new double[nz];
-        double chi2 = 0;
-        double mean = 0;
-        for (int z = 0; z < nz; z++) {
-            double s2 = 0;
-            double s1 = 0;
-            for (int i = z * plane, e = i + plane; i < e; i++) {
-                s1 += r[i];
-                s2 += (double) r[i] * r[i];
-            }
-            chi2Slice[z] = s2 / plane;
-            meanSlice[z] = s1 / plane;
-            chi2 += s2;
-            mean += s1;
-        }
+        double[] sums = planeSums(r, plane, nz, chi2Slice, meanSlice);
+        double chi2 = sums[0];
+        double mean = sums[1];
         Volume k = data.depth() == 1 && psf.depth() > 1 ? ForwardBlur.centrePlane(unit) : unit;
         int[] border = {k.width() / 2, k.height() / 2, k.depth() / 2};
         return new ResidualMaps(data.withData(mu), data.withData(raw), data.withData(r), chi2 / n, chi2Slice,
@@ -97,20 +86,9 @@ public record ResidualMaps(Volume predicted, Volume raw, Volume normalised, doub
         int plane = w * h;
         double[] chi2Slice = new double[d];
         double[] meanSlice = new double[d];
-        double chi2 = 0;
-        double mean = 0;
-        for (int z = 0; z < d; z++) {
-            double s1 = 0;
-            double s2 = 0;
-            for (int i = z * plane, e = i + plane; i < e; i++) {
-                s1 += v[i];
-                s2 += (double) v[i] * v[i];
-            }
-            chi2Slice[z] = s2 / plane;
-            meanSlice[z] = s1 / plane;
-            chi2 += s2;
-            mean += s1;
-        }
+        double[] sums = planeSums(v, plane, d, chi2Slice, meanSlice);
+        double chi2 = sums[0];
+        double mean = sums[1];
         return new ResidualMaps(Padding.crop(predicted, x0, y0, z0, w, h, d), Padding.crop(raw, x0, y0, z0, w, h, d),
                 r, chi2 / v.length, chi2Slice, meanSlice, mean / v.length, Padding.crop(blurred, x0, y0, z0, w, h, d),
                 border, Padding.crop(deviance, x0, y0, z0, w, h, d));
@@ -149,5 +127,31 @@ public record ResidualMaps(Volume predicted, Volume raw, Volume normalised, doub
             d[i] = (float) (d[i] / s);
         }
         return c;
+    }
+
+    /**
+     * Per-plane mean of r^2 and of r, plane by plane in a fixed order (deterministic).
+     *
+     * @param r normalised residuals, not modified
+     * @param chi2Slice receives the mean of r^2 of each plane
+     * @param meanSlice receives the mean of r of each plane
+     * @return {sum of r^2, sum of r} over all planes
+     */
+    private static double[] planeSums(float[] r, int plane, int nz, double[] chi2Slice, double[] meanSlice) {
+        double chi2 = 0;
+        double mean = 0;
+        for (int z = 0; z < nz; z++) {
+            double s1 = 0;
+            double s2 = 0;
+            for (int i = z * plane, e = i + plane; i < e; i++) {
+                s1 += r[i];
+                s2 += (double) r[i] * r[i];
+            }
+            chi2Slice[z] = s2 / plane;
+            meanSlice[z] = s1 / plane;
+            chi2 += s2;
+            mean += s1;
+        }
+        return new double[] {chi2, mean};
     }
 }
