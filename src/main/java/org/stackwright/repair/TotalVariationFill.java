@@ -16,8 +16,11 @@ package org.stackwright.repair;
  * pixel over an iteration falls below tolerance times the data range (looked at after {@link #MIN_ITERATIONS}),
  * or after maxIterations.
  *
- * <p>Self-contained on purpose (small interface: image, mask, spacing, stopping rule); a shared TV package may
- * replace the inner loop later.
+ * <p>Kept apart from {@code model.TotalVariation} (the deconvolution's D, D^T and dual step) on purpose: this fill
+ * iterates in double precision because its stopping rule compares the change per iteration with the tolerance
+ * times the data range (default 1e-7, allowed down to 1e-12), at or below float rounding; it weights y as well
+ * as z by the calibrated spacing; and it fuses the primal step, the projection onto the known pixels, the
+ * over-relaxation and the largest change into one pass over the bounding box.
  */
 final class TotalVariationFill {
 
