@@ -11,10 +11,11 @@ import org.stackwright.volume.Volume;
  * Full width at half maximum (FWHM) of beads in an image, along x, y and z: bright local maxima are taken as beads,
  * and a 1D profile through each peak voxel along each axis is fitted with a Gaussian on a constant background,
  * f(t) = B + A exp(-(t - c)^2 / (2 s^2)), by Levenberg-Marquardt least squares (the fit of {@link Fwhm}, over the
- * whole window and without its fallback). FWHM = 2 sqrt(2 ln 2) s = 2.3548 s, converted to micrometres with the voxel size. The profile through the peak voxel of a Gaussian is a Gaussian of
- * the same width whatever the sub-voxel position of the centre, so the fit is unbiased for Gaussian beads. The
- * widths are those of the image as sampled: camera pixels add about 1/12 voxel^2 to the variance, which is not
- * removed (it is part of the PSF as the camera records it).
+ * whole window and without its fallback). FWHM = 2 sqrt(2 ln 2) s = 2.3548 s, converted to micrometres with the
+ * voxel size. The profile through the peak voxel of a Gaussian is a Gaussian of the same width whatever the
+ * sub-voxel position of the centre, so the fit is unbiased for Gaussian beads. The widths are those of the image
+ * as sampled: camera pixels add about 1/12 voxel^2 to the variance, which is not removed (it is part of the PSF as
+ * the camera records it).
  *
  * <p>Beads are local maxima (3x3x3 neighbourhood) at least {@code threshold} of the way from the image's median
  * (taken as background) to its maximum, at least {@code halfWindow} voxels from every face (so the profile is
