@@ -92,9 +92,9 @@ public final class NoiseReplicas {
     public static Spread run(Volume data, Volume psf, byte[] mask, DeconvolutionSettings s,
             Deconvolution.Outcome original, int replicas, Noise noise, long seed, RunContext ctx) {
         if (replicas < 2) {
-            check(replicas, noise, s);
+            throw new IllegalArgumentException(countMessage(replicas));
         }
-        check(2, noise, s);
+        checkNoise(noise, s);
         if (original.model() == null) {
             throw new IllegalArgumentException("the original run has no forward model; run it with deconvolveWithModel");
         }
@@ -153,9 +153,17 @@ public final class NoiseReplicas {
      */
     public static void check(int replicas, Noise noise, DeconvolutionSettings s) {
         if (replicas < 2 || replicas > MAX_REPLICAS) {
-            throw new IllegalArgumentException("replicas = " + replicas + " is not allowed; give 0 (off) or 2 to "
-                    + MAX_REPLICAS + " (a standard deviation needs at least 2)");
+            throw new IllegalArgumentException(countMessage(replicas));
         }
+        checkNoise(noise, s);
+    }
+
+    private static String countMessage(int replicas) {
+        return "replicas = " + replicas + " is not allowed; give 0 (off) or 2 to " + MAX_REPLICAS
+                + " (a standard deviation needs at least 2)";
+    }
+
+    private static void checkNoise(Noise noise, DeconvolutionSettings s) {
         if (noise == Noise.GAUSSIAN && !(s.readNoise() > 0)) {
             throw new IllegalArgumentException("read-noise = " + s.readNoise() + " is not allowed with noise gaussian and "
                     + "replicas: the replicas' Gaussian noise has the read noise as standard deviation; give a positive read-noise");

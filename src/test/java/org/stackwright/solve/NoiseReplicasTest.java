@@ -221,6 +221,21 @@ class NoiseReplicasTest {
         assertEquals(8, a.spread.replicas());
     }
 
+    /** Cancelling during the replicas stops the run with the shared cancel signal. */
+    @Test
+    void cancellingStopsTheReplicas() {
+        Volume psf = GaussianPsf.sampled(0.15, 0.3, PLANE, 5, 5, 1);
+        Volume data = Volume.zeros(12, 12, 1, PLANE);
+        java.util.Arrays.fill(data.data(), 150f);
+        DeconvolutionSettings set = new DeconvolutionSettings("wiener", Stopping.fixed(1), 100, 50, 1, 2, 0.01,
+                "periodic", false, "poisson");
+        java.util.concurrent.atomic.AtomicBoolean stop = new java.util.concurrent.atomic.AtomicBoolean();
+        RunContext ctx = new RunContext(1, (f, status) -> stop.compareAndSet(false, status.contains("replica 2")), null, stop::get);
+        Deconvolution.Outcome o = NoiseReplicas.deconvolveWithModel(data, psf, "psf", null, set, ctx, IterationListener.NONE);
+        assertThrows(org.stackwright.parallel.CancelledException.class,
+                () -> NoiseReplicas.run(data, psf, null, set, o, 10, NoiseReplicas.Noise.CAMERA, 1, ctx));
+    }
+
     @Test
     void badReplicaCountsAreRefusedWithTheirName() {
         DeconvolutionSettings set = DeconvolutionSettings.richardsonLucy(Stopping.fixed(2), false);
