@@ -13,7 +13,7 @@ import org.stackwright.volume.Volume;
 
 /**
  * How much the deconvolved estimate would change under new noise: a parametric bootstrap (Efron &amp;
- * Tibshirani, "An Introduction to the Bootstrap", Chapman &amp; Hall, 1993, sec. 6.5, the parametric bootstrap).
+ * Tibshirani, "An Introduction to the Bootstrap", Chapman &amp; Hall, 1993, sec. 6.5, the parametric bootstrap; section number from memory).
  *
  * <p>After a deconvolution with estimate x^, R new data sets are drawn from the fitted forward model
  * mu = A x^ + background (+ offset) through the same noise model, and each is deconvolved with the same settings:

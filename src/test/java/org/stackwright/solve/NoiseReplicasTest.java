@@ -26,7 +26,7 @@ class NoiseReplicasTest {
      * With additive Gaussian noise of standard deviation s, each voxel of the estimate has standard deviation
      * s * sqrt(sum_k g_k^2), and by Parseval sum_k g_k^2 = (1/N) sum_f |G(f)|^2 (elementary statistics of linear
      * estimators: Var(sum g_k e_k) = s^2 sum g_k^2 for independent e_k; Parseval's theorem for the DFT, e.g.
-     * Bracewell, "The Fourier Transform and Its Applications", 3rd ed., 2000, ch. 6). The transfer function H is
+     * Bracewell, "The Fourier Transform and Its Applications", 3rd ed., 2000, ch. 6, Rayleigh's theorem; chapter from memory). The transfer function H is
      * computed here by a plain double-precision DFT of the PSF, independent of the project's FFT.
      *
      * <p>Monte-Carlo error: the relative standard error of a sample standard deviation from R normal values is about
