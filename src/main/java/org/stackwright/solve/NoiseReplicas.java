@@ -19,6 +19,8 @@ import org.stackwright.volume.Volume;
  * mu = A x^ + background (+ offset) through the same noise model, and each is deconvolved with the same settings:
  * the same method, lambda, camera, boundary and mask, and exactly the number of iterations the original run used
  * (a fixed count, not the stopping rule again, so that the spread reflects noise rather than a different stop).
+ * With {@code background auto} each replica estimates its own background, as the original run did; the model
+ * uses the background the original run used.
  * Per voxel, the sample standard deviation across the R replica estimates (divisor R - 1) is the spread; the
  * replica mean minus x^ is a bias indicator (how far the method pulls its answer from the model it started from).
  *
