@@ -64,6 +64,15 @@ public final class DeconvolveCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "noise")
     private String noise;
 
+    @Parameter(persist = false, required = false, label = "replicas")
+    private Integer replicas;
+
+    @Parameter(type = ItemIO.OUTPUT, label = "spread-output")
+    private ImagePlus spreadOutput;
+
+    @Parameter(type = ItemIO.OUTPUT, label = "bias-output")
+    private ImagePlus biasOutput;
+
     @Parameter(persist = false, required = false, label = "na")
     private Double na;
 

@@ -27,8 +27,10 @@ public final class Deconvolution {
      * @param result the estimate on the image grid, ADU above the offset
      * @param solution the solver's output (history, stop reason)
      * @param record the run record (JSON-ready map)
+     * @param model the fitted forward model A x + background on the image, ADU above the offset, or null when not
+     *     asked for (see {@link NoiseReplicas})
      */
-    public record Outcome(Volume result, Solution solution, Map<String, Object> record) {
+    public record Outcome(Volume result, Solution solution, Map<String, Object> record, Volume model) {
     }
 
     private Deconvolution() {
@@ -46,6 +48,12 @@ public final class Deconvolution {
      */
     public static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
             RunContext ctx, IterationListener listener) {
+        return run(data, psf, psfName, mask, s, ctx, listener, false);
+    }
+
+    /** As above; with {@code withModel} the outcome also holds the fitted forward model (one more blur). */
+    static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
+            RunContext ctx, IterationListener listener, boolean withModel) {
         InputChecks.Scan scan = InputChecks.check("input", data, ctx);
         mask = MaskChecks.union(mask, scan.nonFiniteMask());
         data = InputChecks.finiteCopy(data, scan);
@@ -69,9 +77,11 @@ public final class Deconvolution {
         ctx.progress(0, "preparing " + s.method());
         Solution sol;
         DeconvolutionProblem problem;
+        Volume model;
         try (Workers workers = new Workers(ctx.threads())) {
             problem = new DeconvolutionProblem(data, p, mask, boundary, camera, workers);
             sol = solver.solve(problem, ctx, listener);
+            model = withModel ? forwardModel(problem, sol.estimate(), bg) : null;
         }
         Volume result = problem.toVolume(sol.estimate());
         Map<String, Object> r = new LinkedHashMap<>();
@@ -112,7 +122,19 @@ public final class Deconvolution {
         r.put("trusted_pixels", problem.trustedPixels());
         r.put("peak_memory_estimate_bytes", need);
         r.put("result_units", "ADU above the camera offset (background removed)");
-        return new Outcome(result, sol, r);
+        return new Outcome(result, sol, r, model);
+    }
+
+    /** @return gain * (H x) on the image window plus the background, ADU above the offset */
+    private static Volume forwardModel(DeconvolutionProblem problem, float[] x, double backgroundAdu) {
+        float[] work = new float[x.length];
+        problem.blur().apply(x, work);
+        Volume m = problem.toVolume(work);
+        float[] d = m.data();
+        for (int i = 0; i < d.length; i++) {
+            d[i] = (float) (d[i] + backgroundAdu);
+        }
+        return m;
     }
 
     /**

@@ -62,6 +62,36 @@ class DeconvolveOperationTest {
         }
     }
 
+    /**
+     * {@code --replicas 4 --spread-output sd.tif} writes the spread map with the data's size and calibration, and
+     * the record says how many replicas and the median spreads; without replicas a spread output is refused.
+     */
+    @Test
+    void replicasWriteASpreadMapWithTheDataCalibration() throws Exception {
+        Path[] f = files();
+        Path sd = dir.resolve("sd.tif");
+        Path rec = dir.resolve("sd.json");
+        ByteArrayOutputStream err = new ByteArrayOutputStream();
+        int code = cli(err, "deconvolve", "--input", f[0].toString(), "--psf", f[1].toString(), "--output",
+                dir.resolve("est.tif").toString(), "--iterations", "3", "--offset", "100", "--read-noise", "2",
+                "--replicas", "4", "--spread-output", sd.toString(), "--record", rec.toString());
+        assertEquals(Main.OK, code, err.toString(StandardCharsets.UTF_8));
+        Volume in = TiffFiles.read(f[0], "in");
+        Volume spread = TiffFiles.read(sd, "sd");
+        assertTrue(spread.sameShape(in), spread.shape());
+        assertEquals(in.voxel(), spread.voxel());
+        assertTrue(spread.max() > 0, "spread is not all zero");
+        String json = Files.readString(rec);
+        for (String key : List.of("\"replicas\": 4", "\"spread_median\"", "\"spread_relative_median\"")) {
+            assertTrue(json.contains(key), "record lacks " + key + ": " + json);
+        }
+        ByteArrayOutputStream err2 = new ByteArrayOutputStream();
+        int refused = cli(err2, "deconvolve", "--input", f[0].toString(), "--psf", f[1].toString(), "--output",
+                dir.resolve("est2.tif").toString(), "--spread-output", dir.resolve("sd2.tif").toString());
+        assertEquals(Main.BAD_INPUT, refused);
+        assertTrue(err2.toString(StandardCharsets.UTF_8).contains("replicas"), err2.toString(StandardCharsets.UTF_8));
+    }
+
     @Test
     void badSettingsAreRefusedWithTheirName() {
         Path[] f = files();
@@ -71,6 +101,8 @@ class DeconvolveOperationTest {
             {"--background", "dark", "background"},
             {"--iterations", "0", "iterations"},
             {"--boundary", "mirror", "boundary"},
+            {"--replicas", "1", "replicas"},
+            {"--replicas", "101", "replicas"},
         };
         for (String[] c : cases) {
             ByteArrayOutputStream err = new ByteArrayOutputStream();
