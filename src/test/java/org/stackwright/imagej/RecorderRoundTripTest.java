@@ -170,7 +170,7 @@ class RecorderRoundTripTest {
                             ((Checkbox) boxes.next()).setState(true);
                         }
                     }
-                    case OUTPUT_FILE -> ((TextField) texts.next()).setText("/tmp/run record " + p.key() + ".json");
+                    case OUTPUT_FILE -> ((TextField) texts.next()).setText("run record " + p.key() + ".json");
                     case NUMBER -> ((TextField) texts.next()).setText(otherNumber(p));
                     case INTEGER -> ((TextField) texts.next()).setText(otherInteger(p));
                     default -> {
