@@ -45,12 +45,12 @@ public final class TileLevelling {
         int rows = rowBands.size() + 1;
         int w = image.width();
         int h = image.height();
-        int[] x0 = new int[cols];
-        int[] x1 = new int[cols];
-        int[] y0 = new int[rows];
-        int[] y1 = new int[rows];
-        limits(columnBands, w, x0, x1);
-        limits(rowBands, h, y0, y1);
+        int[][] xs = spans(columnBands, w);
+        int[][] ys = spans(rowBands, h);
+        int[] x0 = xs[0];
+        int[] x1 = xs[1];
+        int[] y0 = ys[0];
+        int[] y1 = ys[1];
         List<double[]> eq = new ArrayList<>();
         for (int r = 0; r < rows; r++) {
             for (int c = 0; c < cols; c++) {
@@ -129,13 +129,17 @@ public final class TileLevelling {
     }
 
     /** Tile extents between seam bands: tile k spans [lo[k], hi[k]). */
-    private static void limits(List<int[]> bands, int n, int[] lo, int[] hi) {
+    /** @return {first, end} pixel of each tile along one axis of n pixels cut by the seam bands */
+    private static int[][] spans(List<int[]> bands, int n) {
+        int[] lo = new int[bands.size() + 1];
+        int[] hi = new int[bands.size() + 1];
         lo[0] = 0;
         for (int k = 0; k < bands.size(); k++) {
             hi[k] = bands.get(k)[0];
             lo[k + 1] = bands.get(k)[1];
         }
         hi[bands.size()] = n;
+        return new int[][] {lo, hi};
     }
 
     /**
@@ -180,12 +184,12 @@ public final class TileLevelling {
         int rows = gains.rows();
         int w = image.width();
         int h = image.height();
-        int[] x0 = new int[cols];
-        int[] x1 = new int[cols];
-        int[] y0 = new int[rows];
-        int[] y1 = new int[rows];
-        limits(columnBands, w, x0, x1);
-        limits(rowBands, h, y0, y1);
+        int[][] xs = spans(columnBands, w);
+        int[][] ys = spans(rowBands, h);
+        int[] x0 = xs[0];
+        int[] x1 = xs[1];
+        int[] y0 = ys[0];
+        int[] y1 = ys[1];
         Volume out = image.copy();
         for (int r = 0; r < rows; r++) {
             for (int c = 0; c < cols; c++) {

@@ -175,7 +175,7 @@ public final class PrimalDualTv implements Solver {
             });
             // dual objective for the problem restricted to 0 <= x <= U with U = 2 max x (holds the solution once
             // the iterates settle): G*(-K^T p) = U sum max(-(K^T p), 0)
-            double bound = 2 * maxOf(x);
+            double bound = 2 * Sums.maxAtLeastZero(x);
             double dual = dualData - bound * s[0];
             // H x_new; H xbar = 2 H x_new - H x; primal objective at x_new
             h.apply(x, buf);
@@ -204,13 +204,5 @@ public final class PrimalDualTv implements Solver {
             }
         }
         return log.finish(x);
-    }
-
-    private static float maxOf(float[] x) {
-        float m = 0;
-        for (float v : x) {
-            m = Math.max(m, v);
-        }
-        return m;
     }
 }

@@ -65,7 +65,7 @@ public final class RichardsonLucyTv implements Solver {
         float[] buf = new float[n];
         float[] curv = new float[n];
         TotalVariation tv = new TotalVariation(p.gridWidth(), p.gridHeight(), p.gridDepth(), p.zWeight(), workers);
-        double eps = 1e-3 * Math.max(maxOf(x), 1e-6);
+        double eps = 1e-3 * Math.max(Sums.maxAtLeastZero(x), 1e-6);
         Sums sums = new Sums(2);
         IterationLog log = new IterationLog(method(), stopping, context, listener);
         double trusted = p.trustedPixels();
@@ -103,13 +103,5 @@ public final class RichardsonLucyTv implements Solver {
             }
         }
         return log.finish(x);
-    }
-
-    private static float maxOf(float[] x) {
-        float m = 0;
-        for (float v : x) {
-            m = Math.max(m, v);
-        }
-        return m;
     }
 }

@@ -45,4 +45,13 @@ final class Sums {
         }
         return total;
     }
+
+    /** @return the largest value of x, or 0 when none is positive (the scale of a non-negative estimate) */
+    static float maxAtLeastZero(float[] x) {
+        float m = 0;
+        for (float v : x) {
+            m = Math.max(m, v);
+        }
+        return m;
+    }
 }
