@@ -202,6 +202,11 @@ public final class Values {
         return imp;
     }
 
+    /** @return the input images the door supplied, by key (a copy) */
+    public Map<String, ImagePlus> images() {
+        return new LinkedHashMap<>(images);
+    }
+
     /**
      * Parses "AxBxC" (or "AxB" when dims is 2) into positive whole numbers.
      *

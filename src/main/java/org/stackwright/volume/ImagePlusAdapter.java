@@ -94,7 +94,7 @@ public final class ImagePlusAdapter {
     }
 
     /** @return micrometres per unit, or -1 when the unit is not a known length */
-    static double unitToMicrometres(String unit) {
+    public static double unitToMicrometres(String unit) {
         if (unit == null) {
             return -1;
         }

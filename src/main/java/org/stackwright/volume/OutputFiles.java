@@ -63,7 +63,7 @@ public final class OutputFiles {
         }
     }
 
-    static void moveIntoPlace(Path tmp, Path target) throws IOException {
+    public static void moveIntoPlace(Path tmp, Path target) throws IOException {
         try {
             Files.move(tmp, target, StandardCopyOption.REPLACE_EXISTING, StandardCopyOption.ATOMIC_MOVE);
         } catch (AtomicMoveNotSupportedException e) {
