@@ -31,9 +31,10 @@ public interface BlockOperation {
 
     /**
      * @param v settings (small inputs such as a PSF are in it; streamed inputs may not be)
+     * @param main the main input (its size and voxel size; not read here)
      * @return the halo per axis (x, y, z) each block is read with
      */
-    int[] halo(Values v);
+    int[] halo(Values v, PlaneSource main);
 
     /** @return true when a block must hold every plane (the operation works across all planes) */
     default boolean wholeDepth(Values v) {
@@ -41,7 +42,7 @@ public interface BlockOperation {
     }
 
     /** @return bytes one block with a read box of w x h x d voxels needs, its input and output included */
-    long blockBytes(Values v, int w, int h, int d);
+    long blockBytes(Values v, PlaneSource main, int w, int h, int d);
 
     /**
      * The global step, run once before any block: whole-volume choices fixed as settings.
@@ -55,9 +56,10 @@ public interface BlockOperation {
 
     /**
      * @param resolved the settings with the global choices filled in (small inputs included)
+     * @param globals the global step's result (its numbers)
      * @return the processor of single blocks; closed after the last block
      */
-    BlockProcessor processor(Values resolved, RunContext ctx);
+    BlockProcessor processor(Values resolved, Globals globals, RunContext ctx);
 
     /**
      * After the last block, before the outputs are put in place.

@@ -53,15 +53,16 @@ public final class BlockRun {
         if (BlockSettings.given(v) || ImagePlusSource.isVirtual(main)) {
             return true;
         }
-        return !fits(b, v, main.getWidth(), main.getHeight(), main.getNSlices(), 0);
+        return !fits(b, v, new ImagePlusSource(main), 0);
     }
 
     /**
+     * @param main the main input (size and voxel size)
      * @param loadedBytes bytes the door would still have to load (the input file as an image), 0 when loaded
      * @return true when the whole stack can be processed in memory as one piece
      */
-    public static boolean fits(BlockOperation b, Values v, int w, int h, int d, long loadedBytes) {
-        return b.blockBytes(v, w, h, d) + loadedBytes <= BlockSettings.budget(v);
+    public static boolean fits(BlockOperation b, Values v, PlaneSource main, long loadedBytes) {
+        return b.blockBytes(v, main, main.width(), main.height(), main.depth()) + loadedBytes <= BlockSettings.budget(v);
     }
 
     /** Runs on open images; streamed outputs come back as images in the result. */
@@ -138,7 +139,7 @@ public final class BlockRun {
             }
         }
         int[] dims = {main.width(), main.height(), main.depth()};
-        int[] halo = b.halo(v);
+        int[] halo = b.halo(v, main);
         if (dims[2] == 1) {
             halo[2] = 0;
         }
@@ -151,14 +152,14 @@ public final class BlockRun {
         int[] core = BlockSettings.coreSize(v);
         boolean whole = b.wholeDepth(v);
         if (core == null) {
-            core = BlockSizing.auto(dims, halo, budget, (w, h, d) -> b.blockBytes(v, w, h, d), whole);
+            core = BlockSizing.auto(dims, halo, budget, (w, h, d) -> b.blockBytes(v, main, w, h, d), whole);
         } else if (whole && core[2] < dims[2]) {
             throw new IllegalArgumentException(BlockSettings.BLOCK_SIZE + " = '" + v.text(BlockSettings.BLOCK_SIZE) + "': "
                     + op.name() + " needs every plane in a block; give a depth of " + dims[2] + " or more, or auto");
         }
         BlockPlan plan = new BlockPlan(dims[0], dims[1], dims[2], core, halo);
         int[] largest = plan.largestRead();
-        long need = b.blockBytes(v, largest[0], largest[1], largest[2]);
+        long need = b.blockBytes(v, main, largest[0], largest[1], largest[2]);
         if (need > budget) {
             ctx.warn(String.format(Locale.ROOT, "block-size: the largest block (%dx%dx%d with its halo) needs about %.0f MB"
                     + " but %.0f MB are free; it may run out of memory (give a smaller block-size or auto)",
@@ -184,7 +185,7 @@ public final class BlockRun {
                 }
             }
             BlockTotals totals;
-            try (BlockProcessor proc = b.processor(p.resolved(), ctx)) {
+            try (BlockProcessor proc = b.processor(p.resolved(), p.globals(), ctx)) {
                 totals = BlockRunner.run(p.plan(), proc, inputs, sinks, ctx);
             }
             Result r = b.finish(p.resolved(), p.globals(), totals, inputs, ctx);

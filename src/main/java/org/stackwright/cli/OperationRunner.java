@@ -133,7 +133,7 @@ final class OperationRunner {
         }
         Param main = op.params().stream().filter(p -> p.kind() == Param.Kind.IMAGE).findFirst().orElse(null);
         try (CancelGuard guard = new CancelGuard()) {
-            if (main != null && Batch.isBatch(raw.get(main.key()))) {
+            if (main != null && Batch.isBatch(raw.get(main.key())) && !StreamingRun.isPlaneFolder(op, raw, main.key())) {
                 return runBatch(main, raw, threads, overwrite, guard);
             }
             try {
@@ -199,6 +199,9 @@ final class OperationRunner {
     /** Runs one input: reads, checks outputs, runs, writes. Throws on any problem. */
     private void runOne(Map<String, String> raw, int threads, boolean overwrite, CancelGuard guard) {
         Values values = Values.parse(op.name(), op.params(), raw);
+        if (new StreamingRun(this, op, err).tryRun(values, raw, threads, overwrite, guard)) {
+            return;
+        }
         Map<String, Path> outputs = new LinkedHashMap<>();
         Map<Path, String> inputs = new LinkedHashMap<>();
         for (Param p : op.params()) {
@@ -239,6 +242,11 @@ final class OperationRunner {
         }
     }
 
+    /** Prints a report line on stdout. */
+    void print(String line) {
+        out.println(line);
+    }
+
     /** @return the exit code for a failure: bad input 2, anything else (cancel, memory, I/O) 1 */
     static int codeOf(Throwable e) {
         return e instanceof IllegalArgumentException ? Main.BAD_INPUT : Main.FAILED;
@@ -271,7 +279,7 @@ final class OperationRunner {
         throw new IllegalArgumentException("--threads = '" + v + "' is not allowed; give a whole number from 1 to 1024");
     }
 
-    private static void checkOutputs(Map<String, Path> outputs, Map<Path, String> inputs, boolean overwrite) {
+    static void checkOutputs(Map<String, Path> outputs, Map<Path, String> inputs, boolean overwrite) {
         Map<Path, String> seen = new LinkedHashMap<>();
         for (Map.Entry<String, Path> e : outputs.entrySet()) {
             Path abs = e.getValue().toAbsolutePath().normalize();
@@ -285,14 +293,18 @@ final class OperationRunner {
                 throw new IllegalArgumentException("--" + e.getKey() + " and --" + other + " name the same file " + e.getValue());
             }
             try {
-                TiffFiles.checkWritable(abs, overwrite);
+                if (StreamingRun.isFolderOutput(e.getKey(), e.getValue())) {
+                    org.stackwright.blocks.PlaneFolderSink.checkTarget(abs);
+                } else {
+                    TiffFiles.checkWritable(abs, overwrite);
+                }
             } catch (IllegalArgumentException ex) {
                 throw new IllegalArgumentException("--" + e.getKey() + ": " + ex.getMessage());
             }
         }
     }
 
-    private void writeOutputs(Result result, Map<String, Path> outputs, boolean overwrite, CancelGuard guard) {
+    void writeOutputs(Result result, Map<String, Path> outputs, boolean overwrite, CancelGuard guard) {
         List<Path> written = new java.util.ArrayList<>();
         for (Map.Entry<String, Path> e : outputs.entrySet()) {
             if (guard.isCancelled()) {

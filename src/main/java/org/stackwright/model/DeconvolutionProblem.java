@@ -79,7 +79,14 @@ public final class DeconvolutionProblem {
         this(data, psf, mask, boundary, camera, backgroundAdu, workers, Float.NaN);
     }
 
-    private DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
+    /**
+     * As above, with the start value of the iterations fixed by the caller: a block of a larger volume starts from
+     * the value of the whole volume, so that neighbouring blocks agree.
+     *
+     * @param start start value in photo-electrons wherever the object is not held at zero, or NaN for the mean of
+     *     (y - b) over this problem's trusted pixels ({@link #initialEstimate})
+     */
+    public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
             double backgroundAdu, Workers workers, float start) {
         if (!(backgroundAdu >= 0) || !Double.isFinite(backgroundAdu)) {
             throw new IllegalArgumentException("background = " + backgroundAdu + " is not allowed; give 0 or more ADU above the offset");

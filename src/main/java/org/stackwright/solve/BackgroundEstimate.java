@@ -1,5 +1,10 @@
 package org.stackwright.solve;
 
+import java.io.UncheckedIOException;
+import java.util.Arrays;
+
+import org.stackwright.blocks.Box;
+import org.stackwright.blocks.PlaneSource;
 import org.stackwright.volume.Volume;
 
 /**
@@ -7,8 +12,24 @@ import org.stackwright.volume.Volume;
  * (x 3 in z) mean filter, minus the offset, at least 0. The mean filter removes most of the noise, so the
  * percentile finds the darkest regions rather than the darkest noise samples (common practice; a rough estimate:
  * give --background when it is known).
+ *
+ * <p>Two forms give the same number: {@link #estimate(Volume, byte[], double)} on a volume in memory, and
+ * {@link #estimate(PlaneSource, PlaneSource, double, PlaneVisitor)} on a stack read three planes at a time, which
+ * finds the percentile exactly in two passes with 65536-bin histograms of the values' bit patterns (high 16 bits,
+ * then low 16 bits within the chosen bin), so memory stays at a few planes.
  */
 public final class BackgroundEstimate {
+
+    /** Sees each plane of the first streaming pass (so a caller can gather its own statistics in the same read). */
+    @FunctionalInterface
+    public interface PlaneVisitor {
+        /**
+         * @param z the plane
+         * @param data its pixels, not to be modified
+         * @param mask 1 = untrusted, or null when there is no mask; not to be modified
+         */
+        void visit(int z, float[] data, byte[] mask);
+    }
 
     private BackgroundEstimate() {
     }
@@ -23,37 +44,182 @@ public final class BackgroundEstimate {
         int w = data.width();
         int h = data.height();
         int d = data.depth();
-        int rz = d > 1 ? 1 : 0;
+        int plane = w * h;
         float[] src = data.data();
         float[] vals = new float[src.length];
+        float[] out = new float[plane];
+        float[][] planes = new float[3][];
+        byte[][] masks = new byte[3][];
         int n = 0;
         for (int z = 0; z < d; z++) {
-            for (int y = 0; y < h; y++) {
-                for (int x = 0; x < w; x++) {
-                    double s = 0;
-                    int c = 0;
-                    for (int k = Math.max(0, z - rz); k <= Math.min(d - 1, z + rz); k++) {
-                        for (int j = Math.max(0, y - 2); j <= Math.min(h - 1, y + 2); j++) {
-                            for (int i = Math.max(0, x - 2); i <= Math.min(w - 1, x + 2); i++) {
-                                int idx = (k * h + j) * w + i;
-                                if ((mask == null || mask[idx] == 0) && Float.isFinite(src[idx])) {
-                                    s += src[idx];
-                                    c++;
-                                }
-                            }
-                        }
-                    }
-                    if (c > 0) {
-                        vals[n++] = (float) (s / c);
-                    }
+            for (int k = -1; k <= 1; k++) {
+                int zz = z + k;
+                planes[k + 1] = zz >= 0 && zz < d ? Arrays.copyOfRange(src, zz * plane, (zz + 1) * plane) : null;
+                masks[k + 1] = mask != null && zz >= 0 && zz < d ? Arrays.copyOfRange(mask, zz * plane, (zz + 1) * plane) : null;
+            }
+            filterPlane(planes, masks, w, h, d > 1, out);
+            for (float v : out) {
+                if (!Float.isNaN(v)) {
+                    vals[n++] = v;
                 }
             }
         }
         if (n == 0) {
             return 0;
         }
-        float[] v = java.util.Arrays.copyOf(vals, n);
-        java.util.Arrays.sort(v);
-        return Math.max(0, v[(int) Math.floor(0.01 * (n - 1))] - offset);
+        float[] v = Arrays.copyOf(vals, n);
+        Arrays.sort(v);
+        return Math.max(0, v[rank(n)] - offset);
+    }
+
+    /** @return the 0-based rank of the 1st percentile among n values */
+    private static int rank(long n) {
+        return (int) Math.floor(0.01 * (n - 1));
+    }
+
+    /**
+     * The same estimate on a stack read plane by plane.
+     *
+     * @param data camera data, not modified
+     * @param mask untrusted pixels (nonzero), same width and height, its depth or 1 plane for all; or null
+     * @param offset camera offset (ADU)
+     * @param visitor sees each plane in the first pass, or null
+     * @return background above the offset, ADU
+     * @throws UncheckedIOException when the stack cannot be read
+     */
+    public static double estimate(PlaneSource data, PlaneSource mask, double offset, PlaneVisitor visitor) {
+        int w = data.width();
+        int h = data.height();
+        int d = data.depth();
+        long[] high = new long[65536];
+        long n = pass(data, mask, visitor, (v) -> high[key(v) >>> 16]++);
+        if (n == 0) {
+            return 0;
+        }
+        long want = rank(n);
+        int bin = 0;
+        long below = 0;
+        while (below + high[bin] <= want) {
+            below += high[bin++];
+        }
+        final int top = bin;
+        long[] low = new long[65536];
+        pass(data, mask, null, (v) -> {
+            int k = key(v);
+            if (k >>> 16 == top) {
+                low[k & 0xffff]++;
+            }
+        });
+        int b = 0;
+        long seen = below;
+        while (seen + low[b] <= want) {
+            seen += low[b++];
+        }
+        float value = fromKey((top << 16) | b);
+        return Math.max(0, value - offset);
+    }
+
+    private interface ValueSink {
+        void take(float v);
+    }
+
+    /** One pass over the filtered values, three planes in memory at a time. @return values seen */
+    private static long pass(PlaneSource data, PlaneSource mask, PlaneVisitor visitor, ValueSink sink) {
+        int w = data.width();
+        int h = data.height();
+        int d = data.depth();
+        float[][] planes = new float[3][];
+        byte[][] masks = new byte[3][];
+        float[] out = new float[w * h];
+        long n = 0;
+        for (int z = 0; z < d; z++) {
+            if (z == 0) {
+                planes[1] = readPlane(data, 0);
+                masks[1] = mask == null ? null : maskPlane(mask, 0);
+            } else {
+                planes[0] = planes[1];
+                masks[0] = masks[1];
+                planes[1] = planes[2];
+                masks[1] = masks[2];
+            }
+            planes[2] = z + 1 < d ? readPlane(data, z + 1) : null;
+            masks[2] = mask != null && z + 1 < d ? maskPlane(mask, z + 1) : null;
+            if (z == 0) {
+                planes[0] = null;
+                masks[0] = null;
+            }
+            if (visitor != null) {
+                visitor.visit(z, planes[1], masks[1]);
+            }
+            filterPlane(planes, masks, w, h, d > 1, out);
+            for (float v : out) {
+                if (!Float.isNaN(v)) {
+                    sink.take(v);
+                    n++;
+                }
+            }
+        }
+        return n;
+    }
+
+    private static float[] readPlane(PlaneSource s, int z) {
+        return s.read(new Box(0, 0, z, s.width(), s.height(), 1)).data();
+    }
+
+    private static byte[] maskPlane(PlaneSource s, int z) {
+        float[] m = s.read(new Box(0, 0, s.depth() == 1 ? 0 : z, s.width(), s.height(), 1)).data();
+        byte[] b = new byte[m.length];
+        for (int i = 0; i < m.length; i++) {
+            b[i] = (byte) (m[i] != 0 ? 1 : 0);
+        }
+        return b;
+    }
+
+    /**
+     * The mean over the 5 x 5 (x 3) neighbourhood of each pixel of the middle plane, over trusted finite pixels;
+     * NaN where there is none. The sum runs plane by plane, row by row, so the in-memory and streaming forms add in
+     * the same order and agree bit for bit.
+     *
+     * @param planes the planes z-1, z, z+1 (null outside the stack), not modified
+     * @param masks their masks (nonzero = untrusted; null for none), not modified
+     * @param out one value per pixel of plane z, overwritten
+     */
+    static void filterPlane(float[][] planes, byte[][] masks, int w, int h, boolean threeD, float[] out) {
+        int k0 = threeD ? 0 : 1;
+        int k1 = threeD ? 2 : 1;
+        for (int y = 0; y < h; y++) {
+            for (int x = 0; x < w; x++) {
+                double s = 0;
+                int c = 0;
+                for (int k = k0; k <= k1; k++) {
+                    float[] src = planes[k];
+                    if (src == null) {
+                        continue;
+                    }
+                    byte[] m = masks[k];
+                    for (int j = Math.max(0, y - 2); j <= Math.min(h - 1, y + 2); j++) {
+                        for (int i = Math.max(0, x - 2); i <= Math.min(w - 1, x + 2); i++) {
+                            int idx = j * w + i;
+                            if ((m == null || m[idx] == 0) && Float.isFinite(src[idx])) {
+                                s += src[idx];
+                                c++;
+                            }
+                        }
+                    }
+                }
+                out[y * w + x] = c > 0 ? (float) (s / c) : Float.NaN;
+            }
+        }
+    }
+
+    /** @return an int whose unsigned order is the order of the floats (as {@link Arrays#sort(float[])}) */
+    static int key(float v) {
+        int bits = Float.floatToIntBits(v);
+        return (bits ^ ((bits >> 31) & 0x7fffffff)) ^ 0x80000000;
+    }
+
+    static float fromKey(int key) {
+        int k = key ^ 0x80000000;
+        return Float.intBitsToFloat(k ^ ((k >> 31) & 0x7fffffff));
     }
 }

@@ -7,6 +7,10 @@ import java.util.Map;
 
 import ij.ImagePlus;
 
+import org.stackwright.blocks.BlockOperation;
+import org.stackwright.blocks.BlockRun;
+import org.stackwright.blocks.BlockSettings;
+import org.stackwright.blocks.Blockwise;
 import org.stackwright.op.Limits;
 import org.stackwright.op.MaskChecks;
 import org.stackwright.op.Operation;
@@ -25,10 +29,17 @@ import org.stackwright.volume.Volume;
  * estimate in ADU above the camera offset, with the background removed; the run record says what was done.
  * Thin door over {@link Deconvolution}.
  */
-public final class DeconvolveOperation implements Operation {
+public final class DeconvolveOperation implements Operation, Blockwise {
 
     /** Seed of the noise replicas (fixed, so that a run can be repeated bit for bit). */
     static final long REPLICA_SEED = 20260101L;
+
+    private final DeconvolveBlocks blocks = new DeconvolveBlocks();
+
+    @Override
+    public BlockOperation blocks() {
+        return blocks;
+    }
 
     @Override
     public String name() {
@@ -72,12 +83,17 @@ public final class DeconvolveOperation implements Operation {
                 Param.number("na", null, 0.01, 1.7, "", "numerical aperture, for the sampling check (optional)"),
                 Param.number("wavelength", null, 200, 2000, "nm", "emission wavelength, for the sampling check (optional)"),
                 Param.number("immersion-index", null, 1.0, 2.0, "", "immersion index, for the sampling check (optional)"),
+                BlockSettings.blockSize(),
+                BlockSettings.memory(),
                 Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history"));
     }
 
     @Override
     public Result run(Values v, RunContext ctx) {
         DeconvolutionSettings s = settings(v);
+        if (BlockRun.wanted(blocks, v)) {
+            return BlockRun.inMemory(this, blocks, v, ctx);
+        }
         ImagePlus in = v.image("input");
         ImagePlus psfImp = v.image("psf");
         if (in.getNChannels() > 1 || in.getNFrames() > 1) {

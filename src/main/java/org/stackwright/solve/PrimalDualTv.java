@@ -49,6 +49,7 @@ public final class PrimalDualTv implements Solver {
     private final Stopping stopping;
     private final double lambda;
     private final DataTerm dataTerm;
+    private final double meanSignal;
 
     /**
      * @param stopping when to stop; CHANGE stops on the relative primal-dual gap
@@ -56,6 +57,17 @@ public final class PrimalDualTv implements Solver {
      * @param dataTerm Poisson (Kullback-Leibler) or Gaussian (least squares)
      */
     public PrimalDualTv(Stopping stopping, double lambda, DataTerm dataTerm) {
+        this(stopping, lambda, dataTerm, Double.NaN);
+    }
+
+    /**
+     * As above, with the mean signal that sets the step sizes given instead of taken from the problem: the blocks
+     * of one volume take the whole volume's, so that they all take the same steps and agree where they meet.
+     *
+     * @param meanSignal mean of max(y - b, 0) per trusted pixel in photo-electrons, or NaN to compute it
+     */
+    public PrimalDualTv(Stopping stopping, double lambda, DataTerm dataTerm, double meanSignal) {
+        this.meanSignal = meanSignal;
         if (!(lambda > 0) || !Double.isFinite(lambda)) {
             throw new IllegalArgumentException("regularization = " + lambda + " is not allowed for total-variation; give a positive number");
         }
@@ -109,7 +121,7 @@ public final class PrimalDualTv implements Solver {
             }
         }
         double trusted = p.trustedPixels();
-        double c = STEP_BALANCE * Math.max(signal / trusted, 1e-3);
+        double c = STEP_BALANCE * Math.max(Double.isNaN(meanSignal) ? signal / trusted : meanSignal, 1e-3);
         double l = Math.sqrt(1 + tv.normSquaredBound());
         final float tau = (float) (c / l);
         final float sigma = (float) (1 / (c * l));

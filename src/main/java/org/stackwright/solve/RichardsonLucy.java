@@ -35,6 +35,9 @@ public final class RichardsonLucy implements Solver {
 
     private final Stopping stopping;
     private final boolean accelerated;
+    /** extrapolation steps fixed beforehand (index k-1 for iteration k), or null to compute them */
+    private final double[] fixedSteps;
+    private double[] usedSteps = new double[0];
 
     /**
      * @param stopping when to stop
@@ -43,6 +46,26 @@ public final class RichardsonLucy implements Solver {
     public RichardsonLucy(Stopping stopping, boolean accelerated) {
         this.stopping = stopping;
         this.accelerated = accelerated;
+        this.fixedSteps = null;
+    }
+
+    /**
+     * Accelerated, with the extrapolation step of every iteration given instead of computed: the blocks of one
+     * volume use the steps of one representative run, so that they all take the same update and agree where they
+     * meet (alpha is a sum over the whole grid, which each block would otherwise take over itself alone).
+     *
+     * @param stopping when to stop
+     * @param steps alpha per iteration (index k-1 for iteration k); 0 past the end; not modified
+     */
+    public RichardsonLucy(Stopping stopping, double[] steps) {
+        this.stopping = stopping;
+        this.accelerated = true;
+        this.fixedSteps = steps.clone();
+    }
+
+    /** @return the extrapolation step of each iteration of the last accelerated run (index k-1 for iteration k) */
+    public double[] steps() {
+        return usedSteps.clone();
     }
 
     @Override
@@ -126,6 +149,7 @@ public final class RichardsonLucy implements Solver {
         double trusted = p.trustedPixels();
         double lastFit = Double.POSITIVE_INFINITY;
         int k = 0;
+        java.util.List<Double> steps = new java.util.ArrayList<>();
         while (true) {
             log.before();
             h.apply(y, buf);
@@ -157,9 +181,12 @@ public final class RichardsonLucy implements Solver {
             });
             k++;
             double alpha = 0;
-            if (k >= 3 && s[1] > 0 && fit <= lastFit) {
+            if (fixedSteps != null) {
+                alpha = k <= fixedSteps.length ? fixedSteps[k - 1] : 0;
+            } else if (k >= 3 && s[1] > 0 && fit <= lastFit) {
                 alpha = Math.max(0, Math.min(MAX_ALPHA, s[0] / s[1]));
             }
+            steps.add(alpha);
             lastFit = fit;
             double change = Math.sqrt(s[2] / Math.max(s[3], 1e-300));
             final float a = (float) alpha;
@@ -175,6 +202,7 @@ public final class RichardsonLucy implements Solver {
                 break;
             }
         }
+        usedSteps = steps.stream().mapToDouble(Double::doubleValue).toArray();
         return log.finish(xOld);
     }
 }
