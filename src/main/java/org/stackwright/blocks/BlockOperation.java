@@ -36,6 +36,11 @@ public interface BlockOperation {
      */
     int[] halo(Values v, PlaneSource main);
 
+    /** @return false when these settings take a path that does not run in blocks (then the usual path runs) */
+    default boolean applies(Values v) {
+        return true;
+    }
+
     /** @return true when a block must hold every plane (the operation works across all planes) */
     default boolean wholeDepth(Values v) {
         return false;

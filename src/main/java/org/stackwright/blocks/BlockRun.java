@@ -11,7 +11,6 @@ import java.util.Map;
 import ij.ImagePlus;
 
 import org.stackwright.op.Operation;
-import org.stackwright.op.Param;
 import org.stackwright.op.Result;
 import org.stackwright.op.RunContext;
 import org.stackwright.op.Values;
@@ -47,7 +46,7 @@ public final class BlockRun {
      */
     public static boolean wanted(BlockOperation b, Values v) {
         ImagePlus main = v.images().get(b.streamedInputs().get(0));
-        if (main == null) {
+        if (main == null || !b.applies(v)) {
             return false;
         }
         if (BlockSettings.given(v) || ImagePlusSource.isVirtual(main)) {
@@ -221,11 +220,6 @@ public final class BlockRun {
     public static Values resolved(Operation op, Values v, Globals g) {
         Map<String, String> raw = new LinkedHashMap<>(v.givenText());
         raw.putAll(g.settings());
-        for (Param p : op.params()) {
-            if (p.isImageOrFile()) {
-                raw.remove(p.key());
-            }
-        }
         Values out = Values.parse(op.name(), op.params(), raw);
         for (Map.Entry<String, ImagePlus> e : v.images().entrySet()) {
             out.withImage(e.getKey(), e.getValue());

@@ -63,6 +63,9 @@ final class StreamingRun {
             return false;
         }
         BlockOperation b = bw.blocks();
+        if (!b.applies(values)) {
+            return false;
+        }
         String mainKey = b.streamedInputs().get(0);
         String mainPath = raw.get(mainKey);
         if (mainPath == null) {

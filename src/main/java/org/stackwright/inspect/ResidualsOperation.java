@@ -9,6 +9,10 @@ import java.util.Map;
 import ij.ImagePlus;
 
 import org.stackwright.model.NoiseModel;
+import org.stackwright.blocks.BlockOperation;
+import org.stackwright.blocks.BlockRun;
+import org.stackwright.blocks.BlockSettings;
+import org.stackwright.blocks.Blockwise;
 import org.stackwright.op.InputChecks;
 import org.stackwright.op.MemoryCheck;
 import org.stackwright.op.Operation;
@@ -27,7 +31,14 @@ import org.stackwright.volume.Volume;
  * (chi^2 per voxel and per slice, verdict, histogram, spectrum, regions); prints chi^2 per voxel and the verdict.
  * The maths lives in {@link ResidualReport}.
  */
-public final class ResidualsOperation implements Operation {
+public final class ResidualsOperation implements Operation, Blockwise {
+
+    private final ResidualsBlocks blocks = new ResidualsBlocks();
+
+    @Override
+    public BlockOperation blocks() {
+        return blocks;
+    }
 
     @Override
     public String name() {
@@ -55,6 +66,8 @@ public final class ResidualsOperation implements Operation {
                         "read noise (poisson-gaussian) or the noise standard deviation (gaussian)"),
                 Param.outputImage("output", true, "the normalised residual stack (32-bit TIFF)"),
                 Param.outputImage("summary", false, "a one-page summary picture (PNG)"),
+                BlockSettings.blockSize(),
+                BlockSettings.memory(),
                 Param.outputFile("record", "run record (JSON) with chi^2, verdict, histogram, spectrum and regions"));
     }
 
@@ -62,6 +75,9 @@ public final class ResidualsOperation implements Operation {
     public Result run(Values v, RunContext ctx) {
         ImagePlus dataImp = v.image("input");
         ImagePlus psfImp = v.image("psf");
+        if (dataImp.getNChannels() == 1 && dataImp.getNFrames() == 1 && BlockRun.wanted(blocks, v)) {
+            return BlockRun.inMemory(this, blocks, v, ctx);
+        }
         // data, estimate, five maps and their interior crops, the padded blur grid and its spectrum (an estimate)
         long voxels = (long) dataImp.getWidth() * dataImp.getHeight() * dataImp.getNSlices();
         long grid = (long) (dataImp.getWidth() + psfImp.getWidth()) * (dataImp.getHeight() + psfImp.getHeight())

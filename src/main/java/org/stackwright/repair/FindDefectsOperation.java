@@ -5,6 +5,10 @@ import java.util.Locale;
 
 import ij.ImagePlus;
 
+import org.stackwright.blocks.BlockOperation;
+import org.stackwright.blocks.BlockRun;
+import org.stackwright.blocks.BlockSettings;
+import org.stackwright.blocks.Blockwise;
 import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
@@ -18,7 +22,14 @@ import org.stackwright.volume.Volume;
  * {@code find-defects}: a mask of hot, dead and stuck camera pixels, from dark and/or flat frames when given
  * ({@link FrameDefectFinder}), otherwise from the image itself ({@link ImageDefectFinder}).
  */
-public final class FindDefectsOperation implements Operation {
+public final class FindDefectsOperation implements Operation, Blockwise {
+
+    private final FindDefectsBlocks blocks = new FindDefectsBlocks();
+
+    @Override
+    public BlockOperation blocks() {
+        return blocks;
+    }
 
     @Override
     public String name() {
@@ -40,11 +51,16 @@ public final class FindDefectsOperation implements Operation {
                 Param.number("fraction", 0.5, 0.01, 1, "", "image search: share of slices/time points in which "
                         + "the deviation must be seen"),
                 Param.outputImage("output", true, "the 8-bit defect mask, 255 = defective (TIFF)"),
+                BlockSettings.blockSize(),
+                BlockSettings.memory(),
                 Param.outputFile("record", "run record with counts per kind (JSON)"));
     }
 
     @Override
     public Result run(Values v, RunContext ctx) {
+        if (BlockRun.wanted(blocks, v)) {
+            return BlockRun.inMemory(this, blocks, v, ctx);
+        }
         ImagePlus input = v.image("input");
         ImagePlus darkImp = v.image("dark");
         ImagePlus flatImp = v.image("flat");
@@ -69,10 +85,15 @@ public final class FindDefectsOperation implements Operation {
             }
         }
         ctx.progress(1, "done");
+        return result(v, map, ImagePlusAdapter.voxelSize(input), input.getTitle());
+    }
+
+    /** @return the mask image, record and report line of a defect map */
+    static Result result(Values v, DefectMap map, org.stackwright.volume.VoxelSize voxel, String title) {
+        double k = v.number("threshold");
         Result r = new Result();
-        r.image("output", MaskImages.toImage(map.mask(), map.width(), map.height(), 1,
-                ImagePlusAdapter.voxelSize(input), input.getTitle() + "-find-defects"));
-        r.record("operation", name());
+        r.image("output", MaskImages.toImage(map.mask(), map.width(), map.height(), 1, voxel, title + "-find-defects"));
+        r.record("operation", "find-defects");
         r.record("settings", v.effective());
         r.record("source", map.source());
         r.record("counts", map.counts());

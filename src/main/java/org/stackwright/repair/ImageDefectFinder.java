@@ -40,6 +40,49 @@ public final class ImageDefectFinder {
      * @param fraction fraction of slices in which the deviation must be seen, in (0, 1]
      */
     public static DefectMap find(Volume image, double k, double fraction, Workers workers) {
+        return candidates(image, k, fraction, null, workers).decide();
+    }
+
+    /**
+     * The per-pixel verdicts that need only the pixel's own column of slices and its 8 neighbours, before the one
+     * whole-image number (the brightest good value) turns stuck candidates into stuck or hot pixels. Blocks of an
+     * image give the same verdicts for their inner pixels as the whole image, so blocks can be put together and
+     * decided at once.
+     *
+     * @param width columns
+     * @param height rows
+     * @param depth slices
+     * @param codes per pixel: 0 good, 1 hot, 2 dead, 3 stuck unless brighter than every good pixel
+     * @param minimum per pixel: smallest value over the slices
+     * @param brightestGood per pixel: largest value over the slices of a good pixel, -infinity for a flagged one
+     */
+    record Candidates(int width, int height, int depth, byte[] codes, float[] minimum, float[] brightestGood) {
+
+        /** @return the defect map, taking the brightest good value over all pixels */
+        DefectMap decide() {
+            float bright = Float.NEGATIVE_INFINITY;
+            for (float b : brightestGood) {
+                bright = Math.max(bright, b);
+            }
+            PixelDefect[] kinds = new PixelDefect[codes.length];
+            for (int p = 0; p < codes.length; p++) {
+                kinds[p] = switch (codes[p]) {
+                    case 1 -> PixelDefect.HOT;
+                    case 2 -> PixelDefect.DEAD;
+                    case 3 -> minimum[p] > bright ? PixelDefect.HOT : PixelDefect.STUCK;
+                    default -> null;
+                };
+            }
+            return new DefectMap(width, height, kinds, "image (" + depth + " slice" + (depth == 1 ? "" : "s")
+                    + ", 3x3 median)");
+        }
+    }
+
+    /**
+     * @param noise the noise level of each slice (fitted on whole slices), or null to fit it here on the given
+     *     slices (the image is then the whole image)
+     */
+    static Candidates candidates(Volume image, double k, double fraction, NoiseLevel[] noise, Workers workers) {
         int w = image.width();
         int h = image.height();
         int d = image.depth();
@@ -53,7 +96,12 @@ public final class ImageDefectFinder {
             short[] pos = new short[plane];
             short[] neg = new short[plane];
             for (int z = z0; z < z1; z++) {
-                scoreSlice(image.data(), z * plane, w, h, k, med[slot], res[slot], pos, neg);
+                if (noise == null) {
+                    scoreSlice(image.data(), z * plane, w, h, k, med[slot], res[slot], pos, neg);
+                } else {
+                    median3x3(image.data(), z * plane, w, h, med[slot], res[slot]);
+                    count(image.data(), z * plane, w, h, k, med[slot], noise[z], pos, neg);
+                }
             }
             synchronized (lock) {
                 for (int p = 0; p < plane; p++) {
@@ -63,18 +111,24 @@ public final class ImageDefectFinder {
             }
         });
         int need = Math.max(1, (int) Math.ceil(fraction * d - 1e-9));
-        PixelDefect[] kinds = new PixelDefect[plane];
+        byte[] codes = new byte[plane];
         boolean[] flagged = new boolean[plane];
         for (int p = 0; p < plane; p++) {
             flagged[p] = positive[p] >= need || negative[p] >= need;
         }
         double[] spread = d >= 3 ? temporalSpread(image) : null;
-        float brightestGood = Float.NEGATIVE_INFINITY;
         float[] v = image.data();
-        for (int i = 0; i < v.length; i++) {
-            if (!flagged[i % plane]) {
-                brightestGood = Math.max(brightestGood, v[i]);
+        float[] minimum = new float[plane];
+        float[] good = new float[plane];
+        for (int p = 0; p < plane; p++) {
+            minimum[p] = minOverSlices(v, p, plane, d);
+            float m = Float.NEGATIVE_INFINITY;
+            if (!flagged[p]) {
+                for (int z = 0; z < d; z++) {
+                    m = Math.max(m, v[z * plane + p]);
+                }
             }
+            good[p] = m;
         }
         double[] nb = new double[8];
         for (int p = 0; p < plane; p++) {
@@ -82,10 +136,10 @@ public final class ImageDefectFinder {
                 continue;
             }
             if (negative[p] > positive[p]) {
-                kinds[p] = PixelDefect.DEAD;
+                codes[p] = 2;
                 continue;
             }
-            kinds[p] = PixelDefect.HOT;
+            codes[p] = 1;
             if (spread != null) {
                 int x = p % w;
                 int y = p / w;
@@ -100,14 +154,12 @@ public final class ImageDefectFinder {
                     }
                 }
                 double typical = m > 0 ? RobustStats.median(nb, m) : 0;
-                boolean constant = spread[p] <= 0.1 * typical;
-                boolean aboveAll = minOverSlices(v, p, plane, d) > brightestGood;
-                if (constant && !aboveAll) {
-                    kinds[p] = PixelDefect.STUCK;
+                if (spread[p] <= 0.1 * typical) {
+                    codes[p] = 3;
                 }
             }
         }
-        return new DefectMap(w, h, kinds, "image (" + d + " slice" + (d == 1 ? "" : "s") + ", 3x3 median)");
+        return new Candidates(w, h, d, codes, minimum, good);
     }
 
     private static float minOverSlices(float[] v, int p, int plane, int d) {
@@ -136,7 +188,24 @@ public final class ImageDefectFinder {
     /** Scores one slice: counts slices with a high outlier in pos and a low outlier in neg. */
     static void scoreSlice(float[] v, int off, int w, int h, double k, float[] med, float[] res, short[] pos,
             short[] neg) {
+        NoiseLevel noise = sliceNoise(v, off, w, h, med, res);
+        count(v, off, w, h, k, med, noise, pos, neg);
+    }
+
+    /**
+     * The 3x3 median (edges clamped) and the residual of one slice, and the noise level fitted to them.
+     *
+     * @param med receives the median per pixel
+     * @param res receives pixel minus median
+     */
+    static NoiseLevel sliceNoise(float[] v, int off, int w, int h, float[] med, float[] res) {
         int plane = w * h;
+        median3x3(v, off, w, h, med, res);
+        return NoiseLevel.fit(med, res, plane, SAMPLES, LEVEL_CLASSES);
+    }
+
+    /** Writes the 3x3 median (coordinates clamped at the edges) and pixel minus median of one slice. */
+    static void median3x3(float[] v, int off, int w, int h, float[] med, float[] res) {
         float[] win = new float[9];
         for (int y = 0; y < h; y++) {
             for (int x = 0; x < w; x++) {
@@ -153,7 +222,11 @@ public final class ImageDefectFinder {
                 res[p] = v[off + p] - med[p];
             }
         }
-        NoiseLevel noise = NoiseLevel.fit(med, res, plane, SAMPLES, LEVEL_CLASSES);
+    }
+
+    /** Counts a high outlier in pos and a low outlier in neg for each pixel of one slice, at a given noise level. */
+    static void count(float[] v, int off, int w, int h, double k, float[] med, NoiseLevel noise, short[] pos,
+            short[] neg) {
         for (int y = 0; y < h; y++) {
             for (int x = 0; x < w; x++) {
                 int p = y * w + x;

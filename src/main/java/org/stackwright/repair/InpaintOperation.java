@@ -8,6 +8,10 @@ import ij.ImageStack;
 import ij.process.ByteProcessor;
 import ij.process.FloatProcessor;
 
+import org.stackwright.blocks.BlockOperation;
+import org.stackwright.blocks.BlockRun;
+import org.stackwright.blocks.BlockSettings;
+import org.stackwright.blocks.Blockwise;
 import org.stackwright.op.InputChecks;
 import org.stackwright.op.MaskChecks;
 import org.stackwright.op.MemoryCheck;
@@ -26,7 +30,14 @@ import org.stackwright.volume.Volume;
  * all. Writes the repaired 32-bit image and, on request, the 8-bit mask of the filled pixels, which are
  * estimates and must be excluded from measurements.
  */
-public final class InpaintOperation implements Operation {
+public final class InpaintOperation implements Operation, Blockwise {
+
+    private final InpaintBlocks blocks = new InpaintBlocks();
+
+    @Override
+    public BlockOperation blocks() {
+        return blocks;
+    }
 
     @Override
     public String name() {
@@ -54,12 +65,17 @@ public final class InpaintOperation implements Operation {
                         + "residual; total-variation 1e-5 of the data range per iteration)"),
                 Param.outputImage("output", true, "the repaired image, 32-bit (TIFF)"),
                 Param.outputImage("filled-output", false, "8-bit mask of the filled pixels, 255 = estimated (TIFF)"),
+                BlockSettings.blockSize(),
+                BlockSettings.memory(),
                 Param.outputFile("record", "run record (JSON)"));
     }
 
     @Override
     public Result run(Values v, RunContext ctx) {
         ImagePlus input = v.image("input");
+        if (input.getNChannels() == 1 && input.getNFrames() == 1 && BlockRun.wanted(blocks, v)) {
+            return BlockRun.inMemory(this, blocks, v, ctx);
+        }
         ImagePlus maskImp = v.image("mask");
         Inpainting.Method method = Inpainting.Method.of(v.choice("method"));
         Inpainting.Mode mode = Inpainting.Mode.of(v.choice("mode"));

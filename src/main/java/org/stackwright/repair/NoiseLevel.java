@@ -90,6 +90,16 @@ final class NoiseLevel {
         return new NoiseLevel(largest * largest, 0, floor, minSigma);
     }
 
+    /** @return a, b, floor and the smallest sigma: the four numbers that give this noise level back */
+    double[] parameters() {
+        return new double[] {a, b, floor, minSigma};
+    }
+
+    /** @return the noise level of {@link #parameters()} */
+    static NoiseLevel of(double[] p) {
+        return new NoiseLevel(p[0], p[1], p[2], p[3]);
+    }
+
     /** @return the noise standard deviation at this level */
     double sigma(double level) {
         return Math.max(minSigma, Math.sqrt(Math.max(0, a + b * level)));

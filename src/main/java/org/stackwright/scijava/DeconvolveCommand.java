@@ -82,6 +82,12 @@ public final class DeconvolveCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "immersion-index")
     private Double immersionIndex;
 
+    @Parameter(persist = false, required = false, label = "block-size")
+    private String blockSize;
+
+    @Parameter(persist = false, required = false, label = "memory")
+    private String memory;
+
     @Parameter(persist = false, required = false, label = "record")
     private File record;
 

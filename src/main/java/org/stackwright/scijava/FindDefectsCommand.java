@@ -34,6 +34,12 @@ public final class FindDefectsCommand extends OperationCommand {
     @Parameter(type = ItemIO.OUTPUT, label = "output")
     private ImagePlus output;
 
+    @Parameter(persist = false, required = false, label = "block-size")
+    private String blockSize;
+
+    @Parameter(persist = false, required = false, label = "memory")
+    private String memory;
+
     @Parameter(persist = false, required = false, label = "record")
     private File record;
 

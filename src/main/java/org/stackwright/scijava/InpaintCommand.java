@@ -40,6 +40,12 @@ public final class InpaintCommand extends OperationCommand {
     @Parameter(type = ItemIO.OUTPUT, label = "filled-output")
     private ImagePlus filledOutput;
 
+    @Parameter(persist = false, required = false, label = "block-size")
+    private String blockSize;
+
+    @Parameter(persist = false, required = false, label = "memory")
+    private String memory;
+
     @Parameter(persist = false, required = false, label = "record")
     private File record;
 

@@ -46,6 +46,12 @@ public final class ResidualsCommand extends OperationCommand {
     @Parameter(type = ItemIO.OUTPUT, label = "summary")
     private ImagePlus summary;
 
+    @Parameter(persist = false, required = false, label = "block-size")
+    private String blockSize;
+
+    @Parameter(persist = false, required = false, label = "memory")
+    private String memory;
+
     @Parameter(persist = false, required = false, label = "record")
     private File record;
 

@@ -1,0 +1,150 @@
+package org.stackwright.repair;
+
+import static org.junit.jupiter.api.Assertions.assertArrayEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.util.LinkedHashMap;
+import java.util.Locale;
+import java.util.Map;
+import java.util.SplittableRandom;
+
+import ij.ImagePlus;
+
+import org.junit.jupiter.api.Test;
+import org.stackwright.op.Operation;
+import org.stackwright.op.Result;
+import org.stackwright.op.RunContext;
+import org.stackwright.op.Values;
+import org.stackwright.simulate.Damage;
+import org.stackwright.volume.ImagePlusAdapter;
+import org.stackwright.volume.Volume;
+import org.stackwright.volume.VoxelSize;
+
+/**
+ * find-defects and inpaint in blocks against the whole image at once, on an invented series of moving blobs with
+ * planted hot, dead and stuck pixels, holes and a seam.
+ */
+class RepairBlocksTest {
+
+    private static final int W = 100;
+    private static final int H = 84;
+    private static final int D = 6;
+
+    /** Blobs drifting over the frames, photon and read noise, then planted defects (Damage.defects). */
+    private static Volume series() {
+        SplittableRandom r = new SplittableRandom(5);
+        double[][] blob = new double[15][4];
+        for (double[] b : blob) {
+            b[0] = W * r.nextDouble();
+            b[1] = H * r.nextDouble();
+            b[2] = 2 + 4 * r.nextDouble();
+            b[3] = 200 + 1500 * r.nextDouble();
+        }
+        float[] v = new float[W * H * D];
+        for (int t = 0; t < D; t++) {
+            for (int y = 0; y < H; y++) {
+                for (int x = 0; x < W; x++) {
+                    double mu = 100;
+                    for (double[] b : blob) {
+                        double dx = x - b[0] - 3 * t;
+                        double dy = y - b[1] + 2 * t;
+                        mu += b[3] * Math.exp(-(dx * dx + dy * dy) / (2 * b[2] * b[2]));
+                    }
+                    // Gaussian approximation of the photon count plus read noise (plenty for a comparison)
+                    v[(t * H + y) * W + x] = (float) Math.rint(100 + mu + Math.sqrt(mu) * gauss(r) + 2 * gauss(r));
+                }
+            }
+        }
+        Volume img = new Volume(W, H, D, v, new VoxelSize(0.1, 0.1, 0.3));
+        double max = img.max();
+        Damage.defects(img, new int[] {30, 30, 30}, 100, 100 + 20 * (max - 100) + 500, 100 + 0.5 * (max - 100) + 50, 9);
+        return img;
+    }
+
+    private static double gauss(SplittableRandom r) {
+        return Math.sqrt(-2 * Math.log(1 - r.nextDouble())) * Math.cos(2 * Math.PI * r.nextDouble());
+    }
+
+    private static Result run(Operation op, Map<String, String> raw, Map<String, ImagePlus> images) {
+        Values v = Values.parse(op.name(), op.params(), raw);
+        images.forEach(v::withImage);
+        return op.run(v, RunContext.quiet(2));
+    }
+
+    @Test
+    void defectMasksAreIdentical() {
+        Volume img = series();
+        ImagePlus imp = ImagePlusAdapter.toImagePlus(img, "series");
+        FindDefectsOperation op = new FindDefectsOperation();
+        Result whole = run(op, Map.of(), Map.of("input", imp));
+        Result blocks = run(op, Map.of("block-size", "30x40x6"), Map.of("input", imp));
+        byte[] a = (byte[]) whole.images().get("output").getProcessor().getPixels();
+        byte[] b = (byte[]) blocks.images().get("output").getProcessor().getPixels();
+        int found = 0;
+        for (byte x : a) {
+            found += x != 0 ? 1 : 0;
+        }
+        assertTrue(found >= 80, "defects found " + found);
+        assertArrayEquals(a, b);
+        assertTrue(blocks.record().containsKey("blocks"));
+    }
+
+    /** Dead pixels, 4x4 holes and a 2-pixel seam across the whole image. */
+    private static Volume mask() {
+        float[] m = new float[W * H];
+        SplittableRandom r = new SplittableRandom(3);
+        for (int i = 0; i < 150; i++) {
+            m[r.nextInt(W * H)] = 255;
+        }
+        for (int i = 0; i < 12; i++) {
+            int x0 = r.nextInt(W - 4);
+            int y0 = r.nextInt(H - 4);
+            for (int y = y0; y < y0 + 4; y++) {
+                for (int x = x0; x < x0 + 4; x++) {
+                    m[y * W + x] = 255;
+                }
+            }
+        }
+        for (int x = 0; x < W; x++) {
+            m[41 * W + x] = 255;
+            m[42 * W + x] = 255;
+        }
+        return new Volume(W, H, 1, m, new VoxelSize(0.1, 0.1, 0.3));
+    }
+
+    /**
+     * Inpainting in blocks: the median fill (local by construction) is identical; the conjugate-gradient fills
+     * agree within their stopping tolerance (each block's solve stops on its own residual; relative residual 1e-7).
+     */
+    @Test
+    void inpaintingAgreesWithTheWholeImage() {
+        Volume img = series();
+        ImagePlus imp = ImagePlusAdapter.toImagePlus(img, "series");
+        ImagePlus m = ImagePlusAdapter.toImagePlus(mask(), "mask");
+        InpaintOperation op = new InpaintOperation();
+        double range = img.max();
+        for (String method : new String[] {"median", "harmonic", "biharmonic"}) {
+            Map<String, String> raw = new LinkedHashMap<>();
+            raw.put("method", method);
+            Map<String, ImagePlus> in = Map.of("input", imp, "mask", m);
+            Result whole = run(op, raw, in);
+            raw.put("block-size", "40x30x6");
+            Result blocks = run(op, raw, in);
+            Volume a = ImagePlusAdapter.toVolume(whole.images().get("output"));
+            Volume b = ImagePlusAdapter.toVolume(blocks.images().get("output"));
+            double diff = 0;
+            for (int i = 0; i < a.size(); i++) {
+                diff = Math.max(diff, Math.abs(a.data()[i] - b.data()[i]));
+            }
+            System.out.printf(Locale.ROOT, "inpaint %s: blocks differ from the whole image by at most %.3g (%.3g of the"
+                    + " range)%n", method, diff, diff / range);
+            if (method.equals("median")) {
+                assertArrayEquals(a.data(), b.data());
+            } else {
+                assertTrue(diff <= 1e-4 * range, method + ": " + diff);
+            }
+            assertArrayEquals((byte[]) whole.images().get("filled-output").getStack().getPixels(3),
+                    (byte[]) blocks.images().get("filled-output").getStack().getPixels(3));
+        }
+    }
+}
