@@ -98,23 +98,29 @@ public final class BlockRun {
      *
      * @param inputs the streamed inputs, opened by the door (closed by the caller)
      * @param outputs streamed output key to path; keys not given are computed but not written
+     * @param folders the output keys that name folders of planes (also when the folder does not exist yet)
      */
     public static Result toFiles(Operation op, BlockOperation b, Values v, Map<String, PlaneSource> inputs,
-            Map<String, Path> outputs, boolean overwrite, RunContext ctx) {
+            Map<String, Path> outputs, java.util.Set<String> folders, boolean overwrite, RunContext ctx) {
         return execute(op, b, v, inputs, (key, bits, w, h, d, voxel) -> {
             Path p = outputs.get(key);
             if (p == null) {
                 return null;
             }
-            return isFolder(p) ? new PlaneFolderSink(p, w, h, d, bits, voxel)
+            return folders.contains(key) || isFolder(p) ? new PlaneFolderSink(p, w, h, d, bits, voxel)
                     : new TiffStackSink(p, w, h, d, bits, voxel, overwrite, false);
         }, ctx);
     }
 
-    /** @return true when an output path names a folder of planes (an existing folder, or ends in a separator) */
+    /** @return true when an output path names an existing folder (a folder of planes) */
     public static boolean isFolder(Path p) {
-        String s = p.toString();
-        return Files.isDirectory(p) || s.endsWith("/") || s.endsWith(java.io.File.separator);
+        return Files.isDirectory(p);
+    }
+
+    /** @return true when an output as typed names a folder of planes: an existing folder, or ends in a separator */
+    public static boolean isFolder(String typed) {
+        return typed != null && (typed.endsWith("/") || typed.endsWith(java.io.File.separator)
+                || Files.isDirectory(Path.of(typed)));
     }
 
     /**

@@ -112,21 +112,14 @@ final class OperationRunner {
     }
 
     int run(ParseResult pr) {
-        Map<String, String> raw = new LinkedHashMap<>();
-        int threads = Runtime.getRuntime().availableProcessors();
-        boolean overwrite = false;
+        Map<String, String> raw;
+        int threads;
+        boolean overwrite;
         try {
-            for (OptionSpec o : pr.matchedOptions()) {
-                String key = o.longestName().substring(2);
-                Object value = o.getValue();
-                if (key.equals("threads")) {
-                    threads = parseThreads(String.valueOf(value));
-                } else if (key.equals("overwrite")) {
-                    overwrite = true;
-                } else if (!key.equals("help") && !key.equals("version")) {
-                    raw.put(key, value == null ? "true" : value.toString());
-                }
-            }
+            CommandLineOptions.Parsed p = CommandLineOptions.collect(pr);
+            raw = p.raw();
+            threads = p.threads();
+            overwrite = p.overwrite();
         } catch (IllegalArgumentException e) {
             err.println("stackwright " + op.name() + ": " + Main.clip(e.getMessage()));
             return Main.BAD_INPUT;
@@ -280,6 +273,12 @@ final class OperationRunner {
     }
 
     static void checkOutputs(Map<String, Path> outputs, Map<Path, String> inputs, boolean overwrite) {
+        checkOutputs(outputs, inputs, overwrite, java.util.Set.of());
+    }
+
+    /** As above; the keys in folders name folders of planes (block runs). */
+    static void checkOutputs(Map<String, Path> outputs, Map<Path, String> inputs, boolean overwrite,
+            java.util.Set<String> folders) {
         Map<Path, String> seen = new LinkedHashMap<>();
         for (Map.Entry<String, Path> e : outputs.entrySet()) {
             Path abs = e.getValue().toAbsolutePath().normalize();
@@ -293,7 +292,7 @@ final class OperationRunner {
                 throw new IllegalArgumentException("--" + e.getKey() + " and --" + other + " name the same file " + e.getValue());
             }
             try {
-                if (StreamingRun.isFolderOutput(e.getKey(), e.getValue())) {
+                if (folders.contains(e.getKey()) || StreamingRun.isFolderOutput(e.getKey(), e.getValue())) {
                     org.stackwright.blocks.PlaneFolderSink.checkTarget(abs);
                 } else {
                     TiffFiles.checkWritable(abs, overwrite);
@@ -305,34 +304,7 @@ final class OperationRunner {
     }
 
     void writeOutputs(Result result, Map<String, Path> outputs, boolean overwrite, CancelGuard guard) {
-        List<Path> written = new java.util.ArrayList<>();
-        for (Map.Entry<String, Path> e : outputs.entrySet()) {
-            if (guard.isCancelled()) {
-                throw new CancelledException(written.isEmpty() ? "cancelled; no output written"
-                        : "cancelled; complete before the cancel: " + written + "; not written: the others");
-            }
-            Path path = e.getValue();
-            Param p = op.params().stream().filter(q -> q.key().equals(e.getKey())).findFirst().orElseThrow();
-            if (p.kind() == Param.Kind.OUTPUT_FILE) {
-                try {
-                    OutputFiles.writeText(Json.write(result.record()).getBytes(StandardCharsets.UTF_8), path, overwrite);
-                    written.add(path);
-                } catch (IOException ex) {
-                    throw new UncheckedIOException("could not write " + path + ": " + ex.getMessage(), ex);
-                }
-                continue;
-            }
-            ImagePlus imp = result.images().get(e.getKey());
-            if (imp == null) {
-                err.println("note: " + op.name() + " made no " + e.getKey() + " for this input; " + path + " not written");
-            } else if (path.getFileName().toString().toLowerCase(Locale.ROOT).endsWith(".png")) {
-                OutputFiles.writePng(imp, path, overwrite);
-                written.add(path);
-            } else {
-                TiffFiles.write(imp, path, overwrite);
-                written.add(path);
-            }
-        }
+        ResultFiles.write(op, result, outputs, overwrite, guard::isCancelled, err);
     }
 
 }
