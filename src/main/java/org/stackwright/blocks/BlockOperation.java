@@ -41,6 +41,14 @@ public interface BlockOperation {
         return true;
     }
 
+    /**
+     * @return the index of a block to process first (the global step may have done its work already, which is then
+     *     handed over and freed at once), or -1
+     */
+    default int firstBlock(Globals globals) {
+        return -1;
+    }
+
     /** @return true when a block must hold every plane (the operation works across all planes) */
     default boolean wholeDepth(Values v) {
         return false;

@@ -191,7 +191,7 @@ public final class BlockRun {
             }
             BlockTotals totals;
             try (BlockProcessor proc = b.processor(p.resolved(), p.globals(), ctx)) {
-                totals = BlockRunner.run(p.plan(), proc, inputs, sinks, ctx);
+                totals = BlockRunner.run(p.plan(), b.firstBlock(p.globals()), proc, inputs, sinks, ctx);
             }
             Result r = b.finish(p.resolved(), p.globals(), totals, inputs, ctx);
             record(r, p, totals);

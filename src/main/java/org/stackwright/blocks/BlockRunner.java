@@ -27,6 +27,16 @@ public final class BlockRunner {
      */
     public static BlockTotals run(BlockPlan plan, BlockProcessor processor, Map<String, PlaneSource> inputs,
             Map<String, StackSink> sinks, RunContext ctx) {
+        return run(plan, -1, processor, inputs, sinks, ctx);
+    }
+
+    /**
+     * As above, with one block moved to the front of the order.
+     *
+     * @param first index of the block to process first, or -1 for the plan's order
+     */
+    public static BlockTotals run(BlockPlan plan, int first, BlockProcessor processor, Map<String, PlaneSource> inputs,
+            Map<String, StackSink> sinks, RunContext ctx) {
         PlaneSource main = inputs.values().iterator().next();
         BlockAssembly assembly = new BlockAssembly(plan.width(), plan.height(), main.voxel());
         int[] left = plan.blocksPerPlane();
@@ -34,7 +44,11 @@ public final class BlockRunner {
         long t0 = System.nanoTime();
         Set<String> warned = new LinkedHashSet<>();
         int done = 0;
-        for (Block b : plan.blocks()) {
+        java.util.List<Block> order = new java.util.ArrayList<>(plan.blocks());
+        if (first >= 0) {
+            order.add(0, order.remove(first));
+        }
+        for (Block b : order) {
             ctx.checkCancelled();
             final int index = done;
             final double elapsed = (System.nanoTime() - t0) * 1e-9;
@@ -42,11 +56,11 @@ public final class BlockRunner {
             RunContext inner = new RunContext(ctx.threads(),
                     (f, s) -> ctx.progress((index + Math.max(0, Math.min(1, f))) / n, where + ": " + s),
                     w -> {
-                        boolean first;
+                        boolean once;
                         synchronized (warned) {
-                            first = warned.add(w);
+                            once = warned.add(w);
                         }
-                        if (first) {
+                        if (once) {
                             ctx.warn(w);
                         }
                     },

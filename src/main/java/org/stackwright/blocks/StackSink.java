@@ -13,7 +13,7 @@ public interface StackSink {
      * Writes the pixels of one core.
      *
      * @param core where the pixels go in the whole stack
-     * @param pixels the core's pixels (its size), not modified; 8-bit sinks round and clamp them to 0..255
+     * @param pixels the core's pixels (its size), not modified; 8 and 16-bit sinks round and clamp them to their range
      */
     void write(Box core, Volume pixels);
 

@@ -17,7 +17,7 @@ import org.stackwright.volume.VoxelSize;
  * order, from several threads: the header and every image directory are written first, the planes follow one after
  * the other, so the position of every row is known before any pixel is computed.
  *
- * <p>Layout per Adobe, "TIFF Revision 6.0", 1992 (one strip per plane; BitsPerSample 8 or 32, SampleFormat 1 =
+ * <p>Layout per Adobe, "TIFF Revision 6.0", 1992 (one strip per plane; BitsPerSample 8, 16 or 32, SampleFormat 1 =
  * unsigned integer or 3 = IEEE float). When the file would pass the 4 GB that 32-bit offsets reach, it is a BigTIFF
  * (libtiff project's BigTIFF specification: version 43, 8-byte offsets, LONG8 strip offsets and counts). The first
  * directory carries an ImageJ-style description (images, slices, unit = micron, spacing) and the resolution tags
@@ -55,7 +55,7 @@ final class TiffStackFile implements AutoCloseable {
     /**
      * Creates the file (replacing it) with its header and directories; the pixels start as zeros.
      *
-     * @param bits 8 (unsigned) or 32 (float)
+     * @param bits 8 or 16 (unsigned, rounded and clamped) or 32 (float)
      * @param forceBig true to write BigTIFF even when classic would do (for tests)
      */
     static TiffStackFile create(Path file, int width, int height, int depth, int bits, VoxelSize voxel,
@@ -261,6 +261,10 @@ final class TiffStackFile implements AutoCloseable {
                 if (bytesPerSample == 4) {
                     for (int i = 0; i < count; i++) {
                         b.putFloat(v[src + i]);
+                    }
+                } else if (bytesPerSample == 2) {
+                    for (int i = 0; i < count; i++) {
+                        b.putShort((short) Math.max(0, Math.min(65535, Math.round(v[src + i]))));
                     }
                 } else {
                     for (int i = 0; i < count; i++) {

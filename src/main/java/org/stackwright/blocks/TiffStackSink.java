@@ -25,7 +25,7 @@ public final class TiffStackSink implements StackSink {
 
     /**
      * @param target the output file
-     * @param bits 8 or 32
+     * @param bits 8, 16 or 32
      * @param overwrite whether an existing file may be replaced
      * @param forceBig BigTIFF even when it would fit a classic TIFF (tests)
      * @throws IllegalArgumentException when the folder is missing or the file exists and overwrite is false

@@ -45,6 +45,10 @@ final class DeconvolveBlocks implements BlockOperation {
 
     /** Halo as a multiple of the PSF's size per axis. */
     private final double haloFactor;
+    /** the representative block's result of the last global step, until its block asks for it */
+    private Volume kept;
+    /** the global step's result that the kept block result belongs to, and the block's index */
+    private final Map<Globals, Integer> keptFor = java.util.Collections.synchronizedMap(new java.util.IdentityHashMap<>());
     private ImagePlus cachedFor;
     private VoxelSize cachedVoxel;
     private Volume cachedPsf;
@@ -198,16 +202,27 @@ final class DeconvolveBlocks implements BlockOperation {
         rec.put("trusted_pixels", scan.trusted);
         int iterations = s.stopping().maxIterations();
         String how = "given (" + s.stopping().rule().word() + " rule)";
+        int repIndex = -1;
+        kept = null;
+        if (s.method().equals("total-variation") && plan.blocks().size() > 1) {
+            double mean = meanSignal(data, mask, s, (float) b) / scan.trusted;
+            numbers.put(MEAN_SIGNAL, mean);
+            rec.put("mean_signal_photoelectrons", mean);
+        }
         boolean steps = accelerated(s) && plan.blocks().size() > 1;
         if (!s.method().equals("wiener") && plan.blocks().size() > 1 && (s.stopping().rule() != StopRule.FIXED || steps)) {
             Block rep = plan.blocks().get(scan.brightest());
-            ctx.progress(0, "global settings: " + s.stopping().rule().word() + " rule on block " + (rep.index() + 1));
+            ctx.progress(0, "global settings: " + (s.stopping().rule() == StopRule.FIXED ? "extrapolation steps"
+                    : s.stopping().rule().word() + " rule") + " on block " + (rep.index() + 1));
             Map<String, Volume> part = new LinkedHashMap<>();
             part.put("input", data.read(rep.read()));
             if (mask != null) {
                 part.put("mask", mask.read(rep.read()));
             }
-            Solver solver = s.solver();
+            // the representative block runs as every block will (the whole volume's start, background and
+            // step balance), so its result is kept and used as its own block's output
+            Solver solver = accelerated(s) ? new RichardsonLucy(s.stopping(), true)
+                    : blockSolver(s, new Globals(Map.of(), numbers, Map.of()));
             Solution sol = solveBlock(solver, s, bg, start, psf, part, ctx);
             if (sol != null && s.stopping().rule() != StopRule.FIXED) {
                 iterations = sol.iterations();
@@ -224,11 +239,7 @@ final class DeconvolveBlocks implements BlockOperation {
             }
             rec.put("representative_block", Map.of("index", rep.index() + 1, "core", rep.core().toString(),
                     "read", rep.read().toString()));
-        }
-        if (s.method().equals("total-variation") && plan.blocks().size() > 1) {
-            double mean = meanSignal(data, mask, s, (float) b) / scan.trusted;
-            numbers.put(MEAN_SIGNAL, mean);
-            rec.put("mean_signal_photoelectrons", mean);
+            repIndex = rep.index();
         }
         if (!s.method().equals("wiener")) {
             set.put("stop", "fixed");
@@ -237,7 +248,14 @@ final class DeconvolveBlocks implements BlockOperation {
         rec.put("iterations", iterations);
         rec.put("iterations_from", how);
         rec.put("regularization", s.method().equals("richardson-lucy") ? 0.0 : s.lambda());
-        return new Globals(set, numbers, rec);
+        Globals g = new Globals(set, numbers, rec);
+        if (repIndex >= 0 && kept != null) {
+            keptFor.clear();
+            keptFor.put(g, repIndex);
+        } else {
+            kept = null;
+        }
+        return g;
     }
 
     /** Whole-volume statistics gathered plane by plane in the global step. */
@@ -374,11 +392,16 @@ final class DeconvolveBlocks implements BlockOperation {
     }
 
     /** Deconvolves one block's read box with fixed background and start (the global step's representative run). */
-    private static Solution solveBlock(Solver solver, DeconvolutionSettings s, double bg, double start, Volume psf,
+    private Solution solveBlock(Solver solver, DeconvolutionSettings s, double bg, double start, Volume psf,
             Map<String, Volume> in, RunContext ctx) {
         try (Workers workers = new Workers(ctx.threads())) {
             DeconvolutionProblem problem = problem(s, bg, start, psf, in, workers);
-            return problem == null ? null : solver.solve(problem, ctx, IterationListener.NONE);
+            if (problem == null) {
+                return null;
+            }
+            Solution sol = solver.solve(problem, ctx, IterationListener.NONE);
+            kept = problem.toVolume(sol.estimate());
+            return sol;
         }
     }
 
@@ -439,6 +462,10 @@ final class DeconvolveBlocks implements BlockOperation {
             @Override
             public BlockOutput process(Block block, Map<String, Volume> in, RunContext c) {
                 Volume data = in.get("input");
+                Volume done = takeKept(g, block.index());
+                if (done != null) {
+                    return BlockOutput.of(Map.of("output", done));
+                }
                 DeconvolutionProblem problem = problem(s, s.background(), start, psf, in, workers);
                 if (problem == null) {
                     c.warn("a block without trusted pixels (all masked or NaN) is given 0");
@@ -454,6 +481,24 @@ final class DeconvolveBlocks implements BlockOperation {
                 workers.close();
             }
         };
+    }
+
+    /** @return the representative block's result when this block is it (once; it is then forgotten), or null */
+    private synchronized Volume takeKept(Globals g, int index) {
+        Integer i = keptFor.get(g);
+        if (i == null || i != index || kept == null) {
+            return null;
+        }
+        Volume v = kept;
+        kept = null;
+        keptFor.clear();
+        return v;
+    }
+
+    @Override
+    public int firstBlock(Globals g) {
+        Integer i = keptFor.get(g);
+        return i == null ? -1 : i;
     }
 
     @Override
