@@ -10,7 +10,7 @@ import java.util.List;
  * side (clipped at the volume's faces). Blocks are ordered plane slab by plane slab (z outer, then y, then x), so
  * the planes of one slab are finished before the next slab starts.
  *
- * <p>Core sizes are evened out: a volume of 1000 columns cut at most 400 wide gets three cores of 334, 333 and 333
+ * <p>Core sizes are evened out: a volume of 1000 columns cut at most 400 wide gets three cores of 333, 333 and 334
  * columns rather than 400, 400 and 200, so no block is a sliver whose halo costs more than its core.
  */
 public final class BlockPlan implements Serializable {

@@ -173,17 +173,28 @@ class DeconvolveBadInputTest {
         t.add(row("output equal to input", 2, "is the same file as --input; the input is never overwritten",
                 "--output", input("cells.tif", good), "--overwrite"));
         t.add(memoryRow());
+        // blocks (blocks.BlockSettings, solve.DeconvolveBlocks)
+        t.add(row("block-size of the wrong form", 2, "block-size = '16x16' has the wrong form; give WxHxD, e.g. 65x65x41,"
+                + " or auto", "--block-size", "16x16"));
+        t.add(row("block-size with a 0", 2, "block-size = '0x16x12': each size must be from 1 to 100000, or auto",
+                "--block-size", "0x16x12"));
+        t.add(row("memory without a unit", 2, "memory = '700' is not a size; give a number with k, m, g or t, e.g. 700m"
+                + " or 4g", "--memory", "700"));
+        t.add(row("wiener in blocks", 2, "method = wiener is one filter over the whole stack", "--method", "wiener",
+                "--block-size", "16x16x12"));
+        t.add(row("noise replicas in blocks", 2, "replicas: noise replicas need the whole stack in memory", "--replicas",
+                "2", "--block-size", "16x16x12"));
+        t.add(row("blocks in an explicit size run", 0, "global settings for 4 blocks (2x2x1)", "--block-size", "16x16x12",
+                "--iterations", "3", "--stop", "fixed"));
         return t.stream();
     }
 
     /**
-     * The memory refusal through the command line: {@link MemoryCheck#LIMIT_PROPERTY} lowers the memory a run may
-     * use to 2 MB, below the estimate of this 64x64x16 run (about 5 MB), so no huge image is needed.
+     * A stack larger than the memory a run may use ({@link MemoryCheck#LIMIT_PROPERTY} lowers it to 2 MB, below the
+     * estimate of this 64x64x16 run, about 5 MB) no longer fails: it runs in blocks that fit (blocks.BlockSizing).
      */
     private static BadInputTable.Case memoryRow() {
-        BadInputTable.Case inner = row("allocation larger than the memory", 2, "MB of memory but only 2 MB are free for Java (maximum heap 2 MB); give Java more memory (java -Xmx..., or"
-                + " Edit>Options>Memory in ImageJ) or use a smaller image (the limit is lowered by"
-                + " -Dstackwright.memory-limit-mb=2)",
+        BadInputTable.Case inner = row("stack larger than the memory: runs in blocks", 0, "global settings for 60 blocks",
                 "--input", input("cells-64.tif", cells(64, 64, 16, 6)));
         return new BadInputTable.Case(inner.name(), () -> {
             System.setProperty(MemoryCheck.LIMIT_PROPERTY, "2");
