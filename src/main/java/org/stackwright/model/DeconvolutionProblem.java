@@ -1,6 +1,8 @@
 package org.stackwright.model;
 
 import org.stackwright.fft.Convolution;
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
@@ -103,11 +105,21 @@ public final class DeconvolutionProblem {
      * @param workers the threads (not closed here)
      */
     public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera, Workers workers) {
-        this(data, psf, mask, boundary, camera, workers, Float.NaN);
+        this(data, psf, mask, boundary, camera, workers, FftEngines.standard(), Float.NaN);
+    }
+
+    /**
+     * As above, with the FFT engine of the blur.
+     *
+     * @param fft the FFT engine (a run's choice: {@code op.RunContext#fft()})
+     */
+    public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera, Workers workers,
+            FftEngine fft) {
+        this(data, psf, mask, boundary, camera, workers, fft, Float.NaN);
     }
 
     private DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
-            Workers workers, float start) {
+            Workers workers, FftEngine fft, float start) {
         if (mask != null && mask.length != data.size()) {
             throw new IllegalArgumentException("mask has " + mask.length + " pixels but the image " + data.shape()
                     + " has " + data.size() + "; give a mask of the same size");
@@ -130,7 +142,7 @@ public final class DeconvolutionProblem {
         }
         Volume.checkSize(nx, ny, nz);
         int n = nx * ny * nz;
-        this.blur = new BlurOperator(psf, nx, ny, nz, workers);
+        this.blur = new BlurOperator(psf, nx, ny, nz, workers, fft);
         this.y = new float[w * h * d];
         double s = (camera.readNoise() / camera.gain()) * (camera.readNoise() / camera.gain());
         this.background = (float) (camera.background() / camera.gain() + s);
@@ -150,23 +162,26 @@ public final class DeconvolutionProblem {
                     + ": nothing is left to deconvolve");
         }
         this.trusted = count;
-        this.norm = new float[n];
         if (boundary == Boundary.ZERO_SAME) {
+            this.norm = new float[n];
             for (int i = 0; i < n; i++) {
                 norm[i] = inWindow(i) ? 1f : 0f;
             }
             this.start = start;
         } else {
+            // H^T w computed in the blur's in-place work array (no FFT work buffer kept for the run), then trimmed
+            float[] t = blur.newWorkArray();
             for (int z = 0; z < d; z++) {
                 for (int yy = 0; yy < h; yy++) {
                     int row = (z * ny + yy) * nx;
                     int wrow = (z * h + yy) * w;
                     for (int x = 0; x < w; x++) {
-                        norm[row + x] = y[wrow + x] >= 0 ? 1f : 0f;
+                        t[row + x] = y[wrow + x] >= 0 ? 1f : 0f;
                     }
                 }
             }
-            blur.applyAdjoint(norm, norm);
+            blur.applyAdjoint(t, t);
+            this.norm = t.length == n ? t : java.util.Arrays.copyOf(t, n);
             float max = 0;
             for (float v : norm) {
                 max = Math.max(max, v);
@@ -186,7 +201,8 @@ public final class DeconvolutionProblem {
      * no normalisation (H^T 1 taken as 1), no background, start value 0.5 everywhere.
      */
     public static DeconvolutionProblem compatible(Volume data, Volume psf, Workers workers) {
-        return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), workers, 0.5f);
+        return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), workers,
+                FftEngines.standard(), 0.5f);
     }
 
     private boolean inWindow(int i) {
