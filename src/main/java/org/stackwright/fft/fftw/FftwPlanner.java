@@ -25,13 +25,15 @@ import org.bytedeco.javacpp.FloatPointer;
  *
  * <p><b>Estimate or measure.</b> An estimated plan (FFTW_ESTIMATE) costs milliseconds to make; a measured one
  * (FFTW_MEASURE) times candidate algorithms on the machine and runs the transform faster, but making it costs about
- * {@link #PLANNING_ROUND_TRIPS} round trips of the estimated plan (measured here: see README, FFT engine), more than
- * a typical deconvolution saves. So the choice follows the measured total time, like renting skis before buying:
- * a grid is first planned by estimate; every filtering through it is timed; once this JVM has spent more time on
- * the grid than measured planning is predicted to cost, the next transform of that size gets a measured plan (with
- * FFTW's time limit set to that prediction) and the plan is kept as wisdom in the user's cache folder
- * ({@link WisdomFile}), so later runs and later JVMs get it at no cost. A run never changes plans midway. The system
- * property {@code stackwright.fft.planning} (auto, estimate or measure) overrides this, e.g. for benchmarks.
+ * {@link #PLANNING_ROUND_TRIPS} round trips of the estimated plan and saves only about {@link #MEASURED_SAVING} of
+ * each later one (both measured here: README, FFT engine), far more than a typical deconvolution saves. So the choice
+ * follows the measured total time, like renting skis before buying them: a grid is first planned by estimate;
+ * every filtering through it is timed; once this JVM has spent so much time on the grid that a measured plan would
+ * have paid for itself (time spent x saving &gt; predicted planning time), the next transform of that size gets a
+ * measured plan (FFTW's time limit set to twice the prediction) and the plan is kept as wisdom in the user's cache
+ * folder ({@link WisdomFile}), so later transforms, runs and JVMs get it at no cost. A run never changes plans
+ * midway. The system property {@code stackwright.fft.planning} (auto, estimate or measure) overrides this, e.g. for
+ * benchmarks, and the tests pin it to estimate.
  *
  * <p><b>Determinism.</b> Estimated plans depend only on the size and thread count: repeat runs give bit-identical
  * results, and the results were also identical for 1, 2 and 4 threads at the sizes we tried. Measured plans are chosen
@@ -45,6 +47,9 @@ final class FftwPlanner {
 
     /** The cost of measured planning in round trips of the estimated plan (forward + inverse); see the class doc. */
     static final double PLANNING_ROUND_TRIPS = 100;
+
+    /** The fraction of a round trip's time a measured plan saves over an estimated one; see the class doc. */
+    static final double MEASURED_SAVING = 0.15;
 
     static final String ESTIMATE = "estimate";
     static final String FROM_WISDOM = "measured, from wisdom";
@@ -136,7 +141,7 @@ final class FftwPlanner {
                 }
             }
             boolean measure = policy.equals("measure")
-                    || (policy.equals("auto") && u.count() > 0 && u.nanos() > predictedPlanningNanos(u));
+                    || (policy.equals("auto") && u.count() > 0 && u.nanos() * MEASURED_SAVING > predictedPlanningNanos(u));
             if (measure) {
                 double limit = policy.equals("measure") ? -1 : 2e-9 * predictedPlanningNanos(u);
                 fftwf_set_timelimit(limit);
