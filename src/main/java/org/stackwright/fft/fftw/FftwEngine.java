@@ -31,6 +31,7 @@ public final class FftwEngine implements FftEngine {
      * @throws UnsatisfiedLinkError or another error when the library does not load on this platform
      */
     public static FftwEngine load() {
+        checkJavaCppVersion();
         Loader.load(org.bytedeco.fftw.global.fftw3.class);
         synchronized (FftwPlanner.LOCK) {
             if (fftwf_init_threads() == 0) {
@@ -39,6 +40,33 @@ public final class FftwEngine implements FftEngine {
             FftwPlanner.readWisdom();
         }
         return INSTANCE;
+    }
+
+    /**
+     * JavaCPP cannot be relocated (the JNI names in the native libraries are bound to its package), so in Fiji another
+     * plugin's JavaCPP jar may be the one the class loader found. The FFTW presets are built for one JavaCPP version
+     * (the part after the last '-' of their version); any other is refused here, before native code runs, so that
+     * {@code auto} falls back to the Java engine with this message instead of failing later.
+     */
+    private static void checkJavaCppVersion() {
+        String javacpp;
+        String presets;
+        try {
+            javacpp = Loader.getVersion();
+            presets = Loader.getVersion("org.bytedeco", "fftw", org.bytedeco.fftw.global.fftw3.class);
+        } catch (java.io.IOException e) {
+            throw new IllegalStateException("the JavaCPP and FFTW versions could not be read: " + e.getMessage(), e);
+        }
+        if (javacpp == null || presets == null) {
+            return; // no version information (classes not from the released jars): nothing to compare
+        }
+        String wanted = presets.substring(presets.lastIndexOf('-') + 1);
+        if (!wanted.equals(javacpp)) {
+            java.security.CodeSource where = Loader.class.getProtectionDomain().getCodeSource();
+            throw new IllegalStateException("JavaCPP " + javacpp + (where == null ? "" : " from " + where.getLocation())
+                    + " is loaded, but the FFTW library here needs JavaCPP " + wanted
+                    + " (another plugin brings its own JavaCPP; see README, Fiji and JavaCPP)");
+        }
     }
 
     @Override
