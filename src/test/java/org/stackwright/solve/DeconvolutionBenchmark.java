@@ -22,6 +22,7 @@ import java.util.concurrent.TimeUnit;
 import org.stackwright.fft.FftEngine;
 import org.stackwright.fft.FftEngines;
 import org.stackwright.fft.RealFft3D;
+import org.stackwright.model.Camera;
 import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.op.RunContext;
 import org.stackwright.parallel.Workers;
@@ -51,8 +52,8 @@ import org.stackwright.volume.VoxelSize;
 public final class DeconvolutionBenchmark {
 
     private static final String PYTHON = "/usr/bin/python3";
-    private static final Path SCRIPT = Paths.get("tools", "bench", "skimage_rl.py");
-    private static final Path PYFFTW = Paths.get("tools", "bench", "pyfftw_roundtrip.py");
+    private static final Path SCRIPT = Paths.get("tools", "benchmark", "skimage_rl.py");
+    private static final Path PYFFTW = Paths.get("tools", "benchmark", "pyfftw_roundtrip.py");
 
     private DeconvolutionBenchmark() {
     }
@@ -194,7 +195,7 @@ public final class DeconvolutionBenchmark {
     /** @return {best wall seconds, mean CPU seconds} of one plain RL iteration after the first */
     private static double[] rlIteration(Volume data, Volume psf, FftEngine engine, Workers w, int reps) {
         DeconvolutionProblem p = new DeconvolutionProblem(data, psf, null, DeconvolutionProblem.Boundary.EXTENDED,
-                new DeconvolutionProblem.Camera(0, 10, 1, 0), w, engine);
+                Camera.of(1, 0, 0), 10, w, engine);
         long[] stamps = new long[reps + 2];
         long[] cpu = new long[reps + 2];
         new RichardsonLucy(Stopping.fixed(reps + 1), false).solve(p, RunContext.quiet(w.threads()).withFft(engine),
@@ -218,7 +219,7 @@ public final class DeconvolutionBenchmark {
         long nativeBase = nativeBytes();
         long[] live = new long[2];
         DeconvolutionProblem p = new DeconvolutionProblem(data, psf, null, DeconvolutionProblem.Boundary.EXTENDED,
-                new DeconvolutionProblem.Camera(0, 10, 1, 0), w, engine);
+                Camera.of(1, 0, 0), 10, w, engine);
         new RichardsonLucy(Stopping.fixed(2), accelerated).solve(p, RunContext.quiet(w.threads()).withFft(engine),
                 (k, max, obj, ch) -> {
                     if (k == 2) {

@@ -15,7 +15,7 @@ import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 import org.stackwright.cli.Main;
 import org.stackwright.fft.FftEngines;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.simulate.Simulation;
 import org.stackwright.testing.VolumeAssert;
 import org.stackwright.volume.TiffFiles;
