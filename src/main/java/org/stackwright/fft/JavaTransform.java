@@ -105,10 +105,7 @@ final class JavaTransform implements RealTransform {
     }
 
     private void check(float[] a, int min, String what) {
-        if (a.length < min) {
-            throw new IllegalArgumentException(what + " array of " + a.length + " floats is shorter than " + min
-                    + " (FFT size " + nx() + "x" + ny() + "x" + nz() + ")");
-        }
+        RealTransform.checkLength(this, a, min, what);
     }
 
     @Override

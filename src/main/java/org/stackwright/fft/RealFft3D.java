@@ -56,12 +56,7 @@ public final class RealFft3D {
      * @param workers the threads to use (not closed by this object)
      */
     public RealFft3D(int nx, int ny, int nz, Workers workers) {
-        if (nx < 1 || ny < 1 || nz < 1) {
-            throw new IllegalArgumentException("FFT size must be at least 1x1x1 (given " + nx + "x" + ny + "x" + nz + ")");
-        }
-        if ((long) (nx / 2 + 1) * ny * nz * 2 > Integer.MAX_VALUE - 8) {
-            throw new IllegalArgumentException("FFT size " + nx + "x" + ny + "x" + nz + " is too large for one array");
-        }
+        RealTransform.checkSize(nx, ny, nz);
         this.nx = nx;
         this.ny = ny;
         this.nz = nz;

@@ -61,6 +61,33 @@ public interface RealTransform {
      */
     void filter(float[] in, float[] out, float[] kernel, SpectrumProduct product);
 
+    /**
+     * Checks a grid size for any engine: at least 1 along each axis, and a spectrum that fits one Java array.
+     *
+     * @throws IllegalArgumentException naming the size
+     */
+    static void checkSize(int nx, int ny, int nz) {
+        if (nx < 1 || ny < 1 || nz < 1) {
+            throw new IllegalArgumentException("FFT size must be at least 1x1x1 (given " + nx + "x" + ny + "x" + nz + ")");
+        }
+        if ((long) (nx / 2 + 1) * ny * nz * 2 > Integer.MAX_VALUE - 8) {
+            throw new IllegalArgumentException("FFT size " + nx + "x" + ny + "x" + nz + " is too large for one array");
+        }
+    }
+
+    /**
+     * Checks that an argument array holds at least {@code min} floats.
+     *
+     * @param what the argument's name, for the message
+     * @throws IllegalArgumentException naming the argument, its length and the size
+     */
+    static void checkLength(RealTransform t, float[] a, int min, String what) {
+        if (a.length < min) {
+            throw new IllegalArgumentException(what + " array of " + a.length + " floats is shorter than " + min
+                    + " (FFT size " + t.nx() + "x" + t.ny() + "x" + t.nz() + ")");
+        }
+    }
+
     /** @return the engine's name for the run record: {@code java} or {@code native} */
     String engine();
 

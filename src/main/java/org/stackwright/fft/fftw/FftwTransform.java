@@ -41,12 +41,7 @@ final class FftwTransform implements RealTransform {
     private final float[][] blocks;
 
     FftwTransform(int nx, int ny, int nz, Workers workers) {
-        if (nx < 1 || ny < 1 || nz < 1) {
-            throw new IllegalArgumentException("FFT size must be at least 1x1x1 (given " + nx + "x" + ny + "x" + nz + ")");
-        }
-        if ((long) (nx / 2 + 1) * ny * nz * 2 > Integer.MAX_VALUE - 8) {
-            throw new IllegalArgumentException("FFT size " + nx + "x" + ny + "x" + nz + " is too large for one array");
-        }
+        RealTransform.checkSize(nx, ny, nz);
         this.nx = nx;
         this.ny = ny;
         this.nz = nz;
@@ -189,10 +184,7 @@ final class FftwTransform implements RealTransform {
     }
 
     private void check(float[] a, int min, String what) {
-        if (a.length < min) {
-            throw new IllegalArgumentException(what + " array of " + a.length + " floats is shorter than " + min
-                    + " (FFT size " + nx + "x" + ny + "x" + nz + ")");
-        }
+        RealTransform.checkLength(this, a, min, what);
     }
 
     @Override
