@@ -16,7 +16,9 @@ import org.stackwright.blocks.BlockTotals;
 import org.stackwright.blocks.Box;
 import org.stackwright.blocks.Globals;
 import org.stackwright.blocks.PlaneSource;
+import org.stackwright.fft.FftEngine;
 import org.stackwright.model.NoiseModel;
+import org.stackwright.op.FftChoice;
 import org.stackwright.op.InputChecks;
 import org.stackwright.op.Result;
 import org.stackwright.op.RunContext;
@@ -109,6 +111,7 @@ final class ResidualsBlocks implements BlockOperation {
         int depth = (int) g.number("depth");
         Volume psf = psf(resolved, voxel, depth, RunContext.quiet(1));
         ResidualModel model = model(resolved);
+        FftEngine fft = FftChoice.choose(resolved).engine();
         Workers workers = new Workers(ctx.threads());
         return new BlockProcessor() {
             @Override
@@ -118,10 +121,11 @@ final class ResidualsBlocks implements BlockOperation {
                 InputChecks.requireFinite("estimate", est);
                 InputChecks.Scan scan = InputChecks.scan(data);
                 if (scan.nonFinite() > 0) {
-                    data = ResidualsOperation.predictionWhereUntrusted(data, est, psf, model, scan.nonFiniteMask(), workers);
+                    data = ResidualsOperation.predictionWhereUntrusted(data, est, psf, model, scan.nonFiniteMask(), workers,
+                            fft);
                     c.warn("input: untrusted (NaN or infinite) pixels are given the prediction (residual 0)");
                 }
-                ResidualMaps maps = ResidualMaps.compute(data, est, psf, model, workers);
+                ResidualMaps maps = ResidualMaps.compute(data, est, psf, model, workers, fft);
                 float[] r = maps.normalised().data();
                 Box core = block.core();
                 int[] off = block.coreOffset();
@@ -168,13 +172,14 @@ final class ResidualsBlocks implements BlockOperation {
         Volume x = est.read(crop).withVoxel(y.voxel());
         Volume psf = psf(resolved, data.voxel(), data.depth(), RunContext.quiet(1));
         ResidualModel model = model(resolved);
+        FftEngine fft = FftChoice.choose(resolved).engine();
         ResidualReport report;
         try (Workers w = new Workers(ctx.threads())) {
             InputChecks.Scan scan = InputChecks.scan(y);
             if (scan.nonFinite() > 0) {
-                y = ResidualsOperation.predictionWhereUntrusted(y, x, psf, model, scan.nonFiniteMask(), w);
+                y = ResidualsOperation.predictionWhereUntrusted(y, x, psf, model, scan.nonFiniteMask(), w, fft);
             }
-            report = ResidualReport.analyse(y, x, psf, model, w);
+            report = ResidualReport.analyse(y, x, psf, model, w, fft);
         }
         Result r = new Result();
         ResidualRecord.fill(r, report, resolved.effective());

@@ -17,6 +17,8 @@ import org.stackwright.blocks.Box;
 import org.stackwright.blocks.Globals;
 import org.stackwright.blocks.PlaneSource;
 import org.stackwright.fft.Convolution;
+import org.stackwright.fft.FftEngine;
+import org.stackwright.op.FftChoice;
 import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.op.InputChecks;
 import org.stackwright.op.Result;
@@ -395,7 +397,7 @@ final class DeconvolveBlocks implements BlockOperation {
     private Solution solveBlock(Solver solver, DeconvolutionSettings s, double bg, double start, Volume psf,
             Map<String, Volume> in, RunContext ctx) {
         try (Workers workers = new Workers(ctx.threads())) {
-            DeconvolutionProblem problem = problem(s, bg, start, psf, in, workers);
+            DeconvolutionProblem problem = problem(s, bg, start, psf, in, workers, ctx.fft());
             if (problem == null) {
                 return null;
             }
@@ -407,7 +409,7 @@ final class DeconvolveBlocks implements BlockOperation {
 
     /** @return the problem of one block, or null when the block has no trusted pixel */
     private static DeconvolutionProblem problem(DeconvolutionSettings s, double bg, double start, Volume psf,
-            Map<String, Volume> in, Workers workers) {
+            Map<String, Volume> in, Workers workers, FftEngine fft) {
         Volume data = in.get("input");
         byte[] mask = expand(in.get("mask"), data);
         InputChecks.Scan scan = InputChecks.scan(data);
@@ -430,7 +432,7 @@ final class DeconvolveBlocks implements BlockOperation {
         }
         DeconvolutionProblem.Boundary boundary = s.boundary().equals("periodic")
                 ? DeconvolutionProblem.Boundary.PERIODIC : DeconvolutionProblem.Boundary.EXTENDED;
-        return new DeconvolutionProblem(data, psf, mask, boundary, s.camera(), bg, workers, (float) start);
+        return new DeconvolutionProblem(data, psf, mask, boundary, s.camera(), bg, workers, fft, (float) start);
     }
 
     /** @return one byte per data voxel (1 = untrusted) from a mask block of the same depth or one plane; or null */
@@ -457,6 +459,8 @@ final class DeconvolveBlocks implements BlockOperation {
         Volume psf = psf(resolved, (int) g.number("width"), (int) g.number("height"), (int) g.number("depth"), voxel,
                 null);
         double start = g.number("start");
+        // the engine of the settings (auto, native, java), the same on every node and on one machine
+        FftEngine fft = FftChoice.choose(resolved).engine();
         Workers workers = new Workers(ctx.threads());
         return new BlockProcessor() {
             @Override
@@ -466,7 +470,7 @@ final class DeconvolveBlocks implements BlockOperation {
                 if (done != null) {
                     return BlockOutput.of(Map.of("output", done));
                 }
-                DeconvolutionProblem problem = problem(s, s.background(), start, psf, in, workers);
+                DeconvolutionProblem problem = problem(s, s.background(), start, psf, in, workers, fft);
                 if (problem == null) {
                     c.warn("a block without trusted pixels (all masked or NaN) is given 0");
                     return BlockOutput.of(Map.of("output", Volume.zeros(data.width(), data.height(), data.depth(),

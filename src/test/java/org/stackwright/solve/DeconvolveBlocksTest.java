@@ -142,7 +142,7 @@ class DeconvolveBlocksTest {
         try (org.stackwright.parallel.Workers w = new org.stackwright.parallel.Workers(2)) {
             org.stackwright.model.DeconvolutionProblem p = new org.stackwright.model.DeconvolutionProblem(sim.data(),
                     psf, null, org.stackwright.model.DeconvolutionProblem.Boundary.EXTENDED, Camera.of(1, 100, 2), 10, w,
-                    (float) start);
+                    org.stackwright.fft.FftEngines.standard(), (float) start);
             Solution sol = new RichardsonLucy(Stopping.fixed(20), steps).solve(p, ctx, IterationListener.NONE);
             return p.toVolume(sol.estimate());
         }
