@@ -94,21 +94,7 @@ public final class Deconvolution {
         r.put("objective", solver.objectiveName());
         r.put("history", sol.objective());
         r.put("change_history", sol.change());
-        Map<String, Object> set = new LinkedHashMap<>();
-        set.put("stop", s.stopping().rule().word());
-        set.put("max_iterations", s.stopping().maxIterations());
-        set.put("tolerance", s.stopping().tolerance());
-        set.put("offset_adu", s.offset());
-        set.put("background_adu", bg);
-        set.put("background_estimated", estimated);
-        set.put("gain", s.gain());
-        set.put("read_noise_adu", s.readNoise());
-        set.put("regularization", s.method().equals("richardson-lucy") ? 0.0 : s.lambda());
-        set.put("boundary", s.boundary());
-        set.put("acceleration", s.method().equals("richardson-lucy") && s.accelerated());
-        set.put("likelihood", s.likelihood());
-        set.put("threads", ctx.threads());
-        r.put("settings", set);
+        r.put("settings", settingsRecord(s, bg, estimated, ctx.threads()));
         Map<String, Object> psfInfo = new LinkedHashMap<>();
         psfInfo.put("source", psfName);
         psfInfo.put("shape_as_read", psf.shape());
@@ -126,6 +112,25 @@ public final class Deconvolution {
         r.put("peak_memory_estimate_bytes", need);
         r.put("result_units", "ADU above the camera offset (background removed)");
         return new Outcome(result, sol, r, model);
+    }
+
+    /** @return the "settings" entry of a run record: the settings that decided the result */
+    static Map<String, Object> settingsRecord(DeconvolutionSettings s, double bg, boolean estimated, int threads) {
+        Map<String, Object> set = new LinkedHashMap<>();
+        set.put("stop", s.stopping().rule().word());
+        set.put("max_iterations", s.stopping().maxIterations());
+        set.put("tolerance", s.stopping().tolerance());
+        set.put("offset_adu", s.offset());
+        set.put("background_adu", bg);
+        set.put("background_estimated", estimated);
+        set.put("gain", s.gain());
+        set.put("read_noise_adu", s.readNoise());
+        set.put("regularization", s.method().equals("richardson-lucy") ? 0.0 : s.lambda());
+        set.put("boundary", s.boundary());
+        set.put("acceleration", s.method().equals("richardson-lucy") && s.accelerated());
+        set.put("likelihood", s.likelihood());
+        set.put("threads", threads);
+        return set;
     }
 
     /** @return gain * (H x) on the image window plus the background, ADU above the offset */

@@ -521,19 +521,8 @@ final class DeconvolveBlocks implements BlockOperation {
         r.record("iterations", iterations);
         r.record("stop_reason", reason);
         r.record("seconds", totals.seconds());
-        Map<String, Object> set = new LinkedHashMap<>();
-        set.put("stop", s.stopping().rule().word());
-        set.put("max_iterations", s.stopping().maxIterations());
-        set.put("offset_adu", s.offset());
-        set.put("background_adu", s.background());
-        set.put("gain", s.gain());
-        set.put("read_noise_adu", s.readNoise());
-        set.put("regularization", s.method().equals("richardson-lucy") ? 0.0 : s.lambda());
-        set.put("boundary", s.boundary());
-        set.put("acceleration", s.method().equals("richardson-lucy") && s.accelerated());
-        set.put("likelihood", s.likelihood());
-        set.put("threads", ctx.threads());
-        r.record("settings", set);
+        r.record("settings", Deconvolution.settingsRecord(s, s.background(),
+                Boolean.TRUE.equals(g.record().get("background_estimated")), ctx.threads()));
         Map<String, Object> psfInfo = new LinkedHashMap<>();
         psfInfo.put("source", psfImp == null ? "" : psfImp.getTitle());
         psfInfo.put("shape_used", psf.shape());

@@ -170,32 +170,41 @@ class DefectFinderTest {
         findInInventedSeries(1, -1);
     }
 
-    void findInInventedSeries(int frames, int kindsRight) {
-        Well19937c rng = new Well19937c(21);
-        SplittableRandom r = new SplittableRandom(22);
-        int blobs = 40;
+    /**
+     * Gaussian blobs drifting over the frames on a background of 100 photons, Poisson counts plus 2 ADU read noise,
+     * offset 100 (the camera model of REFERENCES.md).
+     *
+     * @param seed seeds the counts; seed + 1 the blob positions
+     */
+    static Volume blobSeries(int w, int h, int frames, int blobs, long seed) {
+        Well19937c rng = new Well19937c(seed);
+        SplittableRandom r = new SplittableRandom(seed + 1);
         double[][] blob = new double[blobs][4];
         for (double[] b : blob) {
-            b[0] = W * r.nextDouble();
-            b[1] = H * r.nextDouble();
+            b[0] = w * r.nextDouble();
+            b[1] = h * r.nextDouble();
             b[2] = 2 + 4 * r.nextDouble();
             b[3] = 200 + 1500 * r.nextDouble();
         }
-        float[] v = new float[W * H * frames];
+        float[] v = new float[w * h * frames];
         for (int t = 0; t < frames; t++) {
-            for (int y = 0; y < H; y++) {
-                for (int x = 0; x < W; x++) {
+            for (int y = 0; y < h; y++) {
+                for (int x = 0; x < w; x++) {
                     double mu = 100;
                     for (double[] b : blob) {
                         double dx = x - b[0] - 3 * t;
                         double dy = y - b[1] + 2 * t;
                         mu += b[3] * Math.exp(-(dx * dx + dy * dy) / (2 * b[2] * b[2]));
                     }
-                    v[(t * H + y) * W + x] = (float) (OFFSET + poisson(rng, mu) + 2 * rng.nextGaussian());
+                    v[(t * h + y) * w + x] = (float) (OFFSET + poisson(rng, mu) + 2 * rng.nextGaussian());
                 }
             }
         }
-        Volume img = new Volume(W, H, frames, v, VoxelSize.UNIT);
+        return new Volume(w, h, frames, v, VoxelSize.UNIT);
+    }
+
+    void findInInventedSeries(int frames, int kindsRight) {
+        Volume img = blobSeries(W, H, frames, 40, 21);
         double max = img.max();
         Damage.DefectKind[] planted = Damage.defects(img, new int[] {100, 100, 100}, OFFSET,
                 OFFSET + 20 * (max - OFFSET) + 500, OFFSET + 0.5 * (max - OFFSET) + 50, 23);

@@ -30,39 +30,13 @@ class RepairBlocksTest {
     private static final int H = 84;
     private static final int D = 6;
 
-    /** Blobs drifting over the frames, photon and read noise, then planted defects (Damage.defects). */
+    /** Blobs drifting over the frames with photon and read noise, then planted defects (Damage.defects). */
     private static Volume series() {
-        SplittableRandom r = new SplittableRandom(5);
-        double[][] blob = new double[15][4];
-        for (double[] b : blob) {
-            b[0] = W * r.nextDouble();
-            b[1] = H * r.nextDouble();
-            b[2] = 2 + 4 * r.nextDouble();
-            b[3] = 200 + 1500 * r.nextDouble();
-        }
-        float[] v = new float[W * H * D];
-        for (int t = 0; t < D; t++) {
-            for (int y = 0; y < H; y++) {
-                for (int x = 0; x < W; x++) {
-                    double mu = 100;
-                    for (double[] b : blob) {
-                        double dx = x - b[0] - 3 * t;
-                        double dy = y - b[1] + 2 * t;
-                        mu += b[3] * Math.exp(-(dx * dx + dy * dy) / (2 * b[2] * b[2]));
-                    }
-                    // Gaussian approximation of the photon count plus read noise (plenty for a comparison)
-                    v[(t * H + y) * W + x] = (float) Math.rint(100 + mu + Math.sqrt(mu) * gauss(r) + 2 * gauss(r));
-                }
-            }
-        }
-        Volume img = new Volume(W, H, D, v, new VoxelSize(0.1, 0.1, 0.3));
+        Volume img = DefectFinderTest.blobSeries(W, H, D, 15, 5);
+        img = img.withVoxel(new VoxelSize(0.1, 0.1, 0.3));
         double max = img.max();
         Damage.defects(img, new int[] {30, 30, 30}, 100, 100 + 20 * (max - 100) + 500, 100 + 0.5 * (max - 100) + 50, 9);
         return img;
-    }
-
-    private static double gauss(SplittableRandom r) {
-        return Math.sqrt(-2 * Math.log(1 - r.nextDouble())) * Math.cos(2 * Math.PI * r.nextDouble());
     }
 
     private static Result run(Operation op, Map<String, String> raw, Map<String, ImagePlus> images) {
