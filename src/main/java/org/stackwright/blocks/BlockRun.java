@@ -130,6 +130,17 @@ public final class BlockRun {
      */
     public static Prepared prepare(Operation op, BlockOperation b, Values v, Map<String, PlaneSource> inputs,
             RunContext ctx) {
+        return prepare(op, b, v, inputs, ctx, -1);
+    }
+
+    /**
+     * As {@link #prepare(Operation, BlockOperation, Values, Map, RunContext)}, for a runner whose blocks run
+     * elsewhere or several at once (a cluster runner): the memory one block may use is given.
+     *
+     * @param blockBudget bytes one block may use, or -1 for the memory setting and this JVM's heap
+     */
+    public static Prepared prepare(Operation op, BlockOperation b, Values v, Map<String, PlaneSource> inputs,
+            RunContext ctx, long blockBudget) {
         PlaneSource main = inputs.get(b.streamedInputs().get(0));
         if (main == null) {
             throw new IllegalArgumentException(b.streamedInputs().get(0) + " is required for " + op.name());
@@ -148,12 +159,12 @@ public final class BlockRun {
         if (dims[2] == 1) {
             halo[2] = 0;
         }
-        if (BlockSettings.beyondHeap(v)) {
+        if (blockBudget < 0 && BlockSettings.beyondHeap(v)) {
             ctx.warn(String.format(Locale.ROOT, "memory = %s is more than the Java heap has free (%.0f MB); using %.0f MB"
                     + " (give Java more with java -Xmx...)", v.text(BlockSettings.MEMORY),
                     BlockSettings.budget(v) / 1048576.0, BlockSettings.budget(v) / 1048576.0));
         }
-        long budget = BlockSettings.budget(v);
+        long budget = blockBudget < 0 ? BlockSettings.budget(v) : blockBudget;
         int[] core = BlockSettings.coreSize(v);
         boolean whole = b.wholeDepth(v);
         if (core == null) {

@@ -45,9 +45,9 @@ final class SparkBlockRun {
     }
 
     static Result run(JavaSparkContext sc, Operation op, Values values, Map<String, String> raw,
-            StreamingRun.BlockFiles files, boolean overwrite, int failOnce, RunContext ctx) {
+            StreamingRun.BlockFiles files, boolean overwrite, int failOnce, long taskBudget, RunContext ctx) {
         BlockOperation b = files.blocks();
-        BlockRun.Prepared p = BlockRun.prepare(op, b, values, files.inputs(), ctx);
+        BlockRun.Prepared p = BlockRun.prepare(op, b, values, files.inputs(), ctx, taskBudget);
         PlaneSource main = files.inputs().get(b.streamedInputs().get(0));
         Path anchor = files.streamed().isEmpty() ? files.others().values().stream().findFirst()
                 .orElse(Path.of("stackwright-run")) : files.streamed().values().iterator().next();

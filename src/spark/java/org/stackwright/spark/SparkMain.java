@@ -9,10 +9,12 @@ import java.util.regex.Pattern;
 
 import org.apache.spark.SparkConf;
 import org.apache.spark.api.java.JavaSparkContext;
+import org.stackwright.blocks.BlockSettings;
 import org.stackwright.blocks.Blockwise;
 import org.stackwright.cli.CommandLineOptions;
 import org.stackwright.cli.ResultFiles;
 import org.stackwright.cli.StreamingRun;
+import org.stackwright.op.MemoryCheck;
 import org.stackwright.op.Operation;
 import org.stackwright.op.Result;
 import org.stackwright.op.RunContext;
@@ -38,6 +40,10 @@ public final class SparkMain {
     static final String FAIL_ONCE = "spark.stackwright.failOnce";
 
     private static final Pattern LOCAL = Pattern.compile("local\\[(\\d+|\\*)\\]");
+    /** A local master with or without its number of tries: local[N], local[*], local[N,F]. */
+    private static final Pattern LOCAL_ANY = Pattern.compile("local(?:\\[(\\d+|\\*)(?:,\\d+)?\\])?");
+    /** What Spark keeps of each executor's heap for itself before tasks share it (its reserved memory). */
+    private static final long SPARK_RESERVE = 300L << 20;
 
     private SparkMain() {
     }
@@ -52,6 +58,36 @@ public final class SparkMain {
     static String withRetries(String master) {
         Matcher m = LOCAL.matcher(master.trim());
         return m.matches() ? "local[" + m.group(1) + ",4]" : master.trim();
+    }
+
+    /**
+     * The memory one block task may use. Several tasks run at once in one JVM, so a budget for the whole heap (as on
+     * one machine) would run out of memory. In local mode the driver is the executor: its free heap shared among the
+     * task slots, capped by the memory setting. On a cluster the memory setting is what one task may use; without
+     * it, an executor's memory less Spark's reserve, shared among its slots (spark.executor.cores /
+     * spark.task.cpus, 1 when not set).
+     */
+    static long taskBudget(SparkConf conf, Values v, RunContext ctx) {
+        String given = v.text(BlockSettings.MEMORY);
+        long setting = given == null || given.isBlank() ? -1 : BlockSettings.parseSize(given);
+        Matcher m = LOCAL_ANY.matcher(conf.get("spark.master", "").trim());
+        if (m.matches()) {
+            int slots = m.group(1) == null ? 1 : m.group(1).equals("*") ? Runtime.getRuntime().availableProcessors()
+                    : Math.max(1, Integer.parseInt(m.group(1)));
+            long share = MemoryCheck.available() / slots;
+            if (setting > share) {
+                ctx.warn(String.format(Locale.ROOT, "memory = %s per task is more than the Java heap has free for %d"
+                        + " tasks at once (%.0f MB each); using %.0f MB (give Java more with java -Xmx...)", given,
+                        slots, share / 1048576.0, share / 1048576.0));
+            }
+            return setting < 0 ? share : Math.min(setting, share);
+        }
+        if (setting > 0) {
+            return setting;
+        }
+        long executor = conf.getSizeAsBytes("spark.executor.memory", "1g");
+        int slots = Math.max(1, conf.getInt("spark.executor.cores", 1) / Math.max(1, conf.getInt("spark.task.cpus", 1)));
+        return Math.max(1L << 20, (executor - SPARK_RESERVE) / slots);
     }
 
     static int run(String[] args, PrintStream out, PrintStream err) {
@@ -105,7 +141,8 @@ public final class SparkMain {
             Result r;
             try (JavaSparkContext sc = new JavaSparkContext(conf)) {
                 sc.setLogLevel("WARN");
-                r = SparkBlockRun.run(sc, op, values, parsed.raw(), files, parsed.overwrite(), failOnce, ctx);
+                r = SparkBlockRun.run(sc, op, values, parsed.raw(), files, parsed.overwrite(), failOnce,
+                        taskBudget(conf, values, ctx), ctx);
             }
             if (!ctx.warnings().isEmpty()) {
                 r.record().put("warnings", ctx.warnings());

@@ -22,13 +22,15 @@ import org.stackwright.volume.VoxelSize;
  *
  * <pre>
  * tools/benchmark.sh org.stackwright.blocks.BlocksBenchmark [--size 2048x2048x200] [--iterations 20]
- *     [--heap 2g] [--memory-size 1024x1024x200] [--memory-heap 10g] [--spark] [--dir DIR] [--only-blocks]
+ *     [--heap 2g] [--memory-size 1024x1024x200] [--memory-heap 10g] [--spark] [--spark-heap 4g] [--dir DIR]
+ *     [--only-blocks]
  * </pre>
  *
  * Makes (once, in DIR) a 16-bit stack of the size with Poisson-like noise over blobs and a 21x21x15 Gaussian PSF;
  * then: (1) the block run of the whole stack in --heap (block-size auto: the largest blocks that fit); (2) the same
  * deconvolution in memory of a --memory-size stack cut from the same data (in a heap large enough), to compare the
- * time per voxel; (3) with --spark, the Spark runner in local mode with the blocks of (1), in the same heap. All
+ * time per voxel; (3) with --spark, the Spark runner in local mode with the blocks of (1), in --spark-heap (default
+ * --heap; local[N] runs N blocks at once, one thread each, so it needs N times a block's memory). All
  * runs use accelerated Richardson-Lucy, the fixed rule and the same iterations. Prints time, peak heap and the
  * ratios.
  */
@@ -44,6 +46,7 @@ public final class BlocksBenchmark {
         String memHeap = "10g";
         int iterations = 20;
         boolean spark = false;
+        String sparkHeap = null;
         boolean onlyBlocks = false;
         Path dir = Path.of("target", "blocks-benchmark");
         for (int i = 0; i < args.length; i++) {
@@ -54,6 +57,7 @@ public final class BlocksBenchmark {
                 case "--memory-heap" -> memHeap = args[++i];
                 case "--iterations" -> iterations = Integer.parseInt(args[++i]);
                 case "--spark" -> spark = true;
+                case "--spark-heap" -> sparkHeap = args[++i];
                 case "--only-blocks" -> onlyBlocks = true;
                 case "--dir" -> dir = Path.of(args[++i]);
                 default -> throw new IllegalArgumentException("unknown argument " + args[i]);
@@ -90,11 +94,12 @@ public final class BlocksBenchmark {
                 (b[0] / bigVoxels) / (w[0] / smallVoxels));
         if (spark) {
             String blockSize = blockSize(dir.resolve("blocks.json"));
-            double[] s = run(heap, true, concat(List.of("--master", "local[" + Runtime.getRuntime().availableProcessors()
+            double[] s = run(sparkHeap == null ? heap : sparkHeap, true, concat(List.of("--master", "local[" + Runtime.getRuntime().availableProcessors()
                     + "]", "deconvolve", "--input", big.toString(), "--output", dir.resolve("spark.tif").toString(),
                     "--block-size", blockSize), common));
-            System.out.printf(Locale.ROOT, "spark local, blocks %s: %.1f s, peak heap %.0f MB: %.2f x the single-machine"
-                    + " block run%n", blockSize, s[0], s[1], s[0] / b[0]);
+            System.out.printf(Locale.ROOT, "spark local, blocks %s in %s: %.1f s, peak heap %.0f MB: %.2f x the"
+                    + " single-machine block run%n", blockSize, sparkHeap == null ? heap : sparkHeap, s[0], s[1],
+                    s[0] / b[0]);
         }
         System.out.printf(Locale.ROOT, "load average at end: %s", Files.readString(Path.of("/proc/loadavg")));
     }
@@ -148,7 +153,8 @@ public final class BlocksBenchmark {
                         out[0] = Double.parseDouble(mm.group(2));
                         out[1] = Double.parseDouble(mm.group(3));
                     }
-                } else if (line.startsWith("deconvolved") || line.startsWith("warning")) {
+                } else if (line.startsWith("deconvolved") || line.startsWith("warning") || line.contains("failed")
+                        || line.contains("OutOfMemoryError")) {
                     System.out.println("  " + line);
                 }
             }

@@ -150,4 +150,30 @@ class SparkLocalTest {
         assertTrue(Files.exists(planes.resolve("plane-00011.tif")));
         assertArrayEquals(read(one), read(planes));
     }
+
+    /**
+     * Several tasks share one heap: the budget of a block task is the heap shared among the task slots in local
+     * mode, the memory setting or an executor's share on a cluster (arithmetic of the rule in SparkMain.taskBudget;
+     * the 300 MB reserve is Spark's documented reserved memory, "Memory Management Overview", Spark 4.0 tuning guide).
+     */
+    @Test
+    void aTaskGetsItsShareOfTheMemory() {
+        org.stackwright.op.Operation op = org.stackwright.registry.Operations.byName("deconvolve").orElseThrow();
+        org.stackwright.op.Values none = org.stackwright.op.Values.parse("deconvolve", op.params(), java.util.Map.of());
+        org.stackwright.op.Values given = org.stackwright.op.Values.parse("deconvolve", op.params(),
+                java.util.Map.of("memory", "2m"));
+        org.stackwright.op.RunContext ctx = org.stackwright.op.RunContext.quiet(1);
+        long free = org.stackwright.op.MemoryCheck.available();
+        long one = SparkMain.taskBudget(new org.apache.spark.SparkConf().setMaster("local[1,4]"), none, ctx);
+        long four = SparkMain.taskBudget(new org.apache.spark.SparkConf().setMaster("local[4,4]"), none, ctx);
+        // the free heap moves a little between calls (garbage collection): within 20 %
+        assertTrue(one < free * 1.2 && one > free * 0.8, one + " of " + free);
+        assertTrue(Math.abs(four - one / 4.0) < 0.1 * one, "four slots share the heap: " + four + " against " + one);
+        assertEquals(2L << 20, SparkMain.taskBudget(new org.apache.spark.SparkConf().setMaster("local[4,4]"), given,
+                ctx));
+        org.apache.spark.SparkConf cluster = new org.apache.spark.SparkConf().setMaster("spark://head:7077")
+                .set("spark.executor.memory", "8g").set("spark.executor.cores", "4");
+        assertEquals(((8L << 30) - (300L << 20)) / 4, SparkMain.taskBudget(cluster, none, ctx));
+        assertEquals(2L << 20, SparkMain.taskBudget(cluster, given, ctx));
+    }
 }
