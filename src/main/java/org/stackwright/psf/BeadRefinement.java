@@ -1,0 +1,281 @@
+package org.stackwright.psf;
+
+import java.util.ArrayList;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+
+import org.stackwright.op.RunContext;
+import org.stackwright.parallel.Workers;
+import org.stackwright.volume.Volume;
+
+/**
+ * Refines optical parameters of the Gibson-Lanni PSF (depth, sample index, NA, coverslip thickness) to a bead
+ * stack by maximum likelihood under the camera noise model. Every bead has its own centre, brightness and
+ * background ({@link BeadBox}); the optics are shared. The likelihood is profiled: for each candidate optics the
+ * beads are fitted ({@link BeadBox#fit}), and {@link RefinementSearch} moves the optics. Standard errors come
+ * from the Fisher information of all parameters together ({@link FisherSummary}); the numerical derivatives of
+ * the expected counts with respect to the optics are central differences.
+ *
+ * <p>The Gibson-Lanni model (Gibson &amp; Lanni, JOSA A 8(10):1601-1613, 1991) ties depth to the shape of the
+ * PSF through spherical aberration; the position of each bead along z is free, so the focal shift itself carries
+ * no information (it is absorbed by the bead positions) and what identifies depth is the asymmetry and
+ * stretching of the axial profile.
+ */
+public final class BeadRefinement {
+
+    /** At most this many beads (the brightest usable ones) enter the fit. */
+    static final int MAX_BEADS = 24;
+
+    /** The coarse scan of the search uses this many of the brightest beads. */
+    static final int SCAN_BEADS = 3;
+
+    private BeadRefinement() {
+    }
+
+    /**
+     * @param stack bead stack (ADU), calibrated; not modified
+     * @param nominal start optics with the stack's voxel size (grid sizes unused)
+     * @param free the parameters to fit
+     * @param deepestUm the deepest depth searched
+     * @param camera offset, gain, read noise
+     * @param box half sizes of the fitting box around each bead, voxels {hx, hy, hz}
+     * @param ctx threads, progress, cancel
+     * @throws IllegalArgumentException when no bead is usable
+     */
+    public static Refinement run(Volume stack, PsfSettings nominal, List<OpticsParameter> free, double deepestUm,
+            double offset, double gain, double readNoise, int[] box, RunContext ctx) {
+        CameraUnits camera = new CameraUnits(offset, gain, readNoise);
+        int hx = box[0];
+        int hy = box[1];
+        int hz = box[2];
+        ctx.progress(0.02, "psf-refine: finding beads");
+        List<Bead> found = BeadFinder.find(stack, hx, hy, hz, Double.NaN);
+        List<BeadBox> beads = new ArrayList<>();
+        List<String> rejected = new ArrayList<>();
+        for (Bead b : found) {
+            if (b.used() && beads.size() < MAX_BEADS) {
+                beads.add(new BeadBox(stack, b, hx, hy, hz, camera));
+            } else if (!b.used()) {
+                rejected.add(String.format(Locale.ROOT, "bead %d at (%.0f, %.0f, %.0f) voxels: %s", b.id(), b.x(),
+                        b.y(), b.z(), b.reason()));
+            }
+        }
+        if (beads.isEmpty()) {
+            throw new IllegalArgumentException("input: no usable bead among " + found.size() + " found ("
+                    + (rejected.isEmpty() ? "none stands out of the noise" : String.join("; ", rejected))
+                    + "); give a stack with isolated, unsaturated point-like beads at least " + (hx + 2)
+                    + " voxels from the edges, or use --source specimen");
+        }
+        double halfWidth = Math.hypot((hx + 3) * stack.voxel().x(), (hy + 3) * stack.voxel().y());
+        double halfDepth = (hz + 3) * stack.voxel().z();
+        double[][] bounds = new double[free.size()][];
+        double[] start = new double[free.size()];
+        for (int i = 0; i < free.size(); i++) {
+            bounds[i] = free.get(i).bounds(nominal, deepestUm);
+            start[i] = Math.max(bounds[i][0], Math.min(bounds[i][1], free.get(i).get(nominal)));
+        }
+        int nb = beads.size();
+        double[][] initial = new double[nb][];
+        for (int b = 0; b < nb; b++) {
+            initial[b] = beads.get(b).parameters();
+        }
+        double[][] warm = copy(initial);
+        double[] bestValue = {Double.POSITIVE_INFINITY};
+        try (Workers workers = new Workers(ctx.threads())) {
+            RefinementSearch.Objective objective = (theta, scanning) -> {
+                PsfSettings s = apply(nominal, free, theta);
+                FocusTable table = new FocusTable(s, halfWidth, halfDepth, workers);
+                double[][] from = scanning ? initial : warm;
+                // the scan only picks the basin: the brightest beads suffice there
+                int used = scanning ? Math.min(SCAN_BEADS, nb) : nb;
+                double[] dev = new double[used];
+                double[][] got = new double[used][];
+                workers.forRange(used, (b0, b1) -> {
+                    for (int b = b0; b < b1; b++) {
+                        BeadBox bead = beads.get(b);
+                        bead.setParameters(from[b]);
+                        dev[b] = bead.fit(table);
+                        got[b] = bead.parameters();
+                    }
+                });
+                double total = 0;
+                for (double d : dev) {
+                    total += d;
+                }
+                if (!scanning && total < bestValue[0]) {
+                    bestValue[0] = total;
+                    for (int b = 0; b < nb; b++) {
+                        warm[b] = got[b];
+                    }
+                }
+                return total;
+            };
+            RefinementSearch.Outcome search = RefinementSearch.run(free, start, bounds, objective, ctx);
+            double[] best = search.best();
+            PsfSettings refined = apply(nominal, free, best);
+            ctx.progress(0.92, "psf-refine: standard errors");
+            FocusTable table = new FocusTable(refined, halfWidth, halfDepth, workers);
+            for (int b = 0; b < nb; b++) {
+                beads.get(b).setParameters(warm[b]);
+                beads.get(b).fit(table);
+            }
+            double[][] fisher = fisher(beads, table, nominal, free, best, halfWidth, halfDepth, workers);
+            FisherSummary summary = new FisherSummary(fisher, free, bounds, best);
+            return result(nominal, refined, free, best, summary, beads, table, stack, search, rejected, box);
+        }
+    }
+
+    /** @return the nominal optics with the fitted values put in */
+    static PsfSettings apply(PsfSettings nominal, List<OpticsParameter> free, double[] theta) {
+        PsfSettings s = nominal;
+        for (int i = 0; i < free.size(); i++) {
+            s = free.get(i).with(s, theta[i]);
+        }
+        return s;
+    }
+
+    private static double[][] copy(double[][] a) {
+        double[][] c = new double[a.length][];
+        for (int i = 0; i < a.length; i++) {
+            c[i] = a[i].clone();
+        }
+        return c;
+    }
+
+    /**
+     * The Fisher information of optics and bead parameters: F_ij = sum over voxels of dm/d_i dm/d_j / m in
+     * shifted-Poisson units (the information of a Poisson count about its mean is 1/m).
+     */
+    private static double[][] fisher(List<BeadBox> beads, FocusTable table, PsfSettings nominal,
+            List<OpticsParameter> free, double[] best, double halfWidth, double halfDepth, Workers workers) {
+        int g = free.size();
+        int nb = beads.size();
+        int n = g + BeadBox.PARAMS * nb;
+        double[][] f = new double[n][n];
+        // derivatives of every bead's expected counts with respect to each optical parameter
+        double[][][] dOptics = new double[g][nb][];
+        for (int a = 0; a < g; a++) {
+            double h = free.get(a).derivativeStep();
+            double[] up = best.clone();
+            double[] down = best.clone();
+            // stay where the model is defined: depth not negative, NA below the immersion index
+            double top = free.get(a) == OpticsParameter.NA ? 0.999 * nominal.immersionIndex() : Double.MAX_VALUE;
+            up[a] = Math.max(best[a], Math.min(best[a] + h, top));
+            down[a] = free.get(a) == OpticsParameter.DEPTH ? Math.max(0, best[a] - h) : best[a] - h;
+            double span = up[a] - down[a];
+            FocusTable tUp = new FocusTable(apply(nominal, free, up), halfWidth, halfDepth, workers);
+            FocusTable tDown = new FocusTable(apply(nominal, free, down), halfWidth, halfDepth, workers);
+            for (int b = 0; b < nb; b++) {
+                double[] mu = beads.get(b).expected(tUp);
+                double[] md = beads.get(b).expected(tDown);
+                for (int i = 0; i < mu.length; i++) {
+                    mu[i] = (mu[i] - md[i]) / span;
+                }
+                dOptics[a][b] = mu;
+            }
+        }
+        for (int b = 0; b < nb; b++) {
+            BeadBox bead = beads.get(b);
+            double[] m = bead.expected(table);
+            double[][] jb = bead.jacobian(table);
+            double[][] cols = new double[g + BeadBox.PARAMS][];
+            int[] at = new int[g + BeadBox.PARAMS];
+            for (int a = 0; a < g; a++) {
+                cols[a] = dOptics[a][b];
+                at[a] = a;
+            }
+            for (int k = 0; k < BeadBox.PARAMS; k++) {
+                cols[g + k] = jb[k];
+                at[g + k] = g + BeadBox.PARAMS * b + k;
+            }
+            for (int i = 0; i < cols.length; i++) {
+                for (int j = i; j < cols.length; j++) {
+                    double s = 0;
+                    for (int v = 0; v < m.length; v++) {
+                        s += cols[i][v] * cols[j][v] / Math.max(m[v], 1e-12);
+                    }
+                    f[at[i]][at[j]] += s;
+                    if (at[i] != at[j]) {
+                        f[at[j]][at[i]] += s;
+                    }
+                }
+            }
+        }
+        return f;
+    }
+
+    private static Refinement result(PsfSettings nominal, PsfSettings refined, List<OpticsParameter> free,
+            double[] best, FisherSummary summary, List<BeadBox> beads, FocusTable table, Volume stack,
+            RefinementSearch.Outcome search, List<String> rejected, int[] box) {
+        long voxels = 0;
+        double deviance = 0;
+        double expected = 0;
+        List<Map<String, Object>> rows = new ArrayList<>();
+        for (BeadBox b : beads) {
+            double[] m = b.expected(table);
+            double e = 0;
+            for (double v : m) {
+                e += ExpectedDeviance.poisson(v);
+            }
+            double d = b.deviance(table);
+            double[] p = b.parameters();
+            Map<String, Object> row = new LinkedHashMap<>();
+            row.put("bead", b.id);
+            row.put("x_um", p[BeadBox.X] * stack.voxel().x());
+            row.put("y_um", p[BeadBox.Y] * stack.voxel().y());
+            row.put("z_um", p[BeadBox.Z] * stack.voxel().z());
+            row.put("brightness_e_per_plane", p[BeadBox.BRIGHTNESS]);
+            row.put("background_e", p[BeadBox.BACKGROUND]);
+            row.put("deviance_ratio", d / e);
+            rows.add(row);
+            voxels += b.size();
+            deviance += d;
+            expected += e;
+        }
+        Map<String, Object> quality = new LinkedHashMap<>();
+        quality.put("statistic", "Poisson deviance (shifted-Poisson units) summed over the bead boxes");
+        quality.put("deviance", deviance);
+        quality.put("expected_deviance", expected);
+        quality.put("deviance_ratio", deviance / expected);
+        // 2 x deviance per voxel is close to chi-square with one degree of freedom: variance 1/2 per voxel
+        double z = (deviance - expected) / Math.sqrt(0.5 * voxels);
+        quality.put("deviance_z", z);
+        quality.put("voxels", voxels);
+        List<String> notes = new ArrayList<>(summary.notes());
+        if (z > 5) {
+            notes.add(String.format(Locale.ROOT, "the beads differ from the model by more than the noise (deviance %.4g, "
+                    + "expected %.4g for a perfect model): the standard errors are then too small; bead size, other "
+                    + "aberrations or wrong camera values (offset, gain, read-noise) are likely", deviance, expected));
+        }
+        Map<String, Object> details = new LinkedHashMap<>();
+        details.put("source", "beads");
+        details.put("beads_used", beads.size());
+        details.put("beads_rejected", rejected);
+        details.put("box_voxels", (2 * box[0] + 1) + "x" + (2 * box[1] + 1) + "x" + (2 * box[2] + 1));
+        details.put("evaluations", search.evaluations());
+        details.put("scan", scanRecord(free.get(0), search.scan()));
+        details.put("beads", rows);
+        details.put("focal_offset_um", table.peak());
+        details.put("condition_number", summary.conditionNumber());
+        return new Refinement(nominal, refined, free, best, summary.standardErrors(), summary.identifiable(),
+                summary.correlationRecord(), notes, quality, details);
+    }
+
+    /** @return the coarse scan as rows {value, objective above its minimum} */
+    static List<Map<String, Object>> scanRecord(OpticsParameter first, List<double[]> scan) {
+        double min = Double.POSITIVE_INFINITY;
+        for (double[] s : scan) {
+            min = Math.min(min, s[1]);
+        }
+        List<Map<String, Object>> out = new ArrayList<>();
+        for (double[] s : scan) {
+            Map<String, Object> row = new LinkedHashMap<>();
+            row.put(first.recordName(), s[0]);
+            row.put("objective_above_minimum", s[1] - min);
+            out.add(row);
+        }
+        return out;
+    }
+}
