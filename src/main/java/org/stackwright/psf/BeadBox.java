@@ -166,13 +166,18 @@ final class BeadBox {
 
     /** Keeps the bead near its box and the brightness and background physical. */
     private RealVector valid(RealVector v) {
-        double[] q = v.toArray();
+        return new ArrayRealVector(valid(v.toArray()), false);
+    }
+
+    /** @return a copy of the five parameters moved into their allowed ranges */
+    double[] valid(double[] in) {
+        double[] q = in.clone();
         q[X] = Math.max(ox - 2, Math.min(ox + nx + 1, q[X]));
         q[Y] = Math.max(oy - 2, Math.min(oy + ny + 1, q[Y]));
         q[Z] = Math.max(oz - 2, Math.min(oz + nz + 1, q[Z]));
         q[BRIGHTNESS] = Math.max(1e-6, q[BRIGHTNESS]);
         q[BACKGROUND] = Math.max(-shift, q[BACKGROUND]);
-        return new ArrayRealVector(q, false);
+        return q;
     }
 
     /** @return the summed deviance of the data from the model with the current parameters */

@@ -13,10 +13,10 @@ import org.stackwright.volume.Volume;
 /**
  * Refines optical parameters of the Gibson-Lanni PSF (depth, sample index, NA, coverslip thickness) to a bead
  * stack by maximum likelihood under the camera noise model. Every bead has its own centre, brightness and
- * background ({@link BeadBox}); the optics are shared. The likelihood is profiled: for each candidate optics the
- * beads are fitted ({@link BeadBox#fit}), and {@link RefinementSearch} moves the optics. Standard errors come
- * from the Fisher information of all parameters together ({@link FisherSummary}); the numerical derivatives of
- * the expected counts with respect to the optics are central differences.
+ * background ({@link BeadBox}); the optics are shared. A coarse scan of the first fitted parameter over its range
+ * ({@link RefinementSearch}, the brightest beads refitted at each point) finds the basin; then everything is
+ * fitted jointly ({@link JointBeadFit}). Standard errors come from the Fisher information of all parameters
+ * together ({@link FisherSummary}).
  *
  * <p>The Gibson-Lanni model (Gibson &amp; Lanni, JOSA A 8(10):1601-1613, 1991) ties depth to the shape of the
  * PSF through spherical aberration; the position of each bead along z is free, so the focal shift itself carries
@@ -26,7 +26,7 @@ import org.stackwright.volume.Volume;
 public final class BeadRefinement {
 
     /** At most this many beads (the brightest usable ones) enter the fit. */
-    static final int MAX_BEADS = 24;
+    static final int MAX_BEADS = 10;
 
     /** The coarse scan of the search uses this many of the brightest beads. */
     static final int SCAN_BEADS = 3;
@@ -112,17 +112,19 @@ public final class BeadRefinement {
                 }
                 return total;
             };
-            RefinementSearch.Outcome search = RefinementSearch.run(free, start, bounds, objective, ctx);
-            double[] best = search.best();
-            PsfSettings refined = apply(nominal, free, best);
-            ctx.progress(0.92, "psf-refine: standard errors");
-            FocusTable table = new FocusTable(refined, halfWidth, halfDepth, workers);
+            RefinementSearch.Outcome search = RefinementSearch.run(free, start, bounds, objective, false, ctx);
             for (int b = 0; b < nb; b++) {
                 beads.get(b).setParameters(warm[b]);
-                beads.get(b).fit(table);
             }
-            double[][] fisher = fisher(beads, table, nominal, free, best, halfWidth, halfDepth, workers);
-            FisherSummary summary = new FisherSummary(fisher, free, bounds, best);
+            ctx.progress(0.6, "psf-refine: joint fit of the optics and the beads");
+            JointBeadFit joint = new JointBeadFit(beads, nominal, free, bounds, halfWidth, halfDepth, workers);
+            double[] point = joint.fit(joint.point(search.best()));
+            double[] best = java.util.Arrays.copyOf(point, free.size());
+            PsfSettings refined = apply(nominal, free, best);
+            ctx.progress(0.92, "psf-refine: standard errors");
+            JointBeadFit.Derivatives at = joint.derivatives(point);
+            FocusTable table = at.table();
+            FisherSummary summary = new FisherSummary(joint.fisher(at), free, bounds, best);
             return result(nominal, refined, free, best, summary, beads, table, stack, search, rejected, box);
         }
     }
@@ -142,68 +144,6 @@ public final class BeadRefinement {
             c[i] = a[i].clone();
         }
         return c;
-    }
-
-    /**
-     * The Fisher information of optics and bead parameters: F_ij = sum over voxels of dm/d_i dm/d_j / m in
-     * shifted-Poisson units (the information of a Poisson count about its mean is 1/m).
-     */
-    private static double[][] fisher(List<BeadBox> beads, FocusTable table, PsfSettings nominal,
-            List<OpticsParameter> free, double[] best, double halfWidth, double halfDepth, Workers workers) {
-        int g = free.size();
-        int nb = beads.size();
-        int n = g + BeadBox.PARAMS * nb;
-        double[][] f = new double[n][n];
-        // derivatives of every bead's expected counts with respect to each optical parameter
-        double[][][] dOptics = new double[g][nb][];
-        for (int a = 0; a < g; a++) {
-            double h = free.get(a).derivativeStep();
-            double[] up = best.clone();
-            double[] down = best.clone();
-            // stay where the model is defined: depth not negative, NA below the immersion index
-            double top = free.get(a) == OpticsParameter.NA ? 0.999 * nominal.immersionIndex() : Double.MAX_VALUE;
-            up[a] = Math.max(best[a], Math.min(best[a] + h, top));
-            down[a] = free.get(a) == OpticsParameter.DEPTH ? Math.max(0, best[a] - h) : best[a] - h;
-            double span = up[a] - down[a];
-            FocusTable tUp = new FocusTable(apply(nominal, free, up), halfWidth, halfDepth, workers);
-            FocusTable tDown = new FocusTable(apply(nominal, free, down), halfWidth, halfDepth, workers);
-            for (int b = 0; b < nb; b++) {
-                double[] mu = beads.get(b).expected(tUp);
-                double[] md = beads.get(b).expected(tDown);
-                for (int i = 0; i < mu.length; i++) {
-                    mu[i] = (mu[i] - md[i]) / span;
-                }
-                dOptics[a][b] = mu;
-            }
-        }
-        for (int b = 0; b < nb; b++) {
-            BeadBox bead = beads.get(b);
-            double[] m = bead.expected(table);
-            double[][] jb = bead.jacobian(table);
-            double[][] cols = new double[g + BeadBox.PARAMS][];
-            int[] at = new int[g + BeadBox.PARAMS];
-            for (int a = 0; a < g; a++) {
-                cols[a] = dOptics[a][b];
-                at[a] = a;
-            }
-            for (int k = 0; k < BeadBox.PARAMS; k++) {
-                cols[g + k] = jb[k];
-                at[g + k] = g + BeadBox.PARAMS * b + k;
-            }
-            for (int i = 0; i < cols.length; i++) {
-                for (int j = i; j < cols.length; j++) {
-                    double s = 0;
-                    for (int v = 0; v < m.length; v++) {
-                        s += cols[i][v] * cols[j][v] / Math.max(m[v], 1e-12);
-                    }
-                    f[at[i]][at[j]] += s;
-                    if (at[i] != at[j]) {
-                        f[at[j]][at[i]] += s;
-                    }
-                }
-            }
-        }
-        return f;
     }
 
     private static Refinement result(PsfSettings nominal, PsfSettings refined, List<OpticsParameter> free,
@@ -254,7 +194,7 @@ public final class BeadRefinement {
         details.put("beads_used", beads.size());
         details.put("beads_rejected", rejected);
         details.put("box_voxels", (2 * box[0] + 1) + "x" + (2 * box[1] + 1) + "x" + (2 * box[2] + 1));
-        details.put("evaluations", search.evaluations());
+        details.put("scan_evaluations", search.evaluations());
         details.put("scan", scanRecord(free.get(0), search.scan()));
         details.put("beads", rows);
         details.put("focal_offset_um", table.peak());

@@ -57,9 +57,11 @@ final class RefinementSearch {
      * @param start their start values (inside the bounds)
      * @param bounds per parameter {lowest, highest}
      * @param f the objective
+     * @param refine false to stop after the scan (the caller refines with derivatives of its own)
      * @param ctx cancel and progress
      */
-    static Outcome run(List<OpticsParameter> free, double[] start, double[][] bounds, Objective f, RunContext ctx) {
+    static Outcome run(List<OpticsParameter> free, double[] start, double[][] bounds, Objective f, boolean refine,
+            RunContext ctx) {
         int n = free.size();
         int[] count = {0};
         double[] bestSeen = {Double.POSITIVE_INFINITY};
@@ -97,6 +99,9 @@ final class RefinementSearch {
         double[] from = start.clone();
         from[0] = bestFirst;
         counted.value(from, false);
+        if (!refine) {
+            return new Outcome(bestPoint[0], bestSeen[0], count[0], scan);
+        }
         if (n == 1) {
             double a = Math.max(lo, bestFirst - step);
             double b = Math.min(hi, bestFirst + step);
