@@ -48,7 +48,7 @@ public final class ResidualsOperation implements Operation {
                 Param.image("psf", true, "the PSF used (odd sizes, peak at the centre, same voxel size)"),
                 Param.number("offset", 0.0, -1e9, 1e9, "ADU", "camera offset (bias) added to the prediction"),
                 Param.number("background", 0.0, -1e9, 1e9, "ADU", "background per voxel above the offset"),
-                Param.choice("noise", "poisson", List.of("poisson", "poisson-gaussian", "gaussian"),
+                Param.choice("likelihood", "poisson", List.of("poisson", "poisson-gaussian", "gaussian"),
                         "noise model: photon counting, camera (gain and read noise) or constant Gaussian"),
                 Param.number("gain", 1.0, 1e-9, 1e9, "ADU/e-", "camera gain (poisson, poisson-gaussian)"),
                 Param.number("read-noise", 0.0, 0, 1e9, "ADU",
@@ -86,7 +86,7 @@ public final class ResidualsOperation implements Operation {
             psf = ForwardBlur.centrePlane(psf);
         }
         psf = PsfChecks.prepare("psf", psf, data, ctx).withVoxel(data.voxel());
-        NoiseModel noise = ResidualModel.noiseModel(v.choice("noise"), v.number("gain"), v.number("read-noise"));
+        NoiseModel noise = ResidualModel.noiseModel(v.choice("likelihood"), v.number("gain"), v.number("read-noise"));
         ResidualModel model = new ResidualModel(v.number("offset"), v.number("background"), noise);
         ctx.progress(0.1, "computing residuals");
         ResidualReport report;

@@ -42,36 +42,6 @@ public final class DeconvolutionProblem {
         ZERO_SAME
     }
 
-    /**
-     * Camera and background, all in ADU.
-     *
-     * @param offset camera offset (bias)
-     * @param background background above the offset (light that is not the object), at least 0
-     * @param gain ADU per photo-electron, positive
-     * @param readNoise read noise standard deviation, at least 0
-     */
-    public record Camera(double offset, double background, double gain, double readNoise) {
-        public Camera {
-            if (!(gain > 0) || !Double.isFinite(gain)) {
-                throw new IllegalArgumentException("gain = " + gain + " is not allowed; give a positive number of ADU per photo-electron");
-            }
-            if (!(readNoise >= 0) || !Double.isFinite(readNoise)) {
-                throw new IllegalArgumentException("read-noise = " + readNoise + " is not allowed; give 0 or more ADU");
-            }
-            if (!(background >= 0) || !Double.isFinite(background)) {
-                throw new IllegalArgumentException("background = " + background + " is not allowed; give 0 or more ADU above the offset");
-            }
-            if (!Double.isFinite(offset)) {
-                throw new IllegalArgumentException("offset = " + offset + " is not a finite number of ADU");
-            }
-        }
-
-        /** Photon-counting data: no offset, no background, gain 1, no read noise. */
-        public static Camera photonCounting() {
-            return new Camera(0, 0, 1, 0);
-        }
-    }
-
     static final float NO_DATA = -1f;
     private static final double SUPPORT_CUTOFF = 1e-3;
     private static final double TINY = 1e-12;
@@ -85,6 +55,7 @@ public final class DeconvolutionProblem {
     private final VoxelSize voxel;
     private final Boundary boundary;
     private final Camera camera;
+    private final double backgroundAdu;
     /** data on the image window (w x h x d), photo-electrons, NO_DATA where a pixel carries no likelihood */
     private final float[] y;
     private final float[] norm;
@@ -99,15 +70,20 @@ public final class DeconvolutionProblem {
      * @param psf the PSF at the data's voxel size (odd sizes, unit sum: see {@code psf.PsfChecks}); not modified
      * @param mask pixels that carry no likelihood (nonzero = untrusted), one per data voxel, or null
      * @param boundary how the edges are treated
-     * @param camera offset, background, gain and read noise
+     * @param camera offset, gain and read noise (its full scale is not used)
+     * @param backgroundAdu background above the offset in ADU (light that is not the object), 0 or more
      * @param workers the threads (not closed here)
      */
-    public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera, Workers workers) {
-        this(data, psf, mask, boundary, camera, workers, Float.NaN);
+    public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
+            double backgroundAdu, Workers workers) {
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, Float.NaN);
     }
 
     private DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
-            Workers workers, float start) {
+            double backgroundAdu, Workers workers, float start) {
+        if (!(backgroundAdu >= 0) || !Double.isFinite(backgroundAdu)) {
+            throw new IllegalArgumentException("background = " + backgroundAdu + " is not allowed; give 0 or more ADU above the offset");
+        }
         if (mask != null && mask.length != data.size()) {
             throw new IllegalArgumentException("mask has " + mask.length + " pixels but the image " + data.shape()
                     + " has " + data.size() + "; give a mask of the same size");
@@ -118,6 +94,7 @@ public final class DeconvolutionProblem {
         this.voxel = data.voxel();
         this.boundary = boundary;
         this.camera = camera;
+        this.backgroundAdu = backgroundAdu;
         this.workers = workers;
         if (boundary == Boundary.PERIODIC) {
             nx = w;
@@ -132,8 +109,8 @@ public final class DeconvolutionProblem {
         int n = nx * ny * nz;
         this.blur = new BlurOperator(psf, nx, ny, nz, workers);
         this.y = new float[w * h * d];
-        double s = (camera.readNoise() / camera.gain()) * (camera.readNoise() / camera.gain());
-        this.background = (float) (camera.background() / camera.gain() + s);
+        double s = camera.readNoiseShift();
+        this.background = (float) (backgroundAdu / camera.gain() + s);
         float[] src = data.data();
         int count = 0;
         for (int i = 0; i < y.length; i++) {
@@ -186,7 +163,7 @@ public final class DeconvolutionProblem {
      * no normalisation (H^T 1 taken as 1), no background, start value 0.5 everywhere.
      */
     public static DeconvolutionProblem compatible(Volume data, Volume psf, Workers workers) {
-        return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), workers, 0.5f);
+        return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), 0, workers, 0.5f);
     }
 
     private boolean inWindow(int i) {
@@ -237,6 +214,11 @@ public final class DeconvolutionProblem {
 
     public Camera camera() {
         return camera;
+    }
+
+    /** @return the background above the offset in ADU, as given */
+    public double backgroundAdu() {
+        return backgroundAdu;
     }
 
     public Workers workers() {

@@ -62,7 +62,7 @@ public final class DeconvolveOperation implements Operation {
                 Param.choice("boundary", "extended", List.of("extended", "periodic"),
                         "extended = object larger than the image, no wrap-around; periodic = wraps around (smaller, faster)"),
                 Param.choice("acceleration", "on", List.of("on", "off"), "vector extrapolation for richardson-lucy"),
-                Param.choice("noise", "poisson", List.of("poisson", "gaussian"), "data term of total-variation; with "
+                Param.choice("likelihood", "poisson", List.of("poisson", "gaussian"), "data term of total-variation; with "
                         + "replicas also their noise (gaussian: additive, read-noise as standard deviation)"),
                 Param.integer("replicas", 0, 0, NoiseReplicas.MAX_REPLICAS, "noise replicas for the spread map: 0 = off, "
                         + "2 to " + NoiseReplicas.MAX_REPLICAS + "; costs that many more deconvolutions"),
@@ -98,7 +98,7 @@ public final class DeconvolveOperation implements Operation {
             mask = MaskChecks.check("mask", ImagePlusAdapter.toVolume(m), data, ctx);
         }
         int replicas = v.integer("replicas");
-        NoiseReplicas.Noise noise = s.noise().equals("gaussian") ? NoiseReplicas.Noise.GAUSSIAN : NoiseReplicas.Noise.CAMERA;
+        NoiseReplicas.Noise noise = s.likelihood().equals("gaussian") ? NoiseReplicas.Noise.GAUSSIAN : NoiseReplicas.Noise.CAMERA;
         if (replicas == 0 && (v.given("spread-output") || v.given("bias-output"))) {
             throw new IllegalArgumentException("replicas = 0 gives no spread-output or bias-output; give replicas 2 to "
                     + NoiseReplicas.MAX_REPLICAS);
@@ -159,7 +159,7 @@ public final class DeconvolveOperation implements Operation {
         }
         Stopping stopping = new Stopping(StopRule.of(v.choice("stop")), v.integer("iterations"), v.number("tolerance"));
         return new DeconvolutionSettings(method, stopping, v.number("offset"), bg, v.number("gain"), v.number("read-noise"),
-                lambda, v.choice("boundary"), v.choice("acceleration").equals("on"), v.choice("noise"));
+                lambda, v.choice("boundary"), v.choice("acceleration").equals("on"), v.choice("likelihood"));
     }
 
     /**

@@ -30,7 +30,7 @@ import org.scijava.command.CommandModule;
 import org.scijava.command.CommandService;
 import org.stackwright.cli.Main;
 import org.stackwright.op.Operation;
-import org.stackwright.op.Operations;
+import org.stackwright.registry.Operations;
 import org.stackwright.op.Param;
 import org.stackwright.scijava.OperationCommand;
 import org.stackwright.volume.TiffFiles;

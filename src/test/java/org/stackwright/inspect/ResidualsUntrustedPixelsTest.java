@@ -8,7 +8,7 @@ import org.stackwright.model.PoissonGaussianNoise;
 import org.stackwright.op.InputChecks;
 import org.stackwright.parallel.Workers;
 import org.stackwright.psf.GaussianPsf;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.simulate.Specimen;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;

@@ -18,6 +18,7 @@ import java.util.SplittableRandom;
 import java.util.concurrent.TimeUnit;
 
 import org.stackwright.fft.RealFft3D;
+import org.stackwright.model.Camera;
 import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.op.RunContext;
 import org.stackwright.parallel.Workers;
@@ -42,7 +43,7 @@ import org.stackwright.volume.VoxelSize;
 public final class DeconvolutionBenchmark {
 
     private static final String PYTHON = "/usr/bin/python3";
-    private static final Path SCRIPT = Paths.get("tools", "bench", "skimage_rl.py");
+    private static final Path SCRIPT = Paths.get("tools", "benchmark", "skimage_rl.py");
 
     private DeconvolutionBenchmark() {
     }
@@ -89,7 +90,7 @@ public final class DeconvolutionBenchmark {
             long[] live = new long[1];
             long[] stamps = new long[reps + 2];
             DeconvolutionProblem p = new DeconvolutionProblem(data, psf, null, DeconvolutionProblem.Boundary.EXTENDED,
-                    new DeconvolutionProblem.Camera(0, 10, 1, 0), w);
+                    Camera.of(1, 0, 0), 10, w);
             long[] cpu = new long[reps + 2];
             stamps[0] = System.nanoTime();
             new RichardsonLucy(Stopping.fixed(reps + 1), false).solve(p, RunContext.quiet(threads), (k, max, obj, ch) -> {
@@ -116,7 +117,7 @@ public final class DeconvolutionBenchmark {
             System.gc();
             base[0] = used();
             DeconvolutionProblem pa = new DeconvolutionProblem(data, psf, null, DeconvolutionProblem.Boundary.EXTENDED,
-                    new DeconvolutionProblem.Camera(0, 10, 1, 0), w);
+                    Camera.of(1, 0, 0), 10, w);
             new RichardsonLucy(Stopping.fixed(2), true).solve(pa, RunContext.quiet(threads), (k, max, obj, ch) -> {
                 if (k == 2) {
                     System.gc();

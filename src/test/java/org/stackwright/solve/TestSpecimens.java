@@ -2,7 +2,7 @@ package org.stackwright.solve;
 
 import org.stackwright.parallel.Workers;
 import org.stackwright.psf.GaussianPsf;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.simulate.Simulation;
 import org.stackwright.simulate.Specimen;
 import org.stackwright.volume.Volume;
