@@ -8,6 +8,7 @@ import org.apache.commons.math3.linear.Array2DRowRealMatrix;
 import org.apache.commons.math3.linear.ArrayRealVector;
 import org.apache.commons.math3.linear.RealVector;
 import org.apache.commons.math3.util.Pair;
+import org.stackwright.model.Camera;
 import org.stackwright.model.PoissonNoise;
 import org.stackwright.volume.Volume;
 
@@ -58,9 +59,9 @@ final class BeadBox {
      * @param hx half width of the box, voxels
      * @param hy half height
      * @param hz half depth
-     * @param camera offset, gain, read noise
+     * @param camera offset, gain, read noise (its full scale is not used)
      */
-    BeadBox(Volume stack, Bead bead, int hx, int hy, int hz, CameraUnits camera) {
+    BeadBox(Volume stack, Bead bead, int hx, int hy, int hz, Camera camera) {
         this.id = bead.id();
         int bx = (int) Math.round(bead.x());
         int by = (int) Math.round(bead.y());
@@ -73,11 +74,12 @@ final class BeadBox {
         this.nz = Math.min(stack.depth(), bz + hz + 1) - oz;
         int n = nx * ny * nz;
         this.y = new double[n];
-        this.shift = camera.shift();
+        this.shift = camera.readNoiseShift();
         for (int z = 0; z < nz; z++) {
             for (int yy = 0; yy < ny; yy++) {
                 for (int x = 0; x < nx; x++) {
-                    y[(z * ny + yy) * nx + x] = camera.toElectrons(stack.get(ox + x, oy + yy, oz + z));
+                    double adu = stack.get(ox + x, oy + yy, oz + z);
+                    y[(z * ny + yy) * nx + x] = Math.max(0, (adu - camera.offset()) / camera.gain() + shift);
                 }
             }
         }

@@ -6,6 +6,7 @@ import java.util.List;
 import java.util.Locale;
 import java.util.Map;
 
+import org.stackwright.model.Camera;
 import org.stackwright.op.RunContext;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
@@ -46,7 +47,7 @@ public final class BeadRefinement {
      */
     public static Refinement run(Volume stack, PsfSettings nominal, List<OpticsParameter> free, double deepestUm,
             double offset, double gain, double readNoise, int[] box, RunContext ctx) {
-        CameraUnits camera = new CameraUnits(offset, gain, readNoise);
+        Camera camera = Camera.of(gain, offset, readNoise);
         int hx = box[0];
         int hy = box[1];
         int hz = box[2];
@@ -129,8 +130,21 @@ public final class BeadRefinement {
         }
     }
 
+    /**
+     * @return half sizes {hx, hy, hz} of the fitting box around each bead: laterally 2.5 lambda / NA (the Airy
+     *     core and its first rings), axially 5 n lambda / NA^2 (the focus and the side lobes that spherical
+     *     aberration makes), neither larger than half the requested PSF size
+     */
+    public static int[] box(PsfSettings s) {
+        double lambda = s.wavelengthNm() * 1e-3;
+        int hx = (int) Math.ceil(2.5 * lambda / s.na() / s.voxel().x());
+        int hz = (int) Math.ceil(5 * s.immersionIndex() * lambda / (s.na() * s.na()) / s.voxel().z());
+        return new int[] {Math.max(1, Math.min(hx, s.nx() / 2)), Math.max(1, Math.min(hx, s.ny() / 2)),
+            Math.max(1, Math.min(hz, s.nz() / 2))};
+    }
+
     /** @return the nominal optics with the fitted values put in */
-    static PsfSettings apply(PsfSettings nominal, List<OpticsParameter> free, double[] theta) {
+    public static PsfSettings apply(PsfSettings nominal, List<OpticsParameter> free, double[] theta) {
         PsfSettings s = nominal;
         for (int i = 0; i < free.size(); i++) {
             s = free.get(i).with(s, theta[i]);
@@ -195,7 +209,7 @@ public final class BeadRefinement {
         details.put("beads_rejected", rejected);
         details.put("box_voxels", (2 * box[0] + 1) + "x" + (2 * box[1] + 1) + "x" + (2 * box[2] + 1));
         details.put("scan_evaluations", search.evaluations());
-        details.put("scan", scanRecord(free.get(0), search.scan()));
+        details.put("scan", scanRecord(free, search.scan()));
         details.put("beads", rows);
         details.put("focal_offset_um", table.peak());
         details.put("condition_number", summary.conditionNumber());
@@ -204,7 +218,7 @@ public final class BeadRefinement {
     }
 
     /** @return the coarse scan as rows {value, objective above its minimum} */
-    static List<Map<String, Object>> scanRecord(OpticsParameter first, List<double[]> scan) {
+    public static List<Map<String, Object>> scanRecord(List<OpticsParameter> free, List<double[]> scan) {
         double min = Double.POSITIVE_INFINITY;
         for (double[] s : scan) {
             min = Math.min(min, s[1]);
@@ -212,7 +226,10 @@ public final class BeadRefinement {
         List<Map<String, Object>> out = new ArrayList<>();
         for (double[] s : scan) {
             Map<String, Object> row = new LinkedHashMap<>();
-            row.put(first.recordName(), s[0]);
+            row.put(free.get(0).recordName(), s[0]);
+            if (s.length > 2) {
+                row.put(free.get(1).recordName(), s[2]);
+            }
             row.put("objective_above_minimum", s[1] - min);
             out.add(row);
         }

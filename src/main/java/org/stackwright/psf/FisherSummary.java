@@ -23,7 +23,7 @@ import org.ejml.interfaces.decomposition.SingularValueDecomposition_F64;
  * each other (the data constrain a combination, not each); a parameter whose standard error exceeds a quarter of
  * its search range is barely constrained. The thresholds are common practice, no source.
  */
-final class FisherSummary {
+public final class FisherSummary {
 
     /** Absolute correlation above which two parameters are reported as trading off. */
     static final double TRADE_OFF = 0.95;
@@ -41,7 +41,7 @@ final class FisherSummary {
      * @param bounds their search ranges
      * @param estimate their fitted values
      */
-    FisherSummary(double[][] fisher, List<OpticsParameter> free, double[][] bounds, double[] estimate) {
+    public FisherSummary(double[][] fisher, List<OpticsParameter> free, double[][] bounds, double[] estimate) {
         this.free = List.copyOf(free);
         int g = free.size();
         int n = fisher.length;
@@ -169,27 +169,27 @@ final class FisherSummary {
     }
 
     /** @return standard error per parameter (infinite when it carries no information) */
-    double[] standardErrors() {
+    public double[] standardErrors() {
         return standardErrors.clone();
     }
 
     /** @return whether each parameter is determined by the data on its own */
-    boolean[] identifiable() {
+    public boolean[] identifiable() {
         return identifiable.clone();
     }
 
     /** @return correlation matrix of the optics' estimates */
-    double[][] correlation() {
+    public double[][] correlation() {
         return correlation;
     }
 
     /** @return plain-word notes on identifiability, empty when every parameter is determined */
-    List<String> notes() {
+    public List<String> notes() {
         return List.copyOf(notes);
     }
 
     /** @return correlations as a map "a/b" to value, for the record */
-    Map<String, Object> correlationRecord() {
+    public Map<String, Object> correlationRecord() {
         Map<String, Object> m = new LinkedHashMap<>();
         for (int a = 0; a < free.size(); a++) {
             for (int b = a + 1; b < free.size(); b++) {
@@ -200,7 +200,7 @@ final class FisherSummary {
     }
 
     /** @return condition number of the correlation matrix */
-    double conditionNumber() {
+    public double conditionNumber() {
         return conditionNumber;
     }
 }

@@ -41,12 +41,12 @@ public enum OpticsParameter {
     }
 
     /** @return step of the central difference for derivatives */
-    double derivativeStep() {
+    public double derivativeStep() {
         return derivativeStep;
     }
 
     /** @return a typical change, for scaling the search */
-    double scale() {
+    public double scale() {
         return scale;
     }
 
@@ -81,7 +81,7 @@ public enum OpticsParameter {
      *     mounting media); NA from 0.8 to 1.2 times the nominal, below the immersion index; coverslip thickness
      *     within 60 um of the nominal (wider than the tolerance of #1.5 coverslips)
      */
-    double[] bounds(PsfSettings nominal, double deepestUm) {
+    public double[] bounds(PsfSettings nominal, double deepestUm) {
         return switch (this) {
             case DEPTH -> new double[] {0, deepestUm};
             case SAMPLE_INDEX -> new double[] {1.30, 1.60};

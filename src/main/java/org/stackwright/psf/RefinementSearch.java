@@ -17,21 +17,25 @@ import org.stackwright.op.RunContext;
 
 /**
  * Minimises an objective over the fitted optical parameters within their search ranges: a coarse scan of the
- * first parameter over its whole range (the others at their start values) finds the right basin, then
+ * first parameter over its whole range (a grid over the first two when two or more are fitted; the others at
+ * their start values) finds the right basin, then
  * commons-math3 refines from the best scan point: Brent's method for one parameter (Brent, Algorithms for
  * Minimization without Derivatives, 1973) within one scan step of it, BOBYQA for several (Powell, "The BOBYQA
  * algorithm for bound constrained optimization without derivatives", Cambridge report NA2009/06) in units of
  * each parameter's typical change. Derivative-free on purpose: the objective is itself the optimum of inner
  * fits, known only to their tolerance.
  */
-final class RefinementSearch {
+public final class RefinementSearch {
 
     /** Scan points across the first parameter's range. */
-    static final int SCAN_POINTS = 11;
+    public static final int SCAN_POINTS = 11;
+
+    /** Scan points across the second parameter's range, when there is one. */
+    static final int SECOND_POINTS = 7;
 
     /** The objective, with parameters in their own units. */
     @FunctionalInterface
-    interface Objective {
+    public interface Objective {
         /**
          * @param theta the parameters
          * @param scanning true during the coarse scan, which only finds where to start: its values are compared
@@ -46,7 +50,7 @@ final class RefinementSearch {
      * @param evaluations how often the objective was evaluated
      * @param scan the coarse scan: {value of the first parameter, objective}
      */
-    record Outcome(double[] best, double value, int evaluations, List<double[]> scan) {
+    public record Outcome(double[] best, double value, int evaluations, List<double[]> scan) {
     }
 
     private RefinementSearch() {
@@ -60,7 +64,7 @@ final class RefinementSearch {
      * @param refine false to stop after the scan (the caller refines with derivatives of its own)
      * @param ctx cancel and progress
      */
-    static Outcome run(List<OpticsParameter> free, double[] start, double[][] bounds, Objective f, boolean refine,
+    public static Outcome run(List<OpticsParameter> free, double[] start, double[][] bounds, Objective f, boolean refine,
             RunContext ctx) {
         int n = free.size();
         int[] count = {0};
@@ -82,22 +86,33 @@ final class RefinementSearch {
         double lo = bounds[0][0];
         double hi = bounds[0][1];
         double step = (hi - lo) / (SCAN_POINTS - 1);
+        // with two or more parameters the scan is a grid over the first two: a search that starts on the wrong
+        // line of the second parameter can end in a false minimum along a trade-off valley (depth against sample
+        // index, for instance)
+        int second = n >= 2 ? SECOND_POINTS : 1;
         double[] theta = start.clone();
         double bestScan = Double.POSITIVE_INFINITY;
-        double bestFirst = start[0];
-        for (int i = 0; i <= SCAN_POINTS; i++) {
-            // the scan points, then the start value itself
-            theta[0] = i < SCAN_POINTS ? lo + i * step : start[0];
-            double v = counted.value(theta, true);
-            scan.add(new double[] {theta[0], v});
-            if (v < bestScan) {
-                bestScan = v;
-                bestFirst = theta[0];
+        double[] from = start.clone();
+        for (int j = 0; j < second; j++) {
+            if (n >= 2) {
+                theta[1] = bounds[1][0] + j * (bounds[1][1] - bounds[1][0]) / (SECOND_POINTS - 1);
+            }
+            for (int i = 0; i <= SCAN_POINTS; i++) {
+                // the scan points, then the start value itself (on the start line only)
+                if (i == SCAN_POINTS && n >= 2) {
+                    continue;
+                }
+                theta[0] = i < SCAN_POINTS ? lo + i * step : start[0];
+                double v = counted.value(theta, true);
+                scan.add(n >= 2 ? new double[] {theta[0], v, theta[1]} : new double[] {theta[0], v});
+                if (v < bestScan) {
+                    bestScan = v;
+                    from = theta.clone();
+                }
             }
         }
+        double bestFirst = from[0];
         scan.sort((a, b) -> Double.compare(a[0], b[0]));
-        double[] from = start.clone();
-        from[0] = bestFirst;
         counted.value(from, false);
         if (!refine) {
             return new Outcome(bestPoint[0], bestSeen[0], count[0], scan);
