@@ -61,6 +61,8 @@ public final class DeconvolutionProblem {
     private final float[] norm;
     private final float background;
     private final BlurOperator blur;
+    /** H: the blur, or the depth-variant blur (then {@link #blur} is null) */
+    private final LinearOperator forward;
     private final Workers workers;
     private final int trusted;
     private final float start;
@@ -76,11 +78,25 @@ public final class DeconvolutionProblem {
      */
     public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
             double backgroundAdu, Workers workers) {
-        this(data, psf, mask, boundary, camera, backgroundAdu, workers, Float.NaN);
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, Float.NaN, null, null);
+    }
+
+    /**
+     * A problem whose blur changes with depth ({@link DepthVariantBlur}): only solvers that use {@link #forward()}
+     * (Richardson-Lucy, plain and accelerated) can solve it.
+     *
+     * @param psfs the PSFs of the strata at the data's voxel size, all of one odd size, unit sum; not modified
+     * @param planes the data plane where each PSF holds, increasing
+     * @see #DeconvolutionProblem(Volume, Volume, byte[], Boundary, Camera, double, Workers)
+     */
+    public static DeconvolutionProblem depthVariant(Volume data, java.util.List<Volume> psfs, double[] planes,
+            byte[] mask, Boundary boundary, Camera camera, double backgroundAdu, Workers workers) {
+        return new DeconvolutionProblem(data, psfs.get(0), mask, boundary, camera, backgroundAdu, workers, Float.NaN,
+                psfs, planes);
     }
 
     private DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
-            double backgroundAdu, Workers workers, float start) {
+            double backgroundAdu, Workers workers, float start, java.util.List<Volume> strata, double[] planes) {
         if (!(backgroundAdu >= 0) || !Double.isFinite(backgroundAdu)) {
             throw new IllegalArgumentException("background = " + backgroundAdu + " is not allowed; give 0 or more ADU above the offset");
         }
@@ -107,7 +123,13 @@ public final class DeconvolutionProblem {
         }
         Volume.checkSize(nx, ny, nz);
         int n = nx * ny * nz;
-        this.blur = new BlurOperator(psf, nx, ny, nz, workers);
+        if (strata == null) {
+            this.blur = new BlurOperator(psf, nx, ny, nz, workers);
+            this.forward = blur;
+        } else {
+            this.blur = null;
+            this.forward = new DepthVariantBlur(strata, planes, d, nx, ny, nz, workers);
+        }
         this.y = new float[w * h * d];
         double s = camera.readNoiseShift();
         this.background = (float) (backgroundAdu / camera.gain() + s);
@@ -143,7 +165,7 @@ public final class DeconvolutionProblem {
                     }
                 }
             }
-            blur.applyAdjoint(norm, norm);
+            forward.applyAdjoint(norm, norm);
             float max = 0;
             for (float v : norm) {
                 max = Math.max(max, v);
@@ -163,7 +185,8 @@ public final class DeconvolutionProblem {
      * no normalisation (H^T 1 taken as 1), no background, start value 0.5 everywhere.
      */
     public static DeconvolutionProblem compatible(Volume data, Volume psf, Workers workers) {
-        return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), 0, workers, 0.5f);
+        return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), 0, workers, 0.5f,
+                null, null);
     }
 
     private boolean inWindow(int i) {
@@ -225,9 +248,20 @@ public final class DeconvolutionProblem {
         return workers;
     }
 
-    /** @return the blur H on the object grid */
+    /**
+     * @return the blur H on the object grid
+     * @throws IllegalStateException for a depth-variant problem (use {@link #forward()})
+     */
     public BlurOperator blur() {
+        if (blur == null) {
+            throw new IllegalStateException("this solver needs one PSF; a depth-variant blur works with richardson-lucy only");
+        }
         return blur;
+    }
+
+    /** @return the forward operator H on the object grid: the blur, or the depth-variant blur */
+    public LinearOperator forward() {
+        return forward;
     }
 
     /** @return number of pixels that carry likelihood */
@@ -360,7 +394,7 @@ public final class DeconvolutionProblem {
      * @return mean Kullback-Leibler divergence per trusted pixel
      */
     public double meanFit(float[] x, float[] work) {
-        blur.apply(x, work);
+        forward.apply(x, work);
         return fit(work) / trusted;
     }
 

@@ -1,7 +1,7 @@
 package org.stackwright.psf;
 
 import org.stackwright.parallel.Workers;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
 
