@@ -125,7 +125,7 @@ public final class SpecimenRefinement {
                 counting, background, workers);
         DeconvolutionProblem b = new DeconvolutionProblem(halves[1], psf, null, DeconvolutionProblem.Boundary.EXTENDED,
                 counting, background, workers);
-        RichardsonLucy rl = new RichardsonLucy(new Stopping(StopRule.FIXED, iterations, 0), false);
+        RichardsonLucy rl = new RichardsonLucy(new Stopping(StopRule.FIXED, iterations, 1e-3), false);
         float[] work = new float[a.gridLength()];
         float[] xa = rl.solve(a, ctx, IterationListener.NONE).estimate();
         double toB = b.meanFit(xa, work) * b.trustedPixels();

@@ -10,7 +10,7 @@ class BeadRefinementTest extends TwoWorkers {
 
     @Test
     void explore() {
-        for (double photons : new double[] {400000}) {
+        for (double photons : new double[] {400000, 40000}) {
         Volume stack = BeadStacks.make(BeadStacks.oilIntoWater(15), 3, 2, photons, 20, 7, workers);
         long t1 = System.nanoTime();
         Refinement r = BeadRefinement.run(stack, BeadStacks.oilIntoWater(0).withSample(1.40, 0), List.of(OpticsParameter.DEPTH, OpticsParameter.SAMPLE_INDEX), 50,
