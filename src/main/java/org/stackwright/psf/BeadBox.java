@@ -13,8 +13,8 @@ import org.stackwright.model.PoissonNoise;
 import org.stackwright.volume.Volume;
 
 /**
- * One bead's box of data and its own five parameters: centre x, y, z (stack voxels; z at the axial intensity
- * maximum), brightness (photo-electrons per plane) and background (photo-electrons per voxel). The data are held
+ * One bead's box of data and its own five parameters: centre x, y, z (stack voxels; z at the paraxial focus, see
+ * {@link FocusTable}), brightness (photo-electrons per plane) and background (photo-electrons per voxel). The data are held
  * in shifted-Poisson units (Snyder, Hammoud &amp; White, JOSA A 10(5), 1993): y = (adu - offset) / gain + s with
  * s = (read noise / gain)^2, modelled as Poisson(m), m = background + brightness * P + s.
  *
@@ -143,9 +143,10 @@ final class BeadBox {
     /**
      * Fits the five parameters for fixed optics, starting from the current ones.
      *
+     * @param rough looser tolerances (for a coarse scan that only ranks candidate optics)
      * @return the summed deviance at the optimum (half the deviance statistic)
      */
-    double fit(FocusTable table) {
+    double fit(FocusTable table, boolean rough) {
         double[] work = new double[table.workLength()];
         LeastSquaresProblem problem = new LeastSquaresBuilder()
                 .start(p.clone())
@@ -157,8 +158,8 @@ final class BeadBox {
                 .maxIterations(200)
                 .build();
         LeastSquaresOptimizer.Optimum best = new LevenbergMarquardtOptimizer()
-                .withCostRelativeTolerance(1e-12)
-                .withParameterRelativeTolerance(1e-10)
+                .withCostRelativeTolerance(rough ? 1e-7 : 1e-12)
+                .withParameterRelativeTolerance(rough ? 1e-5 : 1e-10)
                 .optimize(problem);
         double[] q = valid(best.getPoint()).toArray();
         System.arraycopy(q, 0, p, 0, PARAMS);

@@ -88,7 +88,8 @@ public final class BeadRefinement {
             RefinementSearch.Objective objective = (theta, scanning) -> {
                 PsfSettings s = apply(nominal, free, theta);
                 FocusTable table = new FocusTable(s, halfWidth, halfDepth, workers);
-                double[][] from = scanning ? initial : warm;
+                boolean fresh = scanning || bestValue[0] == Double.POSITIVE_INFINITY;
+                double[][] from = fresh ? startsFor(initial, table) : warm;
                 // the scan only picks the basin: the brightest beads suffice there
                 int used = scanning ? Math.min(SCAN_BEADS, nb) : nb;
                 double[] dev = new double[used];
@@ -97,7 +98,7 @@ public final class BeadRefinement {
                     for (int b = b0; b < b1; b++) {
                         BeadBox bead = beads.get(b);
                         bead.setParameters(from[b]);
-                        dev[b] = bead.fit(table);
+                        dev[b] = bead.fit(table, scanning);
                         got[b] = bead.parameters();
                     }
                 });
@@ -152,6 +153,18 @@ public final class BeadRefinement {
         return s;
     }
 
+    /**
+     * @return the start parameters for a table: the beads were found at their intensity maximum, and the model's
+     *     z is the paraxial focus, which lies {@link FocusTable#maximumOffsetPlanes} planes before it
+     */
+    private static double[][] startsFor(double[][] initial, FocusTable table) {
+        double[][] out = copy(initial);
+        for (double[] p : out) {
+            p[BeadBox.Z] -= table.maximumOffsetPlanes();
+        }
+        return out;
+    }
+
     private static double[][] copy(double[][] a) {
         double[][] c = new double[a.length][];
         for (int i = 0; i < a.length; i++) {
@@ -179,7 +192,8 @@ public final class BeadRefinement {
             row.put("bead", b.id);
             row.put("x_um", p[BeadBox.X] * stack.voxel().x());
             row.put("y_um", p[BeadBox.Y] * stack.voxel().y());
-            row.put("z_um", p[BeadBox.Z] * stack.voxel().z());
+            // the model's z is the paraxial focus; report where the bead's intensity maximum lies
+            row.put("z_um", (p[BeadBox.Z] + table.maximumOffsetPlanes()) * stack.voxel().z());
             row.put("brightness_e_per_plane", p[BeadBox.BRIGHTNESS]);
             row.put("background_e", p[BeadBox.BACKGROUND]);
             row.put("deviance_ratio", d / e);

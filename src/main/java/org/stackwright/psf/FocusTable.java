@@ -13,9 +13,12 @@ import org.stackwright.parallel.Workers;
  * transform the plane integral of |integral J0(k NA r rho) P(rho) rho d rho|^2 is pi rho_max^2 / (k NA)^2 for a
  * uniform pupil of radius rho_max, at every focus offset. A bead's brightness is then its photons per plane.
  *
- * <p>Axial coordinate: a bead at stack position cz (voxels) has its axial intensity maximum there, so the plane
- * k sees the focus offset peak + (k - cz) step, as in {@link DiffractionPsf#compute}. Immutable; safe for
- * several threads.
+ * <p>Axial coordinate: a bead at stack position cz (voxels) has its paraxial focus there (the focal shift of the
+ * paraxial rule, {@link DiffractionPsf#paraxialShift}), so the plane k sees the focus offset
+ * shift + (k - cz) step. Not the intensity maximum, on purpose: with strong aberration the axial profile has side
+ * maxima of nearly equal height, the maximum can jump from one to another as the optics change, and the model
+ * would jump with it; the paraxial shift moves smoothly. {@link #maximumOffsetPlanes} tells where the maximum lies.
+ * Immutable; safe for several threads.
  */
 final class FocusTable {
 
@@ -40,6 +43,7 @@ final class FocusTable {
     private final int radii;
     private final double[] table;
     private final double peak;
+    private final double reference;
     private final double px;
     private final double py;
     private final double step;
@@ -64,11 +68,14 @@ final class FocusTable {
         // well below 1e-4 of the peak
         this.dz = 0.05 * s.immersionIndex() * lambda / (s.na() * s.na());
         this.peak = model.focalOffset(s, workers);
-        double reach = halfDepthUm + 3 * dz;
+        this.reference = DiffractionPsf.paraxialShift(s);
+        // the rendered range is centred on the paraxial reference; the maximum lies within about half the
+        // paraxial shift of it (plus a micrometre at low depth)
+        double reach = halfDepthUm + 3 * dz + 0.5 * Math.abs(reference) + 1 + Math.abs(peak - reference);
         this.rows = (int) Math.ceil(2 * reach / dz) + 1;
-        this.zFirst = peak - reach;
+        this.zFirst = reference - reach;
         this.radii = (int) Math.ceil(halfWidthUm / dr) + 4;
-        double zMax = Math.abs(peak) + reach;
+        double zMax = Math.abs(reference) + reach;
         PupilIntegral pupil = new PupilIntegral(s, s.wavelengthNm(), true, radii * dr, dr, zMax, workers);
         double k = 2 * Math.PI / lambda;
         double rhoMax = Math.min(1, Math.min(s.sampleIndex(), s.coverslipIndex()) / s.na() * (1 - 1e-9));
@@ -95,12 +102,20 @@ final class FocusTable {
     }
 
     /**
+     * @return how far the axial intensity maximum lies from the rendering's reference (the paraxial focus), in
+     *     planes: a bead centred at cz has its maximum at cz + this
+     */
+    double maximumOffsetPlanes() {
+        return (peak - reference) / step;
+    }
+
+    /**
      * Renders a bead of unit power per plane into a box, optionally with the derivatives of every voxel with
      * respect to the bead centre (analytic: derivatives of the Keys cubic in r and z).
      *
      * @param cx bead centre x in box voxels (may be fractional, may lie outside the box)
      * @param cy bead centre y
-     * @param cz bead centre z (the axial intensity maximum)
+     * @param cz bead centre z (its paraxial focus)
      * @param nx box width
      * @param ny box height
      * @param nz box depth
@@ -116,7 +131,7 @@ final class FocusTable {
         int zPart = 2 * radii + fine;
         double invH = UPSAMPLE / dr;
         for (int z = 0; z < nz; z++) {
-            planeProfile(peak + (z - cz) * step, work, withGrad);
+            planeProfile(reference + (z - cz) * step, work, withGrad);
             for (int y = 0; y < ny; y++) {
                 for (int x = 0; x < nx; x++) {
                     double v = 0;

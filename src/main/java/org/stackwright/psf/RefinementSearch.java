@@ -30,7 +30,8 @@ public final class RefinementSearch {
     /** Scan points across the first parameter's range. */
     public static final int SCAN_POINTS = 11;
 
-    /** Scan points across the second parameter's range, when there is one. */
+    /** Scan points across the first and the second parameter's range, when the scan is a grid. */
+    static final int SCAN_POINTS_GRID = 9;
     static final int SECOND_POINTS = 7;
 
     /** The objective, with parameters in their own units. */
@@ -85,7 +86,9 @@ public final class RefinementSearch {
         List<double[]> scan = new ArrayList<>();
         double lo = bounds[0][0];
         double hi = bounds[0][1];
-        double step = (hi - lo) / (SCAN_POINTS - 1);
+        // fewer points along the first parameter when the scan is a grid
+        int points = n >= 2 ? SCAN_POINTS_GRID : SCAN_POINTS;
+        double step = (hi - lo) / (points - 1);
         // with two or more parameters the scan is a grid over the first two: a search that starts on the wrong
         // line of the second parameter can end in a false minimum along a trade-off valley (depth against sample
         // index, for instance)
@@ -97,12 +100,12 @@ public final class RefinementSearch {
             if (n >= 2) {
                 theta[1] = bounds[1][0] + j * (bounds[1][1] - bounds[1][0]) / (SECOND_POINTS - 1);
             }
-            for (int i = 0; i <= SCAN_POINTS; i++) {
+            for (int i = 0; i <= points; i++) {
                 // the scan points, then the start value itself (on the start line only)
-                if (i == SCAN_POINTS && n >= 2) {
+                if (i == points && n >= 2) {
                     continue;
                 }
-                theta[0] = i < SCAN_POINTS ? lo + i * step : start[0];
+                theta[0] = i < points ? lo + i * step : start[0];
                 double v = counted.value(theta, true);
                 scan.add(n >= 2 ? new double[] {theta[0], v, theta[1]} : new double[] {theta[0], v});
                 if (v < bestScan) {
