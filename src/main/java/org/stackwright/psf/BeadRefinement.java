@@ -15,8 +15,9 @@ import org.stackwright.volume.Volume;
  * Refines optical parameters of the Gibson-Lanni PSF (depth, sample index, NA, coverslip thickness) to a bead
  * stack by maximum likelihood under the camera noise model. Every bead has its own centre, brightness and
  * background ({@link BeadBox}); the optics are shared. A coarse scan of the first fitted parameter over its range
- * ({@link RefinementSearch}, the brightest beads refitted at each point) finds the basin; then everything is
- * fitted jointly ({@link JointBeadFit}). Standard errors come from the Fisher information of all parameters
+ * ({@link RefinementSearch}, the brightest beads refitted at each point) finds the basin; then the optics are
+ * refined on the profile likelihood (all beads refitted at each step): Brent's method for one parameter, BOBYQA
+ * for several. The Fisher information of optics and beads together ({@link JointBeadFit}) gives the errors. Standard errors come from the Fisher information of all parameters
  * together ({@link FisherSummary}).
  *
  * <p>The Gibson-Lanni model (Gibson &amp; Lanni, JOSA A 8(10):1601-1613, 1991) ties depth to the shape of the
@@ -114,13 +115,12 @@ public final class BeadRefinement {
                 }
                 return total;
             };
-            RefinementSearch.Outcome search = RefinementSearch.run(free, start, bounds, objective, false, ctx);
+            RefinementSearch.Outcome search = RefinementSearch.run(free, start, bounds, objective, true, ctx);
             for (int b = 0; b < nb; b++) {
                 beads.get(b).setParameters(warm[b]);
             }
-            ctx.progress(0.6, "psf-refine: joint fit of the optics and the beads");
-            JointBeadFit joint = new JointBeadFit(beads, nominal, free, bounds, halfWidth, halfDepth, workers);
-            double[] point = joint.fit(joint.point(search.best()));
+            JointBeadFit joint = new JointBeadFit(beads, nominal, free, halfWidth, halfDepth, workers);
+            double[] point = joint.point(search.best());
             double[] best = java.util.Arrays.copyOf(point, free.size());
             PsfSettings refined = apply(nominal, free, best);
             ctx.progress(0.92, "psf-refine: standard errors");

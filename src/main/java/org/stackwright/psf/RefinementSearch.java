@@ -31,8 +31,8 @@ public final class RefinementSearch {
     public static final int SCAN_POINTS = 11;
 
     /** Scan points across the first and the second parameter's range, when the scan is a grid. */
-    static final int SCAN_POINTS_GRID = 9;
-    static final int SECOND_POINTS = 7;
+    static final int SCAN_POINTS_GRID = 7;
+    static final int SECOND_POINTS = 5;
 
     /** The objective, with parameters in their own units. */
     @FunctionalInterface

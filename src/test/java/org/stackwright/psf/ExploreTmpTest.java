@@ -10,13 +10,9 @@ class ExploreTmpTest extends TwoWorkers {
 
     @Test
     void explore() {
-        Volume stack = BeadStacks.make(BeadStacks.oilIntoWater(15), 3, 2, 400000, 20, 7, workers);
+        Volume stack = BeadStacks.make(BeadStacks.oilIntoWater(15), 2, 2, 400000, 20, 7, workers);
         long t1 = System.nanoTime();
-        Refinement r = BeadRefinement.run(stack, BeadStacks.oilIntoWater(0), List.of(OpticsParameter.DEPTH), 50,
-                100, 2, 1.5, new int[] {10, 10, 12}, RunContext.quiet(2));
-        System.out.println("depth only " + r.lines() + " dev " + r.quality().get("deviance") + " " + (System.nanoTime() - t1) / 1e9);
-        t1 = System.nanoTime();
-        r = BeadRefinement.run(stack, BeadStacks.oilIntoWater(0).withSample(1.40, 0), List.of(OpticsParameter.DEPTH, OpticsParameter.SAMPLE_INDEX), 50,
+        Refinement r = BeadRefinement.run(stack, BeadStacks.oilIntoWater(0).withSample(1.40, 0), List.of(OpticsParameter.DEPTH, OpticsParameter.SAMPLE_INDEX), 50,
                 100, 2, 1.5, new int[] {10, 10, 12}, RunContext.quiet(2));
         System.out.println(r.lines() + " corr " + r.correlation() + " dev " + r.quality().get("deviance") + " evals " + r.details().get("scan_evaluations") + " " + (System.nanoTime() - t1) / 1e9);
     }
