@@ -96,9 +96,10 @@ public final class RefinementSearch {
         double[] theta = start.clone();
         double bestScan = Double.POSITIVE_INFINITY;
         double[] from = start.clone();
-        for (int j = 0; j < second; j++) {
+        // the grid lines of the second parameter, and its start value (the user's best guess) as one more line
+        for (int j = 0; j < second + (n >= 2 ? 1 : 0); j++) {
             if (n >= 2) {
-                theta[1] = bounds[1][0] + j * (bounds[1][1] - bounds[1][0]) / (SECOND_POINTS - 1);
+                theta[1] = j < second ? bounds[1][0] + j * (bounds[1][1] - bounds[1][0]) / (SECOND_POINTS - 1) : start[1];
             }
             for (int i = 0; i <= points; i++) {
                 // the scan points, then the start value itself (on the start line only)
