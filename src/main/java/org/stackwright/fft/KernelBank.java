@@ -16,7 +16,7 @@ import org.stackwright.volume.Volume;
  */
 public final class KernelBank {
 
-    private final RealFft3D fft;
+    private final RealTransform fft;
     private final Workers workers;
     private final float[][] otf;
     private final float[] sum;
@@ -28,9 +28,10 @@ public final class KernelBank {
      * @param ny grid height
      * @param nz grid depth
      * @param workers the threads (not closed by this object)
+     * @param engine the FFT engine
      */
-    public KernelBank(List<Volume> kernels, int nx, int ny, int nz, Workers workers) {
-        this.fft = new RealFft3D(nx, ny, nz, workers);
+    public KernelBank(List<Volume> kernels, int nx, int ny, int nz, Workers workers, FftEngine engine) {
+        this.fft = engine.transform(nx, ny, nz, workers);
         this.workers = workers;
         this.otf = new float[kernels.size()][];
         float[] wrapped = new float[nx * ny * nz];
@@ -42,6 +43,16 @@ public final class KernelBank {
         }
         this.sum = fft.newSpectrum();
         this.work = fft.newSpectrum();
+    }
+
+    /** @return the name of the FFT engine, for run records */
+    public String engine() {
+        return fft.engine();
+    }
+
+    /** @return how the FFT engine planned its transforms, for run records */
+    public String planning() {
+        return fft.planning();
     }
 
     /** @return number of kernels */

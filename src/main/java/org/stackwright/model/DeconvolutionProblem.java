@@ -1,6 +1,8 @@
 package org.stackwright.model;
 
 import org.stackwright.fft.Convolution;
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
@@ -78,7 +80,17 @@ public final class DeconvolutionProblem {
      */
     public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
             double backgroundAdu, Workers workers) {
-        this(data, psf, mask, boundary, camera, backgroundAdu, workers, Float.NaN, null, null);
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, FftEngines.standard(), Float.NaN, null, null);
+    }
+
+    /**
+     * As above, with the FFT engine of the blur.
+     *
+     * @param fft the FFT engine (a run's choice: {@code op.RunContext#fft()})
+     */
+    public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
+            double backgroundAdu, Workers workers, FftEngine fft) {
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, fft, Float.NaN, null, null);
     }
 
     /**
@@ -87,16 +99,18 @@ public final class DeconvolutionProblem {
      *
      * @param psfs the PSFs of the strata at the data's voxel size, all of one odd size, unit sum; not modified
      * @param planes the data plane where each PSF holds, increasing
+     * @param fft the FFT engine
      * @see #DeconvolutionProblem(Volume, Volume, byte[], Boundary, Camera, double, Workers)
      */
     public static DeconvolutionProblem depthVariant(Volume data, java.util.List<Volume> psfs, double[] planes,
-            byte[] mask, Boundary boundary, Camera camera, double backgroundAdu, Workers workers) {
-        return new DeconvolutionProblem(data, psfs.get(0), mask, boundary, camera, backgroundAdu, workers, Float.NaN,
-                psfs, planes);
+            byte[] mask, Boundary boundary, Camera camera, double backgroundAdu, Workers workers, FftEngine fft) {
+        return new DeconvolutionProblem(data, psfs.get(0), mask, boundary, camera, backgroundAdu, workers, fft,
+                Float.NaN, psfs, planes);
     }
 
     private DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
-            double backgroundAdu, Workers workers, float start, java.util.List<Volume> strata, double[] planes) {
+            double backgroundAdu, Workers workers, FftEngine fft, float start, java.util.List<Volume> strata,
+            double[] planes) {
         if (!(backgroundAdu >= 0) || !Double.isFinite(backgroundAdu)) {
             throw new IllegalArgumentException("background = " + backgroundAdu + " is not allowed; give 0 or more ADU above the offset");
         }
@@ -124,11 +138,11 @@ public final class DeconvolutionProblem {
         Volume.checkSize(nx, ny, nz);
         int n = nx * ny * nz;
         if (strata == null) {
-            this.blur = new BlurOperator(psf, nx, ny, nz, workers);
+            this.blur = new BlurOperator(psf, nx, ny, nz, workers, fft);
             this.forward = blur;
         } else {
             this.blur = null;
-            this.forward = new DepthVariantBlur(strata, planes, d, nx, ny, nz, workers);
+            this.forward = new DepthVariantBlur(strata, planes, d, nx, ny, nz, workers, fft);
         }
         this.y = new float[w * h * d];
         double s = camera.readNoiseShift();
@@ -149,23 +163,26 @@ public final class DeconvolutionProblem {
                     + ": nothing is left to deconvolve");
         }
         this.trusted = count;
-        this.norm = new float[n];
         if (boundary == Boundary.ZERO_SAME) {
+            this.norm = new float[n];
             for (int i = 0; i < n; i++) {
                 norm[i] = inWindow(i) ? 1f : 0f;
             }
             this.start = start;
         } else {
+            // H^T w computed in the blur's in-place work array (no FFT work buffer kept for the run), then trimmed
+            float[] t = forward.newWorkArray();
             for (int z = 0; z < d; z++) {
                 for (int yy = 0; yy < h; yy++) {
                     int row = (z * ny + yy) * nx;
                     int wrow = (z * h + yy) * w;
                     for (int x = 0; x < w; x++) {
-                        norm[row + x] = y[wrow + x] >= 0 ? 1f : 0f;
+                        t[row + x] = y[wrow + x] >= 0 ? 1f : 0f;
                     }
                 }
             }
-            forward.applyAdjoint(norm, norm);
+            forward.applyAdjoint(t, t);
+            this.norm = t.length == n ? t : java.util.Arrays.copyOf(t, n);
             float max = 0;
             for (float v : norm) {
                 max = Math.max(max, v);
@@ -185,8 +202,8 @@ public final class DeconvolutionProblem {
      * no normalisation (H^T 1 taken as 1), no background, start value 0.5 everywhere.
      */
     public static DeconvolutionProblem compatible(Volume data, Volume psf, Workers workers) {
-        return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), 0, workers, 0.5f,
-                null, null);
+        return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), 0, workers,
+                FftEngines.standard(), 0.5f, null, null);
     }
 
     private boolean inWindow(int i) {
@@ -257,6 +274,16 @@ public final class DeconvolutionProblem {
             throw new IllegalStateException("this solver needs one PSF; a depth-variant blur works with richardson-lucy only");
         }
         return blur;
+    }
+
+    /** @return the name of the FFT engine of the forward operator, for run records */
+    public String fftEngine() {
+        return blur != null ? blur.fftEngine() : ((DepthVariantBlur) forward).fftEngine();
+    }
+
+    /** @return how the FFT engine planned its transforms, for run records */
+    public String fftPlanning() {
+        return blur != null ? blur.fftPlanning() : ((DepthVariantBlur) forward).fftPlanning();
     }
 
     /** @return the forward operator H on the object grid: the blur, or the depth-variant blur */

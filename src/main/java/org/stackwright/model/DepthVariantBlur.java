@@ -2,6 +2,8 @@ package org.stackwright.model;
 
 import java.util.List;
 
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
 import org.stackwright.fft.KernelBank;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
@@ -43,6 +45,12 @@ public final class DepthVariantBlur implements LinearOperator {
      */
     public DepthVariantBlur(List<Volume> psfs, double[] planes, int dataDepth, int nx, int ny, int nz,
             Workers workers) {
+        this(psfs, planes, dataDepth, nx, ny, nz, workers, FftEngines.standard());
+    }
+
+    /** As above, on the given FFT engine. */
+    public DepthVariantBlur(List<Volume> psfs, double[] planes, int dataDepth, int nx, int ny, int nz,
+            Workers workers, FftEngine engine) {
         if (psfs.isEmpty() || psfs.size() != planes.length) {
             throw new IllegalArgumentException("give one plane per PSF (" + psfs.size() + " PSFs, " + planes.length
                     + " planes)");
@@ -52,7 +60,7 @@ public final class DepthVariantBlur implements LinearOperator {
                 throw new IllegalArgumentException("the strata planes must increase: " + java.util.Arrays.toString(planes));
             }
         }
-        this.bank = new KernelBank(psfs, nx, ny, nz, workers);
+        this.bank = new KernelBank(psfs, nx, ny, nz, workers, engine);
         this.planeSize = nx * ny;
         this.nz = nz;
         this.workers = workers;
@@ -167,6 +175,16 @@ public final class DepthVariantBlur implements LinearOperator {
             }
         });
         return true;
+    }
+
+    /** @return the name of the FFT engine, for run records */
+    public String fftEngine() {
+        return bank.engine();
+    }
+
+    /** @return how the FFT engine planned its transforms, for run records */
+    public String fftPlanning() {
+        return bank.planning();
     }
 
     /** @return the number of strata */

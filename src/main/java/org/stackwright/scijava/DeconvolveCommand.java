@@ -94,6 +94,9 @@ public final class DeconvolveCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "first-depth")
     private Double firstDepth;
 
+    @Parameter(persist = false, required = false, label = "fft")
+    private String fft;
+
     @Parameter(persist = false, required = false, label = "record")
     private File record;
 

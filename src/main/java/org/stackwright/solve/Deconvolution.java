@@ -116,12 +116,12 @@ public final class Deconvolution {
         DepthStrata strata = null;
         try (Workers workers = new Workers(ctx.threads())) {
             if (dv == null) {
-                problem = new DeconvolutionProblem(data, p, mask, boundary, camera, bg, workers);
+                problem = new DeconvolutionProblem(data, p, mask, boundary, camera, bg, workers, ctx.fft());
             } else {
                 ctx.progress(0, "modelling " + dv.strata() + " PSFs across the depth");
                 strata = DepthStrata.build(dv.optics(), data, dv.strata(), workers);
                 problem = DeconvolutionProblem.depthVariant(data, strata.psfs(), strata.planes(), mask, boundary,
-                        camera, bg, workers);
+                        camera, bg, workers, ctx.fft());
             }
             sol = solver.solve(problem, ctx, listener);
             model = withModel ? forwardModel(problem, sol.estimate(), bg) : null;
@@ -168,6 +168,8 @@ public final class Deconvolution {
         r.put("voxel_um", List.of(data.voxel().x(), data.voxel().y(), data.voxel().z()));
         r.put("grid_shape", problem.gridWidth() + "x" + problem.gridHeight() + "x" + problem.gridDepth());
         r.put("trusted_pixels", problem.trustedPixels());
+        r.put("fft_engine", problem.fftEngine());
+        r.put("fft_planning", problem.fftPlanning());
         r.put("peak_memory_estimate_bytes", need);
         r.put("result_units", "ADU above the camera offset (background removed)");
         return new Outcome(result, sol, r, model);

@@ -7,6 +7,8 @@ import java.util.Map;
 
 import ij.ImagePlus;
 
+import org.stackwright.fft.FftEngines;
+import org.stackwright.op.FftChoice;
 import org.stackwright.op.Limits;
 import org.stackwright.op.MaskChecks;
 import org.stackwright.op.Operation;
@@ -83,12 +85,15 @@ public final class DeconvolveOperation implements Operation {
                 Param.number("sample-index", null, 1.0, 2.0, "", "depth-variant: refractive index of the sample medium"),
                 Param.number("first-depth", 0.0, 0, 10_000, "um", "depth-variant: depth below the coverslip of the "
                         + "first plane's focus"),
+                FftChoice.param(),
                 Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history"));
     }
 
     @Override
-    public Result run(Values v, RunContext ctx) {
+    public Result run(Values v, RunContext door) {
         DeconvolutionSettings s = settings(v);
+        FftEngines.Choice fft = FftChoice.choose(v);
+        RunContext ctx = FftChoice.context(door, fft);
         ImagePlus in = v.image("input");
         ImagePlus psfImp = v.image("psf");
         if (in.getNChannels() > 1 || in.getNFrames() > 1) {
@@ -140,6 +145,7 @@ public final class DeconvolveOperation implements Operation {
         }
         Result r = new Result();
         r.image("output", ImagePlusAdapter.toImagePlus(out.result(), in.getTitle() + "-deconvolve"));
+        FftChoice.note(r, fft);
         for (Map.Entry<String, Object> e : out.record().entrySet()) {
             r.record(e.getKey(), e.getValue());
         }

@@ -66,8 +66,8 @@ class SpecimenRefinementTest {
     @Test
     void depthFromASpecimenOfAnIndependentGenerator() throws java.io.IOException {
         Volume stack = TiffFiles.read(Path.of("src/test/resources/reference/beads-depth20.tif"), "specimen");
-        PsfSettings nominal = PsfSettings.matched(1.3, 520, 1.518, stack.voxel(), 15, 15, 21).withSample(1.33, 0);
-        Refinement r = SpecimenRefinement.run(stack, nominal, List.of(OpticsParameter.DEPTH), 50, 100, 2, 1.5, 8,
+        PsfSettings nominal = PsfSettings.matched(1.3, 520, 1.518, stack.voxel(), 21, 21, 31).withSample(1.33, 0);
+        Refinement r = SpecimenRefinement.run(stack, nominal, List.of(OpticsParameter.DEPTH), 50, 100, 2, 1.5, 15,
                 RunContext.quiet(2));
         String line = String.format(Locale.ROOT, "specimen mode on the independent 20 um stack: depth %.3f +/- %.3f um, "
                 + "held-out deviance ratio to the start %.4f", r.values()[0], r.standardErrors()[0],
