@@ -205,9 +205,6 @@ final class OperationBadInputRows {
         t.add(cli("psf-refine start depth below the deepest searched", 2, "depth = 80 lies below deepest = 50",
                 concat(refineArgs, "--depth", "80")));
         t.add(cli("psf-refine on a stack without beads", 2, "input: no usable bead", refineArgs));
-        t.add(cli("psf-refine uncalibrated stack without pixel and step", 2, "has no spatial calibration; give pixel and step",
-                "psf-refine", "--input", x.tiff("refine-plain.tif", 16, 16, 5).toString(), "--na", "1.2",
-                "--wavelength", "520", "--immersion-index", "1.518", "--size", "9x9x5", "--output", out));
 
         // --- psf-from-beads ---
         t.add(cli("psf-from-beads on an image without beads", 2, "input: no usable bead",
