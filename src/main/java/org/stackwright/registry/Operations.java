@@ -13,6 +13,7 @@ import org.stackwright.repair.SeamMaskOperation;
 import org.stackwright.psf.MeasurePsfOperation;
 import org.stackwright.psf.PsfFromBeadsOperation;
 import org.stackwright.psf.PsfOperation;
+import org.stackwright.refine.PsfRefineOperation;
 import org.stackwright.simulate.SimulateOperation;
 import org.stackwright.solve.DeconvolveOperation;
 
@@ -32,6 +33,7 @@ public final class Operations {
                 new PsfOperation(),
                 new PsfFromBeadsOperation(),
                 new MeasurePsfOperation(),
+                new PsfRefineOperation(),
                 new FindDefectsOperation(),
                 new SeamMaskOperation(),
                 new InpaintOperation(),

@@ -82,6 +82,18 @@ public final class DeconvolveCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "immersion-index")
     private Double immersionIndex;
 
+    @Parameter(persist = false, required = false, label = "depth-variant")
+    private String depthVariant;
+
+    @Parameter(persist = false, required = false, label = "strata")
+    private Integer strata;
+
+    @Parameter(persist = false, required = false, label = "sample-index")
+    private Double sampleIndex;
+
+    @Parameter(persist = false, required = false, label = "first-depth")
+    private Double firstDepth;
+
     @Parameter(persist = false, required = false, label = "fft")
     private String fft;
 

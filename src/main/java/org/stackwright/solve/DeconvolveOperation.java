@@ -46,7 +46,8 @@ public final class DeconvolveOperation implements Operation {
     public List<Param> params() {
         return List.of(
                 Param.image("input", true, "camera data to deconvolve (raw ADU; do not subtract the offset or background)"),
-                Param.image("psf", true, "the PSF (odd sizes, centre at n/2; resampled when its voxel size differs)"),
+                Param.image("psf", false, "the PSF (odd sizes, centre at n/2; resampled when its voxel size differs); "
+                        + "required unless depth-variant is on"),
                 Param.outputImage("output", true, "the deconvolved estimate, 32-bit, ADU above the offset"),
                 Param.choice("method", "richardson-lucy", DeconvolutionSettings.METHODS, "deconvolution method"),
                 Limits.iterations("iterations", 50, "maximum number of iterations (wiener: ignored)"),
@@ -74,6 +75,16 @@ public final class DeconvolveOperation implements Operation {
                 Param.number("na", null, 0.01, 1.7, "", "numerical aperture, for the sampling check (optional)"),
                 Param.number("wavelength", null, 200, 2000, "nm", "emission wavelength, for the sampling check (optional)"),
                 Param.number("immersion-index", null, 1.0, 2.0, "", "immersion index, for the sampling check (optional)"),
+                // depth-variant deconvolution (Gibson-Lanni PSFs at several depths): na, wavelength and
+                // immersion-index above give its optics
+                Param.choice("depth-variant", "off", List.of("off", "on"), "on = model Gibson-Lanni PSFs at several "
+                        + "depths from the optics and interpolate between them (richardson-lucy only; needs na, "
+                        + "wavelength, immersion-index, sample-index)"),
+                Param.integer("strata", 4, DepthStrata.MIN_STRATA, DepthStrata.MAX_STRATA, "depth-variant: number of "
+                        + "PSFs across the stack (time and memory grow with it)"),
+                Param.number("sample-index", null, 1.0, 2.0, "", "depth-variant: refractive index of the sample medium"),
+                Param.number("first-depth", 0.0, 0, 10_000, "um", "depth-variant: depth below the coverslip of the "
+                        + "first plane's focus"),
                 FftChoice.param(),
                 Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history"));
     }
@@ -91,10 +102,20 @@ public final class DeconvolveOperation implements Operation {
                     + "PSF: split the hyperstack first)");
         }
         Volume data = ImagePlusAdapter.toVolume(in);
-        Volume psf = ImagePlusAdapter.toVolume(psfImp);
-        if (!ImagePlusAdapter.isCalibrated(psfImp)) {
-            psf = psf.withVoxel(data.voxel());
-            ctx.warn("psf: '" + psfImp.getTitle() + "' has no calibration; taken to have the image's voxel size " + data.voxel());
+        boolean depthVariant = v.choice("depth-variant").equals("on");
+        if (psfImp == null && !depthVariant) {
+            throw new IllegalArgumentException("image 'psf' is required for deconvolve: give the PSF, or depth-variant on "
+                    + "with the optics to model it");
+        }
+        Volume psf = null;
+        if (psfImp != null && depthVariant) {
+            ctx.warn("psf: '" + psfImp.getTitle() + "' is not used: depth-variant on models the PSFs from the optics");
+        } else if (psfImp != null) {
+            psf = ImagePlusAdapter.toVolume(psfImp);
+            if (!ImagePlusAdapter.isCalibrated(psfImp)) {
+                psf = psf.withVoxel(data.voxel());
+                ctx.warn("psf: '" + psfImp.getTitle() + "' has no calibration; taken to have the image's voxel size " + data.voxel());
+            }
         }
         samplingCheck(v, data, ctx);
         byte[] mask = null;
@@ -111,9 +132,17 @@ public final class DeconvolveOperation implements Operation {
         if (replicas > 0) {
             NoiseReplicas.check(replicas, noise, s);
         }
-        Deconvolution.Outcome out = replicas > 0
-                ? NoiseReplicas.deconvolveWithModel(data, psf, psfImp.getTitle(), mask, s, ctx, IterationListener.NONE)
-                : Deconvolution.run(data, psf, psfImp.getTitle(), mask, s, ctx, IterationListener.NONE);
+        Deconvolution.Outcome out;
+        if (depthVariant) {
+            if (replicas > 0) {
+                throw new IllegalArgumentException("replicas need one PSF; give replicas 0 with depth-variant on");
+            }
+            out = Deconvolution.runDepthVariant(data, mask, s, depthVariant(v, data), ctx, IterationListener.NONE);
+        } else {
+            out = replicas > 0
+                    ? NoiseReplicas.deconvolveWithModel(data, psf, psfImp.getTitle(), mask, s, ctx, IterationListener.NONE)
+                    : Deconvolution.run(data, psf, psfImp.getTitle(), mask, s, ctx, IterationListener.NONE);
+        }
         Result r = new Result();
         r.image("output", ImagePlusAdapter.toImagePlus(out.result(), in.getTitle() + "-deconvolve"));
         FftChoice.note(r, fft);
@@ -140,6 +169,22 @@ public final class DeconvolveOperation implements Operation {
         row.put("final_objective", hist.length > 0 ? hist[hist.length - 1] : Double.NaN);
         r.row(row);
         return r;
+    }
+
+    /** Reads and checks the optics of a depth-variant run: na, wavelength, immersion-index, sample-index. */
+    static Deconvolution.DepthVariant depthVariant(Values v, Volume data) {
+        for (String key : List.of("na", "wavelength", "immersion-index", "sample-index")) {
+            if (!v.given(key)) {
+                throw new IllegalArgumentException(key + " is required with depth-variant on: give na, wavelength, "
+                        + "immersion-index and sample-index (the Gibson-Lanni optics of the PSFs)");
+            }
+        }
+        double ni = v.number("immersion-index");
+        PsfSettings optics = new PsfSettings(v.number("na"), v.number("wavelength"), 0, ni, v.number("sample-index"), ni,
+                PsfSettings.STANDARD_COVERSLIP_UM, PsfSettings.STANDARD_COVERSLIP_UM, v.number("first-depth"), 1,
+                data.voxel(), 1, 1, 1);
+        optics.check("gibson-lanni");
+        return new Deconvolution.DepthVariant(optics, v.integer("strata"));
     }
 
     /** Reads and checks the settings. */
