@@ -106,7 +106,14 @@ public final class ChannelRunner {
         List<Values> values = new ArrayList<>();
         for (int t = 1; t <= nt; t++) {
             for (int c = 1; c <= nc; c++) {
-                Values v = Values.parse(op.name(), op.params(), perChannel(op, settings.text(), c, nc));
+                Map<String, String> raw = perChannel(op, settings.text(), c, nc);
+                for (Param p : op.params()) {
+                    if (p.kind() == Param.Kind.OUTPUT_IMAGE && settings.outputs().contains(p.key())
+                            && (settings.outputsAsked() || p.required())) {
+                        raw.put(p.key(), ""); // asked for, as a path on the command line asks for it
+                    }
+                }
+                Values v = Values.parse(op.name(), op.params(), raw);
                 for (Map.Entry<String, ImagePlus> e : settings.images().entrySet()) {
                     ImagePlus imp = e.getValue();
                     boolean whole = imp.getNChannels() == 1 && imp.getNFrames() == 1;

@@ -33,6 +33,8 @@ final class RunReport {
         if (rt == null) {
             rt = new ResultsTable();
         }
+        // a setting another operation has (a column of another row) stays empty, never 0
+        rt.setNaNEmptyCells(true);
         for (ChannelRunner.Part part : outcome.parts()) {
             rt.incrementCounter();
             rt.addValue("operation", operation);
@@ -47,6 +49,10 @@ final class RunReport {
             }
             for (Map.Entry<String, String> e : part.values().effective().entrySet()) {
                 add(rt, e.getKey(), e.getValue());
+            }
+            double bg = backgroundUsed(part.result().record());
+            if (Double.isFinite(bg)) {
+                rt.addValue("background_used", bg);
             }
             for (Map.Entry<String, Object> e : part.result().record().entrySet()) {
                 Object v = e.getValue();
@@ -75,6 +81,7 @@ final class RunReport {
         if (rt == null) {
             rt = new ResultsTable();
         }
+        rt.setNaNEmptyCells(true);
         for (ChannelRunner.Part part : outcome.parts()) {
             for (Map<String, Object> row : part.result().rows()) {
                 rt.incrementCounter();
@@ -106,6 +113,18 @@ final class RunReport {
             // a word: stored as text below
         }
         rt.addValue(column, value);
+    }
+
+    /**
+     * @return the background a run used, ADU above the offset ("background_adu" of the record or of its
+     *     "settings"; the estimate when the background was "auto"), or NaN when the record has none
+     */
+    static double backgroundUsed(Map<String, Object> record) {
+        Object v = record.get("background_adu");
+        if (v == null && record.get("settings") instanceof Map<?, ?> settings) {
+            v = settings.get("background_adu");
+        }
+        return v instanceof Number n ? n.doubleValue() : Double.NaN;
     }
 
     /** @return the convergence plot, or null when no part's record has a history */

@@ -49,7 +49,7 @@ public final class ResidualsOperation implements Operation {
                 Param.number("offset", 0.0, -1e9, 1e9, "ADU", "camera offset (bias) added to the prediction"),
                 Param.number("background", 0.0, -1e9, 1e9, "ADU", "background per voxel above the offset"),
                 Param.choice("likelihood", "poisson", List.of("poisson", "poisson-gaussian", "gaussian"),
-                        "noise model: photon counting, camera (gain and read noise) or constant Gaussian"),
+                        "noise model: photon counting, camera (gain and read noise) or constant Gaussian").withAlias("noise"),
                 Param.number("gain", 1.0, 1e-9, 1e9, "ADU/e-", "camera gain (poisson, poisson-gaussian)"),
                 Param.number("read-noise", 0.0, 0, 1e9, "ADU",
                         "read noise (poisson-gaussian) or the noise standard deviation (gaussian)"),

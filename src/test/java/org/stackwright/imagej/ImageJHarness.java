@@ -60,8 +60,15 @@ public final class ImageJHarness {
         Path build = Paths.get(System.getProperty("stackwright.build.dir", "target")).toAbsolutePath();
         Path plugins = Files.createTempDirectory(build, "imagej-plugins-");
         jar(build.resolve("classes"), plugins.resolve("Stackwright_.jar"), null);
-        jar(null, plugins.resolve("Stackwright_Test_.jar"), "Plugins>Stackwright>Test, \"Offset Test...\", "
+        StringBuilder config = new StringBuilder("Plugins>Stackwright>Test, \"Offset Test...\", "
                 + "org.stackwright.imagej.TestPlugin(\"test-offset\")\n");
+        List<String> names = new ArrayList<>(List.of("test-offset"));
+        org.stackwright.registry.Operations.all().forEach(o -> names.add(o.name()));
+        for (String name : names) {
+            config.append("Plugins>Stackwright>Test, \"").append(DryRunPlugin.label(name))
+                    .append("\", org.stackwright.imagej.DryRunPlugin(\"").append(name).append("\")\n");
+        }
+        jar(null, plugins.resolve("Stackwright_Test_.jar"), config.toString());
         System.setProperty("plugins.dir", plugins.toString());
         ij = new ImageJ(ImageJ.NO_SHOW);
         Thread watchdog = new Thread(ImageJHarness::watch, "dialog watchdog");
