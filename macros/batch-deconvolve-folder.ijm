@@ -31,9 +31,13 @@ READ_NOISE = 2;        // camera read noise (ADU, standard deviation): the noise
 ITERATIONS = 50;       // the most iterations; the noise-based stop usually ends earlier
 // -----------------------------------------------------
 
+// With no one at the screen (ImageJ -batch), an ImageJ error from here on ends the run with the message on
+// stderr and exit code 1 instead of a window that waits for a click.
+call("org.stackwright.imagej.MacroCalls.guard");
 args = getArgument();
 images = option(args, "images", "");
-demo = images == "";
+demo = false;
+if (images == "") demo = true;
 if (demo) images = defaultImages();
 images = withSeparator(images);
 output = option(args, "output", "");
@@ -129,8 +133,6 @@ function fail(message) {
 function openInput(path) {
     if (!File.exists(path)) fail("input file not found: " + path);
     open(path);
-}
-    return getDirectory("Choose the folder with the TIFF stacks");
 }
 
 // Makes a folder and the folder it is in (File.makeDirectory makes one level only).

@@ -19,9 +19,13 @@ SEAM_WIDTH = 4;        // width of the band masked along each seam, in pixels
 THRESHOLD = 6;         // defective-pixel threshold in robust standard deviations
 METHOD = "harmonic";   // harmonic (seams, small holes), biharmonic (smoother), total-variation (keeps edges), median
 
+// With no one at the screen (ImageJ -batch), an ImageJ error from here on ends the run with the message on
+// stderr and exit code 1 instead of a window that waits for a click.
+call("org.stackwright.imagej.MacroCalls.guard");
 args = getArgument();
 images = option(args, "images", "");
-demo = images == "";
+demo = false;
+if (images == "") demo = true;
 if (demo) images = defaultImages();
 images = withSeparator(images);
 output = option(args, "output", "");
@@ -100,8 +104,6 @@ function fail(message) {
 function openInput(path) {
     if (!File.exists(path)) fail("input file not found: " + path);
     open(path);
-}
-    return getDirectory("Choose the folder with the tiled image");
 }
 
 // Makes a folder and the folder it is in (File.makeDirectory makes one level only).

@@ -79,7 +79,8 @@ final class OperationRunner {
 
     private static String label(Param p) {
         return switch (p.kind()) {
-            case IMAGE, OUTPUT_IMAGE -> "FILE.tif";
+            case IMAGE -> "FILE.tif";
+            case OUTPUT_IMAGE -> p.unit().equals("PNG") ? "FILE.png" : "FILE.tif";
             case OUTPUT_FILE -> "FILE.json";
             case CHOICE -> String.join("|", p.choices());
             case INTEGER -> "N";

@@ -159,7 +159,7 @@ final class DialogLayout {
             text = kind == Param.Kind.OUTPUT_IMAGE ? "Make " + words.replace(" output", "") + " image"
                     : Character.toUpperCase(words.charAt(0)) + words.substring(1);
         }
-        if (!unit.isEmpty()) {
+        if (!unit.isEmpty() && kind != Param.Kind.OUTPUT_IMAGE) {
             text += " (" + unit + ")";
         }
         return text;

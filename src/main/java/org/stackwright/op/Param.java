@@ -118,6 +118,11 @@ public record Param(String key, Kind kind, String defaultValue, String unit, Str
         return new Param(key, Kind.OUTPUT_IMAGE, null, "", help, List.of(), 0, 0, required);
     }
 
+    /** An output picture: a PNG file on the command line, a new (RGB) window in ImageJ. */
+    public static Param outputPicture(String key, String help) {
+        return new Param(key, Kind.OUTPUT_IMAGE, null, "PNG", help, List.of(), 0, 0, false);
+    }
+
     /** An output file (JSON record). */
     public static Param outputFile(String key, String help) {
         return new Param(key, Kind.OUTPUT_FILE, null, "", help, List.of(), 0, 0, false);

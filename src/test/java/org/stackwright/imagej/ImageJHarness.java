@@ -57,6 +57,19 @@ public final class ImageJHarness {
         if (ij != null) {
             return;
         }
+        Path plugins = pluginsFolder();
+        System.setProperty("plugins.dir", plugins.toString());
+        ij = new ImageJ(ImageJ.NO_SHOW);
+        Thread watchdog = new Thread(ImageJHarness::watch, "dialog watchdog");
+        watchdog.setDaemon(true);
+        watchdog.start();
+    }
+
+    /**
+     * @return a new plugins folder under target/ holding {@code Stackwright_.jar} (the classes and plugins.config of
+     *     target/classes, as the package phase would) and a jar with the menu entries of the test-only doors
+     */
+    static Path pluginsFolder() throws IOException {
         Path build = Paths.get(System.getProperty("stackwright.build.dir", "target")).toAbsolutePath();
         Path plugins = Files.createTempDirectory(build, "imagej-plugins-");
         jar(build.resolve("classes"), plugins.resolve("Stackwright_.jar"), null);
@@ -69,11 +82,7 @@ public final class ImageJHarness {
                     .append("\", org.stackwright.imagej.DryRunPlugin(\"").append(name).append("\")\n");
         }
         jar(null, plugins.resolve("Stackwright_Test_.jar"), config.toString());
-        System.setProperty("plugins.dir", plugins.toString());
-        ij = new ImageJ(ImageJ.NO_SHOW);
-        Thread watchdog = new Thread(ImageJHarness::watch, "dialog watchdog");
-        watchdog.setDaemon(true);
-        watchdog.start();
+        return plugins;
     }
 
     /** Writes a jar with plugins.config at its root: the classes folder's (and its classes), or the given text. */
