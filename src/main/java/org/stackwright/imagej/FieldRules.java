@@ -64,7 +64,7 @@ final class FieldRules {
     }
 
     private static boolean is(State s, String key, String... values) {
-        String v = s.apply(key);
+        String v = known(s, key);
         for (String x : values) {
             if (x.equals(v)) {
                 return true;
@@ -74,11 +74,21 @@ final class FieldRules {
     }
 
     private static boolean positive(State s, String key) {
+        String v = known(s, key);
         try {
-            return Double.parseDouble(s.apply(key).trim()) > 0;
-        } catch (RuntimeException e) {
+            return Double.parseDouble(v.trim()) > 0;
+        } catch (NumberFormatException e) {
             return false;
         }
+    }
+
+    /** @throws IllegalStateException when the dialog has no such field (the rule then does not grey out) */
+    private static String known(State s, String key) {
+        String v = s.apply(key);
+        if (v == null) {
+            throw new IllegalStateException("no field " + key);
+        }
+        return v;
     }
 
     /** @return true when the setting applies given the other fields' current state (no rule: always) */
@@ -92,6 +102,11 @@ final class FieldRules {
         } catch (RuntimeException e) {
             return true; // a field the rule needs is missing: never grey out by mistake
         }
+    }
+
+    /** @return "operation/key" of every setting that has a rule */
+    static java.util.Set<String> ruled() {
+        return java.util.Set.copyOf(RULES.keySet());
     }
 
     /** @return true when some rule of the operation depends on another field */

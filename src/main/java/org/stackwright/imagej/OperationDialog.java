@@ -1,10 +1,8 @@
 package org.stackwright.imagej;
 
 import java.awt.Checkbox;
-import java.awt.Choice;
 import java.awt.Component;
 import java.awt.Font;
-import java.awt.TextField;
 import java.math.BigDecimal;
 import java.math.MathContext;
 import java.util.ArrayList;
@@ -295,9 +293,11 @@ public final class OperationDialog {
         static Suggestions of(Operation op) {
             Map<String, String> values = SessionMemory.values(op.name());
             Map<String, String> images = SessionMemory.images(op.name());
+            String lastEstimate = images.get("estimate");
+            images.remove(ChannelRunner.mainInput(op)); // the main input is the current image, as in ImageJ
             SessionMemory.Deconvolution d = SessionMemory.lastDeconvolution();
             if (op.name().equals("residuals") && d != null && d.result() != null
-                    && WindowManager.getImage(d.result()) != null && !d.result().equals(images.get("estimate"))) {
+                    && WindowManager.getImage(d.result()) != null && !d.result().equals(lastEstimate)) {
                 images.put("input", d.input());
                 images.put("estimate", d.result());
                 if (d.psf() != null) {
