@@ -41,7 +41,7 @@ final class DialogLayout {
         group("Tiles", "grid", "tile", "overlap", "order", "seam-width");
         group("Detection", "detect", "threshold", "fraction");
         group("Levelling", "level", "strip");
-        group("Method", "method", "mode", "regularization", "boundary", "acceleration", "replicas", "data-range");
+        group("Method", "method", "mode", "regularization", "boundary", "acceleration", "replicas", "data-range", "fft");
         group("Stopping", "iterations", "stop", "tolerance");
         group("Camera", "offset", "background", "gain", "read-noise", "likelihood", "bits");
         GROUP.put("psf-from-beads/size", "PSF");
@@ -91,6 +91,7 @@ final class DialogLayout {
         LABEL.put("acceleration", "Acceleration");
         LABEL.put("replicas", "Noise replicas (0 = off)");
         LABEL.put("data-range", "Data range (empty = reference max - min)");
+        LABEL.put("fft", "FFT engine");
         LABEL.put("iterations", "Iterations (maximum)");
         LABEL.put("stop", "Stop rule");
         LABEL.put("tolerance", "Tolerance");

@@ -15,7 +15,7 @@ import org.junit.jupiter.api.io.TempDir;
  * verdict alone needs no output file, and the old key {@code --noise} still works with a note naming
  * {@code --likelihood} (given together with it, it is refused).
  */
-class ResidualsCommandLineTest {
+class CommandLineResidualsTest {
 
     @TempDir
     Path dir;
