@@ -66,7 +66,7 @@ public final class DeconvolveOperation implements Operation {
                         "extended = object larger than the image, no wrap-around; periodic = wraps around (smaller, faster)"),
                 Param.choice("acceleration", "on", List.of("on", "off"), "vector extrapolation for richardson-lucy"),
                 Param.choice("likelihood", "poisson", List.of("poisson", "gaussian"), "data term of total-variation; with "
-                        + "replicas also their noise (gaussian: additive, read-noise as standard deviation)"),
+                        + "replicas also their noise (gaussian: additive, read-noise as standard deviation)").withAlias("noise"),
                 Param.integer("replicas", 0, 0, NoiseReplicas.MAX_REPLICAS, "noise replicas for the spread map: 0 = off, "
                         + "2 to " + NoiseReplicas.MAX_REPLICAS + "; costs that many more deconvolutions"),
                 Param.outputImage("spread-output", false, "per-voxel standard deviation over the noise replicas, 32-bit, "
@@ -161,6 +161,9 @@ public final class DeconvolveOperation implements Operation {
         double[] hist = out.solution().objective();
         r.line(String.format(Locale.ROOT, "deconvolved %s with %s: %d iteration(s), %.2f s; stopped by %s",
                 data.shape(), s.method(), out.solution().iterations(), out.solution().seconds(), out.solution().stopReason()));
+        Map<?, ?> used = (Map<?, ?>) out.record().get("settings");
+        r.line(String.format(Locale.ROOT, "background: %.4g ADU above the offset (%s)", used.get("background_adu"),
+                Boolean.TRUE.equals(used.get("background_estimated")) ? "estimated: background auto" : "given"));
         Map<String, Object> row = new LinkedHashMap<>();
         row.put("method", s.method());
         row.put("iterations", out.solution().iterations());

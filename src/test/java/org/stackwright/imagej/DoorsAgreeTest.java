@@ -130,8 +130,9 @@ class DoorsAgreeTest {
             }
         }
         macro.append("run('").append(c.menu()).append("', '").append(options.toString().trim()).append("');\n");
+        macro.append("main = getTitle();\n"); // the main output is the current image after a run
         for (String out : c.outputs()) {
-            macro.append("selectImage('").append(out.equals("output") ? base : base + "-" + out).append("');\n")
+            macro.append(out.equals("output") ? "selectImage(main);\n" : "selectImage('" + base + "-" + out + "');\n")
                     .append("saveAs('Tiff', '").append(dir.resolve("macro-" + out + ".tif")).append("');\n");
         }
         String err = ImageJHarness.runMacro(macro.toString(), "");
