@@ -56,6 +56,9 @@ public final class PosteriorSampler {
     /** A step that keeps the variance of stiff posteriors (Gaussian priors) within a few percent: h = 4 / L. */
     public static final double ACCURATE_STEP_SCALE = 4;
 
+    /** Dual steps per TV proximal map (warm started from the previous call). */
+    public static final int DEFAULT_PROX_STEPS = 5;
+
     /** Default stages: 10, the value Pereyra et al. (2020) use; stability limit 173 / L. */
     public static final int DEFAULT_STAGES = 10;
 

@@ -13,7 +13,7 @@ import org.stackwright.volume.VoxelSize;
 
 /**
  * Coverage of the posterior's credible intervals against the truth, compared with the noise replicas. The
- * specimen, PSF and noise are made here, independently of the simulator: a few discs, a rod and a ramp, blurred
+ * specimen, PSF and noise are made here, independently of the simulator: two discs and a rod, blurred
  * by a separable Gaussian PSF written out in the test, with Poisson noise drawn by commons-math3.
  */
 class PosteriorCoverageTest {
@@ -30,7 +30,7 @@ class PosteriorCoverageTest {
                     if ((x - 10) * (x - 10) + (y - 12) * (y - 12) + dz * dz * 16 < 30) {
                         v += 80;
                     }
-                    if ((x - 22) * (x - 22) + (y - 20) * (y - 20) < 10) {
+                    if ((x - 22) * (x - 22) + (y - 20) * (y - 20) < 10 && Math.abs(dz) < 1.2) {
                         v += 140;
                     }
                     if (Math.abs(y - 27) < 1.5 && x > 4 && x < 26 && Math.abs(dz) < 1.5) {
@@ -69,77 +69,85 @@ class PosteriorCoverageTest {
         return new Volume(n, n, nzp, p, VOXEL);
     }
 
-    @Test
-    void credibleIntervalsCoverTheTruthMoreOftenThanNoiseReplicas() {
-        int nx = 32;
-        int ny = 32;
-        int nz = Integer.getInteger("nz", 6);
-        double background = 5;
-        Volume truth = truth(nx, ny, nz);
-        Volume data;
+    /** Shares of bright voxels (truth at least 30% of its maximum) inside each kind of interval. */
+    record Coverage(double sampling, double replicas, int bright) {
+    }
+
+    /**
+     * Data of the invented field: blurred with the test's own PSF (zero outside the field), background added,
+     * Poisson counts drawn with commons-math3.
+     */
+    static Volume data(Volume truth, Volume psf, double background, long seed) {
         try (Workers w = new Workers(2)) {
-            Volume blurred = Convolution.apply(truth, psf(nz == 1 ? 1 : 5), Convolution.Boundary.ZERO, false, w);
+            Volume blurred = Convolution.apply(truth, psf, Convolution.Boundary.ZERO, false, w);
             float[] d = blurred.data().clone();
-            Well19937c rng = new Well19937c(3);
+            Well19937c rng = new Well19937c(seed);
             for (int i = 0; i < d.length; i++) {
                 d[i] = new PoissonDistribution(rng, d[i] + background, PoissonDistribution.DEFAULT_EPSILON,
                         PoissonDistribution.DEFAULT_MAX_ITERATIONS).sample();
             }
-            data = blurred.withData(d);
+            return blurred.withData(d);
         }
-        DeconvolutionSettings s = new DeconvolutionSettings("total-variation", Stopping.fixed(300), 0, background, 1, 0,
-                Double.parseDouble(System.getProperty("lam", "0.01")), "extended", true, "poisson");
-        PosteriorSampler.Settings ss = new PosteriorSampler.Settings(Integer.getInteger("n", 200), 2,
-                Integer.getInteger("burn", 300), Integer.getInteger("thin", 10), Integer.getInteger("stages", PosteriorSampler.DEFAULT_STAGES),
-                Double.parseDouble(System.getProperty("scale", "" + PosteriorSampler.DEFAULT_STEP_SCALE)), 5, 7);
+    }
+
+    static Coverage coverage(int samples, int burnIn, int replicas) {
+        int nx = 32;
+        int ny = 32;
+        int nz = 10;
+        double background = 5;
+        Volume truth = truth(nx, ny, nz);
+        Volume psf = psf(5);
+        Volume data = data(truth, psf, background, 3);
+        DeconvolutionSettings s = new DeconvolutionSettings("total-variation", Stopping.fixed(200), 0, background, 1, 0,
+                0.01, "extended", true, "poisson");
+        PosteriorSampler.Settings ss = new PosteriorSampler.Settings(samples, 2, burnIn, 5,
+                PosteriorSampler.DEFAULT_STAGES, PosteriorSampler.DEFAULT_STEP_SCALE, PosteriorSampler.DEFAULT_PROX_STEPS, 7);
         RunContext ctx = RunContext.quiet(2);
-        PosteriorSampling.Result r = PosteriorSampling.run(data, psf(nz == 1 ? 1 : 5), "psf", null, s, ss, 0.9, ctx);
+        PosteriorSampling.Result r = PosteriorSampling.run(data, psf, "psf", null, s, ss, 0.9, ctx);
+        DeconvolutionSettings rl = new DeconvolutionSettings("richardson-lucy", new Stopping(StopRule.NOISE, 50, 1e-3), 0,
+                background, 1, 0, Double.NaN, "extended", true, "poisson");
+        Deconvolution.Outcome map = NoiseReplicas.deconvolveWithModel(data, psf, "psf", null, rl, ctx, IterationListener.NONE);
+        NoiseReplicas.Spread spread = NoiseReplicas.run(data, psf, null, rl, map, replicas, NoiseReplicas.Noise.CAMERA, 9, ctx);
         float[] t = truth.data();
         float max = truth.max();
-        int bright = 0;
-        int inside = 0;
         float[] lo = r.summary().lower().data();
         float[] hi = r.summary().upper().data();
+        float[] est = map.result().data();
+        float[] sd = spread.spread().data();
+        int bright = 0;
+        int inSampling = 0;
+        int inReplicas = 0;
         for (int i = 0; i < t.length; i++) {
             if (t[i] >= 0.3 * max) {
                 bright++;
                 if (t[i] >= lo[i] && t[i] <= hi[i]) {
-                    inside++;
+                    inSampling++;
+                }
+                if (Math.abs(t[i] - est[i]) <= 1.645 * sd[i]) {
+                    inReplicas++;
                 }
             }
         }
-        System.out.printf("sampling: %d states, step %.3g, L %.3g, %.1f s, ESS median %.1f min %.1f, R-hat median %.3f "
-                + "p95 %.3f max %.3f; coverage of bright voxels %.3f (%d of %d)%n", r.draws().states().length,
-                r.draws().step(), r.draws().lipschitz(), r.draws().seconds(), r.summary().essMedian(),
-                r.summary().essMinimum(), r.summary().rhatMedian(), r.summary().rhatHigh(), r.summary().rhatMaximum(),
-                (double) inside / bright, inside, bright);
-        assertTrue(bright > 0);
-        if (System.getProperty("dump") != null) {
-            try {
-                java.nio.file.Files.write(java.nio.file.Paths.get(System.getProperty("dump")),
-                        java.util.Arrays.toString(r.summary().spread().data()).getBytes());
-            } catch (java.io.IOException e) {
-                throw new RuntimeException(e);
-            }
-        }
-        if (Boolean.getBoolean("debug")) {
-            PosteriorSampler.Draws d = r.draws();
-            int n = t.length;
-            for (int v = 0; v < n; v += 1) {
-                double[][] ch = new double[2][d.perChain()];
-                for (int c = 0; c < 2; c++) {
-                    for (int j = 0; j < d.perChain(); j++) {
-                        ch[c][j] = d.states()[c * d.perChain() + j][v];
-                    }
-                }
-                ChainDiagnostics.Scalar sc = ChainDiagnostics.of(ch);
-                if (sc.rhat() > 1.3) {
-                    double m0 = java.util.Arrays.stream(ch[0]).average().orElse(0);
-                    double m1 = java.util.Arrays.stream(ch[1]).average().orElse(0);
-                    System.out.printf("voxel %d (x %d y %d z %d): truth %.1f rhat %.2f ess %.1f means %.2f %.2f first %.2f %.2f last %.2f %.2f%n",
-                        v, v % 32, (v / 32) % 32, v / 1024, t[v], sc.rhat(), sc.ess(), m0, m1, ch[0][0], ch[1][0], ch[0][d.perChain()-1], ch[1][d.perChain()-1]);
-                }
-            }
-        }
+        System.out.printf("coverage of %d bright voxels by 90%% intervals: sampling %.3f (%d states, %.1f s, ESS median "
+                + "%.0f, split R-hat p95 %.3f), noise replicas (estimate +- 1.645 sd, %d replicas) %.3f%n", bright,
+                (double) inSampling / bright, r.draws().states().length, r.draws().seconds(), r.summary().essMedian(),
+                r.summary().rhatHigh(), replicas, (double) inReplicas / bright);
+        return new Coverage((double) inSampling / bright, (double) inReplicas / bright, bright);
+    }
+
+    /**
+     * The interval from the posterior includes what the prior and the data leave open (the method's bias near
+     * edges of objects, the depth the blur cannot resolve), the noise replicas of the usual most likely run
+     * (accelerated Richardson-Lucy stopped by the noise rule) only its noise scatter: the 90% credible interval
+     * must cover the truth in a larger share of bright voxels, by more than three binomial standard errors of the
+     * difference. Measured when this was written: sampling 0.61, replicas 0.42 of 809 bright voxels (and the
+     * replicas of primal-dual TV at the same lambda 0.69: see README).
+     */
+    @Test
+    void credibleIntervalsCoverTheTruthMoreOftenThanNoiseReplicas() {
+        Coverage c = coverage(60, 100, 10);
+        double se = Math.sqrt((c.sampling() * (1 - c.sampling()) + c.replicas() * (1 - c.replicas())) / c.bright());
+        assertTrue(c.sampling() - c.replicas() > 3 * se, "sampling " + c.sampling() + " vs replicas " + c.replicas()
+                + " (standard error of the difference " + se + ")");
     }
 }
