@@ -140,10 +140,16 @@ public final class IntervalProfileOperation implements Operation {
             top = Math.max(top, h);
         }
         plot.setLimits(0, x.length > 1 ? x[x.length - 1] : 1, 0, top > 0 ? 1.05 * top : 1);
+        // the band: close vertical strokes, interpolated between the points (finer than the plot's pixels)
         plot.setColor(new Color(170, 200, 235));
-        plot.setLineWidth(Math.max(1, 400 / Math.max(x.length, 1)));
-        for (int i = 0; i < x.length; i++) {
-            plot.drawLine(x[i], lo[i], x[i], hi[i]);
+        plot.setLineWidth(2);
+        int strokes = 1200;
+        for (int k = 0; k <= strokes && x.length > 1; k++) {
+            double t = (double) k / strokes * (x.length - 1);
+            int i = Math.min((int) t, x.length - 2);
+            double f = t - i;
+            double xx = x[i] + f * (x[i + 1] - x[i]);
+            plot.drawLine(xx, lo[i] + f * (lo[i + 1] - lo[i]), xx, hi[i] + f * (hi[i + 1] - hi[i]));
         }
         plot.setLineWidth(1);
         plot.setColor(new Color(60, 110, 180));
