@@ -7,6 +7,8 @@ import java.util.Map;
 
 import ij.ImagePlus;
 
+import org.stackwright.fft.FftEngines;
+import org.stackwright.op.FftChoice;
 import org.stackwright.op.Limits;
 import org.stackwright.op.MaskChecks;
 import org.stackwright.op.Operation;
@@ -64,6 +66,7 @@ public final class DeconvolveOperation implements Operation {
                 Param.number("na", null, 0.01, 1.7, "", "numerical aperture, for the sampling check (optional)"),
                 Param.number("wavelength", null, 200, 2000, "nm", "emission wavelength, for the sampling check (optional)"),
                 Param.number("immersion-index", null, 1.0, 2.0, "", "immersion index, for the sampling check (optional)"),
+                FftChoice.param(),
                 Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history")));
         p.addAll(p.indexOf(p.stream().filter(q -> q.key().equals("likelihood")).findFirst().orElseThrow()) + 1,
                 UncertaintyStep.params());
@@ -71,8 +74,10 @@ public final class DeconvolveOperation implements Operation {
     }
 
     @Override
-    public Result run(Values v, RunContext ctx) {
+    public Result run(Values v, RunContext door) {
         DeconvolutionSettings s = settings(v);
+        FftEngines.Choice fft = FftChoice.choose(v);
+        RunContext ctx = FftChoice.context(door, fft);
         ImagePlus in = v.image("input");
         ImagePlus psfImp = v.image("psf");
         if (in.getNChannels() > 1 || in.getNFrames() > 1) {
@@ -95,6 +100,7 @@ public final class DeconvolveOperation implements Operation {
         Result r = new Result();
         Deconvolution.Outcome out = UncertaintyStep.run(v, data, psf, psfImp.getTitle(), mask, s, in.getTitle(), ctx, r);
         r.image("output", ImagePlusAdapter.toImagePlus(out.result(), in.getTitle() + "-deconvolve"));
+        FftChoice.note(r, fft);
         double[] hist = out.solution().objective();
         r.line(String.format(Locale.ROOT, "deconvolved %s with %s: %d iteration(s), %.2f s; stopped by %s",
                 data.shape(), s.method(), out.solution().iterations(), out.solution().seconds(), out.solution().stopReason()));
