@@ -191,8 +191,17 @@ public final class OperationDialog {
                 && (p.key().equals("pixel") || p.key().equals("step") && current.getNSlices() > 1);
     }
 
-    /** The default text of a number or text field: the voxel size of the current image for pixel and step. */
+    /**
+     * The default text of a number or text field: the voxel size of the current image for pixel and step; its
+     * line selection (x0,y0,x1,y1) for line and its current slice for plane.
+     */
     static String defaultText(Param p, ImagePlus current) {
+        if (current != null && p.key().equals("line") && current.getRoi() instanceof ij.gui.Line l) {
+            return String.format(java.util.Locale.ROOT, "%.1f,%.1f,%.1f,%.1f", l.x1d, l.y1d, l.x2d, l.y2d);
+        }
+        if (current != null && p.key().equals("plane") && p.kind() == Param.Kind.INTEGER) {
+            return Integer.toString(current.getZ());
+        }
         if (calibrationDefault(p, current)) {
             return p.key().equals("pixel") ? round(ImagePlusAdapter.voxelSize(current).x())
                     : round(ImagePlusAdapter.voxelSize(current).z());

@@ -6,6 +6,7 @@ import java.util.Optional;
 import org.stackwright.op.Operation;
 
 import org.stackwright.inspect.CompareOperation;
+import org.stackwright.inspect.IntervalProfileOperation;
 import org.stackwright.inspect.ResidualsOperation;
 import org.stackwright.repair.FindDefectsOperation;
 import org.stackwright.repair.InpaintOperation;
@@ -39,6 +40,7 @@ public final class Operations {
                 new InpaintOperation(),
                 new ResidualsOperation(),
                 new CompareOperation(),
+                new IntervalProfileOperation(),
                 new DeconvolveOperation());
     }
 

@@ -55,7 +55,7 @@ public final class Deconvolution {
     /** As above; with {@code withModel} the outcome also holds the fitted forward model (one more blur). */
     static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
             RunContext ctx, IterationListener listener, boolean withModel) {
-        return run(data, psf, psfName, mask, s, ctx, listener, withModel, null);
+        return run(data, psf, psfName, mask, s, ctx, listener, withModel, null, null);
     }
 
     /**
@@ -72,7 +72,7 @@ public final class Deconvolution {
                     + s.method() + "); choose method richardson-lucy (acceleration on or off)");
         }
         return run(data, null, "modelled: gibson-lanni at " + depthVariant.strata() + " depths", mask, s, ctx,
-                listener, false, depthVariant);
+                listener, false, depthVariant, null);
     }
 
     /**
@@ -85,8 +85,23 @@ public final class Deconvolution {
     public record DepthVariant(org.stackwright.psf.PsfSettings optics, int strata) {
     }
 
+    /** Work that needs the problem and the solver's grid estimate, done before the problem's threads stop. */
+    interface AfterSolve {
+        /**
+         * @param problem the problem the solver ran on (its threads still running)
+         * @param solution the solver's output (grid estimate), not to be modified
+         */
+        void run(DeconvolutionProblem problem, Solution solution);
+    }
+
+    /** As above; {@code after} (or null) runs on the problem and the solution before the problem's threads stop. */
+    static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
+            RunContext ctx, IterationListener listener, boolean withModel, AfterSolve after) {
+        return run(data, psf, psfName, mask, s, ctx, listener, withModel, null, after);
+    }
+
     private static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
-            RunContext ctx, IterationListener listener, boolean withModel, DepthVariant dv) {
+            RunContext ctx, IterationListener listener, boolean withModel, DepthVariant dv, AfterSolve after) {
         InputChecks.Scan scan = InputChecks.check("input", data, ctx);
         mask = MaskChecks.union(mask, scan.nonFiniteMask());
         data = InputChecks.finiteCopy(data, scan);
@@ -125,6 +140,9 @@ public final class Deconvolution {
             }
             sol = solver.solve(problem, ctx, listener);
             model = withModel ? forwardModel(problem, sol.estimate(), bg) : null;
+            if (after != null) {
+                after.run(problem, sol);
+            }
         }
         Volume result = problem.toVolume(sol.estimate());
         Map<String, Object> r = new LinkedHashMap<>();

@@ -29,9 +29,6 @@ import org.stackwright.volume.Volume;
  */
 public final class DeconvolveOperation implements Operation {
 
-    /** Seed of the noise replicas (fixed, so that a run can be repeated bit for bit). */
-    static final long REPLICA_SEED = 20260101L;
-
     @Override
     public String name() {
         return "deconvolve";
@@ -44,7 +41,7 @@ public final class DeconvolveOperation implements Operation {
 
     @Override
     public List<Param> params() {
-        return List.of(
+        List<Param> p = new java.util.ArrayList<>(List.of(
                 Param.image("input", true, "camera data to deconvolve (raw ADU; do not subtract the offset or background)"),
                 Param.image("psf", false, "the PSF (odd sizes, centre at n/2; resampled when its voxel size differs); "
                         + "required unless depth-variant is on"),
@@ -67,11 +64,6 @@ public final class DeconvolveOperation implements Operation {
                 Param.choice("acceleration", "on", List.of("on", "off"), "vector extrapolation for richardson-lucy"),
                 Param.choice("likelihood", "poisson", List.of("poisson", "gaussian"), "data term of total-variation; with "
                         + "replicas also their noise (gaussian: additive, read-noise as standard deviation)").withAlias("noise"),
-                Param.integer("replicas", 0, 0, NoiseReplicas.MAX_REPLICAS, "noise replicas for the spread map: 0 = off, "
-                        + "2 to " + NoiseReplicas.MAX_REPLICAS + "; costs that many more deconvolutions"),
-                Param.outputImage("spread-output", false, "per-voxel standard deviation over the noise replicas, 32-bit, "
-                        + "ADU (photon and camera noise only; needs replicas)"),
-                Param.outputImage("bias-output", false, "per-voxel replica mean minus the estimate, 32-bit, ADU (needs replicas)"),
                 Param.number("na", null, 0.01, 1.7, "", "numerical aperture, for the sampling check (optional)"),
                 Param.number("wavelength", null, 200, 2000, "nm", "emission wavelength, for the sampling check (optional)"),
                 Param.number("immersion-index", null, 1.0, 2.0, "", "immersion index, for the sampling check (optional)"),
@@ -86,7 +78,10 @@ public final class DeconvolveOperation implements Operation {
                 Param.number("first-depth", 0.0, 0, 10_000, "um", "depth-variant: depth below the coverslip of the "
                         + "first plane's focus"),
                 FftChoice.param(),
-                Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history"));
+                Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history")));
+        p.addAll(p.indexOf(p.stream().filter(q -> q.key().equals("likelihood")).findFirst().orElseThrow()) + 1,
+                UncertaintyStep.params());
+        return List.copyOf(p);
     }
 
     @Override
@@ -123,41 +118,23 @@ public final class DeconvolveOperation implements Operation {
         if (m != null) {
             mask = MaskChecks.check("mask", ImagePlusAdapter.toVolume(m), data, ctx);
         }
-        int replicas = v.integer("replicas");
-        NoiseReplicas.Noise noise = s.likelihood().equals("gaussian") ? NoiseReplicas.Noise.GAUSSIAN : NoiseReplicas.Noise.CAMERA;
-        if (replicas == 0 && (v.given("spread-output") || v.given("bias-output"))) {
-            throw new IllegalArgumentException("replicas = 0 gives no spread-output or bias-output; give replicas 2 to "
-                    + NoiseReplicas.MAX_REPLICAS);
-        }
-        if (replicas > 0) {
-            NoiseReplicas.check(replicas, noise, s);
-        }
+        Result r = new Result();
         Deconvolution.Outcome out;
         if (depthVariant) {
-            if (replicas > 0) {
-                throw new IllegalArgumentException("replicas need one PSF; give replicas 0 with depth-variant on");
+            String mode = UncertaintyStep.mode(v);
+            if (!mode.equals("none")) {
+                throw new IllegalArgumentException("uncertainty = " + mode + " needs one PSF; give uncertainty none "
+                        + "with depth-variant on");
             }
+            UncertaintyStep.check(v, mode);
             out = Deconvolution.runDepthVariant(data, mask, s, depthVariant(v, data), ctx, IterationListener.NONE);
+            out.record().forEach(r::record);
+            r.record("uncertainty", mode);
         } else {
-            out = replicas > 0
-                    ? NoiseReplicas.deconvolveWithModel(data, psf, psfImp.getTitle(), mask, s, ctx, IterationListener.NONE)
-                    : Deconvolution.run(data, psf, psfImp.getTitle(), mask, s, ctx, IterationListener.NONE);
+            out = UncertaintyStep.run(v, data, psf, psfImp.getTitle(), mask, s, in.getTitle(), ctx, r);
         }
-        Result r = new Result();
         r.image("output", ImagePlusAdapter.toImagePlus(out.result(), in.getTitle() + "-deconvolve"));
         FftChoice.note(r, fft);
-        for (Map.Entry<String, Object> e : out.record().entrySet()) {
-            r.record(e.getKey(), e.getValue());
-        }
-        r.record("replicas", replicas);
-        if (replicas > 0) {
-            NoiseReplicas.Spread sp = NoiseReplicas.run(data, psf, mask, s, out, replicas, noise, REPLICA_SEED, ctx);
-            sp.record(noise, REPLICA_SEED).forEach(r::record);
-            r.image("spread-output", ImagePlusAdapter.toImagePlus(sp.spread(), in.getTitle() + "-spread"));
-            r.image("bias-output", ImagePlusAdapter.toImagePlus(sp.bias(), in.getTitle() + "-bias"));
-            r.line(String.format(Locale.ROOT, "noise replicas: %d; median spread %.4g ADU, median relative spread %.3g "
-                    + "over bright voxels (photon and camera noise only)", replicas, sp.spreadMedian(), sp.relativeMedian()));
-        }
         double[] hist = out.solution().objective();
         r.line(String.format(Locale.ROOT, "deconvolved %s with %s: %d iteration(s), %.2f s; stopped by %s",
                 data.shape(), s.method(), out.solution().iterations(), out.solution().seconds(), out.solution().stopReason()));

@@ -181,6 +181,16 @@ class DeconvolveBadInputTest {
         t.add(row("background negative", 2, "background = '-5' is not allowed; give a number of ADU (0 or more) or auto",
                 "--background", "-5"));
         t.add(row("background not a number", 2, "background = 'dark' is not allowed", "--background", "dark"));
+        // uncertainty (solve.UncertaintyStep, solve.PosteriorSampler)
+        t.add(row("interval output without sampling", 2, "lower-output is not made with uncertainty = none; give "
+                + "uncertainty sampling", "--lower-output", out("lower.tif")));
+        t.add(row("replica bias output with sampling", 2, "bias-output is not made with uncertainty = sampling; give "
+                + "uncertainty replicas", "--uncertainty", "sampling", "--bias-output", out("bias.tif")));
+        t.add(row("too few samples for the chains", 2, "samples = 5 is not allowed with 4 chains", "--uncertainty",
+                "sampling", "--samples", "5", "--chains", "4"));
+        t.add(row("credible level out of range", 2, "level", "--uncertainty", "sampling", "--level", "1.5"));
+        t.add(row("gaussian sampling without read noise", 2, "read-noise = 0.0 is not allowed with likelihood gaussian "
+                + "and sampling", "--uncertainty", "sampling", "--likelihood", "gaussian", "--read-noise", "0"));
         // optics for the sampling check
         t.add(row("NA above the immersion index", 2, "na = 1.4 must be smaller than immersion-index = 1.33",
                 "--na", "1.4", "--wavelength", "520", "--immersion-index", "1.33"));

@@ -75,6 +75,9 @@ class DoorsAgreeTest {
                 new Case("inpaint", "Fill Masked Pixels...", ordered("method", "harmonic"),
                         ordered("input", "demo-tiles.tif", "mask", "demo-tiles-damage.tif"), List.of("output")),
                 new Case("find-defects", "Find Defective Pixels...", ordered(), ordered("input", "demo-tiles.tif"),
+                        List.of("output")),
+                new Case("interval-profile", "Credible Interval Profile...", ordered("line", "5,5,60,40", "plane", "3"),
+                        ordered("mean", "demo-cells.tif", "lower", "demo-cells.tif", "upper", "demo-cells.tif"),
                         List.of("output")));
     }
 
