@@ -129,7 +129,7 @@ class DeconvolveBadInputTest {
                 concatenate(dv, "--sample-index", "1.33", "--method", "wiener")));
         t.add(row("depth-variant with more strata than planes", 2, "strata = 20 is not allowed for a stack of 12 planes",
                 concatenate(dv, "--sample-index", "1.33", "--strata", "20")));
-        t.add(row("depth-variant with replicas", 2, "replicas need one PSF; give replicas 0 with depth-variant on",
+        t.add(row("depth-variant with replicas", 2, "uncertainty = replicas needs one PSF; give uncertainty none with depth-variant on",
                 concatenate(dv, "--sample-index", "1.33", "--replicas", "2")));
         t.add(row("depth-variant: a given PSF is not used", 0, "is not used: depth-variant on models the PSFs from the optics",
                 concatenate(dv, "--sample-index", "1.33", "--strata", "2")));
