@@ -15,7 +15,8 @@ import ij.WindowManager;
  * the dialog (a macro names its images): a follow-up of the previous run first (after a deconvolution the residual
  * view starts on its data, its result and its PSF); then the main input is the current image; a PSF field starts
  * on the newest open image that looks like a PSF (odd sizes, no larger than the input, brightest near the centre
- * voxel), else on the entry "{@value #CHOOSE_PSF}", which must be changed; another required image on one whose
+ * voxel), else on the entry "{@value #CHOOSE_PSF}", which must be changed (on "none" where the PSF is optional, as
+ * when deconvolve can model it from the optics); another required image on one whose
  * title contains the key, else the first other image; an optional image on "none".
  */
 final class ImageChoices {
@@ -63,12 +64,14 @@ final class ImageChoices {
         if (main && current != null && items.contains(current.getTitle())) {
             return current.getTitle();
         }
-        if (key.equals("psf") && required) {
+        if (key.equals("psf")) {
             String psf = newestPsf(items, input);
             if (psf != null) {
                 return psf;
             }
-            return items.contains(CHOOSE_PSF) ? CHOOSE_PSF : items.get(0);
+            if (required) {
+                return items.contains(CHOOSE_PSF) ? CHOOSE_PSF : items.get(0);
+            }
         }
         if (!required) {
             return OperationDialog.NONE;
