@@ -1,9 +1,11 @@
 package org.stackwright.cli;
 
+import java.io.PrintStream;
 import java.util.LinkedHashMap;
 import java.util.Map;
 
 import org.stackwright.op.Operation;
+import org.stackwright.op.Param;
 
 import picocli.CommandLine;
 import picocli.CommandLine.Model.OptionSpec;
@@ -27,23 +29,37 @@ public final class CommandLineOptions {
     }
 
     /**
+     * @param err where notes on old keys go
      * @throws IllegalArgumentException with a message for the user when the options do not parse
      */
-    public static Parsed parse(Operation op, String[] args) {
+    public static Parsed parse(Operation op, String[] args, PrintStream err) {
         try {
-            return collect(new CommandLine(OperationRunner.spec(op)).parseArgs(args));
+            return collect(op, new CommandLine(OperationRunner.spec(op)).parseArgs(args), err);
         } catch (CommandLine.ParameterException e) {
             throw new IllegalArgumentException(Main.clip(e.getMessage()), e);
         }
     }
 
-    /** Reads the matched options of a parse. */
-    static Parsed collect(ParseResult pr) {
+    /**
+     * Reads the matched options of a parse; an old key is read as its setting's key, with a note.
+     *
+     * @throws IllegalArgumentException when an old key and its new key are both given
+     */
+    static Parsed collect(Operation op, ParseResult pr, PrintStream err) {
         Map<String, String> raw = new LinkedHashMap<>();
         int threads = Runtime.getRuntime().availableProcessors();
         boolean overwrite = false;
         for (OptionSpec o : pr.matchedOptions()) {
             String key = o.longestName().substring(2);
+            Param p = aliased(op, key);
+            if (p != null) {
+                err.println("note: " + p.aliasNote(key, "--"));
+                if (pr.hasMatchedOption("--" + p.key())) {
+                    throw new IllegalArgumentException("--" + key + " and --" + p.key() + " name the same setting; "
+                            + "give only --" + p.key());
+                }
+                key = p.key();
+            }
             Object value = o.getValue();
             if (key.equals("threads")) {
                 threads = OperationRunner.parseThreads(String.valueOf(value));
@@ -54,5 +70,10 @@ public final class CommandLineOptions {
             }
         }
         return new Parsed(raw, threads, overwrite);
+    }
+
+    /** @return the setting whose old key this is, or null */
+    private static Param aliased(Operation op, String name) {
+        return op.params().stream().filter(p -> p.aliases().contains(name)).findFirst().orElse(null);
     }
 }

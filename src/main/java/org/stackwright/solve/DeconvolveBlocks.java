@@ -41,7 +41,8 @@ import org.stackwright.volume.VoxelSize;
  * the fixed rule that is the given count; with the noise or change rule, the rule is run once on a representative
  * part, the block whose core holds the most signal above the background, and every block then runs that many
  * iterations (recorded as "iterations found on block ..."). Regularisation weights are the given or default ones.
- * Noise replicas need the whole volume in memory and are refused in blocks.
+ * Uncertainty (noise replicas, posterior sampling) and depth-variant runs need the whole volume in memory: they
+ * take the usual path, and are refused when blocks are asked for ({@link #applies}).
  */
 final class DeconvolveBlocks implements BlockOperation {
 
@@ -133,6 +134,37 @@ final class DeconvolveBlocks implements BlockOperation {
         return new int[] {(int) Math.ceil(f * p[0]), (int) Math.ceil(f * p[1]), (int) Math.ceil(f * p[2])};
     }
 
+    /**
+     * Uncertainty and depth-variant runs need the whole stack at once: they take the usual path (whose memory check
+     * refuses a stack too large); with a block size given they are refused, naming the setting.
+     */
+    @Override
+    public boolean applies(Values v) {
+        String whole = wholeStackOnly(v);
+        if (whole != null && org.stackwright.blocks.BlockSettings.given(v)) {
+            throw new IllegalArgumentException(whole);
+        }
+        return whole == null;
+    }
+
+    /** @return why these settings need the whole stack at once, or null when they can run in blocks */
+    private static String wholeStackOnly(Values v) {
+        String mode = UncertaintyStep.mode(v);
+        if (mode.equals("replicas")) {
+            return "replicas: noise replicas need the whole stack in memory and cannot run in blocks; give replicas 0"
+                    + " (or a smaller stack, or more memory with block-size auto)";
+        }
+        if (!mode.equals("none")) {
+            return "uncertainty = " + mode + " needs the whole stack in memory and cannot run in blocks; give"
+                    + " uncertainty none (or a smaller stack, or more memory with block-size auto)";
+        }
+        if (v.choice("depth-variant").equals("on")) {
+            return "depth-variant = on models the PSF over the whole depth and cannot run in blocks; give block-size"
+                    + " auto and enough memory for the whole stack";
+        }
+        return null;
+    }
+
     @Override
     public long blockBytes(Values v, PlaneSource main, int w, int h, int d) {
         DeconvolutionSettings s = DeconvolveOperation.settings(v);
@@ -148,10 +180,11 @@ final class DeconvolveBlocks implements BlockOperation {
     @Override
     public Globals resolve(Values v, Map<String, PlaneSource> in, BlockPlan plan, RunContext ctx) {
         DeconvolutionSettings s = DeconvolveOperation.settings(v);
-        if (v.integer("replicas") > 0 || v.given("spread-output") || v.given("bias-output")) {
-            throw new IllegalArgumentException("replicas: noise replicas need the whole stack in memory and cannot run"
-                    + " in blocks; give replicas 0 (or a smaller stack, or more memory with block-size auto)");
+        String whole = wholeStackOnly(v);
+        if (whole != null) {
+            throw new IllegalArgumentException(whole);
         }
+        UncertaintyStep.check(v, "none");
         if (s.method().equals("wiener") && plan.blocks().size() > 1) {
             throw new IllegalArgumentException("method = wiener is one filter over the whole stack (its inverse reaches"
                     + " far beyond the PSF) and would leave seams between blocks; choose richardson-lucy or another"

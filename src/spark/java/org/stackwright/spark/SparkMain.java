@@ -121,11 +121,11 @@ public final class SparkMain {
         String[] rest = Arrays.copyOfRange(args, i + 1, args.length);
         StreamingRun.BlockFiles files = null;
         try {
-            CommandLineOptions.Parsed parsed = CommandLineOptions.parse(op, rest);
+            CommandLineOptions.Parsed parsed = CommandLineOptions.parse(op, rest, err);
             Values values = Values.parse(op.name(), op.params(), parsed.raw());
             if (!((Blockwise) op).blocks().applies(values)) {
                 throw new IllegalArgumentException(op.name() + " with these settings does not run in blocks (dark or"
-                        + " flat frames); use the plain command line");
+                        + " flat frames, uncertainty, depth-variant); use the plain command line");
             }
             files = StreamingRun.open(op, values, parsed.raw(), parsed.overwrite());
             SparkConf conf = new SparkConf().setAppName("stackwright " + op.name());
