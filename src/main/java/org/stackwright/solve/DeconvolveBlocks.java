@@ -136,7 +136,8 @@ final class DeconvolveBlocks implements BlockOperation {
 
     /**
      * Uncertainty and depth-variant runs need the whole stack at once: they take the usual path (whose memory check
-     * refuses a stack too large); with a block size given they are refused, naming the setting.
+     * refuses a stack too large); with a block size given they are refused, naming the setting. Without a PSF the
+     * usual path runs too, to say so.
      */
     @Override
     public boolean applies(Values v) {
@@ -144,7 +145,8 @@ final class DeconvolveBlocks implements BlockOperation {
         if (whole != null && org.stackwright.blocks.BlockSettings.given(v)) {
             throw new IllegalArgumentException(whole);
         }
-        return whole == null;
+        // without a PSF the usual path says that it is missing
+        return whole == null && (v.images().get("psf") != null || v.given("psf"));
     }
 
     /** @return why these settings need the whole stack at once, or null when they can run in blocks */
