@@ -18,6 +18,7 @@ import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
 import org.stackwright.op.RunContext;
+import org.stackwright.op.RunFailedException;
 import org.stackwright.op.Values;
 import org.stackwright.parallel.CancelledException;
 import org.stackwright.volume.OutputFiles;
@@ -255,6 +256,9 @@ final class OperationRunner {
         }
         if (e instanceof OutOfMemoryError) {
             return "out of memory; give Java more heap (java -Xmx...) or use a smaller image";
+        }
+        if (e instanceof RunFailedException || e instanceof UncheckedIOException) {
+            return Main.clip("failed: " + e.getMessage());
         }
         return Main.clip("failed: " + e);
     }

@@ -15,6 +15,7 @@ import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
 import org.stackwright.op.RunContext;
+import org.stackwright.op.RunFailedException;
 import org.stackwright.op.Values;
 import org.stackwright.parallel.Workers;
 import org.stackwright.psf.PsfChecks;
@@ -100,6 +101,10 @@ public final class ResidualsOperation implements Operation {
             report = ResidualReport.analyse(data, estimate, psf, model, w);
         }
         ctx.checkCancelled();
+        if (report.verdict().code().equals(Verdict.NOT_COMPUTED)) {
+            throw new RunFailedException("residuals: " + report.verdict().text() + " No output is written; check"
+                    + " that the estimate, offset and background are in the data's units (ADU)");
+        }
         ctx.progress(0.8, "writing");
         String title = dataImp.getTitle() == null ? "data" : dataImp.getTitle();
         Result r = new Result();

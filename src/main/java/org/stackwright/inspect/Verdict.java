@@ -51,6 +51,8 @@ public record Verdict(String code, List<Cause> causes, String text) {
 
     /** The verdict code when the data fit. */
     public static final String FITS = "fits";
+    /** The code when a statistic is not a finite number: no judgement is possible. */
+    public static final String NOT_COMPUTED = "not-computed";
 
     /**
      * One likely cause.
@@ -104,6 +106,11 @@ public record Verdict(String code, List<Cause> causes, String text) {
         String where = box == null || (box[0] == 0 && box[1] == 0 && box[2] == 0) ? "" : " inside the border band";
         long n = maps.normalised().size();
         double chi2 = maps.chi2PerVoxel();
+        if (!Double.isFinite(chi2)) {
+            // a NaN or infinite statistic is never a fit
+            return new Verdict(NOT_COMPUTED, List.of(), "chi^2 per voxel is " + chi2 + ": the residuals are not all"
+                    + " finite numbers, so the fit cannot be judged.");
+        }
         double width = 5 * Math.sqrt(2.0 / n);
         double high = Math.max(CHI2_HIGH, 1 + width);
         double low = Math.min(CHI2_LOW, 1 - width);

@@ -34,14 +34,24 @@ public final class InputChecks {
      * @param max largest finite value (NaN when there is none)
      * @param finiteMean mean of the finite pixels (NaN when there is none)
      * @param nonFiniteMask one byte per pixel, 1 where the pixel is NaN or infinite; null when there is none
+     * @param absSum sum of the absolute finite values
      */
-    public record Scan(int nonFinite, int negative, double min, double max, double finiteMean, byte[] nonFiniteMask) {
+    public record Scan(int nonFinite, int negative, double min, double max, double finiteMean, byte[] nonFiniteMask,
+            double absSum) {
 
         /** @return true when every finite pixel has the same value */
         public boolean constant() {
             return min == max;
         }
     }
+
+    /**
+     * The largest sum of absolute pixel values an image may have. 32-bit float holds up to 3.4e38; an FFT (blur,
+     * correlation) adds every pixel into its zero-frequency coefficient and the solvers multiply values by ratios
+     * and steps, so 1e30 keeps eight orders of magnitude of room (common practice for the margin, no source). Camera
+     * data are many orders below it (a 2^31-voxel stack of 2^32 ADU sums to 1e19).
+     */
+    public static final double MAX_ABS_SUM = 1e30;
 
     private InputChecks() {
     }
@@ -58,6 +68,7 @@ public final class InputChecks {
         double min = Double.POSITIVE_INFINITY;
         double max = Double.NEGATIVE_INFINITY;
         double sum = 0;
+        double abs = 0;
         byte[] mask = null;
         for (int i = 0; i < d.length; i++) {
             float f = d[i];
@@ -75,10 +86,11 @@ public final class InputChecks {
             min = Math.min(min, f);
             max = Math.max(max, f);
             sum += f;
+            abs += Math.abs(f);
         }
         int good = d.length - bad;
-        return good == 0 ? new Scan(bad, 0, Double.NaN, Double.NaN, Double.NaN, mask)
-                : new Scan(bad, neg, min, max, sum / good, mask);
+        return good == 0 ? new Scan(bad, 0, Double.NaN, Double.NaN, Double.NaN, mask, 0)
+                : new Scan(bad, neg, min, max, sum / good, mask, abs);
     }
 
     /**
@@ -96,6 +108,7 @@ public final class InputChecks {
             throw new IllegalArgumentException(key + ": every one of the " + v.size()
                     + " pixels is NaN or infinite; at least one finite pixel is needed");
         }
+        requireRepresentable(key, s);
         if (s.nonFinite() > 0) {
             ctx.warn(key + ": " + s.nonFinite() + " of " + v.size() + " pixels are NaN or infinite; they are treated as"
                     + " untrusted (masked): their values are not used");
@@ -138,10 +151,25 @@ public final class InputChecks {
      * @throws IllegalArgumentException naming the key and the count
      */
     public static void requireFinite(String key, Volume v) {
-        int bad = v.countNonFinite();
-        if (bad > 0) {
-            throw new IllegalArgumentException(key + ": " + bad + " of " + v.size() + " pixels are NaN or infinite;"
-                    + " allowed: finite values only for this image");
+        Scan s = scan(v);
+        if (s.nonFinite() > 0) {
+            throw new IllegalArgumentException(key + ": " + s.nonFinite() + " of " + v.size() + " pixels are NaN or"
+                    + " infinite; allowed: finite values only for this image");
+        }
+        requireRepresentable(key, s);
+    }
+
+    /**
+     * Refuses values so large that a float Fourier transform of the image overflows ({@link #MAX_ABS_SUM}).
+     *
+     * @throws IllegalArgumentException naming the key, the largest value and the limit
+     */
+    static void requireRepresentable(String key, Scan s) {
+        if (s.absSum() > MAX_ABS_SUM) {
+            throw new IllegalArgumentException(key + ": pixel values up to " + num(Math.max(Math.abs(s.min()),
+                    Math.abs(s.max()))) + " add up to " + num(s.absSum()) + ", beyond what 32-bit Fourier transforms"
+                    + " can hold; allowed: values whose absolute sum stays below " + num(MAX_ABS_SUM)
+                    + " (scale the image down)");
         }
     }
 

@@ -82,6 +82,7 @@ public final class Deconvolution {
         try (Workers workers = new Workers(ctx.threads())) {
             problem = new DeconvolutionProblem(data, p, mask, boundary, camera, bg, workers);
             sol = solver.solve(problem, ctx, listener);
+            NumericalGuard.estimate(s.method(), sol);
             model = withModel ? forwardModel(problem, sol.estimate(), bg) : null;
         }
         Volume result = problem.toVolume(sol.estimate());

@@ -7,7 +7,7 @@ import org.stackwright.op.RunContext;
 
 /**
  * The bookkeeping every iterative solver shares: history arrays sized once, cancel checks, progress, listener
- * calls and the stop decision.
+ * calls, the stop decision and the {@link NumericalGuard} after each iteration.
  */
 final class IterationLog {
 
@@ -41,6 +41,7 @@ final class IterationLog {
      * @return true to stop
      */
     boolean after(double obj, double meanFit, double expectedFit, double ch) {
+        NumericalGuard.iteration(method, done + 1, obj, meanFit, ch);
         objective[done] = obj;
         change[done] = ch;
         done++;
