@@ -73,6 +73,7 @@ public final class ResidualsOperation implements Operation {
         Volume estimate = InputChecks.oneVolume("estimate", v.image("estimate"));
         Volume psf = InputChecks.oneVolume("psf", psfImp);
         InputChecks.Scan scan = InputChecks.check("input", data, ctx);
+        InputChecks.checkOffset("input", data, v.number("offset"), v.number("read-noise"), ctx);
         InputChecks.requireFinite("estimate", estimate);
         if (!ImagePlusAdapter.isCalibrated(psfImp) && !psf.voxel().sameAs(data.voxel())) {
             ctx.warn("the PSF carries no calibration; taking the input's voxel size " + data.voxel());

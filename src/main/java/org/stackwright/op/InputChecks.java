@@ -124,6 +124,71 @@ public final class InputChecks {
         return s;
     }
 
+    /** Share of pixels below the offset above which a warning is given (a small share: common practice, no source). */
+    public static final double BELOW_OFFSET_WARN = 0.05;
+    /** Share of pixels below the offset above which the offset is refused (most pixels). */
+    public static final double BELOW_OFFSET_REFUSE = 0.5;
+
+    /**
+     * Checks a camera offset against the data: camera data lie above the offset up to the read noise, so pixels
+     * further than 3 read-noise standard deviations below it (0.13 % of the dark pixels of a correct camera model)
+     * mean the offset is set too high, or the data were already offset-subtracted. Such pixels would be clamped to
+     * zero photons and the result invented; so: a warning when more than {@link #BELOW_OFFSET_WARN} of the finite
+     * pixels lie there, a refusal naming the offset when more than {@link #BELOW_OFFSET_REFUSE} do. Every operation
+     * that takes a camera offset calls this.
+     *
+     * @param key the image's parameter key, named in messages
+     * @param v the image (ADU), not modified
+     * @param offset the camera offset given (ADU)
+     * @param readNoise the camera read noise given (ADU, 0 or more)
+     * @param ctx where the warning goes
+     * @throws IllegalArgumentException naming offset when most pixels lie below it
+     */
+    public static void checkOffset(String key, Volume v, double offset, double readNoise, RunContext ctx) {
+        double limit = offset - 3 * Math.max(readNoise, 0);
+        float[] d = v.data();
+        long finite = 0;
+        long below = 0;
+        for (float f : d) {
+            if (Float.isFinite(f)) {
+                finite++;
+                if (f < limit) {
+                    below++;
+                }
+            }
+        }
+        if (finite == 0 || below <= BELOW_OFFSET_WARN * finite) {
+            return;
+        }
+        double share = (double) below / finite;
+        String what = String.format(Locale.ROOT, "%.1f %% of the %s pixels lie below the offset %s ADU%s (their"
+                + " level: 1st percentile %s, median %s ADU)", 100 * share, key, num(offset),
+                readNoise > 0 ? " minus 3 x read-noise" : "", num(quantile(d, 0.01)), num(quantile(d, 0.5)));
+        if (share > BELOW_OFFSET_REFUSE) {
+            throw new IllegalArgumentException("offset = " + num(offset) + " is above most of the data: " + what
+                    + "; allowed: an offset at or below the camera's dark level (give the camera's offset with"
+                    + " --offset; data that were already offset-subtracted need offset 0)");
+        }
+        ctx.warn("offset: " + what + "; they are taken as 0 photons. Check --offset and --read-noise");
+    }
+
+    /** @return the q-quantile of the finite values, from a strided sample of at most 100 000 (NaN when none) */
+    private static double quantile(float[] d, double q) {
+        int step = Math.max(1, d.length / 100_000);
+        float[] s = new float[(d.length + step - 1) / step];
+        int n = 0;
+        for (int i = 0; i < d.length; i += step) {
+            if (Float.isFinite(d[i])) {
+                s[n++] = d[i];
+            }
+        }
+        if (n == 0) {
+            return Double.NaN;
+        }
+        java.util.Arrays.sort(s, 0, n);
+        return s[(int) Math.min(n - 1, Math.floor(q * n))];
+    }
+
     /**
      * Reads an image that must be one channel and one time point (the ImageJ doors split hyperstacks before an
      * operation runs; on the command line a hyperstack would otherwise be cut to its first channel unnoticed).

@@ -122,6 +122,7 @@ public final class SeamMaskOperation implements Operation {
             }
         }
         if (v.flag("level")) {
+            InputChecks.checkOffset("input", img, v.number("offset"), 0, ctx);
             TileLevelling.Gains g = TileLevelling.estimate(img, colBands, rowBands, v.integer("strip"), v.number("offset"));
             r.record("tile_gains", g.gains());
             r.record("tile_gain_rms_log_misfit", g.rmsLogResidual());

@@ -56,6 +56,7 @@ public final class Deconvolution {
     static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
             RunContext ctx, IterationListener listener, boolean withModel) {
         InputChecks.Scan scan = InputChecks.check("input", data, ctx);
+        InputChecks.checkOffset("input", data, s.offset(), s.readNoise(), ctx);
         mask = MaskChecks.union(mask, scan.nonFiniteMask());
         data = InputChecks.finiteCopy(data, scan);
         int warned = ctx.warnings().size();

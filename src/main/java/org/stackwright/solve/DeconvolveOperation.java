@@ -87,9 +87,26 @@ public final class DeconvolveOperation implements Operation {
         }
         Volume data = ImagePlusAdapter.toVolume(in);
         Volume psf = ImagePlusAdapter.toVolume(psfImp);
+        String dataNote = ImagePlusAdapter.calibrationNote(in);
+        if (!ImagePlusAdapter.isCalibrated(in)) {
+            if (ImagePlusAdapter.isCalibrated(psfImp)) {
+                data = data.withVoxel(psf.voxel());
+                ctx.warn("input: " + dataNote + "; taken to have the PSF's voxel size " + psf.voxel() + ", so the PSF"
+                        + " is used as it is. If that is wrong, set the image's voxel size (a calibrated TIFF, or"
+                        + " Image>Properties in ImageJ)");
+            } else {
+                ctx.warn("input: " + dataNote + ", nor has the PSF: both are taken as 1 um voxels and the PSF is"
+                        + " used as it is (same voxel size assumed); the z weight of total variation assumes cubic"
+                        + " voxels");
+            }
+        } else if (dataNote != null) {
+            ctx.warn("input: " + dataNote);
+        }
         if (!ImagePlusAdapter.isCalibrated(psfImp)) {
             psf = psf.withVoxel(data.voxel());
             ctx.warn("psf: '" + psfImp.getTitle() + "' has no calibration; taken to have the image's voxel size " + data.voxel());
+        } else if (ImagePlusAdapter.calibrationNote(psfImp) != null) {
+            ctx.warn("psf: " + ImagePlusAdapter.calibrationNote(psfImp));
         }
         samplingCheck(v, data, ctx);
         byte[] mask = null;

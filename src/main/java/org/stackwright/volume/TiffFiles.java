@@ -57,7 +57,8 @@ public final class TiffFiles {
             throw new IllegalArgumentException(what + ": " + path + " is not a TIFF file (save it as TIFF first)");
         }
         // the structure walk and the size check run before ImageJ's reader, which trusts the header's offsets
-        long images = TiffCheck.requireComplete(path, what);
+        TiffCheck.Layout layout = TiffCheck.requireComplete(path, what);
+        long images = layout.images();
         ImagePlus imp;
         try {
             Path abs = path.toAbsolutePath();
@@ -79,6 +80,10 @@ public final class TiffFiles {
                     + imp.getWidth() + "x" + imp.getHeight() + " but ImageJ read only " + imp.getStackSize()
                     + " (the file is damaged, or mixes pages of other sizes such as thumbnails: save the stack alone"
                     + " as TIFF)");
+        }
+        OmeMetadata.Pixels ome = OmeMetadata.parse(layout.description());
+        if (ome != null) {
+            imp = OmeMetadata.apply(imp, ome);
         }
         imp.setTitle(titleOf(path));
         return imp;
