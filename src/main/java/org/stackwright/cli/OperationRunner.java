@@ -13,7 +13,6 @@ import java.util.Map;
 
 import ij.ImagePlus;
 
-import org.stackwright.op.Json;
 import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
@@ -21,7 +20,8 @@ import org.stackwright.op.RunContext;
 import org.stackwright.op.RunFailedException;
 import org.stackwright.op.Values;
 import org.stackwright.parallel.CancelledException;
-import org.stackwright.volume.OutputFiles;
+import org.stackwright.imagej.ChannelRunner;
+import org.stackwright.volume.OutputPaths;
 import org.stackwright.volume.TiffFiles;
 
 import picocli.CommandLine;
@@ -138,7 +138,7 @@ final class OperationRunner {
                 return runBatch(main, raw, threads, overwrite, guard);
             }
             try {
-                runOne(raw, threads, overwrite, guard);
+                runOne(raw, Map.of(), threads, overwrite, guard);
                 return Main.OK;
             } catch (RuntimeException | OutOfMemoryError e) {
                 err.println("stackwright " + op.name() + ": " + describe(e));
@@ -159,7 +159,11 @@ final class OperationRunner {
             files = Batch.inputs(main.key(), raw.get(main.key()));
             for (Param p : op.params()) {
                 if ((p.kind() == Param.Kind.OUTPUT_IMAGE || p.kind() == Param.Kind.OUTPUT_FILE) && raw.containsKey(p.key())) {
-                    Batch.output(p, op.name(), raw.get(p.key()), files.get(0));
+                    Path out = Batch.output(p, op.name(), raw.get(p.key()), files.get(0));
+                    if (OutputPaths.sameFile(out.getParent(), files.get(0).getParent())) {
+                        throw new IllegalArgumentException("--" + p.key() + " = '" + raw.get(p.key()) + "' is the folder"
+                                + " of the inputs; batch outputs could replace other inputs: choose another folder");
+                    }
                 }
             }
         } catch (IllegalArgumentException e) {
@@ -174,15 +178,19 @@ final class OperationRunner {
                 continue;
             }
             Map<String, String> one = new LinkedHashMap<>(raw);
+            Map<String, Path> paths = new LinkedHashMap<>();
             one.put(main.key(), f.toString());
+            paths.put(main.key(), f);
             for (Param p : op.params()) {
                 if ((p.kind() == Param.Kind.OUTPUT_IMAGE || p.kind() == Param.Kind.OUTPUT_FILE) && raw.containsKey(p.key())) {
-                    one.put(p.key(), Batch.output(p, op.name(), raw.get(p.key()), f).toString());
+                    Path out = Batch.output(p, op.name(), raw.get(p.key()), f);
+                    one.put(p.key(), out.toString());
+                    paths.put(p.key(), out);
                 }
             }
             err.println("stackwright " + op.name() + ": [" + (done + failed.size() + 1) + "/" + files.size() + "] " + f);
             try {
-                runOne(one, threads, overwrite, guard);
+                runOne(one, paths, threads, overwrite, guard);
                 done++;
             } catch (RuntimeException | OutOfMemoryError e) {
                 failed.put(f, describe(e));
@@ -197,46 +205,80 @@ final class OperationRunner {
         return failed.isEmpty() ? Main.OK : Main.FAILED;
     }
 
-    /** Runs one input: reads, checks outputs, runs, writes. Throws on any problem. */
-    private void runOne(Map<String, String> raw, int threads, boolean overwrite, CancelGuard guard) {
-        Values values = Values.parse(op.name(), op.params(), raw);
+    /**
+     * Runs one input: checks the settings, reads the inputs, checks and claims the outputs, runs, writes. Throws on
+     * any problem.
+     *
+     * @param raw option key to text as given
+     * @param paths paths already known for some keys (batch inputs from a folder listing, batch outputs), used
+     *     instead of parsing their text
+     */
+    private void runOne(Map<String, String> raw, Map<String, Path> paths, int threads, boolean overwrite,
+            CancelGuard guard) {
+        boolean lists = PerChannel.hasLists(op, raw);
+        Values values = lists ? null : Values.parse(op.name(), op.params(), raw);
+        Map<String, ImagePlus> images = new LinkedHashMap<>();
+        Map<String, Path> inputs = new LinkedHashMap<>();
         Map<String, Path> outputs = new LinkedHashMap<>();
-        Map<Path, String> inputs = new LinkedHashMap<>();
         for (Param p : op.params()) {
             String v = raw.get(p.key());
-            if (p.kind() == Param.Kind.IMAGE) {
-                if (v == null) {
-                    if (p.required()) {
-                        throw new IllegalArgumentException("--" + p.key() + " is required: " + p.help());
-                    }
-                    continue;
+            boolean output = p.kind() == Param.Kind.OUTPUT_IMAGE || p.kind() == Param.Kind.OUTPUT_FILE;
+            if (p.kind() != Param.Kind.IMAGE && !output) {
+                continue;
+            }
+            if (v == null) {
+                if (p.required()) {
+                    throw new IllegalArgumentException("--" + p.key() + " is required: " + p.help());
                 }
-                Path path = Paths.get(v);
-                values.withImage(p.key(), TiffFiles.open(path, "--" + p.key()));
-                inputs.put(path.toAbsolutePath().normalize(), p.key());
-            } else if (p.kind() == Param.Kind.OUTPUT_IMAGE || p.kind() == Param.Kind.OUTPUT_FILE) {
-                if (v == null) {
-                    if (p.required()) {
-                        throw new IllegalArgumentException("--" + p.key() + " is required: " + p.help());
-                    }
-                    continue;
-                }
-                outputs.put(p.key(), Paths.get(v));
+                continue;
+            }
+            String key = "--" + p.key();
+            if (output) {
+                outputs.put(p.key(), paths.containsKey(p.key()) ? paths.get(p.key()) : OutputPaths.parseOutput(key, v));
+            } else {
+                Path path = paths.containsKey(p.key()) ? paths.get(p.key()) : OutputPaths.parse(key, v);
+                images.put(p.key(), open(key, path, v));
+                inputs.put(p.key(), path);
             }
         }
-        checkOutputs(outputs, inputs, overwrite);
-        outputs.values().forEach(guard::watch);
-        RunContext ctx = new RunContext(threads, new CliProgress(err), w -> err.println("warning: " + w), guard::isCancelled);
-        long t0 = System.nanoTime();
-        Result result = op.run(values, ctx);
-        err.print(CliProgress.CLEAR);
-        result.record().putIfAbsent("seconds", (System.nanoTime() - t0) * 1e-9);
-        if (!ctx.warnings().isEmpty()) {
-            result.record().put("warnings", ctx.warnings());
+        try (RunOutputs files = RunOutputs.claim(op, outputs, inputs, overwrite)) {
+            RunContext ctx = new RunContext(threads, new CliProgress(err), w -> err.println("warning: " + w), guard::isCancelled);
+            long t0 = System.nanoTime();
+            String mainKey = ChannelRunner.mainInput(op);
+            ImagePlus main = mainKey == null ? null : images.get(mainKey);
+            PerChannel.Made made;
+            if (lists || (main != null && (main.getNChannels() > 1 || main.getNFrames() > 1))) {
+                made = PerChannel.run(op, raw, images, threads, ctx, guard::isCancelled);
+            } else {
+                images.forEach(values::withImage);
+                Result result = op.run(values, ctx);
+                made = new PerChannel.Made(result.images(), result.record(), result.report());
+            }
+            err.print(CliProgress.CLEAR);
+            made.record().putIfAbsent("seconds", (System.nanoTime() - t0) * 1e-9);
+            if (!ctx.warnings().isEmpty()) {
+                made.record().put("warnings", ctx.warnings());
+            }
+            files.write(made.images(), made.record(), err, guard::isCancelled);
+            for (String line : made.report()) {
+                out.println(line);
+            }
         }
-        writeOutputs(result, outputs, overwrite, guard);
-        for (String line : result.report()) {
-            out.println(line);
+    }
+
+    /**
+     * Opens an input TIFF; a missing file whose name looks like a pattern gets a hint (patterns only with the
+     * prefix {@value Batch#PATTERN_PREFIX}).
+     */
+    private static ImagePlus open(String key, Path path, String text) {
+        try {
+            return TiffFiles.open(path, key);
+        } catch (IllegalArgumentException e) {
+            if (Batch.looksLikePattern(text) && !java.nio.file.Files.exists(path)) {
+                throw new IllegalArgumentException(e.getMessage() + " (to process every file matching a pattern,"
+                        + " write it as " + Batch.PATTERN_PREFIX + text + ")", e);
+            }
+            throw e;
         }
     }
 
@@ -274,57 +316,4 @@ final class OperationRunner {
         }
         throw new IllegalArgumentException("--threads = '" + v + "' is not allowed; give a whole number from 1 to 1024");
     }
-
-    private static void checkOutputs(Map<String, Path> outputs, Map<Path, String> inputs, boolean overwrite) {
-        Map<Path, String> seen = new LinkedHashMap<>();
-        for (Map.Entry<String, Path> e : outputs.entrySet()) {
-            Path abs = e.getValue().toAbsolutePath().normalize();
-            String input = inputs.get(abs);
-            if (input != null) {
-                throw new IllegalArgumentException("--" + e.getKey() + " " + e.getValue() + " is the same file as --" + input
-                        + "; the input is never overwritten: choose another output name");
-            }
-            String other = seen.put(abs, e.getKey());
-            if (other != null) {
-                throw new IllegalArgumentException("--" + e.getKey() + " and --" + other + " name the same file " + e.getValue());
-            }
-            try {
-                TiffFiles.checkWritable(abs, overwrite);
-            } catch (IllegalArgumentException ex) {
-                throw new IllegalArgumentException("--" + e.getKey() + ": " + ex.getMessage());
-            }
-        }
-    }
-
-    private void writeOutputs(Result result, Map<String, Path> outputs, boolean overwrite, CancelGuard guard) {
-        List<Path> written = new java.util.ArrayList<>();
-        for (Map.Entry<String, Path> e : outputs.entrySet()) {
-            if (guard.isCancelled()) {
-                throw new CancelledException(written.isEmpty() ? "cancelled; no output written"
-                        : "cancelled; complete before the cancel: " + written + "; not written: the others");
-            }
-            Path path = e.getValue();
-            Param p = op.params().stream().filter(q -> q.key().equals(e.getKey())).findFirst().orElseThrow();
-            if (p.kind() == Param.Kind.OUTPUT_FILE) {
-                try {
-                    OutputFiles.writeText(Json.write(result.record()).getBytes(StandardCharsets.UTF_8), path, overwrite);
-                    written.add(path);
-                } catch (IOException ex) {
-                    throw new UncheckedIOException("could not write " + path + ": " + ex.getMessage(), ex);
-                }
-                continue;
-            }
-            ImagePlus imp = result.images().get(e.getKey());
-            if (imp == null) {
-                err.println("note: " + op.name() + " made no " + e.getKey() + " for this input; " + path + " not written");
-            } else if (path.getFileName().toString().toLowerCase(Locale.ROOT).endsWith(".png")) {
-                OutputFiles.writePng(imp, path, overwrite);
-                written.add(path);
-            } else {
-                TiffFiles.write(imp, path, overwrite);
-                written.add(path);
-            }
-        }
-    }
-
 }

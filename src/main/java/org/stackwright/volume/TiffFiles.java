@@ -6,12 +6,12 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 
 import ij.ImagePlus;
-import ij.io.FileSaver;
 import ij.io.Opener;
 
 /**
- * TIFF reading and writing through ImageJ 1.x, calibration included. Writing is all-or-nothing: the file is
- * written under a temporary name in the target folder and renamed when complete.
+ * TIFF reading and writing through ImageJ 1.x, calibration included (and what ImageJ misses of OME-TIFFs:
+ * {@link OmeMetadata}). Writing is all-or-nothing ({@link OutputFiles}): the file is written under a temporary name
+ * in the target folder and renamed when complete.
  */
 public final class TiffFiles {
 
@@ -106,7 +106,8 @@ public final class TiffFiles {
     }
 
     /**
-     * Writes an image as TIFF, completely or not at all.
+     * Writes an image as TIFF, completely or not at all ({@link OutputFiles#writeWhole}), to the path's real
+     * location (symbolic links resolved).
      *
      * @param overwrite whether an existing file may be replaced
      * @throws IllegalArgumentException when the folder is missing or not writable, or the file exists and
@@ -114,20 +115,8 @@ public final class TiffFiles {
      * @throws java.io.UncheckedIOException when writing fails (no partial file is left)
      */
     public static void write(ImagePlus imp, Path path, boolean overwrite) {
-        Path abs = path.toAbsolutePath();
-        checkWritable(abs, overwrite);
-        FileSaver saver = new FileSaver(imp);
-        OutputFiles.Save save = imp.getStackSize() > 1 ? saver::saveAsTiffStack : saver::saveAsTiff;
-        OutputFiles.writeWhole(abs, temporaryFor(abs), save);
-    }
-
-    /**
-     * The hidden temporary file an output is written to before it is renamed into place: in the same folder (so
-     * the rename is atomic), named after the output and this process. PNG outputs add ".png" to it.
-     */
-    public static Path temporaryFor(Path output) {
-        Path abs = output.toAbsolutePath();
-        return abs.getParent().resolve("." + abs.getFileName() + ".part-" + ProcessHandle.current().pid());
+        Path target = OutputFiles.prepare(path, overwrite);
+        OutputFiles.writeWhole(target, overwrite, out -> TiffWriting.encode(imp, out), OutputFiles.FILE);
     }
 
     /**
@@ -148,6 +137,7 @@ public final class TiffFiles {
         if (Files.isDirectory(abs)) {
             throw new IllegalArgumentException("output " + abs + " is a folder; give a file name");
         }
+        OutputPaths.checkName("output", abs);
         if (Files.exists(abs) && !overwrite) {
             throw new IllegalArgumentException("output file " + abs + " exists; choose another name or allow overwriting (--overwrite)");
         }

@@ -178,8 +178,8 @@ final class BadInputTable {
                 "--input", f("colour.tif"), "--output", out));
         t.add(op("input 64-bit float", scale, 2, "double.tif is of a kind that cannot be read (Unsupported BitsPerSample: 64);"
                 + " allowed: 8, 16 or 32-bit grayscale", "--input", f("double.tif"), "--output", out));
-        t.add(op("hyperstack channel that does not exist", scale, 2, "channel 3 does not exist: image 'channels2' has 2 channels",
-                "--input", f("channels2.tif"), "--channel", "3", "--output", out));
+        t.add(lib("hyperstack channel that does not exist", 2, "channel 3 does not exist: image 'h' has 2 channels",
+                c -> ImagePlusAdapter.toVolume(IJ.createImage("h", "8-bit black", 4, 4, 2, 2, 1), 3, 1)));
         t.add(op("factor 1e400", scale, 2, "factor = 1e400 is not a finite number", "--input", f("good.tif"), "--factor", "1e400",
                 "--output", out));
         // --- command line: pixel values (documented safe behaviours) ---
@@ -193,8 +193,8 @@ final class BadInputTable {
                 "--input", f("constant.tif"), "--output", f("constant-out.tif")));
         // --- command line: batch ---
         t.add(op("batch folder without TIFFs", scale, 2, "matches no file", "--input", f("no-tiffs"), "--output", f("a-folder")));
-        t.add(op("batch output not a folder", scale, 2, "is not a folder; in batch mode", "--input", f("*.tif"), "--output", out));
-        t.add(op("batch pattern in a missing folder", scale, 2, "does not exist", "--input", f("missing") + "/*.tif",
+        t.add(op("batch output not a folder", scale, 2, "is not a folder; in batch mode", "--input", "glob:" + f("*.tif"), "--output", out));
+        t.add(op("batch pattern in a missing folder", scale, 2, "does not exist", "--input", "glob:" + f("missing") + "/*.tif",
                 "--output", f("a-folder")));
         // --- iterations (any iterative operation uses Limits.iterations) ---
         t.add(op("iterations 0", slow, 2, "iterations = 0 is out of range; allowed 1 to 10000", "--iterations", "0", "--output", out));

@@ -176,8 +176,8 @@ final class OperationBadInputRows {
 
         // --- hyperstacks: the command line takes one channel and time point; ImageJ runs each channel in turn ---
         String channels2 = x.path("channels2.tif").toString();
-        t.add(cli("measure-psf hyperstack with 2 channels", 2, "input: image 'channels2' has 2 channel(s) and 1 time"
-                + " point(s); allowed: one channel and one time point", "measure-psf", "--input", channels2));
+        t.add(cli("measure-psf hyperstack with 2 channels: each channel in turn", 0, "channel 2: the image has no spatial"
+                + " calibration", "measure-psf", "--input", channels2));
         t.add(cli("compare reference with 2 channels", 2, "reference: image 'channels2' has 2 channel(s)",
                 "compare", "--reference", channels2, "--input", small));
         t.add(cli("residuals PSF with 2 channels", 2, "psf: image 'channels2' has 2 channel(s)",
