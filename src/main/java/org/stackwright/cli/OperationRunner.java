@@ -89,7 +89,8 @@ final class OperationRunner {
         } else if (p.defaultValue() != null && p.kind() != Param.Kind.FLAG) {
             sb.append(" [default ").append(p.defaultValue()).append(']');
         }
-        return sb.toString();
+        // picocli formats descriptions with String.format: a literal % (as in "10%") must be doubled
+        return sb.toString().replace("%", "%%");
     }
 
     /**

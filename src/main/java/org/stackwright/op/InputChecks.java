@@ -169,7 +169,8 @@ public final class InputChecks {
                     + "; allowed: an offset at or below the camera's dark level (give the camera's offset with"
                     + " --offset; data that were already offset-subtracted need offset 0)");
         }
-        ctx.warn("offset: " + what + "; they are taken as 0 photons. Check --offset and --read-noise");
+        ctx.warn("offset: " + what + "; they carry no signal above the offset (taken as 0 photons). Check the offset"
+                + (readNoise > 0 ? "" : " and give the read noise"));
     }
 
     /** @return the q-quantile of the finite values, from a strided sample of at most 100 000 (NaN when none) */
@@ -268,9 +269,14 @@ public final class InputChecks {
      * @throws IllegalArgumentException naming the key, the size given and the smallest size allowed
      */
     public static void requireMinSize(String key, Volume v, int minWidth, int minHeight, int minDepth) {
-        if (v.width() < minWidth || v.height() < minHeight || v.depth() < minDepth) {
-            throw new IllegalArgumentException(key + ": image is " + v.shape() + " pixels; allowed: at least "
-                    + minWidth + "x" + minHeight + "x" + minDepth);
+        requireMinSize(key, v.shape(), v.width() >= minWidth && v.height() >= minHeight && v.depth() >= minDepth,
+                minWidth + "x" + minHeight + "x" + minDepth);
+    }
+
+    /** As above for an image not read into a volume: its shape in words, whether it is large enough, the minimum. */
+    public static void requireMinSize(String key, String shape, boolean largeEnough, String minimum) {
+        if (!largeEnough) {
+            throw new IllegalArgumentException(key + ": image is " + shape + " pixels; allowed: at least " + minimum);
         }
     }
 }

@@ -5,6 +5,7 @@ import java.util.Locale;
 
 import ij.ImagePlus;
 
+import org.stackwright.op.InputChecks;
 import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
@@ -49,6 +50,10 @@ public final class FindDefectsOperation implements Operation {
         ImagePlus darkImp = v.image("dark");
         ImagePlus flatImp = v.image("flat");
         double k = v.number("threshold");
+        // a defect stands out from its 8 neighbours or from the robust statistics of many pixels: a 1x1 or 2x2
+        // image has neither (a single pixel was reported as hot)
+        InputChecks.requireMinSize("input", input.getWidth() + "x" + input.getHeight(),
+                input.getWidth() >= 3 && input.getHeight() >= 3, "3x3");
         DefectMap map;
         if (darkImp != null || flatImp != null) {
             Volume dark = darkImp == null ? null : MaskImages.allPlanes(darkImp);

@@ -165,11 +165,19 @@ public final class OutputFiles {
 
     /** @return the reason of an I/O failure in words, e.g. "No space left on device" */
     static String reason(IOException e) {
-        String m = e.getMessage();
-        if (e instanceof FileSystemException fs && fs.getReason() != null) {
-            return fs.getReason();
+        String m = e instanceof FileSystemException fs && fs.getReason() != null ? fs.getReason() : e.getMessage();
+        if (m == null) {
+            m = e.getClass().getSimpleName();
         }
-        return m == null ? e.getClass().getSimpleName() : m;
+        // a wrapped cause (ImageIO's "I/O error writing PNG file!") holds the system's reason
+        Throwable root = e;
+        while (root.getCause() != null && root.getCause() != root) {
+            root = root.getCause();
+        }
+        if (root != e && root.getMessage() != null && !m.contains(root.getMessage())) {
+            m += " (" + root.getMessage() + ")";
+        }
+        return m;
     }
 
     private static OutputStream openForced(Path tmp) throws IOException {
