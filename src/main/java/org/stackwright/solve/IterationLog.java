@@ -19,6 +19,7 @@ final class IterationLog {
     private final double[] change;
     private final long t0 = System.nanoTime();
     private int done;
+    private double best = Double.POSITIVE_INFINITY;
     private String reason;
 
     IterationLog(String method, Stopping stopping, RunContext context, IterationListener listener) {
@@ -42,6 +43,8 @@ final class IterationLog {
      */
     boolean after(double obj, double meanFit, double expectedFit, double ch) {
         NumericalGuard.iteration(method, done + 1, obj, meanFit, ch);
+        NumericalGuard.notDiverged(method, done + 1, obj, best);
+        best = Math.min(best, obj);
         objective[done] = obj;
         change[done] = ch;
         done++;

@@ -12,8 +12,8 @@ import org.junit.jupiter.api.AfterAll;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.MethodSource;
 import org.stackwright.op.RunContext;
+import org.stackwright.testing.IndependentStacks;
 import org.stackwright.volume.Volume;
-import org.stackwright.volume.VoxelSize;
 
 /**
  * A property-based pass over every solver: random invented stacks (fixed seeds) across 10^-1 to 10^6 photons per
@@ -101,7 +101,9 @@ class SolverPropertyTest {
     @ParameterizedTest(name = "{0}")
     @MethodSource("cases")
     void everySolverStaysFiniteNonNegativeAndKeepsTheFlux(Case c) {
-        Volume[] made = generate(c);
+        Volume[] made = IndependentStacks.generate(new IndependentStacks.Spec(c.seed(), c.w(), c.h(), c.d(),
+                c.photons(), c.sparse(), c.backgroundPhotons(), c.offset(), c.gain(), c.readNoise(), c.sigmaXy(),
+                c.sigmaZ(), c.pw(), c.pd()));
         Volume data = made[0];
         Volume psf = made[1];
         // the data as the likelihood sees them: shifted-Poisson photo-electrons clamped at 0, back in ADU
@@ -165,118 +167,5 @@ class SolverPropertyTest {
             sb.append(String.format(Locale.ROOT, " %s %.3g (allowed %.2g)", METHODS[m], WORST[m], FLUX_TOLERANCE[m]));
         }
         System.out.println(sb);
-    }
-
-    /**
-     * The independent generator: an object of beads (sparse: a few points of random brightness on a dark field)
-     * or cells (dense: Gaussian blobs on a faint floor) scaled to the case's mean photons per voxel, blurred by a
-     * sampled Gaussian PSF with periodic wrap (direct sum, no FFT), plus background photons, recorded with Poisson
-     * noise, gain, offset and Gaussian read noise.
-     *
-     * @return {data in ADU, PSF}
-     */
-    static Volume[] generate(Case c) {
-        SplittableRandom r = new SplittableRandom(c.seed() * 31 + 7);
-        VoxelSize voxel = new VoxelSize(0.1, 0.1, 0.25);
-        int w = c.w();
-        int h = c.h();
-        int d = c.d();
-        double[] obj = new double[w * h * d];
-        if (c.sparse()) {
-            int beads = 1 + r.nextInt(6);
-            for (int b = 0; b < beads; b++) {
-                obj[(r.nextInt(d) * h + r.nextInt(h)) * w + r.nextInt(w)] += r.nextDouble(0.2, 1);
-            }
-        } else {
-            java.util.Arrays.fill(obj, 0.02);
-            int blobs = 2 + r.nextInt(6);
-            for (int b = 0; b < blobs; b++) {
-                double cx = r.nextDouble(w);
-                double cy = r.nextDouble(h);
-                double cz = r.nextDouble(d);
-                double rad = r.nextDouble(1, 4);
-                double a = r.nextDouble(0.3, 1);
-                for (int z = 0; z < d; z++) {
-                    for (int y = 0; y < h; y++) {
-                        for (int x = 0; x < w; x++) {
-                            double q = ((x - cx) * (x - cx) + (y - cy) * (y - cy) + (z - cz) * (z - cz)) / (rad * rad);
-                            obj[(z * h + y) * w + x] += a * Math.exp(-q);
-                        }
-                    }
-                }
-            }
-        }
-        int pw = c.pw();
-        int pd = c.pd();
-        double[] k = new double[pw * pw * pd];
-        double ks = 0;
-        for (int z = 0; z < pd; z++) {
-            for (int y = 0; y < pw; y++) {
-                for (int x = 0; x < pw; x++) {
-                    double dx = x - pw / 2;
-                    double dy = y - pw / 2;
-                    double dz = z - pd / 2;
-                    double e = (dx * dx + dy * dy) / (2 * c.sigmaXy() * c.sigmaXy())
-                            + (pd == 1 ? 0 : dz * dz / (2 * c.sigmaZ() * c.sigmaZ()));
-                    k[(z * pw + y) * pw + x] = Math.exp(-e);
-                    ks += k[(z * pw + y) * pw + x];
-                }
-            }
-        }
-        float[] psf = new float[k.length];
-        for (int i = 0; i < k.length; i++) {
-            k[i] /= ks;
-            psf[i] = (float) k[i];
-        }
-        double[] blur = new double[obj.length];
-        double mean = 0;
-        for (int z = 0; z < d; z++) {
-            for (int y = 0; y < h; y++) {
-                for (int x = 0; x < w; x++) {
-                    double o = obj[(z * h + y) * w + x];
-                    if (o == 0) {
-                        continue;
-                    }
-                    for (int kz = 0; kz < pd; kz++) {
-                        int tz = Math.floorMod(z + kz - pd / 2, d);
-                        for (int ky = 0; ky < pw; ky++) {
-                            int ty = Math.floorMod(y + ky - pw / 2, h);
-                            for (int kx = 0; kx < pw; kx++) {
-                                int tx = Math.floorMod(x + kx - pw / 2, w);
-                                blur[(tz * h + ty) * w + tx] += o * k[(kz * pw + ky) * pw + kx];
-                            }
-                        }
-                    }
-                }
-            }
-        }
-        for (double v : blur) {
-            mean += v;
-        }
-        double scale = c.photons() / (mean / blur.length);
-        float[] adu = new float[blur.length];
-        for (int i = 0; i < blur.length; i++) {
-            double photons = poisson(r, blur[i] * scale + c.backgroundPhotons());
-            adu[i] = (float) (c.offset() + c.gain() * photons + c.readNoise() * r.nextGaussian());
-        }
-        return new Volume[] {new Volume(w, h, d, adu, voxel), new Volume(pw, pw, pd, psf, voxel)};
-    }
-
-    /** Poisson sample: Knuth's product of uniforms below a mean of 30, else the normal approximation, rounded. */
-    static double poisson(SplittableRandom r, double mean) {
-        if (mean <= 0) {
-            return 0;
-        }
-        if (mean < 30) {
-            double l = Math.exp(-mean);
-            int n = 0;
-            double p = r.nextDouble();
-            while (p > l) {
-                n++;
-                p *= r.nextDouble();
-            }
-            return n;
-        }
-        return Math.max(0, Math.rint(mean + Math.sqrt(mean) * r.nextGaussian()));
     }
 }
