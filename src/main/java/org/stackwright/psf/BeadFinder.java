@@ -99,7 +99,7 @@ final class BeadFinder {
         }
         if (!Double.isNaN(level)) {
             int clipped = 0;
-            for (int z = b[2] - 1; z <= b[2] + 1; z++) {
+            for (int z = Math.max(0, b[2] - 1); z <= Math.min(stack.depth() - 1, b[2] + 1); z++) {
                 for (int y = b[1] - 1; y <= b[1] + 1; y++) {
                     for (int x = b[0] - 1; x <= b[0] + 1; x++) {
                         if (stack.get(x, y, z) >= level) {

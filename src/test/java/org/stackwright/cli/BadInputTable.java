@@ -15,6 +15,7 @@ import org.stackwright.op.MaskChecks;
 import org.stackwright.op.MemoryCheck;
 import org.stackwright.op.Operation;
 import org.stackwright.op.RunContext;
+import org.stackwright.op.RunFailedException;
 import org.stackwright.op.Values;
 import org.stackwright.psf.PsfChecks;
 import org.stackwright.volume.ImagePlusAdapter;
@@ -25,7 +26,8 @@ import org.stackwright.volume.VoxelSize;
  * The table of bad inputs: one row per case, with what the user does (command-line arguments or a library call)
  * and what must happen (exit code and a fragment of the message). Exit codes are the command line's: 2 = refused
  * as bad input (a library call throws IllegalArgumentException), 1 = failed, 0 = done (for documented safe
- * behaviours the fragment is then the warning).
+ * behaviours the fragment is then the warning); a library call that fails with {@link RunFailedException} or an
+ * I/O error counts as 1.
  *
  * <p>To add rows for an operation: append {@code cli(...)} rows with its arguments (files from {@link #FILES}) or
  * {@code lib(...)} rows calling its checks, in {@link #rows()}.
@@ -67,6 +69,22 @@ final class BadInputTable {
                 return new Outcome(Main.OK, String.join("\n", ctx.warnings()));
             } catch (IllegalArgumentException e) {
                 return new Outcome(Main.BAD_INPUT, e.getMessage());
+            } catch (RunFailedException | java.io.UncheckedIOException e) {
+                return new Outcome(Main.FAILED, e.getMessage());
+            }
+        }, exit, fragment);
+    }
+
+    /**
+     * A command-line row run while something is held (an output claim of another run, say), released afterwards.
+     */
+    static Case cliWhile(String name, int exit, String fragment, java.util.function.Supplier<AutoCloseable> hold,
+            String... args) {
+        return new Case(name, () -> {
+            try (AutoCloseable held = hold.get()) {
+                return capture(err -> Main.run(args, new PrintStream(new ByteArrayOutputStream()), err));
+            } catch (Exception e) {
+                throw new IllegalStateException(e);
             }
         }, exit, fragment);
     }
@@ -242,6 +260,7 @@ final class BadInputTable {
                 c -> MaskChecks.check("mask", vol(32, 32, 1, 0), img, c)));
         t.add(lib("mask covering everything", 2, "mask marks all 16384 pixels as untrusted",
                 c -> MaskChecks.check("mask", vol(32, 32, 1, 255), img, c)));
+        TrustRows.add(t, x);
         OperationBadInputRows.add(t, x);
         return t;
     }
