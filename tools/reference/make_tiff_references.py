@@ -14,7 +14,10 @@ Writes src/test/resources/reference/tiff/:
                       channel), PhysicalSizeX 0.065 um, PhysicalSizeY 65 nm, PhysicalSizeZ 0.2 um;
                       value 100 c + 10 z + (x + y) mod 7
   zcyx.ome.tif        the same data as DimensionOrder XYCZT (channels interleaved), sizes in um
+  no-z-step.tif       the first three pages of multipage.tif with a pixel size in the TIFF resolution tags
+                      (100000 per cm = 0.1 um) and no z step (plain TIFF has no tag for it)
 Pixel value at (x, y, z) of the first three = (16 * 12 * z + 16 * y + x) mod 251.
+The files are the same on every run except the random UUID tifffile writes into each OME-XML.
 """
 import os
 
@@ -34,6 +37,8 @@ def main():
             t.write(page, contiguous=False)
         t.write(a[0, :4, :4])
     tifffile.imwrite(os.path.join(OUT, "signed16.tif"), a[:3].astype(np.int16) - 125, photometric="minisblack")
+    tifffile.imwrite(os.path.join(OUT, "no-z-step.tif"), a[:3], photometric="minisblack",
+                     resolution=(1e5, 1e5), resolutionunit="CENTIMETER")
     c, z, y, x = np.mgrid[0:2, 0:3, 0:12, 0:16]
     ome = (100 * c + 10 * z + (x + y) % 7).astype(np.uint16)
     tifffile.imwrite(os.path.join(OUT, "czyx.ome.tif"), ome, photometric="minisblack",

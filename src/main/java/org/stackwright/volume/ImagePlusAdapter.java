@@ -15,6 +15,9 @@ import ij.process.ImageProcessor;
  */
 public final class ImagePlusAdapter {
 
+    /** Image property set by {@link TiffFiles#open} when a stack's file records no z step. */
+    public static final String Z_STEP_UNKNOWN = "stackwright.z-step-unknown";
+
     private ImagePlusAdapter() {
     }
 
@@ -97,6 +100,12 @@ public final class ImagePlusAdapter {
         if (f <= 0) {
             return "'" + imp.getTitle() + "' has no spatial calibration (unit '" + (unit == null ? "" : unit.trim())
                     + "'), so its voxel size is unknown";
+        }
+        if ("true".equals(imp.getProp(Z_STEP_UNKNOWN))) {
+            return "'" + imp.getTitle() + "' records no z step (a TIFF from another program stores only the pixel"
+                    + " size): the z step is taken as " + String.format(java.util.Locale.ROOT, "%.4g",
+                    voxelSize(imp).z()) + " um; if that is wrong, set the voxel depth (a calibrated TIFF, or"
+                    + " Image>Properties in ImageJ)";
         }
         if (f == 25400) {
             VoxelSize v = voxelSize(imp);

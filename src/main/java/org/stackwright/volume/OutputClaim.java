@@ -79,6 +79,11 @@ public final class OutputClaim implements AutoCloseable {
                     .getBytes(StandardCharsets.UTF_8)), 0);
             OutputFiles.registerTemporary(f);
             return new OutputClaim(f, ch, lock);
+        } catch (java.nio.channels.ClosedByInterruptException e) {
+            // the run was interrupted (cancelled) while claiming: nothing was written
+            closeQuietly(ch);
+            HELD.remove(f);
+            throw new org.stackwright.parallel.CancelledException("cancelled; no output written");
         } catch (IOException e) {
             closeQuietly(ch);
             HELD.remove(f);

@@ -127,6 +127,9 @@ public final class OutputFiles {
                 body.writeTo(out);
             }
             publish(tmp, target, overwrite);
+        } catch (java.nio.channels.ClosedByInterruptException e) {
+            // an interrupt (a cancel) closes the channel: the write stops and nothing is left
+            throw new org.stackwright.parallel.CancelledException("cancelled; " + target + " not written");
         } catch (IOException e) {
             throw new UncheckedIOException("could not write " + target + ": " + reason(e), e);
         } finally {

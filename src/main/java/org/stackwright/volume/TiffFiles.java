@@ -85,6 +85,13 @@ public final class TiffFiles {
         if (ome != null) {
             imp = OmeMetadata.apply(imp, ome);
         }
+        // plain TIFF has no tag for the z step: only ImageJ's description ("spacing=") and OME-XML record it
+        String desc = layout.description();
+        boolean zRecorded = (desc != null && desc.startsWith("ImageJ") && desc.contains("spacing="))
+                || (ome != null && Double.isFinite(ome.sizeZ()));
+        if (imp.getNSlices() > 1 && !zRecorded && ImagePlusAdapter.isCalibrated(imp)) {
+            imp.setProp(ImagePlusAdapter.Z_STEP_UNKNOWN, "true");
+        }
         imp.setTitle(titleOf(path));
         return imp;
     }

@@ -141,6 +141,20 @@ class TiffFilesTest {
     }
 
     @Test
+    void aStackWithoutAZStepSaysSo() throws IOException {
+        // the pixel size comes from the resolution tags; the z step is nowhere in a plain TIFF
+        ij.ImagePlus imp = TiffFiles.open(reference("no-z-step.tif"), "--input");
+        assertEquals(0.1, ImagePlusAdapter.voxelSize(imp).x(), 1e-9);
+        String note = ImagePlusAdapter.calibrationNote(imp);
+        assertTrue(note != null && note.contains("records no z step"), note);
+        // our own files and OME-TIFFs record it
+        assertEquals(null, ImagePlusAdapter.calibrationNote(TiffFiles.open(reference("czyx.ome.tif"), "--input")));
+        Path own = dir.resolve("own.tif");
+        TiffFiles.write(sample(), own, false);
+        assertEquals(null, ImagePlusAdapter.calibrationNote(TiffFiles.open(own, "--input")));
+    }
+
+    @Test
     void omeXmlIsParsedWithoutExternalEntities() {
         // a DOCTYPE (the way to external entities and entity expansion) makes the parser refuse the document
         String hostile = "<?xml version=\"1.0\"?><!DOCTYPE OME [<!ENTITY x SYSTEM \"file:///etc/passwd\">]>"
