@@ -116,6 +116,9 @@ final class DemoCommand {
         } catch (IllegalArgumentException e) {
             err.println("stackwright demo: " + e.getMessage());
             return Main.BAD_INPUT;
+        } catch (RuntimeException e) {
+            err.println("stackwright demo: " + OperationRunner.describe(e));
+            return OperationRunner.codeOf(e);
         } catch (Exception e) {
             err.println("stackwright demo: failed: " + e);
             return Main.FAILED;

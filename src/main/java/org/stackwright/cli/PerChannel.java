@@ -30,8 +30,11 @@ final class PerChannel {
     private PerChannel() {
     }
 
-    /** @return true when a number or choice is given as a comma list (one value per channel) */
+    /** @return true when a number or choice of an operation with an input image is a comma list (one per channel) */
     static boolean hasLists(Operation op, Map<String, String> raw) {
+        if (ChannelRunner.mainInput(op) == null) {
+            return false; // no image, no channels: a comma is then a typing error the number check names
+        }
         for (Param p : op.params()) {
             String v = raw.get(p.key());
             boolean listable = p.kind() == Param.Kind.NUMBER || p.kind() == Param.Kind.INTEGER

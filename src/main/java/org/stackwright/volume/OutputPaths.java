@@ -64,6 +64,9 @@ public final class OutputPaths {
      * @throws IllegalArgumentException naming the key
      */
     public static Path parseOutput(String key, String text) {
+        if (text.isBlank()) {
+            throw new IllegalArgumentException(key + " is empty; give a file name");
+        }
         Path p = parse(key, text);
         if (text.endsWith("/") || text.endsWith(File.separator)) {
             throw new IllegalArgumentException(key + " = '" + text + "' names a folder (it ends with "

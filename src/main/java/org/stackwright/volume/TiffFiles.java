@@ -133,7 +133,11 @@ public final class TiffFiles {
      *     and overwrite is false
      */
     public static void checkWritable(Path path, boolean overwrite) {
-        Path abs = path.toAbsolutePath();
+        Path abs = OutputPaths.real(path);
+        if (Files.isSymbolicLink(abs)) {
+            throw new IllegalArgumentException("output " + path + " is a symbolic link that leads nowhere (a loop of"
+                    + " links); remove it or choose another name");
+        }
         Path dir = abs.getParent();
         if (dir == null || !Files.isDirectory(dir)) {
             throw new IllegalArgumentException("output folder " + dir + " does not exist; create it first");

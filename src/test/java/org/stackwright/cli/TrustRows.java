@@ -84,6 +84,14 @@ final class TrustRows {
                 "--input", good, "--output", x.path("hard-good.tif").toString(), "--overwrite"));
         t.add(cli("output ending with / names a folder", 2, "names a folder (it ends with /) that does not exist",
                 "simulate", "--size", "8x8x2", "--output", x.path("newdir").toString() + "/"));
+        t.add(cli("output empty", 2, "--output is empty; give a file name", "simulate", "--size", "8x8x2", "--output", ""));
+        Path loop = x.path("loop-a.tif");
+        link(x.path("loop-b.tif"), loop);
+        link(loop, x.path("loop-b.tif"));
+        t.add(cli("output a loop of symbolic links", 2, "is a symbolic link that leads nowhere (a loop of links)",
+                "simulate", "--size", "8x8x2", "--output", loop.toString()));
+        t.add(cli("comma in a number of an operation without input image", 2, "wavelength = '1,5' is not a number",
+                "simulate", "--wavelength", "1,5", "--output", out));
         t.add(cli("output name longer than 255 bytes", 2, "the file name is 260 bytes long; allowed: at most 255 bytes",
                 "simulate", "--size", "8x8x2", "--output", x.path("a".repeat(256) + ".tif").toString()));
         t.add(op("output name of 250 bytes: written, temporary name short", scale, 0, "",
