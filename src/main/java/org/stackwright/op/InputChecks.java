@@ -145,7 +145,9 @@ public final class InputChecks {
      * @throws IllegalArgumentException naming offset when most pixels lie below it
      */
     public static void checkOffset(String key, Volume v, double offset, double readNoise, RunContext ctx) {
-        double limit = offset - 3 * Math.max(readNoise, 0);
+        // compared in the pixels' own precision: a pixel of exactly the offset (0 photons, no read noise) stored as
+        // float may lie a rounding step below the offset given as a decimal
+        float limit = (float) (offset - 3 * Math.max(readNoise, 0));
         float[] d = v.data();
         long finite = 0;
         long below = 0;

@@ -159,6 +159,15 @@ final class TrustRows {
         t.add(cli("seam-mask --level with the offset above the data", 2, "offset = 1000 is above most of the data",
                 "seam-mask", "--grid", "2x2", "--tile", "8x8", "--input", tiles, "--level", "--offset", "1000",
                 "--output", out));
+        float decimalOffset = 1660.23f; // a rounding step below the double 1660.23
+        t.add(lib("data exactly at a decimal offset (0 photons) are not below it", 0, "",
+                c -> {
+                    org.stackwright.op.InputChecks.checkOffset("input", new Volume(16, 16, 1,
+                            filled(256, decimalOffset, decimalOffset), VOXEL), 1660.23, 0, c);
+                    if (!c.warnings().isEmpty()) {
+                        throw new IllegalArgumentException("warned: " + c.warnings());
+                    }
+                }));
         t.add(lib("seam levelling with no tile pair above the offset", 2, "no pair of neighbouring tiles has signal",
                 c -> TileLevelling.estimate(new Volume(16, 16, 1, filled(256, 150f, 150f), VOXEL),
                         List.of(new int[] {7, 9}), List.of(new int[] {7, 9}), 2, 200)));
