@@ -130,12 +130,16 @@ public final class InputChecks {
     public static final double BELOW_OFFSET_REFUSE = 0.5;
 
     /**
-     * Checks a camera offset against the data: camera data lie above the offset up to the read noise, so pixels
-     * further than 3 read-noise standard deviations below it (0.13 % of the dark pixels of a correct camera model)
-     * mean the offset is set too high, or the data were already offset-subtracted. Such pixels would be clamped to
-     * zero photons and the result invented; so: a warning when more than {@link #BELOW_OFFSET_WARN} of the finite
-     * pixels lie there, a refusal naming the offset when more than {@link #BELOW_OFFSET_REFUSE} do. Every operation
-     * that takes a camera offset calls this.
+     * Checks a camera offset against the data: camera data lie above the offset up to the noise, so when the typical
+     * pixel lies below it the offset is set too high, or the data were already offset-subtracted; such pixels would
+     * be clamped to zero photons and the result invented. So: a refusal naming the offset when more than
+     * {@link #BELOW_OFFSET_REFUSE} of the finite pixels lie more than one noise standard deviation below it (the
+     * median more than one sigma below the offset), and a warning when more than {@link #BELOW_OFFSET_WARN} lie
+     * below the offset minus 3 x the read noise given (0.13 % of the dark pixels of a correct camera model). The
+     * noise of the refusal is the read noise given or, when none is given (or a smaller one), the pixel noise
+     * measured in the data ({@link #pixelNoise}): on a dark image with the right offset half the pixels lie below
+     * the offset itself, and a refusal at the offset would be a coin flip. Every operation that takes a camera
+     * offset calls this.
      *
      * @param key the image's parameter key, named in messages
      * @param v the image (ADU), not modified
@@ -145,34 +149,78 @@ public final class InputChecks {
      * @throws IllegalArgumentException naming offset when most pixels lie below it
      */
     public static void checkOffset(String key, Volume v, double offset, double readNoise, RunContext ctx) {
+        double given = Math.max(readNoise, 0);
+        double measured = pixelNoise(v);
+        double noise = Math.max(given, measured);
         // compared in the pixels' own precision: a pixel of exactly the offset (0 photons, no read noise) stored as
         // float may lie a rounding step below the offset given as a decimal
-        float limit = (float) (offset - 3 * Math.max(readNoise, 0));
+        float warnLimit = (float) (offset - 3 * given);
+        float refuseLimit = (float) (offset - noise);
         float[] d = v.data();
         long finite = 0;
-        long below = 0;
+        long belowWarn = 0;
+        long belowRefuse = 0;
         for (float f : d) {
             if (Float.isFinite(f)) {
                 finite++;
-                if (f < limit) {
-                    below++;
-                }
+                belowWarn += f < warnLimit ? 1 : 0;
+                belowRefuse += f < refuseLimit ? 1 : 0;
             }
         }
-        if (finite == 0 || below <= BELOW_OFFSET_WARN * finite) {
+        if (finite == 0) {
             return;
         }
-        double share = (double) below / finite;
-        String what = String.format(Locale.ROOT, "%.1f %% of the %s pixels lie below the offset %s ADU%s (their"
-                + " level: 1st percentile %s, median %s ADU)", 100 * share, key, num(offset),
-                readNoise > 0 ? " minus 3 x read-noise" : "", num(quantile(d, 0.01)), num(quantile(d, 0.5)));
-        if (share > BELOW_OFFSET_REFUSE) {
-            throw new IllegalArgumentException("offset = " + num(offset) + " is above most of the data: " + what
-                    + "; allowed: an offset at or below the camera's dark level (give the camera's offset with"
-                    + " --offset; data that were already offset-subtracted need offset 0)");
+        String level = String.format(Locale.ROOT, " (their level: 1st percentile %s, median %s ADU)",
+                num(quantile(d, 0.01)), num(quantile(d, 0.5)));
+        double refuseShare = (double) belowRefuse / finite;
+        if (refuseShare > BELOW_OFFSET_REFUSE) {
+            throw new IllegalArgumentException(String.format(Locale.ROOT, "offset = %s is above most of the data:"
+                    + " %.1f %% of the %s pixels lie more than one noise standard deviation (%s, %s ADU) below the offset"
+                    + " %s ADU%s; allowed: an"
+                    + " offset at or below the camera's dark level (give the camera's offset with --offset; data"
+                    + " that were already offset-subtracted need offset 0)", num(offset), 100 * refuseShare, key,
+                    given >= measured ? "the read noise" : "the pixel noise measured in the data", num(noise),
+                    num(offset), level));
         }
-        ctx.warn("offset: " + what + "; they carry no signal above the offset (taken as 0 photons). Check the offset"
-                + (readNoise > 0 ? "" : " and give the read noise"));
+        double warnShare = (double) belowWarn / finite;
+        if (warnShare > BELOW_OFFSET_WARN) {
+            ctx.warn(String.format(Locale.ROOT, "offset: %.1f %% of the %s pixels lie below the offset %s ADU%s%s;"
+                    + " they carry no signal above the offset (taken as 0 photons). Check the offset%s", 100 * warnShare,
+                    key, num(offset), given > 0 ? " minus 3 x read-noise" : "", level,
+                    given > 0 ? "" : " and give the read noise"));
+        }
+    }
+
+    /**
+     * The pixel noise of an image, measured without knowing its offset: from the differences of neighbouring
+     * pixels along x, whose median absolute value is 0.6745 x sqrt(2) x sigma for independent Gaussian noise of
+     * standard deviation sigma (the median absolute deviation, Hampel 1974, J. Am. Stat. Assoc. 69:383). Structure
+     * in the image adds to the differences, so on bright structured images this is an upper estimate; the median
+     * keeps it at the noise of the dark background where that covers most of the image. A strided sample of at most
+     * 100 000 differences.
+     *
+     * @param v the image
+     * @return sigma in the image's units (0 for an image one pixel wide or without finite neighbours)
+     */
+    static double pixelNoise(Volume v) {
+        int w = v.width();
+        if (w < 2) {
+            return 0;
+        }
+        float[] d = v.data();
+        int step = Math.max(1, d.length / 100_000);
+        float[] diffs = new float[d.length / step + 1];
+        int n = 0;
+        for (int i = 0; i + 1 < d.length; i += step) {
+            if ((i + 1) % w != 0 && Float.isFinite(d[i]) && Float.isFinite(d[i + 1])) {
+                diffs[n++] = Math.abs(d[i + 1] - d[i]);
+            }
+        }
+        if (n == 0) {
+            return 0;
+        }
+        java.util.Arrays.sort(diffs, 0, n);
+        return diffs[n / 2] / (0.6745 * Math.sqrt(2));
     }
 
     /** @return the q-quantile of the finite values, from a strided sample of at most 100 000 (NaN when none) */
