@@ -248,10 +248,10 @@ class DeconvolveBadInputTest {
         t.add(row("PSF that resamples to one plane", 2, "has a single plane",
                 "--psf", input("psf-thin.tif", psf(9, 9, 3, new VoxelSize(0.1, 0.1, 0.05), d -> { }))));
         // hyperstacks on the command line (cli.PerChannel through imagej.ChannelRunner)
-        ij.ImagePlus h = ij.IJ.createImage("h", "32-bit ramp", 32, 32, 2, 12, 1);
+        ij.ImagePlus h = ij.IJ.createImage("h", "32-bit ramp", 32, 32, 2, 12, 2);
         org.stackwright.volume.ImagePlusAdapter.setCalibration(h, VOXEL);
         String hyper = inputImage("hyper.tif", h);
-        t.add(row("hyperstack: each channel in turn, values per channel", 0, "channel 2: ",
+        t.add(row("hyperstack: each channel and time point in turn, values per channel", 0, "channel 2, time point 2: ",
                 "--input", hyper, "--offset", "0", "--na", "1.2,1.2", "--wavelength", "520,610",
                 "--immersion-index", "1.33"));
         t.add(row("per-channel list of the wrong length", 2, "offset = '0,0,0' gives 3 values; give one value, or one"
