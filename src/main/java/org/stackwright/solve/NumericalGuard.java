@@ -63,7 +63,20 @@ public final class NumericalGuard {
      * @throws RunFailedException when the estimate holds a NaN or infinite value
      */
     public static void estimate(String method, Solution solution) {
-        float[] x = solution.estimate();
+        values(method, "the result", solution.estimate(), solution.iterations() + " iteration(s)");
+    }
+
+    /**
+     * The same check for results that are not one solver's estimate (the posterior mean and interval of sampling,
+     * say).
+     *
+     * @param method the method's name
+     * @param what what the values are, e.g. "the posterior mean"
+     * @param x the values, not modified
+     * @param after how they were reached, e.g. "400 samples"
+     * @throws RunFailedException when a value is NaN or infinite
+     */
+    public static void values(String method, String what, float[] x, String after) {
         int bad = 0;
         for (float v : x) {
             if (!Float.isFinite(v)) {
@@ -71,8 +84,8 @@ public final class NumericalGuard {
             }
         }
         if (bad > 0) {
-            throw new RunFailedException(String.format(Locale.ROOT, "%s: %d of %d values of the result are NaN or"
-                    + " infinite after %d iteration(s); %s", method, bad, x.length, solution.iterations(), ADVICE));
+            throw new RunFailedException(String.format(Locale.ROOT, "%s: %d of %d values of %s are NaN or"
+                    + " infinite after %s; %s", method, bad, x.length, what, after, ADVICE));
         }
     }
 }

@@ -150,6 +150,9 @@ final class TrustRows {
                 "residuals", "--input", data, "--estimate", huge, "--psf", psf, "--output", out));
         t.add(cli("compare with a value of 3e38", 2, "beyond what 32-bit Fourier transforms can hold",
                 "compare", "--reference", data, "--input", huge));
+        t.add(lib("sampling result not finite: the run stops", 1, "2 of 3 values of the posterior mean are NaN",
+                c -> NumericalGuard.values("sampling", "the posterior mean", new float[] {Float.NaN, 1,
+                        Float.POSITIVE_INFINITY}, "40 samples")));
         t.add(lib("solver result not finite: the run stops", 1, "1 of 3 values of the result are NaN or infinite",
                 c -> NumericalGuard.estimate("richardson-lucy", new Solution(new float[] {1, Float.NaN, 2}, 4,
                         "maximum", new double[4], new double[4], 0))));
@@ -168,6 +171,10 @@ final class TrustRows {
                         throw new IllegalArgumentException("warned: " + c.warnings());
                     }
                 }));
+        String flat3d = x.volume("flat-3d.tif", new Volume(16, 16, 5, filled(16 * 16 * 5, 150f, 150f), VOXEL)).toString();
+        t.add(cli("psf-refine with the offset above the data", 2, "offset = 1000 is above most of the data",
+                "psf-refine", "--input", flat3d, "--size", "9x9x5", "--na", "1.2", "--wavelength", "520",
+                "--immersion-index", "1.33", "--offset", "1000", "--output", out));
         t.add(lib("seam levelling with no tile pair above the offset", 2, "no pair of neighbouring tiles has signal",
                 c -> TileLevelling.estimate(new Volume(16, 16, 1, filled(256, 150f, 150f), VOXEL),
                         List.of(new int[] {7, 9}), List.of(new int[] {7, 9}), 2, 200)));
