@@ -4,6 +4,7 @@ import java.io.IOException;
 import java.io.OutputStream;
 
 import ij.ImagePlus;
+import ij.gui.Plot;
 import ij.io.FileInfo;
 import ij.io.FileSaver;
 import ij.io.RoiEncoder;
@@ -12,7 +13,7 @@ import ij.io.TiffEncoder;
 /**
  * Encodes an ImageJ image as TIFF into a stream the caller controls, with exactly the metadata ImageJ's own
  * {@code FileSaver.saveAsTiff}/{@code saveAsTiffStack} write (description with calibration and hyperstack
- * dimensions, slice labels, ROI, overlay, properties, display ranges and LUTs of composites): the bytes are the
+ * dimensions, slice labels, the data of a plot, ROI, overlay, properties, display ranges and LUTs of composites): the bytes are the
  * same, but a write error reaches the caller as an {@link IOException} instead of an ImageJ dialog or message.
  */
 final class TiffWriting {
@@ -35,6 +36,9 @@ final class TiffWriting {
         } else {
             String label = imp.hasImageStack() ? imp.getStack().getSliceLabel(1) : null;
             fi.sliceLabels = label == null ? null : new String[] {label};
+        }
+        if (fi.nImages == 1 && imp.getProperty(Plot.PROPERTY_KEY) instanceof Plot plot) {
+            fi.plot = plot.toByteArray(); // a plot keeps its data, so ImageJ reopens it as a live plot
         }
         fi.roi = RoiEncoder.saveAsByteArray(imp.getRoi());
         fi.overlay = FileSaver.getOverlay(imp);

@@ -125,7 +125,11 @@ class OutputSafetyTest {
     void tiffBytesAreThoseOfImageJsOwnWriter() throws IOException {
         ImagePlus composite = IJ.createImage("c", "16-bit ramp", 32, 24, 2, 3, 1);
         composite = new ij.CompositeImage(composite, ij.CompositeImage.COLOR);
-        for (ImagePlus imp : new ImagePlus[] {stack(), IJ.createImage("one", "8-bit ramp", 20, 10, 1), composite}) {
+        ij.gui.Plot plot = new ij.gui.Plot("plot", "x", "y");
+        plot.add("line", new double[] {0, 1, 2, 3}, new double[] {1, 3, 2, 5});
+        ImagePlus plotted = plot.getImagePlus(); // carries its plot data, which ImageJ's writer stores too
+        for (ImagePlus imp : new ImagePlus[] {stack(), IJ.createImage("one", "8-bit ramp", 20, 10, 1), composite,
+                plotted}) {
             Path theirs = dir.resolve("imagej-" + imp.getTitle() + ".tif");
             boolean ok = imp.getStackSize() > 1 ? new FileSaver(imp).saveAsTiffStack(theirs.toString())
                     : new FileSaver(imp).saveAsTiff(theirs.toString());
