@@ -4,10 +4,13 @@ package org.stackwright.repair;
  * The tile period along one axis: the pitch S and phase p such that the borders p + k S (k = 0, 1, ...) all look
  * like seams ({@link SeamEvidence}). A comb of teeth at those borders is laid over the evidence for every pitch and
  * phase; a tooth is strong when the evidence within one pixel of it exceeds the tooth limit. A period must have at
- * least two strong teeth, at least {@link #STRONG_SHARE} of its teeth strong, and one tooth above the seam limit.
+ * least two strong teeth, at least {@link #STRONG_SHARE} of its teeth strong, and its teeth together must exceed the
+ * seam limit: the sum of their z-scores over the square root of their number (Stouffer, Suchman, DeVinney, Star &
+ * Williams, "The American Soldier", Vol. 1, Princeton University Press 1949; combining independent z-scores).
  * Edges of narrow lines (a defective column, a thin structure: {@link SeamEvidence#combStrength}) are no
- * teeth. Of all such combs the one with the most strong teeth wins (then one whose tiles start at the image's
- * first pixel, as in an uncropped mosaic, then the largest summed evidence, then the smaller pitch); a multiple of the true pitch has fewer strong teeth, a fraction of it too many weak ones, and a line
+ * teeth. Of all such combs the one with the most strong teeth wins (then the one with the fewest teeth without
+ * evidence, then one whose tiles start at the image's first pixel, as in an uncropped mosaic, then the largest
+ * summed evidence, then the smaller pitch); a multiple of the true pitch has fewer strong teeth, a fraction of it too many weak ones, and a line
  * that does not repeat (a defective column, a structure) cannot fill a comb. The pitch and phase are then refined
  * on the exact border positions. This is a comb filter in the sense of harmonic period estimation (a periodic
  * pulse train matched against the signal; e.g. Hermes, "Measurement of pitch by subharmonic summation", J.
@@ -29,7 +32,10 @@ final class SeamComb {
      */
     record Period(int pitch, int phase, int strong, int teeth, double sum) {
 
-        /** @return the borders p + k S where the evidence is defined (away from the image ends) */
+        /**
+         * @return the borders p + k S where the evidence is defined (away from the image ends), including those
+         *     closer than one step to the end (which are seams only where the evidence shows one)
+         */
         int[] borders(int n) {
             return java.util.stream.IntStream.iterate(phase, b -> b < n, b -> b + pitch).filter(b -> inRange(b, n))
                     .toArray();
@@ -43,6 +49,10 @@ final class SeamComb {
         boolean better(Period o) {
             if (o == null || strong != o.strong) {
                 return o == null || strong > o.strong;
+            }
+            if (teeth - strong != o.teeth - o.strong) {
+                // as many seams explained, fewer teeth without a seam: a fraction of the pitch has empty teeth
+                return teeth - strong < o.teeth - o.strong;
             }
             if (anchored() != o.anchored()) {
                 return anchored();
@@ -85,17 +95,58 @@ final class SeamComb {
         if (best == null) {
             return null;
         }
-        // refine on exact positions: the window of one pixel lets neighbouring pitches tie
-        Period refined = null;
-        for (int s = Math.max(2, best.pitch() - 2); s <= best.pitch() + 2; s++) {
-            for (int p = best.phase() - 2; p <= best.phase() + 2; p++) {
-                Period c = score(e, s, Math.floorMod(p, s), 0, toothLimit, seamLimit);
-                if (c != null && c.better(refined)) {
-                    refined = c;
-                }
+        return refine(java.util.List.of(e), new Period[] {best}, toothLimit)[0];
+    }
+
+    /**
+     * Refines a common pitch and each band's phase on the exact borders (the one-pixel window of the search lets
+     * neighbouring pitches tie): the pitch within 3 pixels and the phases within 3 pixels that give the largest
+     * summed peak evidence exactly at the teeth.
+     *
+     * @param best one comb per band (null where a band has none), all of one pitch
+     */
+    static Period[] refine(java.util.List<SeamEvidence> ex, Period[] best, double tooth) {
+        int pitch = 0;
+        for (Period p : best) {
+            if (p != null) {
+                pitch = p.pitch();
             }
         }
-        return refined != null && refined.strong() >= best.strong() ? refined : best;
+        Period[] refined = best;
+        double top = -1;
+        for (int s = Math.max(MIN_PITCH, pitch - 3); s <= pitch + 3; s++) {
+            Period[] at = new Period[ex.size()];
+            double sum = 0;
+            for (int i = 0; i < ex.size(); i++) {
+                if (best[i] == null) {
+                    continue;
+                }
+                double here = -1;
+                for (int p = best[i].phase() - 3; p <= best[i].phase() + 3; p++) {
+                    int ph = Math.floorMod(p, s);
+                    double e = exactSum(ex.get(i), s, ph, tooth);
+                    if (e > here) {
+                        here = e;
+                        at[i] = new Period(s, ph, best[i].strong(), best[i].teeth(), e);
+                    }
+                }
+                sum += here;
+            }
+            if (sum > top) {
+                top = sum;
+                refined = at;
+            }
+        }
+        return refined;
+    }
+
+    /** @return the summed peak evidence exactly at the teeth of comb (s, phase) */
+    static double exactSum(SeamEvidence e, int s, int phase, double tooth) {
+        double sum = 0;
+        for (int b : new Period(s, phase, 0, 0, 0).borders(e.length())) {
+            sum += e.peak(b, tooth);
+        }
+        return sum;
     }
 
     /** @return the comb (s, p) scored with teeth that look window pixels either side, or null if it fails */
@@ -104,9 +155,11 @@ final class SeamComb {
         int teeth = 0;
         int strong = 0;
         double sum = 0;
-        double top = 0;
+        double all = 0;
         for (int b = p; b < n; b += s) {
-            if (!inRange(b, n)) {
+            // the first and last tiles are whole, at least one step wide: no tooth is expected closer than that to
+            // either end (an overlap extends the image past the last step, a snake row starts with a shifted seam)
+            if (!inRange(b, n) || n - b < s || b < s) {
                 continue;
             }
             teeth++;
@@ -114,13 +167,14 @@ final class SeamComb {
             for (int d = -window; d <= window; d++) {
                 t = Math.max(t, e.peak(b + d, toothLimit));
             }
+            all += t;
             if (t > toothLimit) {
                 strong++;
                 sum += t;
-                top = Math.max(top, t);
             }
         }
-        if (strong < 2 || strong < STRONG_SHARE * teeth || top <= seamLimit) {
+        // the teeth together: Stouffer's sum of z-scores over sqrt(teeth)
+        if (strong < 2 || strong < STRONG_SHARE * teeth || all / Math.sqrt(teeth) <= seamLimit) {
             return null;
         }
         return new Period(s, p, strong, teeth, sum);

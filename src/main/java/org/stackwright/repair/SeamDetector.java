@@ -193,29 +193,7 @@ public final class SeamDetector {
         if (best == null) {
             return new SeamComb.Period[ex.size()];
         }
-        // refine the pitch on the exact borders: the one-pixel window lets neighbouring pitches tie
-        int pitch = pitchOf(best);
-        int bestPitch = pitch;
-        double bestEnergy = -1;
-        for (int s = Math.max(SeamComb.MIN_PITCH, pitch - 2); s <= pitch + 2; s++) {
-            double energy = 0;
-            for (int i = 0; i < ex.size(); i++) {
-                if (best[i] != null) {
-                    energy += periodicEnergy(ex.get(i), s, best[i].phase(), tooth);
-                }
-            }
-            if (energy > bestEnergy) {
-                bestEnergy = energy;
-                bestPitch = s;
-            }
-        }
-        for (int i = 0; i < best.length; i++) {
-            if (best[i] != null && bestPitch != pitch) {
-                SeamComb.Period c = combs(List.of(ex.get(i)), bestPitch, best[i].phase() - 3, best[i].phase() + 3, 1,
-                        tooth, threshold)[0];
-                best[i] = c != null ? c : new SeamComb.Period(bestPitch, best[i].phase(), 0, 0, 0);
-            }
-        }
+        best = SeamComb.refine(ex, best, tooth);
         // a stripe without a comb of its own takes the phase of the stripe two above or below (same direction)
         for (int i = 0; i < best.length; i++) {
             if (best[i] == null) {
@@ -228,29 +206,6 @@ public final class SeamDetector {
             }
         }
         return best;
-    }
-
-    /**
-     * The evidence that repeats exactly with pitch s: over the offsets o within {@link #MAX_BAND} of the comb's
-     * teeth, the sum of the median over the teeth of the evidence at tooth + o. A pitch one pixel off drifts away
-     * from the seams' borders tooth by tooth and loses it.
-     */
-    static double periodicEnergy(SeamEvidence e, int s, int phase, double tooth) {
-        int n = e.length();
-        int[] teeth = new SeamComb.Period(s, Math.floorMod(phase, s), 0, 0, 0).borders(n);
-        if (teeth.length == 0) {
-            return 0;
-        }
-        double[] v = new double[teeth.length];
-        double energy = 0;
-        for (int o = -MAX_BAND; o <= MAX_BAND; o++) {
-            for (int k = 0; k < teeth.length; k++) {
-                int b = teeth[k] + o;
-                v[k] = b > 0 && b < n ? e.combStrength(b, tooth) : 0;
-            }
-            energy += RobustStats.median(v, v.length);
-        }
-        return energy;
     }
 
     /** The best comb of pitch s of each stripe, phases p0 .. p1 (taken modulo s), teeth looking window px aside. */
@@ -268,19 +223,21 @@ public final class SeamDetector {
         return at;
     }
 
-    /** @return {strong teeth, summed evidence} over the stripes, or null when no stripe has a comb */
+    /** @return {strong teeth, summed evidence, teeth without evidence} over the stripes, or null if no comb */
     private static double[] total(SeamComb.Period[] at) {
         double strong = 0;
         double sum = 0;
+        double empty = 0;
         boolean any = false;
         for (SeamComb.Period p : at) {
             if (p != null) {
                 any = true;
                 strong += p.strong();
                 sum += p.sum();
+                empty += p.teeth() - p.strong();
             }
         }
-        return any ? new double[] {strong, sum} : null;
+        return any ? new double[] {strong, sum, empty} : null;
     }
 
     private static boolean better(SeamComb.Period[] a, SeamComb.Period[] b) {
@@ -291,6 +248,9 @@ public final class SeamDetector {
         double[] tb = total(b);
         if (ta[0] != tb[0]) {
             return ta[0] > tb[0];
+        }
+        if (ta[2] != tb[2]) {
+            return ta[2] < tb[2];
         }
         return ta[1] > tb[1] * (1 + 1e-9);
     }
@@ -336,9 +296,23 @@ public final class SeamDetector {
         int[] kinks = repeating(e, e.kink, borders, tooth);
         List<Band> out = new ArrayList<>();
         for (int t : borders) {
+            // the first and last tiles of a mosaic are whole, at least one step wide: a tooth closer than that to an
+            // end is no seam unless it shows one
+            if ((n - t < p.pitch() || t < p.pitch()) && nearest(e, t, tooth) <= tooth) {
+                continue;
+            }
             out.add(band(e, t, steps, kinks, stepWidth, from, to));
         }
         return out;
+    }
+
+    /** @return the largest peak evidence within 2 pixels of t */
+    private static double nearest(SeamEvidence e, int t, double tooth) {
+        double m = 0;
+        for (int d = -2; d <= 2; d++) {
+            m = Math.max(m, e.peak(t + d, tooth));
+        }
+        return m;
     }
 
     /**

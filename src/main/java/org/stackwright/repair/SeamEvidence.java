@@ -12,14 +12,21 @@ import org.stackwright.volume.Volume;
  * noise do not.
  *
  * <p>Kink: for each line, k(b) = the slope of a straight-line fit over the {@link #FIT} pixels right of b minus that
- * over the FIT pixels left of b, and the corner test e(b) = k(b) - (k(b - 3) + k(b + 3)) / 2. Where each tile is
+ * over the FIT pixels left of b, and the corner test e(b) = k(b) - (k(b - s) + k(b + s)) / 2, s = {@link
+ * #KINK_SPAN}. Shading has gentle slopes at a tile's border (a few tenths of a photon per pixel), so the fits are
+ * long: the noise of a fitted slope falls as FIT^(-3/2). Where each tile is
  * darkened towards its border by shading, the profile across a seam has a corner (falling to the seam, rising after
  * it) in every line, even when the two tiles have the same gain: e keeps half of the corner's slope change. Any
  * quadratic profile (smooth shading, the top of a large structure) gives a k linear in b and e = 0 exactly.
  *
- * <p>For both, over all lines and slices, the signs are counted and the sign-test statistic z = (n+ - n-) /
- * sqrt(N) measures how consistently the border steps (kinks) one way (Dixon & Mood, "The statistical sign test",
- * J. Am. Stat. Assoc. 41:557-566, 1946); ties count for neither side. The shares of lines where pixel b is a
+ * <p>For both, the lines are taken in blocks of {@link #BLOCK}; in each block the signs are counted and the sign-test
+ * statistic z = (n+ - n-) / sqrt(N) measures how consistently the border steps (kinks) one way (Dixon & Mood, "The
+ * statistical sign test", J. Am. Stat. Assoc. 41:557-566, 1946; ties count for neither side). The block z's are
+ * combined as a chi-square, sum z^2 with one degree of freedom per block under the null, and reported as the
+ * z-score (chi^2 - nb) / sqrt(2 nb) with the sign of the overall count: a horizontal seam between two tile rows
+ * steps up under one tile and down under the next (the gains differ tile by tile), which cancels in a single count
+ * over the whole line but not in the blocks. Corners of shading have one sign everywhere and keep the single
+ * count over all lines, which has more power for a weak consistent effect. The shares of lines where pixel b is a
  * missing-data zero mark the gaps a stitcher leaves.
  */
 final class SeamEvidence {
@@ -27,9 +34,11 @@ final class SeamEvidence {
     /** steps d(b-REACH .. b-2) and d(b+2 .. b+REACH) give the local slope */
     static final int REACH = 6;
     /** pixels in each straight-line fit of the kink test */
-    static final int FIT = 5;
+    static final int FIT = 12;
     /** the kink at b is compared with the mean of the kinks this far on either side */
-    static final int KINK_SPAN = 3;
+    static final int KINK_SPAN = 6;
+    /** lines per block of the sign test */
+    static final int BLOCK = 16;
 
     /** sign-test z of the step at border b (between pixels b-1 and b), 0 where not defined */
     final double[] step;
@@ -126,6 +135,15 @@ final class SeamEvidence {
         long[] sm = new long[n];
         long[] kp = new long[n];
         long[] km = new long[n];
+        // counts of the current block of lines, and the sums of squared block z-scores
+        long[] bsp = new long[n];
+        long[] bsm = new long[n];
+        long[] bkp = new long[n];
+        long[] bkm = new long[n];
+        double[] chiStep = new double[n];
+        double[] chiKink = new double[n];
+        int blocks = 0;
+        int inBlock = 0;
         long[] zero = new long[n];
         float[] f = v.data();
         double[] line = new double[n];
@@ -154,9 +172,9 @@ final class SeamEvidence {
                     }
                     double e = d[b] - RobustStats.medianInPlace(window, m);
                     if (e > 0) {
-                        sp[b]++;
+                        bsp[b]++;
                     } else if (e < 0) {
-                        sm[b]++;
+                        bsm[b]++;
                     }
                 }
                 for (int b = FIT; b <= n - FIT; b++) {
@@ -165,25 +183,56 @@ final class SeamEvidence {
                 for (int b = FIT + KINK_SPAN; b <= n - FIT - KINK_SPAN; b++) {
                     double e = k[b] - 0.5 * (k[b - KINK_SPAN] + k[b + KINK_SPAN]);
                     if (e > 0) {
-                        kp[b]++;
+                        bkp[b]++;
                     } else if (e < 0) {
-                        km[b]++;
+                        bkm[b]++;
                     }
+                }
+                if (++inBlock == BLOCK || (z == v.depth() - 1 && l == to - 1)) {
+                    double root = Math.sqrt(inBlock);
+                    for (int b = 0; b < n; b++) {
+                        double zs = (bsp[b] - bsm[b]) / root;
+                        double zk = (bkp[b] - bkm[b]) / root;
+                        chiStep[b] += zs * zs;
+                        chiKink[b] += zk * zk;
+                        sp[b] += bsp[b];
+                        sm[b] += bsm[b];
+                        kp[b] += bkp[b];
+                        km[b] += bkm[b];
+                    }
+                    java.util.Arrays.fill(bsp, 0);
+                    java.util.Arrays.fill(bsm, 0);
+                    java.util.Arrays.fill(bkp, 0);
+                    java.util.Arrays.fill(bkm, 0);
+                    blocks++;
+                    inBlock = 0;
                 }
             }
         }
-        double root = Math.sqrt(Math.max(1, lines));
         double[] zs = new double[n];
         double[] zk = new double[n];
         double[] zr = new double[n];
+        double nb = Math.max(1, blocks);
         for (int b = 0; b < n; b++) {
-            zs[b] = (sp[b] - sm[b]) / root;
-            zk[b] = (kp[b] - km[b]) / root;
+            // sum of nb squared block z's: chi-square with nb degrees of freedom under the null, as a z-score
+            zs[b] = Math.copySign((chiStep[b] - nb) / Math.sqrt(2 * nb), sp[b] - sm[b] == 0 ? 1 : sp[b] - sm[b]);
+            // shading darkens every tile towards its border: its corners have one sign everywhere, so the plain count
+            // over all lines keeps more power than the blocks
+            zk[b] = (kp[b] - km[b]) / Math.sqrt(Math.max(1, lines));
             zr[b] = zero[b] / (double) Math.max(1, lines);
         }
         emptyNull(zs, REACH + 1, n - REACH);
         emptyNull(zk, FIT + KINK_SPAN, n - FIT - KINK_SPAN + 1);
-        return new SeamEvidence(zs, zk, zr);
+        // a step inside the fit windows looks like a change of slope: corners next to a stronger step are its echo
+        double[] kink = zk.clone();
+        for (int b = 0; b < n; b++) {
+            for (int q = Math.max(0, b - FIT - KINK_SPAN); q <= Math.min(n - 1, b + FIT + KINK_SPAN) && kink[b] != 0; q++) {
+                if (q != b && Math.abs(zs[q]) > Math.abs(zk[b])) {
+                    kink[b] = 0;
+                }
+            }
+        }
+        return new SeamEvidence(zs, kink, zr);
     }
 
     /**
