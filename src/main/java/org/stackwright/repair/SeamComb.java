@@ -9,8 +9,8 @@ package org.stackwright.repair;
  * Williams, "The American Soldier", Vol. 1, Princeton University Press 1949; combining independent z-scores).
  * Edges of narrow lines (a defective column, a thin structure: {@link SeamEvidence#combStrength}) are no
  * teeth. Of all such combs the one with the most strong teeth wins (then the one with the fewest teeth without
- * evidence, then one whose tiles start at the image's first pixel, as in an uncropped mosaic, then the largest
- * summed evidence, then the smaller pitch); a multiple of the true pitch has fewer strong teeth, a fraction of it too many weak ones, and a line
+ * evidence, then one whose tiles start at the image's first pixel, as in an uncropped mosaic, then the smaller
+ * pitch, then the largest summed evidence); a multiple of the true pitch has fewer strong teeth, a fraction of it too many weak ones, and a line
  * that does not repeat (a defective column, a structure) cannot fill a comb. The pitch and phase are then refined
  * on the exact border positions. This is a comb filter in the sense of harmonic period estimation (a periodic
  * pulse train matched against the signal; e.g. Hermes, "Measurement of pitch by subharmonic summation", J.
@@ -20,6 +20,8 @@ final class SeamComb {
 
     /** smallest tile pitch searched, pixels */
     static final int MIN_PITCH = 16;
+    /** a tooth may lie this much closer to an end than one step: the two edges of a band straddle the border */
+    static final int END_SLACK = 6;
     /** share of the teeth of a period that must be strong */
     static final double STRONG_SHARE = 0.6;
 
@@ -57,10 +59,12 @@ final class SeamComb {
             if (anchored() != o.anchored()) {
                 return anchored();
             }
-            if (Math.abs(sum - o.sum) > 1e-9 * Math.max(1, sum)) {
-                return sum > o.sum;
+            if (pitch != o.pitch) {
+                // the teeth's one-pixel windows let pitches a few pixels apart explain the same borders; the exact
+                // refinement that follows moves the pitch up as readily as down
+                return pitch < o.pitch;
             }
-            return pitch < o.pitch;
+            return sum > o.sum;
         }
     }
 
@@ -159,7 +163,7 @@ final class SeamComb {
         for (int b = p; b < n; b += s) {
             // the first and last tiles are whole, at least one step wide: no tooth is expected closer than that to
             // either end (an overlap extends the image past the last step, a snake row starts with a shifted seam)
-            if (!inRange(b, n) || n - b < s || b < s) {
+            if (!inRange(b, n) || n - b < s - END_SLACK || b < s - END_SLACK) {
                 continue;
             }
             teeth++;

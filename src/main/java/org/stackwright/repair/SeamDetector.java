@@ -32,6 +32,8 @@ public final class SeamDetector {
     static final double ECHO = 0.5;
     /** the ends of a seam start within this many pixels of its comb tooth (the tooth may sit on a corner beside a step) */
     static final int NEAR = 6;
+    /** a seam that does not repeat must be this many times stronger than the threshold */
+    static final double LONE = 2;
 
     /**
      * A seam band [start, end) along one axis, over the lines [from, to) of the other axis.
@@ -127,7 +129,7 @@ public final class SeamDetector {
         int h = image.height();
         double tooth = threshold / 2;
         SeamEvidence ey = SeamEvidence.of(image, false, 0, w);
-        SeamComb.Period py = SeamComb.find(ey, null, tooth, threshold);
+        SeamComb.Period py = repeats(ey, SeamComb.find(ey, null, tooth, threshold), tooth);
         List<Band> rows = py != null ? seams(ey, py, tooth, threshold, stepWidth, 0, w)
                 : lone(ey, threshold, stepWidth, 0, w);
         // tile rows: the stripes between horizontal seams, each searched on its own
@@ -145,6 +147,13 @@ public final class SeamDetector {
             ex.add(SeamEvidence.of(image, true, y0, Math.max(y0 + 1, y1)));
         }
         SeamComb.Period[] px = commonPitch(ex, tooth, threshold);
+        boolean anyRepeat = false;
+        for (int s = 0; s < stripes; s++) {
+            anyRepeat |= repeats(ex.get(s), px[s], tooth) != null;
+        }
+        if (!anyRepeat) {
+            px = new SeamComb.Period[stripes];
+        }
         List<Band> cols = new ArrayList<>();
         int[] phases = new int[stripes];
         int blendX = 0;
@@ -178,6 +187,18 @@ public final class SeamDetector {
         List<Line> colLines = lines(SeamEvidence.of(image, true, 0, h), cols, threshold);
         List<Line> rowLines = lines(ey, rows, threshold);
         return new Found(cols, rows, regular, tiling, colLines, rowLines);
+    }
+
+    /**
+     * @return the period when its evidence repeats at one exact offset from most teeth (a step or a corner), else
+     *     null: a comb whose teeth only catch unrelated evidence within their one-pixel windows is no tiling
+     */
+    static SeamComb.Period repeats(SeamEvidence e, SeamComb.Period p, double tooth) {
+        if (p == null || p.strong() == 0) {
+            return p;
+        }
+        int[] b = p.borders(e.length());
+        return repeating(e, e.step, b, tooth).length > 0 || repeating(e, e.kink, b, tooth).length > 0 ? p : null;
     }
 
     /** One pitch for all stripes (the best total of strong teeth), each stripe with its own phase. */
@@ -298,7 +319,8 @@ public final class SeamDetector {
         for (int t : borders) {
             // the first and last tiles of a mosaic are whole, at least one step wide: a tooth closer than that to an
             // end is no seam unless it shows one
-            if ((n - t < p.pitch() || t < p.pitch()) && nearest(e, t, tooth) <= tooth) {
+            int slack = SeamComb.END_SLACK;
+            if ((n - t < p.pitch() - slack || t < p.pitch() - slack) && nearest(e, t, tooth) <= tooth) {
                 continue;
             }
             out.add(band(e, t, steps, kinks, stepWidth, from, to));
@@ -427,8 +449,13 @@ public final class SeamDetector {
         return new Band(first, last, strength, from, to, looks);
     }
 
-    /** Without a period: the strong edges that are not narrow lines, each a band of the requested width. */
-    static List<Band> lone(SeamEvidence e, double threshold, int stepWidth, int from, int to) {
+    /**
+     * Without a period: the strong edges that are not narrow lines, each a band of the requested width. Without the
+     * support of repeating teeth an edge must exceed {@link #LONE} times the threshold (structure that runs along a
+     * line gives evidence of the size of the threshold now and then).
+     */
+    static List<Band> lone(SeamEvidence e, double thresholdIn, int stepWidth, int from, int to) {
+        double threshold = LONE * thresholdIn;
         int n = e.length();
         List<Band> out = new ArrayList<>();
         for (int b = 1; b < n; b++) {
