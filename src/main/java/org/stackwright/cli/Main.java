@@ -4,7 +4,7 @@ import java.io.PrintStream;
 import java.util.List;
 
 import org.stackwright.op.Operation;
-import org.stackwright.op.Operations;
+import org.stackwright.registry.Operations;
 
 import picocli.CommandLine;
 import picocli.CommandLine.Model.CommandSpec;

@@ -4,7 +4,7 @@ import ij.IJ;
 
 import org.stackwright.cli.Version;
 import org.stackwright.op.Operation;
-import org.stackwright.op.Operations;
+import org.stackwright.registry.Operations;
 
 /** The About box: version, what the suite does, the operations of this build and the cautions. */
 final class About {

@@ -19,7 +19,7 @@ import ij.plugin.PlugIn;
 
 import org.stackwright.op.Json;
 import org.stackwright.op.Operation;
-import org.stackwright.op.Operations;
+import org.stackwright.registry.Operations;
 import org.stackwright.op.Param;
 import org.stackwright.parallel.CancelledException;
 import org.stackwright.volume.OutputFiles;

@@ -56,12 +56,12 @@ public record ResidualModel(double offset, double background, NoiseModel noise) 
             }
             case "gaussian" -> {
                 if (!(readNoise > 0) || !Double.isFinite(readNoise)) {
-                    throw new IllegalArgumentException("read-noise = " + readNoise + ": noise gaussian needs the noise"
+                    throw new IllegalArgumentException("read-noise = " + readNoise + ": likelihood gaussian needs the noise"
                             + " standard deviation in ADU as read-noise, a positive number");
                 }
                 return new GaussianNoise(readNoise);
             }
-            default -> throw new IllegalArgumentException("noise = '" + name
+            default -> throw new IllegalArgumentException("likelihood = '" + name
                     + "' is not allowed; choose one of poisson, poisson-gaussian, gaussian");
         }
     }

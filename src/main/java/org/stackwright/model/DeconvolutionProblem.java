@@ -1,6 +1,8 @@
 package org.stackwright.model;
 
 import org.stackwright.fft.Convolution;
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
@@ -42,36 +44,6 @@ public final class DeconvolutionProblem {
         ZERO_SAME
     }
 
-    /**
-     * Camera and background, all in ADU.
-     *
-     * @param offset camera offset (bias)
-     * @param background background above the offset (light that is not the object), at least 0
-     * @param gain ADU per photo-electron, positive
-     * @param readNoise read noise standard deviation, at least 0
-     */
-    public record Camera(double offset, double background, double gain, double readNoise) {
-        public Camera {
-            if (!(gain > 0) || !Double.isFinite(gain)) {
-                throw new IllegalArgumentException("gain = " + gain + " is not allowed; give a positive number of ADU per photo-electron");
-            }
-            if (!(readNoise >= 0) || !Double.isFinite(readNoise)) {
-                throw new IllegalArgumentException("read-noise = " + readNoise + " is not allowed; give 0 or more ADU");
-            }
-            if (!(background >= 0) || !Double.isFinite(background)) {
-                throw new IllegalArgumentException("background = " + background + " is not allowed; give 0 or more ADU above the offset");
-            }
-            if (!Double.isFinite(offset)) {
-                throw new IllegalArgumentException("offset = " + offset + " is not a finite number of ADU");
-            }
-        }
-
-        /** Photon-counting data: no offset, no background, gain 1, no read noise. */
-        public static Camera photonCounting() {
-            return new Camera(0, 0, 1, 0);
-        }
-    }
-
     static final float NO_DATA = -1f;
     private static final double SUPPORT_CUTOFF = 1e-3;
     private static final double TINY = 1e-12;
@@ -85,6 +57,7 @@ public final class DeconvolutionProblem {
     private final VoxelSize voxel;
     private final Boundary boundary;
     private final Camera camera;
+    private final double backgroundAdu;
     /** data on the image window (w x h x d), photo-electrons, NO_DATA where a pixel carries no likelihood */
     private final float[] y;
     private final float[] norm;
@@ -99,15 +72,30 @@ public final class DeconvolutionProblem {
      * @param psf the PSF at the data's voxel size (odd sizes, unit sum: see {@code psf.PsfChecks}); not modified
      * @param mask pixels that carry no likelihood (nonzero = untrusted), one per data voxel, or null
      * @param boundary how the edges are treated
-     * @param camera offset, background, gain and read noise
+     * @param camera offset, gain and read noise (its full scale is not used)
+     * @param backgroundAdu background above the offset in ADU (light that is not the object), 0 or more
      * @param workers the threads (not closed here)
      */
-    public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera, Workers workers) {
-        this(data, psf, mask, boundary, camera, workers, Float.NaN);
+    public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
+            double backgroundAdu, Workers workers) {
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, FftEngines.standard(), Float.NaN);
+    }
+
+    /**
+     * As above, with the FFT engine of the blur.
+     *
+     * @param fft the FFT engine (a run's choice: {@code op.RunContext#fft()})
+     */
+    public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
+            double backgroundAdu, Workers workers, FftEngine fft) {
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, fft, Float.NaN);
     }
 
     private DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
-            Workers workers, float start) {
+            double backgroundAdu, Workers workers, FftEngine fft, float start) {
+        if (!(backgroundAdu >= 0) || !Double.isFinite(backgroundAdu)) {
+            throw new IllegalArgumentException("background = " + backgroundAdu + " is not allowed; give 0 or more ADU above the offset");
+        }
         if (mask != null && mask.length != data.size()) {
             throw new IllegalArgumentException("mask has " + mask.length + " pixels but the image " + data.shape()
                     + " has " + data.size() + "; give a mask of the same size");
@@ -118,6 +106,7 @@ public final class DeconvolutionProblem {
         this.voxel = data.voxel();
         this.boundary = boundary;
         this.camera = camera;
+        this.backgroundAdu = backgroundAdu;
         this.workers = workers;
         if (boundary == Boundary.PERIODIC) {
             nx = w;
@@ -130,10 +119,10 @@ public final class DeconvolutionProblem {
         }
         Volume.checkSize(nx, ny, nz);
         int n = nx * ny * nz;
-        this.blur = new BlurOperator(psf, nx, ny, nz, workers);
+        this.blur = new BlurOperator(psf, nx, ny, nz, workers, fft);
         this.y = new float[w * h * d];
-        double s = (camera.readNoise() / camera.gain()) * (camera.readNoise() / camera.gain());
-        this.background = (float) (camera.background() / camera.gain() + s);
+        double s = camera.readNoiseShift();
+        this.background = (float) (backgroundAdu / camera.gain() + s);
         float[] src = data.data();
         int count = 0;
         for (int i = 0; i < y.length; i++) {
@@ -150,23 +139,26 @@ public final class DeconvolutionProblem {
                     + ": nothing is left to deconvolve");
         }
         this.trusted = count;
-        this.norm = new float[n];
         if (boundary == Boundary.ZERO_SAME) {
+            this.norm = new float[n];
             for (int i = 0; i < n; i++) {
                 norm[i] = inWindow(i) ? 1f : 0f;
             }
             this.start = start;
         } else {
+            // H^T w computed in the blur's in-place work array (no FFT work buffer kept for the run), then trimmed
+            float[] t = blur.newWorkArray();
             for (int z = 0; z < d; z++) {
                 for (int yy = 0; yy < h; yy++) {
                     int row = (z * ny + yy) * nx;
                     int wrow = (z * h + yy) * w;
                     for (int x = 0; x < w; x++) {
-                        norm[row + x] = y[wrow + x] >= 0 ? 1f : 0f;
+                        t[row + x] = y[wrow + x] >= 0 ? 1f : 0f;
                     }
                 }
             }
-            blur.applyAdjoint(norm, norm);
+            blur.applyAdjoint(t, t);
+            this.norm = t.length == n ? t : java.util.Arrays.copyOf(t, n);
             float max = 0;
             for (float v : norm) {
                 max = Math.max(max, v);
@@ -186,7 +178,8 @@ public final class DeconvolutionProblem {
      * no normalisation (H^T 1 taken as 1), no background, start value 0.5 everywhere.
      */
     public static DeconvolutionProblem compatible(Volume data, Volume psf, Workers workers) {
-        return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), workers, 0.5f);
+        return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), 0, workers,
+                FftEngines.standard(), 0.5f);
     }
 
     private boolean inWindow(int i) {
@@ -237,6 +230,11 @@ public final class DeconvolutionProblem {
 
     public Camera camera() {
         return camera;
+    }
+
+    /** @return the background above the offset in ADU, as given */
+    public double backgroundAdu() {
+        return backgroundAdu;
     }
 
     public Workers workers() {

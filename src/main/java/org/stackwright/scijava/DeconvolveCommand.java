@@ -61,8 +61,8 @@ public final class DeconvolveCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "acceleration")
     private String acceleration;
 
-    @Parameter(persist = false, required = false, label = "noise")
-    private String noise;
+    @Parameter(persist = false, required = false, label = "likelihood")
+    private String likelihood;
 
     @Parameter(persist = false, required = false, label = "replicas")
     private Integer replicas;
@@ -81,6 +81,9 @@ public final class DeconvolveCommand extends OperationCommand {
 
     @Parameter(persist = false, required = false, label = "immersion-index")
     private Double immersionIndex;
+
+    @Parameter(persist = false, required = false, label = "fft")
+    private String fft;
 
     @Parameter(persist = false, required = false, label = "record")
     private File record;

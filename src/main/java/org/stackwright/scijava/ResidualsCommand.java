@@ -31,8 +31,8 @@ public final class ResidualsCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "background")
     private Double background;
 
-    @Parameter(persist = false, required = false, label = "noise")
-    private String noise;
+    @Parameter(persist = false, required = false, label = "likelihood")
+    private String likelihood;
 
     @Parameter(persist = false, required = false, label = "gain")
     private Double gain;
@@ -45,6 +45,9 @@ public final class ResidualsCommand extends OperationCommand {
 
     @Parameter(type = ItemIO.OUTPUT, label = "summary")
     private ImagePlus summary;
+
+    @Parameter(persist = false, required = false, label = "fft")
+    private String fft;
 
     @Parameter(persist = false, required = false, label = "record")
     private File record;

@@ -1,6 +1,7 @@
 package org.stackwright.simulate;
 
 import org.stackwright.fft.Convolution;
+import org.stackwright.model.Camera;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Padding;
 import org.stackwright.volume.Volume;

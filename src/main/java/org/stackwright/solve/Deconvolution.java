@@ -5,6 +5,7 @@ import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 
+import org.stackwright.model.Camera;
 import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.op.InputChecks;
 import org.stackwright.op.MaskChecks;
@@ -65,7 +66,7 @@ public final class Deconvolution {
         if (estimated) {
             bg = BackgroundEstimate.estimate(data, mask, s.offset());
         }
-        DeconvolutionProblem.Camera camera = new DeconvolutionProblem.Camera(s.offset(), bg, s.gain(), s.readNoise());
+        Camera camera = s.camera();
         DeconvolutionProblem.Boundary boundary = s.boundary().equals("periodic")
                 ? DeconvolutionProblem.Boundary.PERIODIC : DeconvolutionProblem.Boundary.EXTENDED;
         Solver solver = s.solver();
@@ -79,7 +80,7 @@ public final class Deconvolution {
         DeconvolutionProblem problem;
         Volume model;
         try (Workers workers = new Workers(ctx.threads())) {
-            problem = new DeconvolutionProblem(data, p, mask, boundary, camera, workers);
+            problem = new DeconvolutionProblem(data, p, mask, boundary, camera, bg, workers, ctx.fft());
             sol = solver.solve(problem, ctx, listener);
             model = withModel ? forwardModel(problem, sol.estimate(), bg) : null;
         }
@@ -105,7 +106,7 @@ public final class Deconvolution {
         set.put("regularization", s.method().equals("richardson-lucy") ? 0.0 : s.lambda());
         set.put("boundary", s.boundary());
         set.put("acceleration", s.method().equals("richardson-lucy") && s.accelerated());
-        set.put("noise", s.noise());
+        set.put("likelihood", s.likelihood());
         set.put("threads", ctx.threads());
         r.put("settings", set);
         Map<String, Object> psfInfo = new LinkedHashMap<>();
@@ -120,6 +121,8 @@ public final class Deconvolution {
         r.put("voxel_um", List.of(data.voxel().x(), data.voxel().y(), data.voxel().z()));
         r.put("grid_shape", problem.gridWidth() + "x" + problem.gridHeight() + "x" + problem.gridDepth());
         r.put("trusted_pixels", problem.trustedPixels());
+        r.put("fft_engine", problem.blur().fftEngine());
+        r.put("fft_planning", problem.blur().fftPlanning());
         r.put("peak_memory_estimate_bytes", need);
         r.put("result_units", "ADU above the camera offset (background removed)");
         return new Outcome(result, sol, r, model);

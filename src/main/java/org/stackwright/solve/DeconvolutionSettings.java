@@ -14,10 +14,10 @@ import java.util.List;
  * @param regularization lambda, or NaN for the method's default ({@link #defaultRegularization})
  * @param boundary "extended" or "periodic"
  * @param accelerated vector extrapolation for richardson-lucy
- * @param noise data term of total-variation: "poisson" or "gaussian"
+ * @param likelihood data term of total-variation (and of gaussian noise replicas): "poisson" or "gaussian"
  */
 public record DeconvolutionSettings(String method, Stopping stopping, double offset, double background, double gain,
-        double readNoise, double regularization, String boundary, boolean accelerated, String noise) {
+        double readNoise, double regularization, String boundary, boolean accelerated, String likelihood) {
 
     /** The method names (CLI words). */
     public static final List<String> METHODS = List.of("richardson-lucy", "richardson-lucy-tv", "total-variation", "wiener");
@@ -29,8 +29,8 @@ public record DeconvolutionSettings(String method, Stopping stopping, double off
         if (!boundary.equals("extended") && !boundary.equals("periodic")) {
             throw new IllegalArgumentException("boundary = '" + boundary + "' is not allowed; choose extended or periodic");
         }
-        if (!noise.equals("poisson") && !noise.equals("gaussian")) {
-            throw new IllegalArgumentException("noise = '" + noise + "' is not allowed; choose poisson or gaussian");
+        if (!likelihood.equals("poisson") && !likelihood.equals("gaussian")) {
+            throw new IllegalArgumentException("likelihood = '" + likelihood + "' is not allowed; choose poisson or gaussian");
         }
     }
 
@@ -60,22 +60,27 @@ public record DeconvolutionSettings(String method, Stopping stopping, double off
 
     /** @return a copy with another method and lambda */
     public DeconvolutionSettings withMethod(String m, double lambda) {
-        return new DeconvolutionSettings(m, stopping, offset, background, gain, readNoise, lambda, boundary, accelerated, noise);
+        return new DeconvolutionSettings(m, stopping, offset, background, gain, readNoise, lambda, boundary, accelerated, likelihood);
     }
 
     /** @return a copy with another stopping rule */
     public DeconvolutionSettings withStopping(Stopping s) {
-        return new DeconvolutionSettings(method, s, offset, background, gain, readNoise, regularization, boundary, accelerated, noise);
+        return new DeconvolutionSettings(method, s, offset, background, gain, readNoise, regularization, boundary, accelerated, likelihood);
     }
 
     /** @return a copy with another boundary */
     public DeconvolutionSettings withBoundary(String b) {
-        return new DeconvolutionSettings(method, stopping, offset, background, gain, readNoise, regularization, b, accelerated, noise);
+        return new DeconvolutionSettings(method, stopping, offset, background, gain, readNoise, regularization, b, accelerated, likelihood);
     }
 
     /** @return a copy with camera settings */
     public DeconvolutionSettings withCamera(double off, double bg, double g, double rn) {
-        return new DeconvolutionSettings(method, stopping, off, bg, g, rn, regularization, boundary, accelerated, noise);
+        return new DeconvolutionSettings(method, stopping, off, bg, g, rn, regularization, boundary, accelerated, likelihood);
+    }
+
+    /** @return the camera these settings describe (no saturation level; background apart) */
+    public org.stackwright.model.Camera camera() {
+        return org.stackwright.model.Camera.of(gain, offset, readNoise);
     }
 
     /** @return the solver these settings describe */
@@ -84,7 +89,7 @@ public record DeconvolutionSettings(String method, Stopping stopping, double off
             case "richardson-lucy" -> new RichardsonLucy(stopping, accelerated);
             case "richardson-lucy-tv" -> new RichardsonLucyTv(stopping, lambda());
             case "total-variation" -> new PrimalDualTv(stopping, lambda(),
-                    noise.equals("poisson") ? PrimalDualTv.DataTerm.POISSON : PrimalDualTv.DataTerm.GAUSSIAN);
+                    likelihood.equals("poisson") ? PrimalDualTv.DataTerm.POISSON : PrimalDualTv.DataTerm.GAUSSIAN);
             default -> new WienerFilter(lambda());
         };
     }

@@ -7,6 +7,8 @@ import java.util.Map;
 
 import ij.ImagePlus;
 
+import org.stackwright.fft.FftEngines;
+import org.stackwright.op.FftChoice;
 import org.stackwright.op.Limits;
 import org.stackwright.op.MaskChecks;
 import org.stackwright.op.Operation;
@@ -62,7 +64,7 @@ public final class DeconvolveOperation implements Operation {
                 Param.choice("boundary", "extended", List.of("extended", "periodic"),
                         "extended = object larger than the image, no wrap-around; periodic = wraps around (smaller, faster)"),
                 Param.choice("acceleration", "on", List.of("on", "off"), "vector extrapolation for richardson-lucy"),
-                Param.choice("noise", "poisson", List.of("poisson", "gaussian"), "data term of total-variation; with "
+                Param.choice("likelihood", "poisson", List.of("poisson", "gaussian"), "data term of total-variation; with "
                         + "replicas also their noise (gaussian: additive, read-noise as standard deviation)"),
                 Param.integer("replicas", 0, 0, NoiseReplicas.MAX_REPLICAS, "noise replicas for the spread map: 0 = off, "
                         + "2 to " + NoiseReplicas.MAX_REPLICAS + "; costs that many more deconvolutions"),
@@ -72,12 +74,15 @@ public final class DeconvolveOperation implements Operation {
                 Param.number("na", null, 0.01, 1.7, "", "numerical aperture, for the sampling check (optional)"),
                 Param.number("wavelength", null, 200, 2000, "nm", "emission wavelength, for the sampling check (optional)"),
                 Param.number("immersion-index", null, 1.0, 2.0, "", "immersion index, for the sampling check (optional)"),
+                FftChoice.param(),
                 Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history"));
     }
 
     @Override
-    public Result run(Values v, RunContext ctx) {
+    public Result run(Values v, RunContext door) {
         DeconvolutionSettings s = settings(v);
+        FftEngines.Choice fft = FftChoice.choose(v);
+        RunContext ctx = FftChoice.context(door, fft);
         ImagePlus in = v.image("input");
         ImagePlus psfImp = v.image("psf");
         if (in.getNChannels() > 1 || in.getNFrames() > 1) {
@@ -98,7 +103,7 @@ public final class DeconvolveOperation implements Operation {
             mask = MaskChecks.check("mask", ImagePlusAdapter.toVolume(m), data, ctx);
         }
         int replicas = v.integer("replicas");
-        NoiseReplicas.Noise noise = s.noise().equals("gaussian") ? NoiseReplicas.Noise.GAUSSIAN : NoiseReplicas.Noise.CAMERA;
+        NoiseReplicas.Noise noise = s.likelihood().equals("gaussian") ? NoiseReplicas.Noise.GAUSSIAN : NoiseReplicas.Noise.CAMERA;
         if (replicas == 0 && (v.given("spread-output") || v.given("bias-output"))) {
             throw new IllegalArgumentException("replicas = 0 gives no spread-output or bias-output; give replicas 2 to "
                     + NoiseReplicas.MAX_REPLICAS);
@@ -111,6 +116,7 @@ public final class DeconvolveOperation implements Operation {
                 : Deconvolution.run(data, psf, psfImp.getTitle(), mask, s, ctx, IterationListener.NONE);
         Result r = new Result();
         r.image("output", ImagePlusAdapter.toImagePlus(out.result(), in.getTitle() + "-deconvolve"));
+        FftChoice.note(r, fft);
         for (Map.Entry<String, Object> e : out.record().entrySet()) {
             r.record(e.getKey(), e.getValue());
         }
@@ -159,7 +165,7 @@ public final class DeconvolveOperation implements Operation {
         }
         Stopping stopping = new Stopping(StopRule.of(v.choice("stop")), v.integer("iterations"), v.number("tolerance"));
         return new DeconvolutionSettings(method, stopping, v.number("offset"), bg, v.number("gain"), v.number("read-noise"),
-                lambda, v.choice("boundary"), v.choice("acceleration").equals("on"), v.choice("noise"));
+                lambda, v.choice("boundary"), v.choice("acceleration").equals("on"), v.choice("likelihood"));
     }
 
     /**

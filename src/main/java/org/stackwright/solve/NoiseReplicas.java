@@ -8,7 +8,7 @@ import org.apache.commons.math3.random.Well19937c;
 import org.stackwright.op.MemoryCheck;
 import org.stackwright.op.RunContext;
 import org.stackwright.parallel.Workers;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.volume.Volume;
 
 /**
@@ -109,8 +109,8 @@ public final class NoiseReplicas {
         double[] mean = new double[n];
         double[] m2 = new double[n];
         Volume photons = model.withData(scaled(model.data(), 1.0 / s.gain()));
-        Camera camera = new Camera(s.gain(), s.offset(), s.readNoise(), Double.POSITIVE_INFINITY);
-        RunContext quiet = new RunContext(ctx.threads(), null, null, ctx::isCancelled);
+        Camera camera = s.camera();
+        RunContext quiet = new RunContext(ctx.threads(), null, null, ctx::isCancelled).withFft(ctx.fft());
         try (Workers workers = new Workers(ctx.threads())) {
             for (int r = 0; r < replicas; r++) {
                 ctx.checkCancelled();
@@ -167,7 +167,7 @@ public final class NoiseReplicas {
 
     private static void checkNoise(Noise noise, DeconvolutionSettings s) {
         if (noise == Noise.GAUSSIAN && !(s.readNoise() > 0)) {
-            throw new IllegalArgumentException("read-noise = " + s.readNoise() + " is not allowed with noise gaussian and "
+            throw new IllegalArgumentException("read-noise = " + s.readNoise() + " is not allowed with likelihood gaussian and "
                     + "replicas: the replicas' Gaussian noise has the read noise as standard deviation; give a positive read-noise");
         }
     }

@@ -29,7 +29,7 @@ import org.junit.jupiter.params.provider.MethodSource;
 import org.stackwright.op.MemoryCheck;
 import org.stackwright.parallel.Workers;
 import org.stackwright.psf.GaussianPsf;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.simulate.Simulation;
 import org.stackwright.simulate.Specimen;
 import org.stackwright.volume.TiffFiles;

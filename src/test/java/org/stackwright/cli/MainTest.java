@@ -13,7 +13,7 @@ import java.nio.file.Path;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 import org.stackwright.op.Operation;
-import org.stackwright.op.Operations;
+import org.stackwright.registry.Operations;
 
 /** The command line in-process through {@link Main#run}: help, exit codes, messages that name the option. */
 class MainTest {

@@ -15,7 +15,7 @@ import org.junit.jupiter.api.Assumptions;
 import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
-import org.stackwright.op.Operations;
+import org.stackwright.registry.Operations;
 import org.stackwright.volume.ImagePlusAdapter;
 import org.stackwright.volume.TiffFiles;
 import org.stackwright.volume.Volume;

@@ -17,7 +17,7 @@ import java.util.regex.Pattern;
 
 import org.junit.jupiter.api.Test;
 import org.stackwright.op.Operation;
-import org.stackwright.op.Operations;
+import org.stackwright.registry.Operations;
 import org.stackwright.testing.ExpectedOperations;
 
 /** plugins.config: one menu entry per operation under Plugins>Stackwright, grouped, with labels of our own. */

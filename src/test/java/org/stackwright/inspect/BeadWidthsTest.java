@@ -7,7 +7,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import java.util.List;
 
 import org.junit.jupiter.api.Test;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
 

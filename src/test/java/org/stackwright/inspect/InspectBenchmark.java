@@ -13,7 +13,7 @@ import org.stackwright.fft.RealFft3D;
 import org.stackwright.model.PoissonNoise;
 import org.stackwright.parallel.Workers;
 import org.stackwright.psf.GaussianPsf;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.simulate.Specimen;
 import org.stackwright.volume.TiffFiles;
 import org.stackwright.volume.Volume;

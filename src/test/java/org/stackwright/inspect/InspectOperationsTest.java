@@ -20,10 +20,10 @@ import ij.process.ImageProcessor;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 import org.stackwright.cli.Main;
-import org.stackwright.op.Operations;
+import org.stackwright.registry.Operations;
 import org.stackwright.parallel.Workers;
 import org.stackwright.psf.GaussianPsf;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.simulate.Specimen;
 import org.stackwright.volume.TiffFiles;
 import org.stackwright.volume.Volume;
@@ -74,7 +74,7 @@ class InspectOperationsTest {
         writeScene();
         String[] r = run("residuals", "--input", dir.resolve("data.tif").toString(), "--estimate",
                 dir.resolve("est.tif").toString(), "--psf", dir.resolve("psf.tif").toString(), "--offset", "100",
-                "--background", "10", "--noise", "poisson-gaussian", "--gain", "1", "--read-noise", "2", "--output",
+                "--background", "10", "--likelihood", "poisson-gaussian", "--gain", "1", "--read-noise", "2", "--output",
                 dir.resolve("res.tif").toString(), "--summary", dir.resolve("summary.png").toString(), "--record",
                 dir.resolve("r.json").toString(), "--threads", "2");
         assertEquals("0", r[0], r[2]);
@@ -98,7 +98,7 @@ class InspectOperationsTest {
     void residualsRefuseBadSettingsNamingThem() {
         writeScene();
         String[] r = run("residuals", "--input", dir.resolve("data.tif").toString(), "--estimate",
-                dir.resolve("est.tif").toString(), "--psf", dir.resolve("psf.tif").toString(), "--noise", "gaussian",
+                dir.resolve("est.tif").toString(), "--psf", dir.resolve("psf.tif").toString(), "--likelihood", "gaussian",
                 "--output", dir.resolve("res.tif").toString());
         assertEquals("2", r[0]);
         assertTrue(r[2].contains("read-noise"), r[2]);

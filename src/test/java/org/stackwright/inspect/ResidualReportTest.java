@@ -10,7 +10,7 @@ import org.junit.jupiter.api.Test;
 import org.stackwright.model.PoissonNoise;
 import org.stackwright.parallel.Workers;
 import org.stackwright.psf.GaussianPsf;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.simulate.Specimen;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;

@@ -10,7 +10,7 @@ import java.util.SplittableRandom;
 
 import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.volume.Padding;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;

@@ -27,7 +27,7 @@ import org.scijava.command.CommandInfo;
 import org.scijava.command.CommandModule;
 import org.scijava.command.CommandService;
 import org.stackwright.op.Operation;
-import org.stackwright.op.Operations;
+import org.stackwright.registry.Operations;
 import org.stackwright.op.Param;
 import org.stackwright.op.RunContext;
 import org.stackwright.op.Values;

@@ -8,7 +8,7 @@ import org.junit.jupiter.api.Test;
 import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.op.RunContext;
 import org.stackwright.parallel.Workers;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.simulate.Simulation;
 import org.stackwright.volume.Volume;
 
@@ -74,7 +74,7 @@ class MaskedDeconvolutionTest {
     /** @return NRMSE near the defects and elsewhere, after 30 RL iterations */
     private static double[] errors(Volume data, byte[] mask, boolean[] near, Volume truth, Workers w) {
         DeconvolutionProblem p = new DeconvolutionProblem(data, TestSpecimens.psf(), mask,
-                DeconvolutionProblem.Boundary.EXTENDED, new DeconvolutionProblem.Camera(0, 10, 1, 0), w);
+                DeconvolutionProblem.Boundary.EXTENDED, Camera.of(1, 0, 0), 10, w);
         Solution s = new RichardsonLucy(Stopping.fixed(30), false).solve(p, RunContext.quiet(2), IterationListener.NONE);
         float[] x = p.toVolume(s.estimate()).data();
         float[] t = truth.data();

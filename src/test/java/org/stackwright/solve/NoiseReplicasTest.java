@@ -11,7 +11,7 @@ import org.apache.commons.math3.random.Well19937c;
 import org.junit.jupiter.api.Test;
 import org.stackwright.op.RunContext;
 import org.stackwright.psf.GaussianPsf;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.simulate.Simulation;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;

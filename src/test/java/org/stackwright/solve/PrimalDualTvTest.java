@@ -4,6 +4,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import org.junit.jupiter.api.Test;
 import org.stackwright.fft.Convolution;
+import org.stackwright.model.Camera;
 import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.op.RunContext;
 import org.stackwright.parallel.Workers;
@@ -21,7 +22,7 @@ class PrimalDualTvTest {
         try (Workers w = new Workers(2)) {
             Volume data = SpecimenDeconvolutionTest.poisson(Convolution.convolve(truth, TestSpecimens.psf(), w), 1, 4);
             DeconvolutionProblem p = new DeconvolutionProblem(data, TestSpecimens.psf(), null,
-                    DeconvolutionProblem.Boundary.EXTENDED, new DeconvolutionProblem.Camera(0, 1, 1, 0), w);
+                    DeconvolutionProblem.Boundary.EXTENDED, Camera.of(1, 0, 0), 1, w);
             double tol = 1e-5;
             Solution s = new PrimalDualTv(new Stopping(StopRule.CHANGE, 3000, tol), 0.1, PrimalDualTv.DataTerm.POISSON)
                     .solve(p, RunContext.quiet(2), IterationListener.NONE);

@@ -7,7 +7,7 @@ import org.junit.jupiter.api.Test;
 import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.op.RunContext;
 import org.stackwright.parallel.Workers;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.simulate.Simulation;
 import org.stackwright.volume.Volume;
 
@@ -25,7 +25,7 @@ class RichardsonLucyTest {
         Simulation.Outcome sim = TestSpecimens.cells(40, 36, 12, 1, 0, Camera.photonCounting(), 11);
         try (Workers w = new Workers(2)) {
             DeconvolutionProblem p = new DeconvolutionProblem(sim.data(), TestSpecimens.psf(), null,
-                    DeconvolutionProblem.Boundary.PERIODIC, DeconvolutionProblem.Camera.photonCounting(), w);
+                    DeconvolutionProblem.Boundary.PERIODIC, Camera.photonCounting(), 0, w);
             double dataFlux = sim.data().sum();
             float[] x = new float[p.gridLength()];
             p.initialEstimate(x);
@@ -61,9 +61,9 @@ class RichardsonLucyTest {
         }
         try (Workers w = new Workers(1)) {
             DeconvolutionProblem p1 = new DeconvolutionProblem(sim.data(), TestSpecimens.psf(), null,
-                    DeconvolutionProblem.Boundary.EXTENDED, new DeconvolutionProblem.Camera(0, 5, 1, 0), w);
+                    DeconvolutionProblem.Boundary.EXTENDED, Camera.of(1, 0, 0), 5, w);
             DeconvolutionProblem p2 = new DeconvolutionProblem(adu, TestSpecimens.psf(), null,
-                    DeconvolutionProblem.Boundary.EXTENDED, new DeconvolutionProblem.Camera(100, 12.5, 2.5, 0), w);
+                    DeconvolutionProblem.Boundary.EXTENDED, Camera.of(2.5, 100, 0), 12.5, w);
             Volume r1 = p1.toVolume(new RichardsonLucy(Stopping.fixed(10), false).solve(p1, RunContext.quiet(1), IterationListener.NONE).estimate());
             Volume r2 = p2.toVolume(new RichardsonLucy(Stopping.fixed(10), false).solve(p2, RunContext.quiet(1), IterationListener.NONE).estimate());
             float[] d1 = r1.data();

@@ -11,7 +11,7 @@ import org.stackwright.fft.Convolution;
 import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.op.RunContext;
 import org.stackwright.parallel.Workers;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.simulate.Simulation;
 import org.stackwright.volume.Volume;
 
@@ -26,7 +26,7 @@ class SpecimenDeconvolutionTest {
 
     static DeconvolutionProblem problem(Simulation.Outcome sim, DeconvolutionProblem.Boundary b, Workers w) {
         return new DeconvolutionProblem(sim.data(), TestSpecimens.psf(), null, b,
-                new DeconvolutionProblem.Camera(0, BACKGROUND, 1, 0), w);
+                Camera.of(1, 0, 0), BACKGROUND, w);
     }
 
     /** NRMSE of the estimate x (on the problem grid) against the truth. */
@@ -119,7 +119,7 @@ class SpecimenDeconvolutionTest {
         try (Workers w = new Workers(2)) {
             Volume data = poisson(Convolution.convolve(truth, TestSpecimens.psf(), w), 1, 7);
             DeconvolutionProblem p = new DeconvolutionProblem(data, TestSpecimens.psf(), null,
-                    DeconvolutionProblem.Boundary.EXTENDED, new DeconvolutionProblem.Camera(0, 1, 1, 0), w);
+                    DeconvolutionProblem.Boundary.EXTENDED, Camera.of(1, 0, 0), 1, w);
             float[] x = new float[p.gridLength()];
             p.initialEstimate(x);
             double[] bestRl = {Double.POSITIVE_INFINITY};

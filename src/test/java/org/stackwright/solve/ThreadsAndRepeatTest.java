@@ -10,7 +10,7 @@ import org.junit.jupiter.api.Test;
 import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.op.RunContext;
 import org.stackwright.parallel.Workers;
-import org.stackwright.simulate.Camera;
+import org.stackwright.model.Camera;
 import org.stackwright.simulate.Simulation;
 import org.stackwright.testing.VolumeAssert;
 
@@ -44,7 +44,7 @@ class ThreadsAndRepeatTest {
     private static float[] run(Solver s, Simulation.Outcome sim, int threads) {
         try (Workers w = new Workers(threads)) {
             DeconvolutionProblem p = new DeconvolutionProblem(sim.data(), TestSpecimens.psf(), null,
-                    DeconvolutionProblem.Boundary.EXTENDED, new DeconvolutionProblem.Camera(100, 20, 2, 3), w);
+                    DeconvolutionProblem.Boundary.EXTENDED, Camera.of(2, 100, 3), 20, w);
             return s.solve(p, RunContext.quiet(threads), IterationListener.NONE).estimate();
         }
     }

@@ -1,36 +1,46 @@
-package org.stackwright.simulate;
+package org.stackwright.model;
 
 import org.apache.commons.math3.random.RandomGenerator;
 import org.apache.commons.math3.random.Well19937c;
 import org.stackwright.volume.Volume;
 
 /**
- * A camera model: expected photons per pixel become counts by Poisson photon noise, are multiplied by the gain
- * (ADU per photo-electron), get Gaussian read noise (ADU) and an offset (ADU), and are clipped to the camera's
- * range. This is the common Poisson-Gaussian model of CCD / sCMOS cameras (common practice; see
- * ../shared/REFERENCES.md, "Poisson-Gaussian camera model").
+ * The one description of a camera that every part uses: the solvers and the residual view read it to model the
+ * noise, the noise replicas and the simulator draw images from it. Expected photons per pixel become counts by
+ * Poisson photon noise, are multiplied by the gain (ADU per photo-electron), get Gaussian read noise (ADU) and an
+ * offset (ADU), and are clipped to the camera's range. This is the common Poisson-Gaussian model of CCD / sCMOS
+ * cameras (common practice, no source; see ../shared/REFERENCES.md, "Poisson-Gaussian camera model"): a pixel of
+ * mean m ADU above the offset has variance gain * m + readNoise^2.
+ *
+ * <p>The background (light that is not the object) is not a property of the camera; the forward model carries it
+ * beside the camera ({@link DeconvolutionProblem}).
  *
  * @param gain ADU per photo-electron, positive
  * @param offset camera offset (bias) in ADU
  * @param readNoise read noise standard deviation in ADU, zero or more
- * @param fullScale largest value the camera can give (saturation), ADU
+ * @param fullScale largest value the camera can give (saturation), ADU; infinite for none
  */
 public record Camera(double gain, double offset, double readNoise, double fullScale) {
 
     public Camera {
         if (!(gain > 0) || !Double.isFinite(gain)) {
-            throw new IllegalArgumentException("camera gain must be positive (given " + gain + ")");
+            throw new IllegalArgumentException("gain = " + gain + " is not allowed; give a positive number of ADU per photo-electron");
         }
         if (!(readNoise >= 0) || !Double.isFinite(readNoise)) {
-            throw new IllegalArgumentException("read noise must be zero or more (given " + readNoise + ")");
+            throw new IllegalArgumentException("read noise = " + readNoise + " is not allowed; give 0 or more ADU");
         }
         if (!Double.isFinite(offset)) {
-            throw new IllegalArgumentException("camera offset must be finite (given " + offset + ")");
+            throw new IllegalArgumentException("offset = " + offset + " is not a finite number of ADU");
         }
         if (!(fullScale > offset)) {
             throw new IllegalArgumentException("camera full scale must be above the offset " + offset + " (given "
                     + fullScale + ")");
         }
+    }
+
+    /** A camera without saturation. */
+    public static Camera of(double gain, double offset, double readNoise) {
+        return new Camera(gain, offset, readNoise, Double.POSITIVE_INFINITY);
     }
 
     /** A photon-counting detector: gain 1, no offset, no read noise, no saturation. */
@@ -41,6 +51,16 @@ public record Camera(double gain, double offset, double readNoise, double fullSc
     /** A 16-bit scientific camera: gain 1, offset 100 ADU, read noise 2 ADU, full scale 65535. */
     public static Camera scientific16bit() {
         return new Camera(1, 100, 2, 65535);
+    }
+
+    /** @return the read noise in photo-electrons squared, (readNoise / gain)^2: the shift of the shifted-Poisson model */
+    public double readNoiseShift() {
+        return (readNoise / gain) * (readNoise / gain);
+    }
+
+    /** @return the variance in ADU^2 of a pixel whose mean is {@code aboveOffset} ADU above the offset */
+    public double variance(double aboveOffset) {
+        return gain * Math.max(aboveOffset, 0) + readNoise * readNoise;
     }
 
     /**
@@ -57,15 +77,10 @@ public record Camera(double gain, double offset, double readNoise, double fullSc
         float[] out = new float[mu.length];
         for (int i = 0; i < mu.length; i++) {
             double m = Math.max(0, mu[i]);
-            double counts = m > 0 ? poisson(rng, m) : 0;
+            double counts = m > 0 ? PoissonSampler.sample(rng, m) : 0;
             double adu = gain * counts + offset + (readNoise > 0 ? readNoise * rng.nextGaussian() : 0);
             out[i] = (float) Math.min(fullScale, adu);
         }
         return expectedPhotons.withData(out);
-    }
-
-    /** One Poisson sample with the given mean, in constant expected time (see {@link PoissonSampler}). */
-    static double poisson(RandomGenerator rng, double mean) {
-        return PoissonSampler.sample(rng, mean);
     }
 }

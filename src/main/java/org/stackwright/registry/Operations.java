@@ -1,7 +1,9 @@
-package org.stackwright.op;
+package org.stackwright.registry;
 
 import java.util.List;
 import java.util.Optional;
+
+import org.stackwright.op.Operation;
 
 import org.stackwright.inspect.CompareOperation;
 import org.stackwright.inspect.ResidualsOperation;

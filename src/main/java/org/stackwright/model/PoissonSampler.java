@@ -1,4 +1,4 @@
-package org.stackwright.simulate;
+package org.stackwright.model;
 
 import org.apache.commons.math3.random.RandomGenerator;
 import org.apache.commons.math3.special.Gamma;

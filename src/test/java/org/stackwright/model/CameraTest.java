@@ -1,4 +1,4 @@
-package org.stackwright.simulate;
+package org.stackwright.model;
 
 import static org.junit.jupiter.api.Assertions.assertArrayEquals;
 import static org.junit.jupiter.api.Assertions.assertEquals;
