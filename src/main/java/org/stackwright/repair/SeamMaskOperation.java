@@ -19,8 +19,9 @@ import org.stackwright.volume.VoxelSize;
 /**
  * {@code seam-mask}: a mask of the tile seams of a stitched image, from the tile layout ({@link TileLayout}, checked
  * against the image when one is given) or found in the image from the periodicity of the tiling
- * ({@link SeamDetector}, reported by {@link SeamReport}); optionally reports per-tile gains ({@link TileLevelling})
- * and, only when asked for, writes a levelled copy.
+ * ({@link SeamDetector}, reported by {@link SeamReport}); optionally reports per-tile gains ({@link TileLevelling}),
+ * after taking out the shading all tiles share ({@link TileShading}) when asked, and, only when asked for, writes a
+ * levelled copy.
  */
 public final class SeamMaskOperation implements Operation {
 
@@ -51,10 +52,14 @@ public final class SeamMaskOperation implements Operation {
                 Param.number("threshold", 8.0, 2, 1000, "", "detect: sign-test z a seam must exceed (repeating seams "
                         + "need half of it in each tile)"),
                 Param.flag("level", "estimate a gain per tile from the bands beside the seams and report it"),
+                Param.flag("shading", "level: first estimate the shading all tiles share (a flat field from the "
+                        + "mosaic itself) and take it out; gains are then estimated on the corrected image"),
                 Param.number("offset", 0.0, -1e9, 1e9, "ADU", "level: camera offset (dark level) of the input"),
                 Param.integer("strip", 4, 1, 1000, "level: pixels used on each side of a seam"),
                 Param.outputImage("output", true, "the 8-bit seam mask, 255 = seam (TIFF)"),
-                Param.outputImage("levelled-output", false, "level: the input with each tile divided by its gain"),
+                Param.outputImage("levelled-output", false, "level: the input with each tile divided by its gain "
+                        + "(and by the shading with shading)"),
+                Param.outputImage("flat-field", false, "shading: the estimated shading of one tile, mean 1 (32-bit)"),
                 Param.outputFile("record", "run record with seam positions and gains (JSON)"));
     }
 
@@ -120,8 +125,25 @@ public final class SeamMaskOperation implements Operation {
                         + "odd rows are shifted by the overlap, so their gains are approximate");
             }
         }
+        if (v.flag("shading") && !v.flag("level")) {
+            throw new IllegalArgumentException("shading needs level: add --level");
+        }
+        if (v.given("flat-field") && !v.flag("shading")) {
+            throw new IllegalArgumentException("flat-field needs shading: add --level --shading");
+        }
         if (v.flag("level")) {
-            TileLevelling.Gains g = TileLevelling.estimate(img, colBands, rowBands, v.integer("strip"), v.number("offset"));
+            Volume base = img;
+            if (v.flag("shading")) {
+                ctx.progress(0.5, "estimating the shading of the tiles");
+                TileShading.Flat flat = TileShading.estimate(img, colBands, rowBands, v.number("offset"));
+                ShadingReport.report(flat, r);
+                base = TileShading.apply(img, colBands, rowBands, flat, v.number("offset"));
+                r.image("flat-field", ImagePlusAdapter.toImagePlus(ShadingReport.picture(flat, img.voxel()),
+                        input.getTitle() + "-flat-field"));
+            }
+            ctx.progress(0.7, "estimating the gains of the tiles");
+            TileLevelling.Gains g = TileLevelling.estimate(base, colBands, rowBands, v.integer("strip"),
+                    v.number("offset"));
             r.record("tile_gains", g.gains());
             r.record("tile_gain_rms_log_misfit", g.rmsLogResidual());
             for (int row = 0; row < g.rows(); row++) {
@@ -131,16 +153,18 @@ public final class SeamMaskOperation implements Operation {
                 }
                 r.line(sb.toString());
             }
-            r.line("gains are relative to the average tile; not applied unless levelled-output is given");
+            r.line("gains are relative to the average tile" + (v.flag("shading") ? ", measured after the shading "
+                    + "correction" : "") + "; not applied unless levelled-output is given");
             if (g.rmsLogResidual() > MISFIT_WARNING) {
                 ctx.warn(String.format(Locale.ROOT, "the tile gains disagree around the grid (rms misfit %.1f %%): a "
                         + "structure along a seam or a wrong offset biases them; do not level with them",
                         100 * g.rmsLogResidual()));
             }
-            if (v.given("levelled-output")) {
-                Volume lev = TileLevelling.apply(img, colBands, rowBands, g, v.number("offset"));
-                r.image("levelled-output", ImagePlusAdapter.toImagePlus(lev, input.getTitle() + "-levelled"));
-            }
+            // made whenever level is on; the doors keep it only when levelled-output is asked for
+            Volume lev = TileLevelling.apply(base, colBands, rowBands, g, v.number("offset"));
+            r.image("levelled-output", ImagePlusAdapter.toImagePlus(lev, input.getTitle() + "-levelled"));
+            r.line("levelled-output (when asked for): estimates, not measurements; seam bands are left as they were "
+                    + "(fill them with inpaint)");
         } else if (v.given("levelled-output")) {
             throw new IllegalArgumentException("levelled-output needs level: add --level");
         }
