@@ -1,7 +1,10 @@
 package org.stackwright.repair;
 
+import java.util.ArrayList;
+import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Locale;
+import java.util.Map;
 
 import ij.ImagePlus;
 
@@ -17,7 +20,8 @@ import org.stackwright.volume.Volume;
 
 /**
  * {@code find-defects}: a mask of hot, dead and stuck camera pixels, from dark and/or flat frames when given
- * ({@link FrameDefectFinder}), otherwise from the image itself ({@link ImageDefectFinder}).
+ * ({@link FrameDefectFinder}), otherwise from the image itself ({@link ImageDefectFinder}), and the list of defects
+ * as columns, rows, segments, clusters and single pixels ({@link DefectGrouping}): one table row each.
  */
 public final class FindDefectsOperation implements Operation {
 
@@ -81,9 +85,31 @@ public final class FindDefectsOperation implements Operation {
         r.record("settings", v.effective());
         r.record("source", map.source());
         r.record("counts", map.counts());
+        List<Defect> defects = map.defects();
+        Map<String, Integer> byKind = new LinkedHashMap<>();
+        for (Defect.Kind kind : Defect.Kind.values()) {
+            byKind.put(kind.word(), 0);
+        }
+        List<Map<String, Object>> list = new ArrayList<>();
+        for (Defect d : defects) {
+            byKind.merge(d.kind().word(), 1, Integer::sum);
+            list.add(d.row());
+            r.row(d.row());
+        }
+        r.record("defects_by_kind", byKind);
+        r.record("defects", list);
         r.line(String.format(Locale.ROOT, "%d defective pixels (%d hot, %d dead, %d stuck) from %s, threshold %.3g sigmas",
                 map.total(), map.count(PixelDefect.HOT), map.count(PixelDefect.DEAD), map.count(PixelDefect.STUCK),
                 map.source(), k));
+        r.line(String.format(Locale.ROOT, "%d defects: %d columns, %d rows, %d segments, %d clusters, %d single pixels "
+                + "(one table row each: kind, fault, x, y, length, direction)", defects.size(), byKind.get("column"),
+                byKind.get("row"), byKind.get("segment"), byKind.get("cluster"), byKind.get("pixel")));
+        for (Defect d : defects) {
+            if (d.kind() == Defect.Kind.COLUMN || d.kind() == Defect.Kind.ROW || d.kind() == Defect.Kind.SEGMENT) {
+                r.line(String.format(Locale.ROOT, "  %s %s %s at x = %d, y = %d, %d px long", d.fault().name()
+                        .toLowerCase(Locale.ROOT), d.direction(), d.kind().word(), d.x(), d.y(), d.length()));
+            }
+        }
         return r;
     }
 

@@ -4,15 +4,17 @@ import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
 
 /**
- * Finds defective pixels in the image itself: a pixel that deviates from the median of its 3x3 neighbourhood by
- * more than k robust sigmas, with the same sign, in at least a given fraction of the slices (z or time; a defect
- * sits at the same sensor position in every exposure, structure does not). A 3x3 median ignores an isolated
- * outlier (common practice for impulse noise).
+ * Finds defective pixels in the image itself, in each slice, then keeps those seen with the same sign in at least
+ * a given fraction of the slices (z or time; a defect sits at the same sensor position in every exposure,
+ * structure does not).
  *
- * <p>In each slice a pixel is a high outlier when it exceeds the largest of its 8 neighbours by more than k noise
- * sigmas and by more than {@link #SHARPNESS} of the neighbours' signal (a low outlier likewise below the
- * smallest). The noise grows with the signal (photon noise), so sigma depends on the local level (the 3x3
- * median) through the Poisson-Gaussian model fitted to the image ({@link NoiseLevel}).
+ * <p>In each slice, first defective lines (columns, rows and segments of them: {@link LineDefectFinder}), then,
+ * with the line pixels left out of every reference, single pixels and clusters of a few touching pixels
+ * ({@link ClusterDefectFinder}): a group is a high outlier when it exceeds every pixel around it by more than k
+ * noise sigmas and by more than {@link #SHARPNESS} of their signal (a low outlier likewise below). The noise grows
+ * with the signal (photon noise), so sigma depends on the local level (the 3x3 median) through the
+ * Poisson-Gaussian model fitted to the image ({@link NoiseLevel}). Lines, clusters and pixels are told apart in
+ * the final map by {@link DefectGrouping}.
  *
  * <p>Kinds: mostly negative deviations = dead; positive deviations of a pixel whose value hardly changes over the
  * slices while its neighbours do (and which is not brighter than every good pixel) = stuck; other positive ones =
@@ -28,6 +30,8 @@ public final class ImageDefectFinder {
      * filament is not taken for a defect, while a hot, dead or stuck pixel differs by far more.
      */
     static final double SHARPNESS = 0.7;
+    /** zeros count as missing data when the typical level is this many sigmas above zero */
+    static final double NO_DATA_SIGMAS = 10;
     /** samples per slice used for the class limits and the class sigmas (deterministic stride) */
     static final int SAMPLES = 200_000;
 
@@ -107,7 +111,7 @@ public final class ImageDefectFinder {
                 }
             }
         }
-        return new DefectMap(w, h, kinds, "image (" + d + " slice" + (d == 1 ? "" : "s") + ", 3x3 median)");
+        return new DefectMap(w, h, kinds, "image (" + d + " slice" + (d == 1 ? "" : "s") + ", line, cluster and pixel tests)");
     }
 
     private static float minOverSlices(float[] v, int p, int plane, int d) {
@@ -133,6 +137,29 @@ public final class ImageDefectFinder {
         return out;
     }
 
+    /**
+     * Pixels without data: exact zeros in a plane whose typical level (median of the local levels) lies more than
+     * {@link #NO_DATA_SIGMAS} noise sigmas above zero, as the gaps a stitcher leaves between tiles. A camera with an
+     * offset never reads exactly 0 there; data whose level is near 0 keep their zeros as data.
+     */
+    static boolean[] noData(float[] v, int off, int plane, float[] level, NoiseLevel noise) {
+        boolean[] out = new boolean[plane];
+        double[] sample = new double[Math.min(plane, SAMPLES)];
+        int stride = Math.max(1, plane / sample.length);
+        int m = 0;
+        for (int p = 0; p < plane && m < sample.length; p += stride) {
+            sample[m++] = level[p];
+        }
+        double typical = RobustStats.median(sample, m);
+        if (!(typical > NO_DATA_SIGMAS * noise.sigma(typical))) {
+            return out;
+        }
+        for (int p = 0; p < plane; p++) {
+            out[p] = v[off + p] == 0;
+        }
+        return out;
+    }
+
     /** Scores one slice: counts slices with a high outlier in pos and a low outlier in neg. */
     static void scoreSlice(float[] v, int off, int w, int h, double k, float[] med, float[] res, short[] pos,
             short[] neg) {
@@ -154,50 +181,23 @@ public final class ImageDefectFinder {
             }
         }
         NoiseLevel noise = NoiseLevel.fit(med, res, plane, SAMPLES, LEVEL_CLASSES);
-        for (int y = 0; y < h; y++) {
-            for (int x = 0; x < w; x++) {
-                int p = y * w + x;
-                float c = v[off + p];
-                float hi = Float.NEGATIVE_INFINITY;
-                float lo = Float.POSITIVE_INFINITY;
-                for (int dy = -1; dy <= 1; dy++) {
-                    int yy = y + dy;
-                    if (yy < 0 || yy >= h) {
-                        continue;
-                    }
-                    for (int dx = -1; dx <= 1; dx++) {
-                        int xx = x + dx;
-                        if ((dx | dy) == 0 || xx < 0 || xx >= w) {
-                            continue;
-                        }
-                        float q = v[off + yy * w + xx];
-                        hi = Math.max(hi, q);
-                        lo = Math.min(lo, q);
-                    }
-                }
-                double limit = k * noise.sigma(med[p]);
-                double above = c - hi;
-                double below = lo - c;
-                if (above > limit && above > SHARPNESS * (hi - noise.floor())) {
-                    pos[p]++;
-                } else if (below > limit && below > SHARPNESS * (lo - noise.floor())) {
-                    neg[p]++;
-                }
+        boolean[] noData = noData(v, off, plane, med, noise);
+        boolean[] lineHot = new boolean[plane];
+        boolean[] lineDead = new boolean[plane];
+        LineDefectFinder.scan(v, off, w, h, noise, k, noData, lineHot, lineDead);
+        boolean[] excluded = new boolean[plane];
+        for (int p = 0; p < plane; p++) {
+            excluded[p] = lineHot[p] || lineDead[p];
+        }
+        boolean[] hot = new boolean[plane];
+        boolean[] dead = new boolean[plane];
+        ClusterDefectFinder.scan(v, off, w, h, noise, med, k, excluded, noData, hot, dead);
+        for (int p = 0; p < plane; p++) {
+            if (hot[p] || lineHot[p]) {
+                pos[p]++;
+            } else if (dead[p] || lineDead[p]) {
+                neg[p]++;
             }
         }
-    }
-
-    private static int levelClass(float level, float[] limits) {
-        int lo = 0;
-        int hi = limits.length;
-        while (lo < hi) {
-            int mid = (lo + hi) >>> 1;
-            if (level >= limits[mid]) {
-                lo = mid + 1;
-            } else {
-                hi = mid;
-            }
-        }
-        return lo;
     }
 }

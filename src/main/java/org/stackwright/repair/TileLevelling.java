@@ -140,9 +140,9 @@ public final class TileLevelling {
         return new double[][] {java.util.Arrays.copyOf(outA, m), java.util.Arrays.copyOf(outB, m)};
     }
 
-    /** Tile extents between seam bands: tile k spans [lo[k], hi[k]). */
-    /** @return {first, end} pixel of each tile along one axis of n pixels cut by the seam bands */
-    private static int[][] spans(List<int[]> bands, int n) {
+    /** @return {first, end} pixel of each tile along one axis of n pixels cut by the seam bands: tile k spans
+     *     [lo[k], hi[k]) */
+    static int[][] spans(List<int[]> bands, int n) {
         int[] lo = new int[bands.size() + 1];
         int[] hi = new int[bands.size() + 1];
         lo[0] = 0;
