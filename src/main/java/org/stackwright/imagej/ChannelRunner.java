@@ -106,7 +106,8 @@ public final class ChannelRunner {
         List<Values> values = new ArrayList<>();
         for (int t = 1; t <= nt; t++) {
             for (int c = 1; c <= nc; c++) {
-                Values v = Values.parse(op.name(), op.params(), perChannel(op, settings.text(), c, nc));
+                Values v = Values.parse(op.name(), op.params(), perChannel(op, settings.text(), c, nc))
+                        .wantOutputs(settings.outputs());
                 for (Map.Entry<String, ImagePlus> e : settings.images().entrySet()) {
                     ImagePlus imp = e.getValue();
                     boolean whole = imp.getNChannels() == 1 && imp.getNFrames() == 1;

@@ -53,8 +53,11 @@ public final class ResidualsOperation implements Operation {
                 Param.number("gain", 1.0, 1e-9, 1e9, "ADU/e-", "camera gain (poisson, poisson-gaussian)"),
                 Param.number("read-noise", 0.0, 0, 1e9, "ADU",
                         "read noise (poisson-gaussian) or the noise standard deviation (gaussian)"),
+                Param.choice("boundary", "exclude", ResidualReport.BOUNDARIES, "how the estimate continues past the"
+                        + " field: exclude = judge only voxels further than the PSF's reach from the faces (no guess);"
+                        + " mirror = mirrored, zero = dark outside (whole image judged)"),
                 Param.outputImage("output", true, "the normalised residual stack (32-bit TIFF)"),
-                Param.outputImage("summary", false, "a one-page summary picture (PNG)"),
+                Param.outputPicture("summary", "a one-page summary picture (PNG)"),
                 Param.outputFile("record", "run record (JSON) with chi^2, verdict, histogram, spectrum and regions"));
     }
 
@@ -89,31 +92,35 @@ public final class ResidualsOperation implements Operation {
         NoiseModel noise = ResidualModel.noiseModel(v.choice("likelihood"), v.number("gain"), v.number("read-noise"));
         ResidualModel model = new ResidualModel(v.number("offset"), v.number("background"), noise);
         ctx.progress(0.1, "computing residuals");
+        boolean[] untrusted = null;
+        if (scan.nonFinite() > 0) {
+            untrusted = new boolean[data.size()];
+            byte[] m = scan.nonFiniteMask();
+            for (int i = 0; i < untrusted.length; i++) {
+                untrusted[i] = m[i] != 0;
+            }
+            ctx.warn(String.format(Locale.ROOT, "input: the %d NaN or infinite pixels carry no data; they are left"
+                    + " out of chi^2, the histogram and the verdict, and get residual 0", scan.nonFinite()));
+        }
         ResidualReport report;
         try (Workers w = new Workers(ctx.threads())) {
-            if (scan.nonFinite() > 0) {
-                data = predictionWhereUntrusted(data, estimate, psf, model, scan.nonFiniteMask(), w);
-                ctx.warn(String.format(Locale.ROOT, "input: the %d untrusted pixels are given the prediction"
-                        + " (residual 0), so they count as a perfect fit and lower chi^2 per pixel by up to %.3g %%",
-                        scan.nonFinite(), 100.0 * scan.nonFinite() / data.size()));
-            }
-            report = ResidualReport.analyse(data, estimate, psf, model, w);
+            report = ResidualReport.analyse(data, estimate, psf, model, v.choice("boundary"), untrusted, w);
         }
         ctx.checkCancelled();
         ctx.progress(0.8, "writing");
         String title = dataImp.getTitle() == null ? "data" : dataImp.getTitle();
         Result r = new Result();
         r.image("output", ImagePlusAdapter.toImagePlus(report.maps().normalised(), title + "-residuals"));
-        if (v.given("summary")) {
+        if (v.wants("summary")) {
             r.image("summary", SummaryPicture.render(title, data, estimate, report));
         }
         ResidualRecord.fill(r, report, v.effective());
         Verdict verdict = report.verdict();
-        r.line(String.format(Locale.ROOT, "chi^2 per pixel: %.4f (about 1 when the data fit the noise model)",
-                report.maps().chi2PerVoxel()));
+        r.line(String.format(Locale.ROOT, "chi^2 per pixel: %.4f over %s (about 1 when the data fit the noise"
+                + " model)", report.chi2Trusted(), report.region().describe()));
         if (Double.isFinite(report.chi2Band())) {
-            r.line(String.format(Locale.ROOT, "chi^2 per pixel inside the border band (used for the verdict): %.4f;"
-                    + " in the band: %.4f", report.chi2Interior(), report.chi2Band()));
+            r.line(String.format(Locale.ROOT, "chi^2 per pixel in the border band: %.4f%s", report.chi2Band(),
+                    report.region().bandExcluded() ? " (not judged: light from outside the field reaches it)" : ""));
         }
         r.line("verdict: " + verdict.code());
         r.line(verdict.text());
@@ -135,22 +142,6 @@ public final class ResidualsOperation implements Operation {
         }
         ctx.progress(1, "done");
         return r;
-    }
-
-    /**
-     * @return a copy of the data whose untrusted (NaN or infinite) pixels hold the prediction offset + background
-     *     + H x, so that they carry no residual
-     */
-    static Volume predictionWhereUntrusted(Volume data, Volume estimate, Volume psf, ResidualModel model,
-            byte[] untrusted, Workers w) {
-        float[] hx = ForwardBlur.blur(estimate, psf, w).data();
-        float[] y = data.data().clone();
-        for (int i = 0; i < y.length; i++) {
-            if (untrusted[i] != 0) {
-                y[i] = (float) (model.offset() + model.background() + hx[i]);
-            }
-        }
-        return data.withData(y);
     }
 
     /** @return the causes as record maps */

@@ -29,7 +29,8 @@ public final class Deconvolution {
      * @param solution the solver's output (history, stop reason)
      * @param record the run record (JSON-ready map)
      * @param model the fitted forward model A x + background on the image, ADU above the offset, or null when not
-     *     asked for (see {@link NoiseReplicas})
+     *     asked for (see {@link NoiseReplicas}, {@link RunResiduals}; from
+     *     {@link DeconvolutionProblem#predictedAboveOffset})
      */
     public record Outcome(Volume result, Solution solution, Map<String, Object> record, Volume model) {
     }
@@ -82,7 +83,7 @@ public final class Deconvolution {
         try (Workers workers = new Workers(ctx.threads())) {
             problem = new DeconvolutionProblem(data, p, mask, boundary, camera, bg, workers);
             sol = solver.solve(problem, ctx, listener);
-            model = withModel ? forwardModel(problem, sol.estimate(), bg) : null;
+            model = withModel ? problem.predictedAboveOffset(sol.estimate()) : null;
         }
         Volume result = problem.toVolume(sol.estimate());
         Map<String, Object> r = new LinkedHashMap<>();
@@ -124,18 +125,6 @@ public final class Deconvolution {
         r.put("peak_memory_estimate_bytes", need);
         r.put("result_units", "ADU above the camera offset (background removed)");
         return new Outcome(result, sol, r, model);
-    }
-
-    /** @return gain * (H x) on the image window plus the background, ADU above the offset */
-    private static Volume forwardModel(DeconvolutionProblem problem, float[] x, double backgroundAdu) {
-        float[] work = new float[x.length];
-        problem.blur().apply(x, work);
-        Volume m = problem.toVolume(work);
-        float[] d = m.data();
-        for (int i = 0; i < d.length; i++) {
-            d[i] = (float) (d[i] + backgroundAdu);
-        }
-        return m;
     }
 
     /**

@@ -42,7 +42,7 @@ public final class DeconvolveOperation implements Operation {
 
     @Override
     public List<Param> params() {
-        return List.of(
+        List<Param> all = new java.util.ArrayList<>(List.of(
                 Param.image("input", true, "camera data to deconvolve (raw ADU; do not subtract the offset or background)"),
                 Param.image("psf", true, "the PSF (odd sizes, centre at n/2; resampled when its voxel size differs)"),
                 Param.outputImage("output", true, "the deconvolved estimate, 32-bit, ADU above the offset"),
@@ -72,7 +72,9 @@ public final class DeconvolveOperation implements Operation {
                 Param.number("na", null, 0.01, 1.7, "", "numerical aperture, for the sampling check (optional)"),
                 Param.number("wavelength", null, 200, 2000, "nm", "emission wavelength, for the sampling check (optional)"),
                 Param.number("immersion-index", null, 1.0, 2.0, "", "immersion index, for the sampling check (optional)"),
-                Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history"));
+                Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history")));
+        all.addAll(all.size() - 1, RunResiduals.params());
+        return List.copyOf(all);
     }
 
     @Override
@@ -106,7 +108,10 @@ public final class DeconvolveOperation implements Operation {
         if (replicas > 0) {
             NoiseReplicas.check(replicas, noise, s);
         }
-        Deconvolution.Outcome out = replicas > 0
+        boolean residuals = RunResiduals.wanted(v);
+        Deconvolution.Outcome out = residuals
+                ? RunResiduals.deconvolve(data, psf, psfImp.getTitle(), mask, s, ctx, IterationListener.NONE)
+                : replicas > 0
                 ? NoiseReplicas.deconvolveWithModel(data, psf, psfImp.getTitle(), mask, s, ctx, IterationListener.NONE)
                 : Deconvolution.run(data, psf, psfImp.getTitle(), mask, s, ctx, IterationListener.NONE);
         Result r = new Result();
@@ -133,6 +138,9 @@ public final class DeconvolveOperation implements Operation {
         row.put("seconds", out.solution().seconds());
         row.put("final_objective", hist.length > 0 ? hist[hist.length - 1] : Double.NaN);
         r.row(row);
+        if (residuals) {
+            RunResiduals.attach(r, v, data, psf, mask, s, out, in.getTitle(), ctx);
+        }
         return r;
     }
 
