@@ -79,9 +79,9 @@ public final class SummaryPicture {
         int plotTop = rowTop + PANEL + GAP + 22;
         int plotH = plots[0].getHeight();
         List<String> foot = wrap("r = (data - prediction) / noise standard deviation; residual maps over the trusted"
-                + " planes " + (box[2] + 1) + " to " + (box[2] + box[5]) + "; grey: border band"
-                + (report.region().bandExcluded() ? ", not judged" : " (judged, reported apart)")
-                + ". Deconvolved pixels are estimates; not for diagnostic use.", SMALL, textWidth);
+                + " planes " + (box[2] + 1) + " to " + (box[2] + box[5]) + (report.region().bandExcluded()
+                ? "; grey: the border band, not judged" : "; outside the rectangle: the border band, judged and"
+                + " reported apart") + ". Deconvolved pixels are estimates; not for diagnostic use.", SMALL, textWidth);
         int height = plotTop + plotH + 14 + 16 * foot.size();
         ColorProcessor cp = new ColorProcessor(width, height);
         cp.setColor(Color.WHITE);
