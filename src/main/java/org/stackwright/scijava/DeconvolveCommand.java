@@ -82,6 +82,12 @@ public final class DeconvolveCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "immersion-index")
     private Double immersionIndex;
 
+    @Parameter(type = ItemIO.OUTPUT, label = "residuals")
+    private ImagePlus residuals;
+
+    @Parameter(type = ItemIO.OUTPUT, label = "residuals-summary")
+    private ImagePlus residualsSummary;
+
     @Parameter(persist = false, required = false, label = "record")
     private File record;
 

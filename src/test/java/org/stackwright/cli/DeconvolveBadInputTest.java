@@ -172,6 +172,15 @@ class DeconvolveBadInputTest {
         // files
         t.add(row("output equal to input", 2, "is the same file as --input; the input is never overwritten",
                 "--output", input("cells.tif", good), "--overwrite"));
+        // the run's own residuals (solve.RunResiduals)
+        t.add(row("residuals with likelihood gaussian and no read noise", 2, "read-noise = 0.0 is not allowed with"
+                + " likelihood gaussian and residuals", "--method", "total-variation", "--likelihood", "gaussian",
+                "--residuals", out("own-residuals.tif")));
+        t.add(row("residuals with NaN pixels: left out, residual 0", 0, "residuals of the run's own prediction",
+                "--input", input("cells-nan.tif", good.withData(nan)), "--residuals",
+                out("own-residuals-nan.tif")));
+        t.add(row("residuals-summary named like the output", 2, "--residuals-summary and --output name the same file",
+                "--residuals-summary", out("residuals-summary-named-like-the-output.tif")));
         t.add(memoryRow());
         return t.stream();
     }
