@@ -191,16 +191,16 @@ public record Verdict(String code, List<Cause> causes, String text) {
             String size = !known ? "" : String.format(Locale.ROOT, "; the data look %s as wide as the PSF"
                     + " laterally%s (first-order fit)", times(rxy), axial ? " and " + times(rz) + " axially" : "");
             if (own) {
-                // the deconvolution fitted its estimate through this PSF: a wrong width is absorbed by the estimate,
-                // so the signature says how sharp the estimate is, not whether the PSF is right
+                // the deconvolution fitted its estimate through this PSF, so the signature says first how sharp the
+                // estimate is; a wrong PSF width shows only as far as the estimate could not absorb it
                 causes.add(new Cause(narrow ? "estimate-too-sharp" : "estimate-too-smooth", fit.explainedByPsf(),
                         String.format(Locale.ROOT, "Structure is left where the image curves: the data are %s"
                                 + " blurred than the run's own prediction (extra blur variance %.2g voxel^2 laterally,"
-                                + " %.2g axially%s): the estimate is %s than the data demand (%s). A wrong PSF cannot"
-                                + " be told from the run's own residuals; check it with residuals on an external"
-                                + " estimate or with beads.", narrow ? "more" : "less", dxy, dz, size,
-                                narrow ? "sharper" : "smoother", narrow ? "it has fitted noise or ringing"
-                                : "stopped early or regularised strongly")));
+                                + " %.2g axially%s): the estimate is %s than the data demand: %s. Check the PSF"
+                                + " with residuals on an external estimate or with beads.", narrow ? "more" : "less",
+                                dxy, dz, size, narrow ? "sharper" : "smoother", narrow
+                                ? "it has fitted noise or ringing, or the PSF is too narrow"
+                                : "the run stopped early or was regularised strongly, or the PSF is too wide")));
             } else {
                 causes.add(new Cause(narrow ? "psf-too-narrow" : "psf-too-wide", fit.explainedByPsf(), String.format(
                         Locale.ROOT, "Structure is left where the image curves: the data are %s blurred than the"

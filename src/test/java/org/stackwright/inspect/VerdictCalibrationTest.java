@@ -287,6 +287,15 @@ class VerdictCalibrationTest {
         }
         byCondition.forEach((k, a) -> sb.append(String.format(Locale.ROOT, "  %-70s %d/%d  %s  %d/%d%n", k, a[1], a[0],
                 a[2] == 0 ? "  -    " : a[3] + "/" + a[2] + " " + a[4] + "/" + a[2], a[6], a[5])));
+        double nullMax = 0;
+        for (VerdictCalibration.Outcome o : of("true model")) {
+            MismatchFit f = o.report().fit();
+            long k = o.report().trustedMaps().trusted();
+            nullMax = Math.max(nullMax, k * Math.max(f.explainedByBackground(), Math.max(f.explainedByPsf(),
+                    f.explainedByFading())));
+        }
+        sb.append(String.format(Locale.ROOT, "largest chi^2 a cause explained under the true model: %.1f (limits %.0f,"
+                + " %.0f)%n", nullMax, Verdict.CAUSE_CHI2_ONE, Verdict.CAUSE_CHI2_TWO));
         double[] ratio = {0, 0, 0, 0};
         int[] nr = {0, 0};
         for (VerdictCalibration.Outcome o : outcomes) {
