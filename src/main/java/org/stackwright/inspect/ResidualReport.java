@@ -43,6 +43,9 @@ public record ResidualReport(ResidualMaps maps, ResidualMaps trustedMaps, Truste
         ResidualRegions unexplainedRegions, MismatchFit fit, double[] psfVariance, SliceTrend meanTrend,
         SliceTrend chi2Trend, double[] chi2PerPlane, double chi2Band, Verdict verdict) {
 
+    /** Image-sized float arrays an analysis holds at its peak (maps, crops, Laplacians, fit residuals). */
+    public static final int IMAGE_ARRAYS = 22;
+
     /** Boundary words of {@code residuals --boundary}. */
     public static final java.util.List<String> BOUNDARIES = java.util.List.of("exclude", "mirror", "zero");
 

@@ -65,12 +65,14 @@ public final class ResidualsOperation implements Operation {
     public Result run(Values v, RunContext ctx) {
         ImagePlus dataImp = v.image("input");
         ImagePlus psfImp = v.image("psf");
-        // data, estimate, five maps and their interior crops, the padded blur grid and its spectrum (an estimate)
+        // data, estimate, the maps (prediction, raw, normalised, blurred, deviance), their crops to the trusted box,
+        // two Laplacians and their crops, the cause fit's residuals: about 22 image-sized floats; the padded blur
+        // grid and its spectrum (an estimate)
         long voxels = (long) dataImp.getWidth() * dataImp.getHeight() * dataImp.getNSlices();
         long grid = (long) (dataImp.getWidth() + psfImp.getWidth()) * (dataImp.getHeight() + psfImp.getHeight())
                 * (dataImp.getNSlices() + psfImp.getNSlices());
         MemoryCheck.require("residuals of " + dataImp.getWidth() + "x" + dataImp.getHeight() + "x"
-                + dataImp.getNSlices(), MemoryCheck.floats(voxels, 14) + MemoryCheck.floats(grid, 3));
+                + dataImp.getNSlices(), MemoryCheck.floats(voxels, ResidualReport.IMAGE_ARRAYS) + MemoryCheck.floats(grid, 3));
         Volume data = InputChecks.oneVolume("input", dataImp);
         Volume estimate = InputChecks.oneVolume("estimate", v.image("estimate"));
         Volume psf = InputChecks.oneVolume("psf", psfImp);

@@ -14,6 +14,7 @@ import org.stackwright.model.NoiseModel;
 import org.stackwright.model.PoissonGaussianNoise;
 import org.stackwright.op.InputChecks;
 import org.stackwright.op.MaskChecks;
+import org.stackwright.op.MemoryCheck;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
 import org.stackwright.op.RunContext;
@@ -90,6 +91,8 @@ public final class RunResiduals {
         if (run.model() == null) {
             throw new IllegalStateException("the run has no forward model; deconvolve with RunResiduals.deconvolve");
         }
+        MemoryCheck.require("residuals of " + data.shape(), MemoryCheck.floats(data.size(),
+                ResidualReport.IMAGE_ARRAYS));
         Map<?, ?> used = (Map<?, ?>) run.record().get("settings");
         double offset = number(used, "offset_adu", s.offset());
         double gain = number(used, "gain", s.gain());
