@@ -110,11 +110,8 @@ public record ResidualReport(ResidualMaps maps, ResidualMaps trustedMaps, Truste
         Volume lz = Padding.crop(lap[1], box[0], box[1], box[2], box[3], box[4], box[5]);
         // the cause fit on every trusted voxel first; then leave out what it cannot explain and fit again
         MismatchFit fit = MismatchFit.fit(inner, lx, lz, model, null);
-        ResidualRegions left = null;
-        for (int round = 0; round < 2; round++) {
-            left = ResidualRegions.find(inner.normalised().withData(fit.unexplained()), inner.deviance());
-            fit = MismatchFit.fit(inner, lx, lz, model, left.mask());
-        }
+        ResidualRegions left = ResidualRegions.find(inner.normalised().withData(fit.unexplained()), inner.deviance());
+        fit = MismatchFit.fit(inner, lx, lz, model, left.mask());
         ResidualRegions unexplained = ResidualRegions.find(inner.normalised().withData(fit.unexplained()),
                 inner.deviance());
         if (box[5] > 1) {
