@@ -2,6 +2,8 @@ package org.stackwright.inspect;
 
 import org.stackwright.fft.Convolver;
 import org.stackwright.fft.FastSizes;
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Padding;
 import org.stackwright.volume.Volume;
@@ -31,7 +33,12 @@ public final class ForwardBlur {
      * @return H x, a new volume of the estimate's size and calibration
      */
     public static Volume blur(Volume estimate, Volume psf, Workers workers) {
-        return blur(estimate, psf, Padding.Mode.MIRROR, workers);
+        return blur(estimate, psf, Padding.Mode.MIRROR, workers, FftEngines.standard());
+    }
+
+    /** As above (mirror continuation), on a given FFT engine. */
+    public static Volume blur(Volume estimate, Volume psf, Workers workers, FftEngine fft) {
+        return blur(estimate, psf, Padding.Mode.MIRROR, workers, fft);
     }
 
     /**
@@ -39,9 +46,11 @@ public final class ForwardBlur {
      * @param psf the PSF, odd sizes with its peak at the centre voxel, used as given (normalise first); not modified
      * @param continuation how the estimate continues past the faces: MIRROR or ZERO
      * @param workers threads
+     * @param fft the FFT engine
      * @return H x, a new volume of the estimate's size and calibration
      */
-    public static Volume blur(Volume estimate, Volume psf, Padding.Mode continuation, Workers workers) {
+    public static Volume blur(Volume estimate, Volume psf, Padding.Mode continuation, Workers workers,
+            FftEngine fft) {
         if (continuation == Padding.Mode.PERIODIC) {
             throw new IllegalArgumentException("the residual view continues an estimate by MIRROR or ZERO, not PERIODIC");
         }
@@ -53,7 +62,7 @@ public final class ForwardBlur {
         int ny = gridSize(estimate.height(), hy);
         int nz = gridSize(estimate.depth(), hz);
         Volume grid = Padding.pad(estimate, nx, ny, nz, hx, hy, hz, continuation);
-        Convolver c = new Convolver(k, nx, ny, nz, workers);
+        Convolver c = new Convolver(k, nx, ny, nz, workers, fft);
         c.convolve(grid.data(), grid.data());
         return Padding.crop(grid, hx, hy, hz, estimate.width(), estimate.height(), estimate.depth());
     }

@@ -1,5 +1,7 @@
 package org.stackwright.inspect;
 
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Padding;
 import org.stackwright.volume.Volume;
@@ -42,8 +44,14 @@ public record ResidualMaps(Volume predicted, Volume raw, Volume normalised, doub
      *     not usable
      */
     public static ResidualMaps compute(Volume data, Volume estimate, Volume psf, ResidualModel model, Workers workers) {
+        return compute(data, estimate, psf, model, workers, FftEngines.standard());
+    }
+
+    /** As above, with the FFT engine of the blur. */
+    public static ResidualMaps compute(Volume data, Volume estimate, Volume psf, ResidualModel model, Workers workers,
+            FftEngine fft) {
         check(data, estimate, psf);
-        return of(data, ForwardBlur.blur(estimate, normalise(psf), workers), model, null, workers);
+        return of(data, ForwardBlur.blur(estimate, normalise(psf), workers, fft), model, null, workers);
     }
 
     /**

@@ -1,5 +1,7 @@
 package org.stackwright.inspect;
 
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
 import org.stackwright.parallel.Workers;
 import org.stackwright.psf.Fwhm;
 import org.stackwright.volume.Padding;
@@ -58,9 +60,10 @@ public record ResidualReport(ResidualMaps maps, ResidualMaps trustedMaps, Truste
      * @param model offset, background and noise model
      * @param boundary "exclude" (mirror continuation, band left out), "mirror" or "zero" (whole image judged)
      * @param untrusted per voxel, true where the data carry nothing; null for none
+     * @param fft the FFT engine of the blur and the spectrum
      */
     public static ResidualReport analyse(Volume data, Volume estimate, Volume psf, ResidualModel model,
-            String boundary, boolean[] untrusted, Workers workers) {
+            String boundary, boolean[] untrusted, Workers workers, FftEngine fft) {
         if (!BOUNDARIES.contains(boundary)) {
             throw new IllegalArgumentException("boundary = '" + boundary + "' is not allowed; choose one of "
                     + String.join(", ", BOUNDARIES));
@@ -77,17 +80,29 @@ public record ResidualReport(ResidualMaps maps, ResidualMaps trustedMaps, Truste
         Volume unit = ResidualMaps.normalise(psf);
         Volume kernel = data.depth() == 1 && unit.depth() > 1 ? ForwardBlur.centrePlane(unit) : unit;
         Volume blurred = ForwardBlur.blur(estimate, kernel, boundary.equals("zero") ? Padding.Mode.ZERO
-                : Padding.Mode.MIRROR, workers);
+                : Padding.Mode.MIRROR, workers, fft);
         int[] band = TrustedRegion.bandOf(kernel);
         TrustedRegion region = boundary.equals("exclude") ? TrustedRegion.interior(data, band, untrusted)
                 : TrustedRegion.wholeImage(data, band, boundary, untrusted);
-        return analyse(data, blurred, model, region, kernel, workers);
+        return analyse(data, blurred, model, region, kernel, workers, fft);
     }
 
-    /** As above with the default boundary, {@code exclude}, and every voxel trusted. */
+    /** As above on the standard FFT engine. */
+    public static ResidualReport analyse(Volume data, Volume estimate, Volume psf, ResidualModel model,
+            String boundary, boolean[] untrusted, Workers workers) {
+        return analyse(data, estimate, psf, model, boundary, untrusted, workers, FftEngines.standard());
+    }
+
+    /** As above with the default boundary, {@code exclude}, every voxel trusted and the standard FFT engine. */
     public static ResidualReport analyse(Volume data, Volume estimate, Volume psf, ResidualModel model,
             Workers workers) {
-        return analyse(data, estimate, psf, model, "exclude", null, workers);
+        return analyse(data, estimate, psf, model, workers, FftEngines.standard());
+    }
+
+    /** As above with the default boundary, {@code exclude}, and every voxel trusted, on a given FFT engine. */
+    public static ResidualReport analyse(Volume data, Volume estimate, Volume psf, ResidualModel model,
+            Workers workers, FftEngine fft) {
+        return analyse(data, estimate, psf, model, "exclude", null, workers, fft);
     }
 
     /**
@@ -99,9 +114,10 @@ public record ResidualReport(ResidualMaps maps, ResidualMaps trustedMaps, Truste
      * @param model offset, background and noise model
      * @param region the voxels to judge
      * @param psf the PSF the prediction was made with (for the size of a width mismatch), not modified
+     * @param fft the FFT engine of the spectrum
      */
     public static ResidualReport analyse(Volume data, Volume blurred, ResidualModel model, TrustedRegion region,
-            Volume psf, Workers workers) {
+            Volume psf, Workers workers, FftEngine fft) {
         ResidualMaps maps = ResidualMaps.of(data, blurred, model, region.untrusted(), workers);
         int[] box = region.analysisBox();
         ResidualMaps inner = maps.crop(box);
@@ -119,7 +135,7 @@ public record ResidualReport(ResidualMaps maps, ResidualMaps trustedMaps, Truste
             fit = fit.withFadingOver((data.depth() - 1) / (double) (box[5] - 1));
         }
         boolean[] skip = union(unexplained.mask(), inner.untrusted());
-        ResidualSpectrum spectrum = ResidualSpectrum.of(inner.normalised(), skip, workers);
+        ResidualSpectrum spectrum = ResidualSpectrum.of(inner.normalised(), skip, workers, fft);
         ResidualHistogram histogram = ResidualHistogram.of(inner.trustedValues());
         SliceTrend[] trends = trends(inner, fit, skip);
         ResidualRegions all = ResidualRegions.find(maps.normalised(), maps.deviance());

@@ -9,6 +9,8 @@ import java.util.Map;
 import ij.ImagePlus;
 
 import org.stackwright.model.NoiseModel;
+import org.stackwright.fft.FftEngines;
+import org.stackwright.op.FftChoice;
 import org.stackwright.op.InputChecks;
 import org.stackwright.op.MemoryCheck;
 import org.stackwright.op.Operation;
@@ -58,11 +60,14 @@ public final class ResidualsOperation implements Operation {
                         + " mirror = mirrored, zero = dark outside (whole image judged)"),
                 Param.outputImage("output", true, "the normalised residual stack (32-bit TIFF)"),
                 Param.outputPicture("summary", "a one-page summary picture (PNG)"),
+                FftChoice.param(),
                 Param.outputFile("record", "run record (JSON) with chi^2, verdict, histogram, spectrum and regions"));
     }
 
     @Override
-    public Result run(Values v, RunContext ctx) {
+    public Result run(Values v, RunContext door) {
+        FftEngines.Choice fft = FftChoice.choose(v);
+        RunContext ctx = FftChoice.context(door, fft);
         ImagePlus dataImp = v.image("input");
         ImagePlus psfImp = v.image("psf");
         // data, estimate, the maps (prediction, raw, normalised, blurred, deviance), their crops to the trusted box,
@@ -106,7 +111,8 @@ public final class ResidualsOperation implements Operation {
         }
         ResidualReport report;
         try (Workers w = new Workers(ctx.threads())) {
-            report = ResidualReport.analyse(data, estimate, psf, model, v.choice("boundary"), untrusted, w);
+            report = ResidualReport.analyse(data, estimate, psf, model, v.choice("boundary"), untrusted, w,
+                    ctx.fft());
         }
         ctx.checkCancelled();
         ctx.progress(0.8, "writing");
@@ -117,6 +123,8 @@ public final class ResidualsOperation implements Operation {
             r.image("summary", SummaryPicture.render(title, data, estimate, report));
         }
         ResidualRecord.fill(r, report, v.effective());
+        r.record("fft_engine", ctx.fft().name());
+        FftChoice.note(r, fft);
         Verdict verdict = report.verdict();
         r.line(String.format(Locale.ROOT, "chi^2 per pixel: %.4f over %s (about 1 when the data fit the noise"
                 + " model)", report.chi2Trusted(), report.region().describe()));

@@ -1,6 +1,8 @@
 package org.stackwright.model;
 
 import org.stackwright.fft.Convolution;
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
@@ -76,11 +78,21 @@ public final class DeconvolutionProblem {
      */
     public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
             double backgroundAdu, Workers workers) {
-        this(data, psf, mask, boundary, camera, backgroundAdu, workers, Float.NaN);
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, FftEngines.standard(), Float.NaN);
+    }
+
+    /**
+     * As above, with the FFT engine of the blur.
+     *
+     * @param fft the FFT engine (a run's choice: {@code op.RunContext#fft()})
+     */
+    public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
+            double backgroundAdu, Workers workers, FftEngine fft) {
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, fft, Float.NaN);
     }
 
     private DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
-            double backgroundAdu, Workers workers, float start) {
+            double backgroundAdu, Workers workers, FftEngine fft, float start) {
         if (!(backgroundAdu >= 0) || !Double.isFinite(backgroundAdu)) {
             throw new IllegalArgumentException("background = " + backgroundAdu + " is not allowed; give 0 or more ADU above the offset");
         }
@@ -107,7 +119,7 @@ public final class DeconvolutionProblem {
         }
         Volume.checkSize(nx, ny, nz);
         int n = nx * ny * nz;
-        this.blur = new BlurOperator(psf, nx, ny, nz, workers);
+        this.blur = new BlurOperator(psf, nx, ny, nz, workers, fft);
         this.y = new float[w * h * d];
         double s = camera.readNoiseShift();
         this.background = (float) (backgroundAdu / camera.gain() + s);
@@ -127,23 +139,26 @@ public final class DeconvolutionProblem {
                     + ": nothing is left to deconvolve");
         }
         this.trusted = count;
-        this.norm = new float[n];
         if (boundary == Boundary.ZERO_SAME) {
+            this.norm = new float[n];
             for (int i = 0; i < n; i++) {
                 norm[i] = inWindow(i) ? 1f : 0f;
             }
             this.start = start;
         } else {
+            // H^T w computed in the blur's in-place work array (no FFT work buffer kept for the run), then trimmed
+            float[] t = blur.newWorkArray();
             for (int z = 0; z < d; z++) {
                 for (int yy = 0; yy < h; yy++) {
                     int row = (z * ny + yy) * nx;
                     int wrow = (z * h + yy) * w;
                     for (int x = 0; x < w; x++) {
-                        norm[row + x] = y[wrow + x] >= 0 ? 1f : 0f;
+                        t[row + x] = y[wrow + x] >= 0 ? 1f : 0f;
                     }
                 }
             }
-            blur.applyAdjoint(norm, norm);
+            blur.applyAdjoint(t, t);
+            this.norm = t.length == n ? t : java.util.Arrays.copyOf(t, n);
             float max = 0;
             for (float v : norm) {
                 max = Math.max(max, v);
@@ -163,7 +178,8 @@ public final class DeconvolutionProblem {
      * no normalisation (H^T 1 taken as 1), no background, start value 0.5 everywhere.
      */
     public static DeconvolutionProblem compatible(Volume data, Volume psf, Workers workers) {
-        return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), 0, workers, 0.5f);
+        return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), 0, workers,
+                FftEngines.standard(), 0.5f);
     }
 
     private boolean inWindow(int i) {

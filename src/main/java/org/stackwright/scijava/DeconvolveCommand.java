@@ -82,6 +82,9 @@ public final class DeconvolveCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "immersion-index")
     private Double immersionIndex;
 
+    @Parameter(persist = false, required = false, label = "fft")
+    private String fft;
+
     @Parameter(type = ItemIO.OUTPUT, label = "residuals")
     private ImagePlus residuals;
 

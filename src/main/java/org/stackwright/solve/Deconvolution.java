@@ -81,7 +81,7 @@ public final class Deconvolution {
         DeconvolutionProblem problem;
         Volume model;
         try (Workers workers = new Workers(ctx.threads())) {
-            problem = new DeconvolutionProblem(data, p, mask, boundary, camera, bg, workers);
+            problem = new DeconvolutionProblem(data, p, mask, boundary, camera, bg, workers, ctx.fft());
             sol = solver.solve(problem, ctx, listener);
             model = withModel ? problem.predictedAboveOffset(sol.estimate()) : null;
         }
@@ -122,6 +122,8 @@ public final class Deconvolution {
         r.put("voxel_um", List.of(data.voxel().x(), data.voxel().y(), data.voxel().z()));
         r.put("grid_shape", problem.gridWidth() + "x" + problem.gridHeight() + "x" + problem.gridDepth());
         r.put("trusted_pixels", problem.trustedPixels());
+        r.put("fft_engine", problem.blur().fftEngine());
+        r.put("fft_planning", problem.blur().fftPlanning());
         r.put("peak_memory_estimate_bytes", need);
         r.put("result_units", "ADU above the camera offset (background removed)");
         return new Outcome(result, sol, r, model);

@@ -111,7 +111,7 @@ public final class RunResiduals {
         Volume p = PsfChecks.prepare("psf", psf, data, quiet);
         TrustedRegion region = TrustedRegion.wholeImage(data, TrustedRegion.bandOf(p), "extended-grid", untrusted);
         try (Workers w = new Workers(ctx.threads())) {
-            return ResidualReport.analyse(data, blurred, model, region, p, w);
+            return ResidualReport.analyse(data, blurred, model, region, p, w, ctx.fft());
         }
     }
 
