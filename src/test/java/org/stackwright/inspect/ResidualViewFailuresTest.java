@@ -3,17 +3,13 @@ package org.stackwright.inspect;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import java.io.ByteArrayOutputStream;
 import java.io.IOException;
-import java.io.PrintStream;
-import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.Map;
 
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
-import org.stackwright.cli.Main;
 import org.stackwright.testing.IndependentAcquisition;
 import org.stackwright.testing.IndependentAcquisition.Layout;
 import org.stackwright.testing.IndependentAcquisition.Optics;
@@ -21,6 +17,7 @@ import org.stackwright.testing.IndependentAcquisition.Plan;
 import org.stackwright.testing.IndependentAcquisition.Sensor;
 import org.stackwright.volume.TiffFiles;
 import org.stackwright.volume.Volume;
+import org.stackwright.testing.CommandLine;
 
 /**
  * The residual view's failures found by trying it as a new user would, each turned into a test through the
@@ -38,14 +35,6 @@ class ResidualViewFailuresTest {
     @TempDir
     Path dir;
 
-    static String[] run(String... args) {
-        ByteArrayOutputStream out = new ByteArrayOutputStream();
-        ByteArrayOutputStream err = new ByteArrayOutputStream();
-        int rc = Main.run(args, new PrintStream(out, true, StandardCharsets.UTF_8),
-                new PrintStream(err, true, StandardCharsets.UTF_8));
-        return new String[] {Integer.toString(rc), out.toString(StandardCharsets.UTF_8),
-            err.toString(StandardCharsets.UTF_8)};
-    }
 
     /** Writes data, truth (ADU above offset) and a PSF; runs residuals; @return the record */
     Map<String, Object> residuals(IndependentAcquisition.Acquisition a, Volume psf, String... more) throws IOException {
@@ -61,7 +50,7 @@ class ResidualViewFailuresTest {
                 "--output", dir.resolve("r.tif").toString(), "--summary", dir.resolve("r.png").toString(),
                 "--record", dir.resolve("r.json").toString(), "--threads", "2", "--overwrite"));
         args.addAll(java.util.List.of(more));
-        String[] r = run(args.toArray(new String[0]));
+        String[] r = CommandLine.run(args.toArray(new String[0]));
         assertEquals("0", r[0], r[2]);
         return topLevel(Files.readString(dir.resolve("r.json")));
     }
@@ -117,9 +106,9 @@ class ResidualViewFailuresTest {
 
     @Test
     void helpNamesPngForTheSummaryPictures() {
-        String[] r = run("residuals", "--help");
+        String[] r = CommandLine.run("residuals", "--help");
         assertTrue(r[1].contains("--summary=FILE.png"), r[1]);
-        r = run("deconvolve", "--help");
+        r = CommandLine.run("deconvolve", "--help");
         assertTrue(r[1].contains("--residuals=FILE.tif"), r[1]);
         assertTrue(r[1].contains("--residuals-summary=FILE.png"), r[1]);
     }
