@@ -28,10 +28,17 @@ import org.stackwright.volume.Volume;
  *     regression text), so each limit is passed with probability about 5e-4 (1 term) or 9e-4 (2 terms); the
  *     simulated table of true-model cases (README, "How the verdict was calibrated") never reached 7. The small
  *     share per voxel keeps effects too small to matter out of huge images. For a deconvolution's own residuals
- *     the share must reach {@value #OWN_MIN_EXPLAINED}: that estimate was fitted to these very data with as many
- *     unknowns as voxels, so a stopped or regularised run always leaves a little structure (measured: 0.001 to 0.003
- *     at the noise stop on bright specimens), which is not worth a warning; its width signature is named as a
- *     property of the estimate ({@code estimate-too-smooth}, {@code estimate-too-sharp}), not of the PSF.</li>
+ *     the causes are looked for only when the run left more misfit than the noise allows, chi^2 per voxel above
+ *     1 + 5 sqrt(2/n) (a fitted estimate can do no worse than the true object, whose chi^2 per voxel has mean 1
+ *     and standard deviation about sqrt(2/n)), and the share must reach {@value #OWN_MIN_EXPLAINED}: that estimate
+ *     was fitted to these very data with as many unknowns as voxels, so a run stopped by the noise rule always
+ *     leaves some smooth structure and a little light in dark regions (measured with the exact PSF and camera:
+ *     up to 0.05 chi^2 per voxel for the width term and 0.017 for the background, while its chi^2 per voxel stayed
+ *     below 1.006; {@code solve.OwnResidualsCalibrationTest}), which is not a fault of the model. Its width
+ *     signature is named as a property of the estimate ({@code estimate-too-smooth}, {@code estimate-too-sharp}),
+ *     not of the PSF. A chi^2 per voxel below {@value #OWN_CHI2_LOW} (not {@value #CHI2_LOW}: a fitted estimate
+ *     absorbs part of the noise, the more the dimmer the data; measured down to 0.85 with the exact model at 30
+ *     photons) is named {@code noise-overstated-or-overfit}.</li>
  * <li>Regions: any listed region (see {@link ResidualRegions}) left in the residual after the cause fit; ranked by
  *     the chi^2 they carry above the noise level. A wrong PSF leaves clusters around every bright object that its
  *     width term explains, so they are not called isolated.</li>
@@ -60,6 +67,7 @@ public record Verdict(String code, List<Cause> causes, String text) {
     public static final double LOW_RATIO_MARGIN = 0.25;
     public static final double MIN_EXPLAINED = 0.001;
     public static final double OWN_MIN_EXPLAINED = 0.005;
+    public static final double OWN_CHI2_LOW = 0.8;
     public static final double CAUSE_CHI2_ONE = 12;
     public static final double CAUSE_CHI2_TWO = 14;
     public static final double TREND_T = 5;
@@ -150,8 +158,13 @@ public record Verdict(String code, List<Cause> causes, String text) {
         double chi2 = maps.chi2PerVoxel();
         double width = 5 * Math.sqrt(2.0 / n);
         double high = Math.max(CHI2_HIGH, 1 + width);
-        double low = Math.min(CHI2_LOW, 1 - width);
+        double low = Math.min(own ? OWN_CHI2_LOW : CHI2_LOW, 1 - width);
         double floor = own ? OWN_MIN_EXPLAINED : MIN_EXPLAINED;
+        // a deconvolution's own estimate absorbs what it can: only misfit beyond the noise is looked into
+        boolean misfit = !own || chi2 > 1 + width;
+        if (own) {
+            high = 1 + width;
+        }
         double oneTerm = Math.max(floor, CAUSE_CHI2_ONE / n);
         double psfTerms = Math.max(floor, (maps.normalised().depth() >= 3 ? CAUSE_CHI2_TWO : CAUSE_CHI2_ONE) / n);
         double ratioLimit = 1 + Math.max(LOW_RATIO_MARGIN, 6 / Math.sqrt(Math.max(1, spectrum.lowModes())));
@@ -167,8 +180,8 @@ public record Verdict(String code, List<Cause> causes, String text) {
                     regions.listedCount(), regions.listedCount() == 1 ? "" : "s", big.voxels(), big.x() + ox,
                     big.y() + oy, big.z() + oz, big.peak() < 0 ? "below" : "above")));
         }
-        boolean bg = fit.explainedByBackground() >= oneTerm;
-        boolean psf = fit.explainedByPsf() >= psfTerms;
+        boolean bg = misfit && fit.explainedByBackground() >= oneTerm;
+        boolean psf = misfit && fit.explainedByPsf() >= psfTerms;
         if (bg) {
             boolean tooLow = fit.offsetShift() > 0;
             causes.add(new Cause(tooLow ? "background-too-low" : "background-too-high", fit.explainedByBackground(),
@@ -209,8 +222,10 @@ public record Verdict(String code, List<Cause> causes, String text) {
                                 + " size.", narrow ? "more" : "less", dxy, dz, size, narrow ? "narrow" : "wide")));
             }
         }
-        boolean fading = fit.explainedByFading() >= oneTerm;
-        if (fading) {
+        boolean fading = misfit && fit.explainedByFading() >= oneTerm;
+        if (!misfit) {
+            // no trend or generic structure either: the estimate fitted those
+        } else if (fading) {
             causes.add(new Cause("slice-trend", fit.explainedByFading(), String.format(Locale.ROOT,
                     "The signal changes over z (by %+.0f %% from the first to the last slice relative to the"
                             + " estimate): bleaching or a changing illumination during the acquisition.",
@@ -227,7 +242,7 @@ public record Verdict(String code, List<Cause> causes, String text) {
                     Locale.ROOT, "The residual drifts over z (mean %.2f at the first slice, %.2f at the last):"
                             + " bleaching or drift during the acquisition.", meanTrend.first(), meanTrend.last())));
         }
-        if (lowFrequency && !bg && !psf && !fading) {
+        if (misfit && lowFrequency && !bg && !psf && !fading) {
             causes.add(new Cause("low-frequency-structure", Math.max(0, spectrum.lowExcess()), String.format(
                     Locale.ROOT, "Structure is left at low spatial frequency (power %.2f times the high-frequency"
                             + " level): the PSF may have the wrong width or shape, the background may be wrong, or the"
@@ -245,6 +260,13 @@ public record Verdict(String code, List<Cause> causes, String text) {
                     + " or the estimate fits the noise (too many iterations, too little regularisation).", chi2)));
         }
         causes.sort(Comparator.comparingDouble(Cause::share).reversed());
+        if (causes.isEmpty() && own) {
+            return new Verdict(FITS, List.of(), String.format(Locale.ROOT, "Fits the noise model over %s: chi^2 per"
+                    + " voxel %.3f, no more misfit than the noise allows and no isolated regions. The estimate was"
+                    + " fitted through this PSF, so this does not show that the PSF is right: a PSF that is too narrow,"
+                    + " or a little too wide, is absorbed by the estimate; check it with residuals on an external"
+                    + " estimate or with beads.", where, chi2));
+        }
         if (causes.isEmpty()) {
             return new Verdict(FITS, List.of(), String.format(Locale.ROOT, "Fits the noise model over %s: chi^2 per"
                     + " voxel %.3f, no structure at low spatial frequency (low/high frequency power %.2f), no"
