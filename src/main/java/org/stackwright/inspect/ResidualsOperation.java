@@ -51,15 +51,16 @@ public final class ResidualsOperation implements Operation {
                 Param.number("offset", 0.0, -1e9, 1e9, "ADU", "camera offset (bias) added to the prediction"),
                 Param.number("background", 0.0, -1e9, 1e9, "ADU", "background per voxel above the offset"),
                 Param.choice("likelihood", "poisson", List.of("poisson", "poisson-gaussian", "gaussian"),
-                        "noise model: photon counting, camera (gain and read noise) or constant Gaussian"),
+                        "noise model: photon counting, camera (gain and read noise) or constant Gaussian").withAlias("noise"),
                 Param.number("gain", 1.0, 1e-9, 1e9, "ADU/e-", "camera gain (poisson, poisson-gaussian)"),
                 Param.number("read-noise", 0.0, 0, 1e9, "ADU",
                         "read noise (poisson-gaussian) or the noise standard deviation (gaussian)"),
                 Param.choice("boundary", "exclude", ResidualReport.BOUNDARIES, "how the estimate continues past the"
                         + " field: exclude = judge only voxels further than the PSF's reach from the faces (no guess);"
                         + " mirror = mirrored, zero = dark outside (whole image judged)"),
-                Param.outputImage("output", true, "the normalised residual stack (32-bit TIFF)"),
-                Param.outputPicture("summary", "a one-page summary picture (PNG)"),
+                Param.outputImage("output", false, "the normalised residual stack (32-bit TIFF; leave out when only the"
+                        + " verdict is wanted)"),
+                Param.outputPicture("summary", "a one-page summary picture"),
                 FftChoice.param(),
                 Param.outputFile("record", "run record (JSON) with chi^2, verdict, histogram, spectrum and regions"));
     }
@@ -126,17 +127,18 @@ public final class ResidualsOperation implements Operation {
         r.record("fft_engine", ctx.fft().name());
         FftChoice.note(r, fft);
         Verdict verdict = report.verdict();
-        r.line(String.format(Locale.ROOT, "chi^2 per pixel: %.4f over %s (about 1 when the data fit the noise"
+        r.line(String.format(Locale.ROOT, "chi^2 per voxel: %.4f over %s (about 1 when the data fit the noise"
                 + " model)", report.chi2Trusted(), report.region().describe()));
         if (Double.isFinite(report.chi2Band())) {
-            r.line(String.format(Locale.ROOT, "chi^2 per pixel in the border band: %.4f%s", report.chi2Band(),
+            r.line(String.format(Locale.ROOT, "chi^2 per voxel in the border band: %.4f%s", report.chi2Band(),
                     report.region().bandExcluded() ? " (not judged: light from outside the field reaches it)" : ""));
         }
         r.line("verdict: " + verdict.code());
         r.line(verdict.text());
         List<ResidualRegions.Region> regions = report.regions().listed();
         if (!regions.isEmpty()) {
-            r.line(String.format(Locale.ROOT, "regions with |r| > 4 (%d, largest first):", report.regions().listedCount()));
+            r.line(String.format(Locale.ROOT, "regions with |r| > 4 in the judged region (%d, largest first; %d more"
+                    + " in the border band):", report.regions().listedCount(), report.bandRegions()));
             r.line("  voxels        x        y        z   peak r");
             for (int i = 0; i < Math.min(10, regions.size()); i++) {
                 ResidualRegions.Region g = regions.get(i);

@@ -269,8 +269,8 @@ public record Verdict(String code, List<Cause> causes, String text) {
         }
         if (causes.isEmpty()) {
             return new Verdict(FITS, List.of(), String.format(Locale.ROOT, "Fits the noise model over %s: chi^2 per"
-                    + " voxel %.3f, no structure at low spatial frequency (low/high frequency power %.2f), no"
-                    + " isolated regions.", where, chi2, spectrum.lowFrequencyRatio()));
+                    + " voxel %.3f, no excess residual power at low frequencies (low/high frequency power"
+                    + " %.2f), no isolated regions.", where, chi2, spectrum.lowFrequencyRatio()));
         }
         List<Cause> named = new ArrayList<>();
         double first = causes.get(0).share();

@@ -56,11 +56,59 @@ public final class Deconvolution {
     /** As above; with {@code withModel} the outcome also holds the fitted forward model (one more blur). */
     static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
             RunContext ctx, IterationListener listener, boolean withModel) {
+        return run(data, psf, psfName, mask, s, ctx, listener, withModel, null, null);
+    }
+
+    /**
+     * Depth-variant deconvolution: as {@link #run(Volume, Volume, String, byte[], DeconvolutionSettings,
+     * RunContext, IterationListener)} with the PSF modelled at {@code depthVariant.strata()} depths
+     * ({@link DepthStrata}) instead of one given PSF; Richardson-Lucy (plain or accelerated) only.
+     *
+     * @param depthVariant optics at the first plane and the number of strata
+     */
+    public static Outcome runDepthVariant(Volume data, byte[] mask, DeconvolutionSettings s, DepthVariant depthVariant,
+            RunContext ctx, IterationListener listener) {
+        if (!s.method().equals("richardson-lucy")) {
+            throw new IllegalArgumentException("depth-variant on works with method richardson-lucy only (given "
+                    + s.method() + "); choose method richardson-lucy (acceleration on or off)");
+        }
+        return run(data, null, "modelled: gibson-lanni at " + depthVariant.strata() + " depths", mask, s, ctx,
+                listener, false, depthVariant, null);
+    }
+
+    /**
+     * The settings of a depth-variant deconvolution.
+     *
+     * @param optics Gibson-Lanni optics, depth = depth below the coverslip of the emitters in focus at the first
+     *     plane (grid sizes unused)
+     * @param strata number of PSFs
+     */
+    public record DepthVariant(org.stackwright.psf.PsfSettings optics, int strata) {
+    }
+
+    /** Work that needs the problem and the solver's grid estimate, done before the problem's threads stop. */
+    interface AfterSolve {
+        /**
+         * @param problem the problem the solver ran on (its threads still running)
+         * @param solution the solver's output (grid estimate), not to be modified
+         */
+        void run(DeconvolutionProblem problem, Solution solution);
+    }
+
+    /** As above; {@code after} (or null) runs on the problem and the solution before the problem's threads stop. */
+    static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
+            RunContext ctx, IterationListener listener, boolean withModel, AfterSolve after) {
+        return run(data, psf, psfName, mask, s, ctx, listener, withModel, null, after);
+    }
+
+    private static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
+            RunContext ctx, IterationListener listener, boolean withModel, DepthVariant dv, AfterSolve after) {
         InputChecks.Scan scan = InputChecks.check("input", data, ctx);
         mask = MaskChecks.union(mask, scan.nonFiniteMask());
         data = InputChecks.finiteCopy(data, scan);
         int warned = ctx.warnings().size();
-        Volume p = PsfChecks.prepare("psf", psf, data, ctx);
+        // one PSF as given, or (depth-variant) an empty volume of the modelled PSFs' size for the grid
+        Volume p = dv == null ? PsfChecks.prepare("psf", psf, data, ctx) : emptyOfSize(DepthStrata.psfSize(dv.optics(), data), data);
         List<String> notes = new ArrayList<>(ctx.warnings().subList(warned, ctx.warnings().size()));
         double bg = s.background();
         boolean estimated = Double.isNaN(bg);
@@ -72,18 +120,30 @@ public final class Deconvolution {
                 ? DeconvolutionProblem.Boundary.PERIODIC : DeconvolutionProblem.Boundary.EXTENDED;
         Solver solver = s.solver();
         long grid = gridVoxels(data, p, boundary);
-        long need = memoryEstimate(grid, solver.gridArrays(), data.size());
+        // a depth-variant blur holds K transfer functions, two spectra and a buffer instead of one blur's two
+        long need = memoryEstimate(grid, solver.gridArrays() + (dv == null ? 0 : dv.strata() + 1), data.size());
         MemoryCheck.require("deconvolve of " + data.shape() + " (grid " + gridShape(data, p, boundary)
                 + (boundary == DeconvolutionProblem.Boundary.EXTENDED ? "; --boundary periodic needs a smaller grid" : "")
-                + ")", need);
+                + (dv == null ? "" : "; " + dv.strata() + " strata: fewer strata need less") + ")", need);
         ctx.progress(0, "preparing " + s.method());
         Solution sol;
         DeconvolutionProblem problem;
         Volume model;
+        DepthStrata strata = null;
         try (Workers workers = new Workers(ctx.threads())) {
-            problem = new DeconvolutionProblem(data, p, mask, boundary, camera, bg, workers, ctx.fft());
+            if (dv == null) {
+                problem = new DeconvolutionProblem(data, p, mask, boundary, camera, bg, workers, ctx.fft());
+            } else {
+                ctx.progress(0, "modelling " + dv.strata() + " PSFs across the depth");
+                strata = DepthStrata.build(dv.optics(), data, dv.strata(), workers);
+                problem = DeconvolutionProblem.depthVariant(data, strata.psfs(), strata.planes(), mask, boundary,
+                        camera, bg, workers, ctx.fft());
+            }
             sol = solver.solve(problem, ctx, listener);
             model = withModel ? problem.predictedAboveOffset(sol.estimate()) : null;
+            if (after != null) {
+                after.run(problem, sol);
+            }
         }
         Volume result = problem.toVolume(sol.estimate());
         Map<String, Object> r = new LinkedHashMap<>();
@@ -112,21 +172,30 @@ public final class Deconvolution {
         r.put("settings", set);
         Map<String, Object> psfInfo = new LinkedHashMap<>();
         psfInfo.put("source", psfName);
-        psfInfo.put("shape_as_read", psf.shape());
-        psfInfo.put("voxel_um_as_read", List.of(psf.voxel().x(), psf.voxel().y(), psf.voxel().z()));
+        if (psf != null) {
+            psfInfo.put("shape_as_read", psf.shape());
+            psfInfo.put("voxel_um_as_read", List.of(psf.voxel().x(), psf.voxel().y(), psf.voxel().z()));
+            psfInfo.put("sum_as_read", psf.sum());
+        }
         psfInfo.put("shape_used", p.shape());
-        psfInfo.put("sum_as_read", psf.sum());
         psfInfo.put("changes", notes);
         r.put("psf", psfInfo);
+        if (strata != null) {
+            r.put("depth_variant", strata.record());
+        }
         r.put("image_shape", data.shape());
         r.put("voxel_um", List.of(data.voxel().x(), data.voxel().y(), data.voxel().z()));
         r.put("grid_shape", problem.gridWidth() + "x" + problem.gridHeight() + "x" + problem.gridDepth());
         r.put("trusted_pixels", problem.trustedPixels());
-        r.put("fft_engine", problem.blur().fftEngine());
-        r.put("fft_planning", problem.blur().fftPlanning());
+        r.put("fft_engine", problem.fftEngine());
+        r.put("fft_planning", problem.fftPlanning());
         r.put("peak_memory_estimate_bytes", need);
         r.put("result_units", "ADU above the camera offset (background removed)");
         return new Outcome(result, sol, r, model);
+    }
+
+    private static Volume emptyOfSize(int[] size, Volume data) {
+        return Volume.zeros(size[0], size[1], size[2], data.voxel());
     }
 
     /**

@@ -59,6 +59,23 @@ public final class RunResiduals {
         return v.wants(RESIDUALS) || v.wants(SUMMARY);
     }
 
+    /**
+     * Checks before the run that the residuals can be made: one PSF (not depth-variant) and a fitted estimate (not
+     * the posterior mean of sampling).
+     */
+    static void check(DeconvolutionSettings s, boolean depthVariant, String uncertainty) {
+        if (depthVariant) {
+            throw new IllegalArgumentException(RESIDUALS + " is not made with depth-variant on (its prediction needs"
+                    + " one PSF); leave out residuals and residuals-summary, or give depth-variant off");
+        }
+        if (uncertainty.equals("sampling")) {
+            throw new IllegalArgumentException(RESIDUALS + " is not made with uncertainty = sampling (the posterior mean"
+                    + " is not the fitted estimate); give uncertainty none or replicas, or check the posterior mean"
+                    + " with the residuals operation");
+        }
+        check(s);
+    }
+
     /** Checks before the run that the residuals can be normalised. */
     static void check(DeconvolutionSettings s) {
         if (s.likelihood().equals("gaussian") && !(s.readNoise() > 0)) {
