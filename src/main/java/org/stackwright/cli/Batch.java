@@ -108,7 +108,7 @@ final class Batch {
         }
         String title = TiffFiles.titleOf(input);
         String suffix = p.key().equals("output") ? operation : p.key();
-        String ext = p.kind() == Param.Kind.OUTPUT_FILE ? ".json" : ".tif";
+        String ext = p.fileEnding();
         return dir.resolve(title + "-" + suffix.toLowerCase(Locale.ROOT) + ext);
     }
 }

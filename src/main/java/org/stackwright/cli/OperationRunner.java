@@ -80,9 +80,7 @@ final class OperationRunner {
 
     private static String label(Param p) {
         return switch (p.kind()) {
-            case IMAGE -> "FILE.tif";
-            case OUTPUT_IMAGE -> p.unit().equals("PNG") ? "FILE.png" : "FILE.tif";
-            case OUTPUT_FILE -> "FILE.json";
+            case IMAGE, OUTPUT_IMAGE, OUTPUT_FILE -> "FILE" + p.fileEnding();
             case CHOICE -> String.join("|", p.choices());
             case INTEGER -> "N";
             case NUMBER -> p.unit().isEmpty() ? "X" : p.unit().toUpperCase(Locale.ROOT).replace('/', '_');

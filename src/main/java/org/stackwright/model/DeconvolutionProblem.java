@@ -461,6 +461,28 @@ public final class DeconvolutionProblem {
         return new PoissonNoise().expectedDeviance();
     }
 
+    /**
+     * What an estimate predicts for the data, on the image window, in ADU above the camera offset: gain (H x) +
+     * background, with H x from the whole (extended) grid, so the prediction at the border holds the light of the
+     * object beyond the field as the solver modelled it: no padding guess. In the problem's own units the
+     * prediction is H x + b, and its shifted-Poisson variance H x + b equals the camera variance
+     * (gain (H x) + background) gain + read noise^2 of {@link Camera#variance} divided by gain^2, so the residual
+     * view normalises these ADU values by the camera's Poisson-Gaussian variance. Costs one blur.
+     *
+     * @param x grid-sized estimate, not modified
+     * @return a new image-sized volume
+     */
+    public Volume predictedAboveOffset(float[] x) {
+        float[] work = new float[x.length];
+        forward.apply(x, work);
+        Volume m = toVolume(work);
+        float[] d = m.data();
+        for (int i = 0; i < d.length; i++) {
+            d[i] = (float) (d[i] + backgroundAdu);
+        }
+        return m;
+    }
+
     /** @return the estimate on the data grid, in ADU above the offset (x * gain), as a new volume */
     public Volume toVolume(float[] x) {
         Volume out = Volume.zeros(w, h, d, voxel);

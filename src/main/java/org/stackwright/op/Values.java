@@ -19,6 +19,7 @@ public final class Values {
     private final Map<String, Param> params = new LinkedHashMap<>();
     private final Map<String, String> text = new LinkedHashMap<>();
     private final Map<String, ImagePlus> images = new LinkedHashMap<>();
+    private final java.util.Set<String> wanted = new java.util.LinkedHashSet<>();
 
     private Values(String operation, List<Param> list) {
         this.operation = operation;
@@ -160,6 +161,26 @@ public final class Values {
     public boolean given(String key) {
         param(key);
         return text.containsKey(key) || images.containsKey(key);
+    }
+
+    /**
+     * Marks output images a door will show (the ImageJ and SciJava doors make outputs as windows, not files, so no
+     * path is given for them).
+     *
+     * @param keys output image keys, not modified
+     */
+    public Values wantOutputs(java.util.Collection<String> keys) {
+        for (String k : keys) {
+            if (param(k).kind() == Param.Kind.OUTPUT_IMAGE) {
+                wanted.add(k);
+            }
+        }
+        return this;
+    }
+
+    /** @return true when an output image is asked for: a path given (command line) or a window wanted (ImageJ) */
+    public boolean wants(String key) {
+        return given(key) || wanted.contains(key);
     }
 
     /** @return the value as given, or the default; null when neither exists */

@@ -124,6 +124,12 @@ public final class DeconvolveCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "fft")
     private String fft;
 
+    @Parameter(type = ItemIO.OUTPUT, label = "residuals")
+    private ImagePlus residuals;
+
+    @Parameter(type = ItemIO.OUTPUT, label = "residuals-summary")
+    private ImagePlus residualsSummary;
+
     @Parameter(persist = false, required = false, label = "record")
     private File record;
 

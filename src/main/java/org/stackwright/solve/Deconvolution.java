@@ -29,7 +29,8 @@ public final class Deconvolution {
      * @param solution the solver's output (history, stop reason)
      * @param record the run record (JSON-ready map)
      * @param model the fitted forward model A x + background on the image, ADU above the offset, or null when not
-     *     asked for (see {@link NoiseReplicas})
+     *     asked for (see {@link NoiseReplicas}, {@link RunResiduals}; from
+     *     {@link DeconvolutionProblem#predictedAboveOffset})
      */
     public record Outcome(Volume result, Solution solution, Map<String, Object> record, Volume model) {
     }
@@ -141,7 +142,7 @@ public final class Deconvolution {
             }
             sol = solver.solve(problem, ctx, listener);
             NumericalGuard.estimate(s.method(), sol);
-            model = withModel ? forwardModel(problem, sol.estimate(), bg) : null;
+            model = withModel ? problem.predictedAboveOffset(sol.estimate()) : null;
             if (after != null) {
                 after.run(problem, sol);
             }
@@ -197,18 +198,6 @@ public final class Deconvolution {
 
     private static Volume emptyOfSize(int[] size, Volume data) {
         return Volume.zeros(size[0], size[1], size[2], data.voxel());
-    }
-
-    /** @return gain * (H x) on the image window plus the background, ADU above the offset */
-    private static Volume forwardModel(DeconvolutionProblem problem, float[] x, double backgroundAdu) {
-        float[] work = new float[x.length];
-        problem.forward().apply(x, work);
-        Volume m = problem.toVolume(work);
-        float[] d = m.data();
-        for (int i = 0; i < d.length; i++) {
-            d[i] = (float) (d[i] + backgroundAdu);
-        }
-        return m;
     }
 
     /**

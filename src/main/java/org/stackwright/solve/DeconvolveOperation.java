@@ -81,6 +81,7 @@ public final class DeconvolveOperation implements Operation {
                 Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history")));
         p.addAll(p.indexOf(p.stream().filter(q -> q.key().equals("likelihood")).findFirst().orElseThrow()) + 1,
                 UncertaintyStep.params());
+        p.addAll(p.size() - 1, RunResiduals.params());
         return List.copyOf(p);
     }
 
@@ -138,6 +139,10 @@ public final class DeconvolveOperation implements Operation {
         if (m != null) {
             mask = MaskChecks.check("mask", ImagePlusAdapter.toVolume(m), data, ctx);
         }
+        boolean residuals = RunResiduals.wanted(v);
+        if (residuals) {
+            RunResiduals.check(s, depthVariant, UncertaintyStep.mode(v));
+        }
         Result r = new Result();
         Deconvolution.Outcome out;
         if (depthVariant) {
@@ -151,7 +156,7 @@ public final class DeconvolveOperation implements Operation {
             out.record().forEach(r::record);
             r.record("uncertainty", mode);
         } else {
-            out = UncertaintyStep.run(v, data, psf, psfImp.getTitle(), mask, s, in.getTitle(), ctx, r);
+            out = UncertaintyStep.run(v, data, psf, psfImp.getTitle(), mask, s, in.getTitle(), residuals, ctx, r);
         }
         r.image("output", ImagePlusAdapter.toImagePlus(out.result(), in.getTitle() + "-deconvolve"));
         FftChoice.note(r, fft);
@@ -168,6 +173,9 @@ public final class DeconvolveOperation implements Operation {
         row.put("seconds", out.solution().seconds());
         row.put("final_objective", hist.length > 0 ? hist[hist.length - 1] : Double.NaN);
         r.row(row);
+        if (residuals) {
+            RunResiduals.attach(r, v, data, psf, mask, s, out, in.getTitle(), ctx);
+        }
         return r;
     }
 

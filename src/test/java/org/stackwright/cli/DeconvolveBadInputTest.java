@@ -221,6 +221,19 @@ class DeconvolveBadInputTest {
         // files
         t.add(row("output equal to input", 2, "is the same file as --input; the input is never overwritten",
                 "--output", input("cells.tif", good), "--overwrite"));
+        // the run's own residuals (solve.RunResiduals)
+        t.add(row("residuals with likelihood gaussian and no read noise", 2, "read-noise = 0.0 is not allowed with"
+                + " likelihood gaussian and residuals", "--method", "total-variation", "--likelihood", "gaussian",
+                "--residuals", out("own-residuals.tif")));
+        t.add(row("residuals with NaN pixels: left out, residual 0", 0, "residuals of the run's own prediction",
+                "--input", input("cells-nan.tif", good.withData(nan)), "--residuals",
+                out("own-residuals-nan.tif")));
+        t.add(row("residuals with depth-variant", 2, "residuals is not made with depth-variant on", dv[0], dv[1], dv[2],
+                dv[3], dv[4], dv[5], dv[6], dv[7], "--sample-index", "1.33", "--residuals", out("own-dv.tif")));
+        t.add(row("residuals with sampling", 2, "residuals is not made with uncertainty = sampling", "--uncertainty",
+                "sampling", "--residuals-summary", out("own-sampling.png")));
+        t.add(row("residuals-summary named like the output", 2, "--residuals-summary and --output name the same file",
+                "--residuals-summary", out("residuals-summary-named-like-the-output.tif")));
         t.add(memoryRow());
         trustRows(t, good);
         return t.stream();

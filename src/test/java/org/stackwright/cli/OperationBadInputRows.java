@@ -118,10 +118,14 @@ final class OperationBadInputRows {
                 res, "--input", data, "--estimate", small, "--psf", good, "--output", out));
         t.add(cli("residuals NaN in the estimate", 2, "estimate: 1 of 1280 pixels are NaN or infinite; allowed: finite values only",
                 res, "--input", data, "--estimate", dataNan, "--psf", good, "--output", out));
-        t.add(cli("residuals NaN in the data: untrusted, residual 0", 0, "input: the 1 untrusted pixels are given the prediction (residual 0)",
+        t.add(cli("residuals NaN in the data: untrusted, residual 0", 0, "input: the 1 NaN or infinite pixels carry no"
+                + " data; they are left out of chi^2, the histogram and the verdict, and get residual 0",
                 res, "--input", dataNan, "--estimate", data, "--psf", good, "--output", x.path("res-nan.tif").toString()));
         t.add(cli("residuals data all NaN", 2, "input: every one of the 1280 pixels is NaN or infinite",
                 res, "--input", allNan, "--estimate", data, "--psf", good, "--output", out));
+        t.add(cli("residuals boundary not a choice", 2, "boundary = 'wrap' is not allowed; choose one of exclude,"
+                + " mirror, zero", res, "--input", data, "--estimate", data, "--psf", good, "--boundary", "wrap",
+                "--output", out));
 
         // --- measure-psf: the value rules of PsfChecks (a bead image may be off-centre, even-sized) ---
         t.add(cli("measure-psf all zeros", 2, "input has no positive value", "measure-psf", "--input", zeros));

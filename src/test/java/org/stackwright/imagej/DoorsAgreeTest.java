@@ -72,6 +72,13 @@ class DoorsAgreeTest {
                         "offset", "100"), ordered("input", "demo-cells.tif", "psf", "demo-psf.tif"), List.of("output")),
                 new Case("deconvolve", "Deconvolve Stack...", ordered("iterations", "3", "offset", "100", "fft", "java"),
                         ordered("input", "demo-cells.tif", "psf", "demo-psf.tif"), List.of("output")),
+                // the run's own residuals (a ticked output in the macro, a declared output in SciJava)
+                new Case("deconvolve", "Deconvolve Stack...", ordered("method", "richardson-lucy", "iterations", "3",
+                        "offset", "100", "read-noise", "2", "fft", "java"), ordered("input", "demo-cells.tif", "psf",
+                        "demo-psf.tif"), List.of("output", "residuals")),
+                new Case("residuals", "Residual View...", ordered("offset", "100", "background", "10", "likelihood",
+                        "poisson-gaussian", "read-noise", "2", "fft", "java"), ordered("input", "demo-cells.tif",
+                        "estimate", "demo-cells-truth.tif", "psf", "demo-psf.tif"), List.of("output")),
                 new Case("inpaint", "Fill Masked Pixels...", ordered("method", "harmonic"),
                         ordered("input", "demo-tiles.tif", "mask", "demo-tiles-damage.tif"), List.of("output")),
                 new Case("find-defects", "Find Defective Pixels...", ordered(), ordered("input", "demo-tiles.tif"),
