@@ -8,6 +8,7 @@ import java.util.Locale;
 import java.util.stream.Stream;
 
 import org.stackwright.volume.OutputFiles;
+import org.stackwright.volume.OutputPaths;
 import org.stackwright.volume.TiffFiles;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
@@ -35,7 +36,7 @@ public final class PlaneFolderSink implements StackSink {
      *     folder
      */
     public PlaneFolderSink(Path target, int width, int height, int depth, int bits, VoxelSize voxel) {
-        this.target = target.toAbsolutePath();
+        this.target = OutputPaths.real(target);
         checkTarget(this.target);
         this.tmp = TiffFiles.temporaryFor(this.target);
         this.width = width;
@@ -127,7 +128,7 @@ public final class PlaneFolderSink implements StackSink {
             if (Files.isDirectory(target)) {
                 Files.delete(target); // empty, checked at the start
             }
-            OutputFiles.moveIntoPlace(tmp, target);
+            OutputFiles.moveIntoPlace(tmp, target, false);
         } catch (IOException e) {
             abort();
             throw new UncheckedIOException("could not write " + target + ": " + e.getMessage(), e);

@@ -6,6 +6,7 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 
 import org.stackwright.volume.OutputFiles;
+import org.stackwright.volume.OutputPaths;
 import org.stackwright.volume.TiffFiles;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
@@ -13,13 +14,15 @@ import org.stackwright.volume.VoxelSize;
 /**
  * One TIFF file (BigTIFF over 4 GB) written block by block under a hidden temporary name in the target folder, and
  * renamed into place by {@link #commit()} when every block is written: the all-or-nothing rule of
- * {@link TiffFiles#write}. The cores are written where they belong as soon as they are done, so memory holds no
+ * {@link TiffFiles#write} (the real path, links followed; without overwrite a file that appeared meanwhile is
+ * kept). The cores are written where they belong as soon as they are done, so memory holds no
  * more than one block's output.
  */
 public final class TiffStackSink implements StackSink {
 
     private final Path target;
     private final Path tmp;
+    private final boolean overwrite;
     private final TiffStackFile file;
     private boolean open = true;
 
@@ -32,7 +35,8 @@ public final class TiffStackSink implements StackSink {
      */
     public TiffStackSink(Path target, int width, int height, int depth, int bits, VoxelSize voxel, boolean overwrite,
             boolean forceBig) {
-        this.target = target.toAbsolutePath();
+        this.target = OutputPaths.real(target);
+        this.overwrite = overwrite;
         TiffFiles.checkWritable(this.target, overwrite);
         this.tmp = TiffFiles.temporaryFor(this.target);
         try {
@@ -63,7 +67,7 @@ public final class TiffStackSink implements StackSink {
             file.force();
             file.close();
             open = false;
-            OutputFiles.moveIntoPlace(tmp, target);
+            OutputFiles.moveIntoPlace(tmp, target, overwrite);
         } catch (IOException e) {
             abort();
             throw new UncheckedIOException("could not write " + target + ": " + e.getMessage(), e);

@@ -13,35 +13,43 @@ import java.util.List;
 import java.util.Locale;
 
 import org.stackwright.op.Param;
+import org.stackwright.volume.OutputPaths;
 import org.stackwright.volume.TiffFiles;
 
 /**
- * Batch mode of the command line: the main input names a folder (every .tif/.tiff in it) or a file pattern
- * ({@code "data/*.tif"}, with {@code * ? [..] {a,b}} in the file name part), and each output option names a
- * folder. Files are processed in name order; output names are {@code <title>-<operation>.tif} for the main
- * output {@code output} and {@code <title>-<key>.tif} (or {@code .json}) for the others.
+ * Batch mode of the command line: the main input names a folder (every .tif/.tiff in it) or, only when asked with
+ * the prefix {@value #PATTERN_PREFIX}, a file pattern ({@code glob:data/*.tif}, with {@code * ? [..] {a,b}} in
+ * the file name part), and each output option names a folder. A name that exists as a file is always that file,
+ * whatever characters it holds ({@code psf [1].tif}). Files are processed in name order; output names are
+ * {@code <title>-<operation>.tif} for the main output {@code output} and {@code <title>-<key>.tif} (or
+ * {@code .json}) for the others.
  */
 final class Batch {
+
+    /** The prefix that makes an input a file pattern (the syntax of Java's glob path matcher). */
+    static final String PATTERN_PREFIX = "glob:";
 
     private Batch() {
     }
 
-    /** @return true when the value names a folder or a file pattern rather than one file */
+    /** @return true when the value names a folder or, with {@value #PATTERN_PREFIX}, a file pattern */
     static boolean isBatch(String value) {
         if (value == null) {
             return false;
         }
-        Path p;
+        if (value.startsWith(PATTERN_PREFIX)) {
+            return true;
+        }
         try {
-            p = Paths.get(value);
+            return Files.isDirectory(Paths.get(value));
         } catch (InvalidPathException e) {
             return false; // not a usable path at all; the input check names the option
         }
-        if (Files.isDirectory(p)) {
-            return true;
-        }
-        String name = p.getFileName() == null ? "" : p.getFileName().toString();
-        return name.chars().anyMatch(c -> c == '*' || c == '?' || c == '[' || c == '{');
+    }
+
+    /** @return true when a name holds characters a pattern would treat specially */
+    static boolean looksLikePattern(String value) {
+        return value.chars().anyMatch(c -> c == '*' || c == '?' || c == '[' || c == '{');
     }
 
     /**
@@ -51,10 +59,11 @@ final class Batch {
      * @throws IllegalArgumentException naming the option when the folder is missing or nothing matches
      */
     static List<Path> inputs(String key, String value) {
-        Path p = Paths.get(value);
+        boolean pattern = value.startsWith(PATTERN_PREFIX);
+        Path p = OutputPaths.parse("--" + key, pattern ? value.substring(PATTERN_PREFIX.length()) : value);
         Path dir;
         PathMatcher m;
-        if (Files.isDirectory(p)) {
+        if (!pattern) {
             dir = p;
             m = FileSystems.getDefault().getPathMatcher("glob:*.{tif,tiff,TIF,TIFF}");
         } else {
@@ -63,7 +72,7 @@ final class Batch {
                 m = FileSystems.getDefault().getPathMatcher("glob:" + p.getFileName());
             } catch (IllegalArgumentException e) {
                 throw new IllegalArgumentException("--" + key + " = '" + value + "' is not a valid file pattern ("
-                        + e.getMessage() + "); allowed: a file, a folder, or a pattern such as data/*.tif");
+                        + e.getMessage() + "); allowed: a file, a folder, or a pattern such as glob:data/*.tif");
             }
         }
         if (!Files.isDirectory(dir)) {
@@ -81,7 +90,7 @@ final class Batch {
         }
         if (files.isEmpty()) {
             throw new IllegalArgumentException("--" + key + " = '" + value + "' matches no file; allowed: a TIFF file,"
-                    + " a folder holding .tif files, or a pattern such as data/*.tif");
+                    + " a folder holding .tif files, or a pattern such as glob:data/*.tif");
         }
         files.sort(null);
         return files;
@@ -99,7 +108,7 @@ final class Batch {
         }
         String title = TiffFiles.titleOf(input);
         String suffix = p.key().equals("output") ? operation : p.key();
-        String ext = p.kind() == Param.Kind.OUTPUT_FILE ? ".json" : ".tif";
+        String ext = p.fileEnding();
         return dir.resolve(title + "-" + suffix.toLowerCase(Locale.ROOT) + ext);
     }
 }

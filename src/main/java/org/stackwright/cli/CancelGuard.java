@@ -3,13 +3,11 @@ package org.stackwright.cli;
 import java.io.IOException;
 import java.nio.file.Files;
 import java.nio.file.Path;
-import java.util.List;
-import java.util.concurrent.CopyOnWriteArrayList;
 import java.util.concurrent.CountDownLatch;
 import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.AtomicBoolean;
 
-import org.stackwright.volume.TiffFiles;
+import org.stackwright.volume.OutputFiles;
 
 /**
  * Cancel on SIGINT (Ctrl-C) or SIGTERM for the command line, without partial files.
@@ -18,7 +16,8 @@ import org.stackwright.volume.TiffFiles;
  * hook that only sets a flag would let the JVM halt at once, killing the run mid-iteration or mid-write (the
  * temporary file and its clean-up with it). So the hook sets the cancel flag and then <i>waits</i> until the run
  * has stopped at its next cancel check and cleaned up ({@link #close()}), at most {@link #GRACE_SECONDS}. If the
- * run does not stop in time the hook removes the temporary files of the outputs it knows of before the JVM halts.
+ * run does not stop in time the hook removes the temporary and claim files of the writes in progress
+ * ({@link OutputFiles#temporaryFiles}) before the JVM halts.
  * The process then ends with the usual exit code of an interrupted program (130 for SIGINT).
  */
 final class CancelGuard implements AutoCloseable {
@@ -28,7 +27,6 @@ final class CancelGuard implements AutoCloseable {
 
     private final AtomicBoolean cancelled = new AtomicBoolean();
     private final CountDownLatch finished = new CountDownLatch(1);
-    private final List<Path> outputs = new CopyOnWriteArrayList<>();
     private final Thread hook;
 
     CancelGuard() {
@@ -41,11 +39,6 @@ final class CancelGuard implements AutoCloseable {
         return cancelled.get();
     }
 
-    /** Remembers an output whose temporary file must not outlive the process. */
-    void watch(Path output) {
-        outputs.add(output.toAbsolutePath());
-    }
-
     private void onShutdown() {
         cancelled.set(true);
         try {
@@ -55,11 +48,9 @@ final class CancelGuard implements AutoCloseable {
         } catch (InterruptedException e) {
             Thread.currentThread().interrupt();
         }
-        for (Path p : outputs) {
-            Path tmp = TiffFiles.temporaryFor(p);
+        for (Path tmp : OutputFiles.temporaryFiles()) {
             try {
                 Files.deleteIfExists(tmp);
-                Files.deleteIfExists(Path.of(tmp + ".png"));
             } catch (IOException ignored) {
                 // best effort while the JVM halts
             }

@@ -13,14 +13,15 @@ import java.util.Map;
 
 import ij.ImagePlus;
 
-import org.stackwright.op.Json;
 import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
 import org.stackwright.op.RunContext;
+import org.stackwright.op.RunFailedException;
 import org.stackwright.op.Values;
 import org.stackwright.parallel.CancelledException;
-import org.stackwright.volume.OutputFiles;
+import org.stackwright.imagej.ChannelRunner;
+import org.stackwright.volume.OutputPaths;
 import org.stackwright.volume.TiffFiles;
 
 import picocli.CommandLine;
@@ -79,9 +80,7 @@ final class OperationRunner {
 
     private static String label(Param p) {
         return switch (p.kind()) {
-            case IMAGE -> "FILE.tif";
-            case OUTPUT_IMAGE -> p.unit().equals("PNG") ? "FILE.png" : "FILE.tif";
-            case OUTPUT_FILE -> "FILE.json";
+            case IMAGE, OUTPUT_IMAGE, OUTPUT_FILE -> "FILE" + p.fileEnding();
             case CHOICE -> String.join("|", p.choices());
             case INTEGER -> "N";
             case NUMBER -> p.unit().isEmpty() ? "X" : p.unit().toUpperCase(Locale.ROOT).replace('/', '_');
@@ -99,7 +98,8 @@ final class OperationRunner {
         } else if (p.defaultValue() != null && p.kind() != Param.Kind.FLAG) {
             sb.append(" [default ").append(p.defaultValue()).append(']');
         }
-        return sb.toString();
+        // picocli formats descriptions with String.format: a literal % (as in "10%") must be doubled
+        return sb.toString().replace("%", "%%");
     }
 
     /**
@@ -141,7 +141,7 @@ final class OperationRunner {
                 return runBatch(main, raw, threads, overwrite, guard);
             }
             try {
-                runOne(raw, threads, overwrite, guard);
+                runOne(raw, Map.of(), threads, overwrite, guard);
                 return Main.OK;
             } catch (RuntimeException | OutOfMemoryError e) {
                 err.println("stackwright " + op.name() + ": " + describe(e));
@@ -162,7 +162,11 @@ final class OperationRunner {
             files = Batch.inputs(main.key(), raw.get(main.key()));
             for (Param p : op.params()) {
                 if ((p.kind() == Param.Kind.OUTPUT_IMAGE || p.kind() == Param.Kind.OUTPUT_FILE) && raw.containsKey(p.key())) {
-                    Batch.output(p, op.name(), raw.get(p.key()), files.get(0));
+                    Path out = Batch.output(p, op.name(), raw.get(p.key()), files.get(0));
+                    if (OutputPaths.sameFile(out.getParent(), files.get(0).getParent())) {
+                        throw new IllegalArgumentException("--" + p.key() + " = '" + raw.get(p.key()) + "' is the folder"
+                                + " of the inputs; batch outputs could replace other inputs: choose another folder");
+                    }
                 }
             }
         } catch (IllegalArgumentException e) {
@@ -177,15 +181,19 @@ final class OperationRunner {
                 continue;
             }
             Map<String, String> one = new LinkedHashMap<>(raw);
+            Map<String, Path> paths = new LinkedHashMap<>();
             one.put(main.key(), f.toString());
+            paths.put(main.key(), f);
             for (Param p : op.params()) {
                 if ((p.kind() == Param.Kind.OUTPUT_IMAGE || p.kind() == Param.Kind.OUTPUT_FILE) && raw.containsKey(p.key())) {
-                    one.put(p.key(), Batch.output(p, op.name(), raw.get(p.key()), f).toString());
+                    Path out = Batch.output(p, op.name(), raw.get(p.key()), f);
+                    one.put(p.key(), out.toString());
+                    paths.put(p.key(), out);
                 }
             }
             err.println("stackwright " + op.name() + ": [" + (done + failed.size() + 1) + "/" + files.size() + "] " + f);
             try {
-                runOne(one, threads, overwrite, guard);
+                runOne(one, paths, threads, overwrite, guard);
                 done++;
             } catch (RuntimeException | OutOfMemoryError e) {
                 failed.put(f, describe(e));
@@ -200,49 +208,83 @@ final class OperationRunner {
         return failed.isEmpty() ? Main.OK : Main.FAILED;
     }
 
-    /** Runs one input: reads, checks outputs, runs, writes. Throws on any problem. */
-    private void runOne(Map<String, String> raw, int threads, boolean overwrite, CancelGuard guard) {
-        Values values = Values.parse(op.name(), op.params(), raw);
-        if (new StreamingRun(this, op, err).tryRun(values, raw, threads, overwrite, guard)) {
+    /**
+     * Runs one input: checks the settings, reads the inputs, checks and claims the outputs, runs, writes. Throws on
+     * any problem.
+     *
+     * @param raw option key to text as given
+     * @param paths paths already known for some keys (batch inputs from a folder listing, batch outputs), used
+     *     instead of parsing their text
+     */
+    private void runOne(Map<String, String> raw, Map<String, Path> paths, int threads, boolean overwrite,
+            CancelGuard guard) {
+        boolean lists = PerChannel.hasLists(op, raw);
+        Values values = lists ? null : Values.parse(op.name(), op.params(), raw);
+        if (!lists && new StreamingRun(this, op, err).tryRun(values, raw, threads, overwrite, guard)) {
             return;
         }
+        Map<String, ImagePlus> images = new LinkedHashMap<>();
+        Map<String, Path> inputs = new LinkedHashMap<>();
         Map<String, Path> outputs = new LinkedHashMap<>();
-        Map<Path, String> inputs = new LinkedHashMap<>();
         for (Param p : op.params()) {
             String v = raw.get(p.key());
-            if (p.kind() == Param.Kind.IMAGE) {
-                if (v == null) {
-                    if (p.required()) {
-                        throw new IllegalArgumentException("--" + p.key() + " is required: " + p.help());
-                    }
-                    continue;
+            boolean output = p.kind() == Param.Kind.OUTPUT_IMAGE || p.kind() == Param.Kind.OUTPUT_FILE;
+            if (p.kind() != Param.Kind.IMAGE && !output) {
+                continue;
+            }
+            if (v == null) {
+                if (p.required()) {
+                    throw new IllegalArgumentException("--" + p.key() + " is required: " + p.help());
                 }
-                Path path = Paths.get(v);
-                values.withImage(p.key(), TiffFiles.open(path, "--" + p.key()));
-                inputs.put(path.toAbsolutePath().normalize(), p.key());
-            } else if (p.kind() == Param.Kind.OUTPUT_IMAGE || p.kind() == Param.Kind.OUTPUT_FILE) {
-                if (v == null) {
-                    if (p.required()) {
-                        throw new IllegalArgumentException("--" + p.key() + " is required: " + p.help());
-                    }
-                    continue;
-                }
-                outputs.put(p.key(), Paths.get(v));
+                continue;
+            }
+            String key = "--" + p.key();
+            if (output) {
+                outputs.put(p.key(), paths.containsKey(p.key()) ? paths.get(p.key()) : OutputPaths.parseOutput(key, v));
+            } else {
+                Path path = paths.containsKey(p.key()) ? paths.get(p.key()) : OutputPaths.parse(key, v);
+                images.put(p.key(), open(key, path, v));
+                inputs.put(p.key(), path);
             }
         }
-        checkOutputs(outputs, inputs, overwrite);
-        outputs.values().forEach(guard::watch);
-        RunContext ctx = new RunContext(threads, new CliProgress(err), w -> err.println("warning: " + w), guard::isCancelled);
-        long t0 = System.nanoTime();
-        Result result = op.run(values, ctx);
-        err.print(CliProgress.CLEAR);
-        result.record().putIfAbsent("seconds", (System.nanoTime() - t0) * 1e-9);
-        if (!ctx.warnings().isEmpty()) {
-            result.record().put("warnings", ctx.warnings());
+        try (RunOutputs files = RunOutputs.claim(op, outputs, inputs, overwrite)) {
+            RunContext ctx = new RunContext(threads, new CliProgress(err), w -> err.println("warning: " + w), guard::isCancelled);
+            long t0 = System.nanoTime();
+            String mainKey = ChannelRunner.mainInput(op);
+            ImagePlus main = mainKey == null ? null : images.get(mainKey);
+            PerChannel.Made made;
+            if (lists || (main != null && (main.getNChannels() > 1 || main.getNFrames() > 1))) {
+                made = PerChannel.run(op, raw, images, threads, ctx, guard::isCancelled);
+            } else {
+                images.forEach(values::withImage);
+                Result result = op.run(values, ctx);
+                made = new PerChannel.Made(result.images(), result.record(), result.report());
+            }
+            err.print(CliProgress.CLEAR);
+            made.record().putIfAbsent("seconds", (System.nanoTime() - t0) * 1e-9);
+            if (!ctx.warnings().isEmpty()) {
+                made.record().put("warnings", ctx.warnings());
+            }
+            files.write(made.images(), made.record(), err, guard::isCancelled);
+            for (String line : made.report()) {
+                out.println(line);
+            }
         }
-        writeOutputs(result, outputs, overwrite, guard);
-        for (String line : result.report()) {
-            out.println(line);
+    }
+
+    /**
+     * Opens an input TIFF; a missing file whose name looks like a pattern gets a hint (patterns only with the
+     * prefix {@value Batch#PATTERN_PREFIX}).
+     */
+    private static ImagePlus open(String key, Path path, String text) {
+        try {
+            return TiffFiles.open(path, key);
+        } catch (IllegalArgumentException e) {
+            if (Batch.looksLikePattern(text) && !java.nio.file.Files.exists(path)) {
+                throw new IllegalArgumentException(e.getMessage() + " (to process every file matching a pattern,"
+                        + " write it as " + Batch.PATTERN_PREFIX + text + ")", e);
+            }
+            throw e;
         }
     }
 
@@ -268,6 +310,9 @@ final class OperationRunner {
         if (e instanceof OutOfMemoryError) {
             return "out of memory; give Java more heap (java -Xmx...) or use a smaller image";
         }
+        if (e instanceof RunFailedException || e instanceof UncheckedIOException) {
+            return Main.clip("failed: " + e.getMessage());
+        }
         return Main.clip("failed: " + e);
     }
 
@@ -287,26 +332,33 @@ final class OperationRunner {
         checkOutputs(outputs, inputs, overwrite, java.util.Set.of());
     }
 
-    /** As above; the keys in folders name folders of planes (block runs). */
+    /**
+     * Checks the outputs of a block run before any work, as {@link RunOutputs#claim} does for the usual run: each
+     * output's real path (links followed) must not be an input (also through a link), two outputs must not name
+     * one file, and its folder must take it. The keys in folders name folders of planes.
+     *
+     * @param inputs input path to its key
+     */
     static void checkOutputs(Map<String, Path> outputs, Map<Path, String> inputs, boolean overwrite,
             java.util.Set<String> folders) {
         Map<Path, String> seen = new LinkedHashMap<>();
         for (Map.Entry<String, Path> e : outputs.entrySet()) {
-            Path abs = e.getValue().toAbsolutePath().normalize();
-            String input = inputs.get(abs);
-            if (input != null) {
-                throw new IllegalArgumentException("--" + e.getKey() + " " + e.getValue() + " is the same file as --" + input
-                        + "; the input is never overwritten: choose another output name");
+            Path real = OutputPaths.real(e.getValue());
+            for (Map.Entry<Path, String> in : inputs.entrySet()) {
+                if (OutputPaths.sameFile(real, in.getKey())) {
+                    throw new IllegalArgumentException("--" + e.getKey() + " " + e.getValue() + " is the same file as --"
+                            + in.getValue() + "; the input is never overwritten: choose another output name");
+                }
             }
-            String other = seen.put(abs, e.getKey());
+            String other = seen.put(real, e.getKey());
             if (other != null) {
                 throw new IllegalArgumentException("--" + e.getKey() + " and --" + other + " name the same file " + e.getValue());
             }
             try {
                 if (folders.contains(e.getKey()) || StreamingRun.isFolderOutput(e.getKey(), e.getValue())) {
-                    org.stackwright.blocks.PlaneFolderSink.checkTarget(abs);
+                    org.stackwright.blocks.PlaneFolderSink.checkTarget(real);
                 } else {
-                    TiffFiles.checkWritable(abs, overwrite);
+                    TiffFiles.checkWritable(real, overwrite);
                 }
             } catch (IllegalArgumentException ex) {
                 throw new IllegalArgumentException("--" + e.getKey() + ": " + ex.getMessage());

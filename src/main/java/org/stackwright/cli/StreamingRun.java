@@ -19,6 +19,7 @@ import org.stackwright.op.Param;
 import org.stackwright.op.Result;
 import org.stackwright.op.RunContext;
 import org.stackwright.op.Values;
+import org.stackwright.volume.OutputPaths;
 import org.stackwright.volume.TiffFiles;
 
 /**
@@ -96,7 +97,7 @@ public final class StreamingRun {
         }
         Map<String, PlaneSource> inputs = new LinkedHashMap<>();
         try {
-            Path path = Paths.get(mainPath);
+            Path path = OutputPaths.parse("--" + mainKey, mainPath);
             inputs.put(mainKey, source(path, mainKey));
             Map<Path, String> inputPaths = new LinkedHashMap<>();
             inputPaths.put(path.toAbsolutePath().normalize(), mainKey);
@@ -105,12 +106,13 @@ public final class StreamingRun {
                 if (p.kind() != Param.Kind.IMAGE || v == null || p.key().equals(mainKey)) {
                     continue;
                 }
+                Path in = OutputPaths.parse("--" + p.key(), v);
                 if (b.streamedInputs().contains(p.key())) {
-                    inputs.put(p.key(), source(Paths.get(v), p.key()));
+                    inputs.put(p.key(), source(in, p.key()));
                 } else if (!values.images().containsKey(p.key())) {
-                    values.withImage(p.key(), TiffFiles.open(Paths.get(v), "--" + p.key()));
+                    values.withImage(p.key(), TiffFiles.open(in, "--" + p.key()));
                 }
-                inputPaths.put(Paths.get(v).toAbsolutePath().normalize(), p.key());
+                inputPaths.put(in, p.key());
             }
             Map<String, Path> others = new LinkedHashMap<>();
             for (Param p : op.params()) {
@@ -122,7 +124,9 @@ public final class StreamingRun {
                         }
                         continue;
                     }
-                    others.put(p.key(), Paths.get(v));
+                    Path out = OutputPaths.parse("--" + p.key(), v);
+                    OutputPaths.checkName("--" + p.key(), out);
+                    others.put(p.key(), out);
                 }
             }
             java.util.Set<String> folders = new java.util.LinkedHashSet<>();
@@ -192,8 +196,6 @@ public final class StreamingRun {
                             + " width (" + folder.voxel().x() + " um); give planes saved with their calibration");
                 }
             }
-            f.others().values().forEach(guard::watch);
-            f.streamed().values().forEach(guard::watch);
             RunContext ctx = new RunContext(threads, new CliProgress(err), w -> err.println("warning: " + w),
                     guard::isCancelled);
             long t0 = System.nanoTime();

@@ -113,7 +113,8 @@ public final class ChannelRunner {
                         raw.put(p.key(), ""); // asked for, as a path on the command line asks for it
                     }
                 }
-                Values v = Values.parse(op.name(), op.params(), raw);
+                // a SciJava command cannot ask for an output: those that look at wants() are made when declared
+                Values v = Values.parse(op.name(), op.params(), raw).wantOutputs(settings.outputs());
                 for (Map.Entry<String, ImagePlus> e : settings.images().entrySet()) {
                     ImagePlus imp = e.getValue();
                     boolean whole = imp.getNChannels() == 1 && imp.getNFrames() == 1;

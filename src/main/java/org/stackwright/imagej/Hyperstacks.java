@@ -30,6 +30,10 @@ final class Hyperstacks {
         ImagePlus out = new ImagePlus(imp.getTitle(), st);
         out.setDimensions(1, nz, 1);
         out.setCalibration(imp.getCalibration().copy());
+        String[] props = imp.getPropertiesAsArray();
+        if (props != null) {
+            out.setProperties(props); // notes about the file, e.g. a z step it did not record
+        }
         return out;
     }
 

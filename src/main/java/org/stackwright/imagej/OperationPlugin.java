@@ -101,6 +101,10 @@ public class OperationPlugin implements PlugIn {
             if (Macro.getOptions() != null || Unattended.active()) {
                 error(title, op.name() + " was cancelled; no output was made.", Unattended.FAILED);
             }
+        } catch (org.stackwright.op.RunFailedException e) {
+            // a run that cannot give a trustworthy result (the numerical guard): its message is the explanation
+            IJ.showProgress(1.0);
+            error(title, op.name() + " failed: " + e.getMessage(), Unattended.FAILED);
         } catch (OutOfMemoryError e) {
             IJ.showProgress(1.0);
             error(title, op.name() + " ran out of memory: give ImageJ more memory (Edit>Options>Memory & "

@@ -11,15 +11,13 @@ import org.stackwright.volume.Volume;
 /**
  * The blur part of the forward model for the residual view: H x for an estimate x that lives on the data grid.
  *
- * <p><b>Boundary.</b> A deconvolution estimate only covers the data's field of view, but the data near the border
- * also hold light from objects just outside it. Blurring the estimate with zeros outside would predict a dark band
- * (up to the PSF half-width wide) along every face, and the residual view would flag every border as a mismatch.
- * So the estimate is first mirror-padded by the PSF half-width on every side (half-sample symmetric, ...c b a | a b
- * c...), which continues the object smoothly across the border, and then blurred with a periodic FFT convolution on a
- * grid at least data + 2 half-widths large, so that no value wraps into the field of view. A constant estimate thus
- * gives a constant prediction up to the border (checked in the tests), and a smooth object is continued to first
- * order. What the mirror cannot know (an object just outside the view) still leaves a residual in the outer band
- * of one PSF half-width; {@link ResidualMaps#border()} reports that width so a reader can discount it.
+ * <p><b>Boundary.</b> An estimate on the data grid only covers the data's field of view, but the data near the
+ * border also hold light from objects just outside it. So the estimate is continued past the faces by the PSF
+ * half-width, either mirrored (half-sample symmetric, ...c b a | a b c..., which continues a specimen that runs
+ * past the edges to first order and keeps a constant object constant up to the border) or with zeros (exact for a
+ * specimen that ends inside the field with dark surroundings), and blurred with a periodic FFT convolution on a
+ * grid at least data + 2 half-widths large, so that no value wraps into the field of view. Neither continuation
+ * knows what really lies outside: {@link TrustedRegion} says which voxels the verdict may trust.
  *
  * <p>A 2D image (depth 1) with a 3D PSF uses the PSF's centre plane (the in-focus plane of a thin specimen).
  */
@@ -35,11 +33,27 @@ public final class ForwardBlur {
      * @return H x, a new volume of the estimate's size and calibration
      */
     public static Volume blur(Volume estimate, Volume psf, Workers workers) {
-        return blur(estimate, psf, workers, FftEngines.standard());
+        return blur(estimate, psf, Padding.Mode.MIRROR, workers, FftEngines.standard());
     }
 
-    /** As above, on a given FFT engine. */
+    /** As above (mirror continuation), on a given FFT engine. */
     public static Volume blur(Volume estimate, Volume psf, Workers workers, FftEngine fft) {
+        return blur(estimate, psf, Padding.Mode.MIRROR, workers, fft);
+    }
+
+    /**
+     * @param estimate the object estimate on the data grid, not modified
+     * @param psf the PSF, odd sizes with its peak at the centre voxel, used as given (normalise first); not modified
+     * @param continuation how the estimate continues past the faces: MIRROR or ZERO
+     * @param workers threads
+     * @param fft the FFT engine
+     * @return H x, a new volume of the estimate's size and calibration
+     */
+    public static Volume blur(Volume estimate, Volume psf, Padding.Mode continuation, Workers workers,
+            FftEngine fft) {
+        if (continuation == Padding.Mode.PERIODIC) {
+            throw new IllegalArgumentException("the residual view continues an estimate by MIRROR or ZERO, not PERIODIC");
+        }
         Volume k = estimate.depth() == 1 && psf.depth() > 1 ? centrePlane(psf) : psf;
         int hx = k.width() / 2;
         int hy = k.height() / 2;
@@ -47,7 +61,7 @@ public final class ForwardBlur {
         int nx = gridSize(estimate.width(), hx);
         int ny = gridSize(estimate.height(), hy);
         int nz = gridSize(estimate.depth(), hz);
-        Volume grid = Padding.pad(estimate, nx, ny, nz, hx, hy, hz, Padding.Mode.MIRROR);
+        Volume grid = Padding.pad(estimate, nx, ny, nz, hx, hy, hz, continuation);
         Convolver c = new Convolver(k, nx, ny, nz, workers, fft);
         c.convolve(grid.data(), grid.data());
         return Padding.crop(grid, hx, hy, hz, estimate.width(), estimate.height(), estimate.depth());

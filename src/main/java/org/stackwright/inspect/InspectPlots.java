@@ -85,6 +85,17 @@ public final class InspectPlots {
 
     /** chi^2 per voxel of each slice, with the expected level 1. */
     public static Plot chi2PerSlice(double[] chi2) {
+        return chi2PerSlice(chi2, 0, chi2.length - 1);
+    }
+
+    /**
+     * chi^2 per voxel of each slice, with the expected level 1; slices outside first..last (0-based, the trusted
+     * planes) are drawn grey on a grey background: the border band.
+     */
+    public static Plot chi2PerSlice(double[] chi2, int first, int last) {
+        if (first > 0 || last < chi2.length - 1) {
+            return chi2WithBand(chi2, first, last);
+        }
         double[] z = new double[chi2.length];
         for (int i = 0; i < z.length; i++) {
             z[i] = i + 1;
@@ -103,6 +114,68 @@ public final class InspectPlots {
         p.setColor(Color.BLACK);
         p.addLegend("expected\tdata", "bottom-right");
         return p;
+    }
+
+    private static Plot chi2WithBand(double[] chi2, int first, int last) {
+        Plot p = new Plot("chi^2 per slice", "slice", "chi^2 per voxel");
+        p.setFrameSize(WIDTH, HEIGHT);
+        // the axis follows the trusted planes; band values beyond it are drawn at its top edge
+        double[] inside = java.util.Arrays.copyOfRange(chi2, first, last + 1);
+        double hi = Math.max(1.5, 1.2 * max(inside));
+        double lo = Math.max(0, Math.min(0.5, 0.9 * min(inside)));
+        p.setLimits(0.5, Math.max(1.5, chi2.length + 0.5), lo, hi);
+        Color shade = new Color(0xe4, 0xe4, 0xe4);
+        p.setColor(shade, shade);
+        if (first > 0) {
+            p.add("bar", range(1, first), filled(first, hi));
+        }
+        if (last < chi2.length - 1) {
+            p.add("bar", range(last + 2, chi2.length - last - 1), filled(chi2.length - last - 1, hi));
+        }
+        p.setColor(MODEL);
+        p.add("line", new double[] {0.5, chi2.length + 0.5}, new double[] {1, 1});
+        p.setLabel(-1, "expected");
+        List<double[]> band = new java.util.ArrayList<>();
+        List<double[]> inner = new java.util.ArrayList<>();
+        for (int z = 0; z < chi2.length; z++) {
+            if (Double.isFinite(chi2[z])) {
+                boolean out = z < first || z > last;
+                (out ? band : inner).add(new double[] {z + 1, out ? Math.min(chi2[z], 0.98 * hi) : chi2[z]});
+            }
+        }
+        p.setColor(Color.GRAY);
+        p.add("circle", column(band, 0), column(band, 1));
+        p.setLabel(-1, "border band");
+        p.setColor(OBSERVED);
+        p.setLineWidth(2);
+        p.add(inner.size() > 1 ? "connected circle" : "circle", column(inner, 0), column(inner, 1));
+        p.setLabel(-1, "trusted planes");
+        p.setLineWidth(1);
+        p.setColor(Color.BLACK);
+        p.addLegend(null, "bottom-right");
+        return p;
+    }
+
+    private static double[] range(int from, int n) {
+        double[] a = new double[n];
+        for (int i = 0; i < n; i++) {
+            a[i] = from + i;
+        }
+        return a;
+    }
+
+    private static double[] filled(int n, double v) {
+        double[] a = new double[n];
+        java.util.Arrays.fill(a, v);
+        return a;
+    }
+
+    private static double[] column(List<double[]> rows, int c) {
+        double[] a = new double[rows.size()];
+        for (int i = 0; i < a.length; i++) {
+            a[i] = rows.get(i)[c];
+        }
+        return a;
     }
 
     /**

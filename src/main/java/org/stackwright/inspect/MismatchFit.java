@@ -42,36 +42,47 @@ public record MismatchFit(double offsetShift, double curvatureXy, double curvatu
      * @param exclude per voxel: true to leave out (listed regions); may be null
      */
     public static MismatchFit fit(ResidualMaps maps, ResidualModel model, boolean[] exclude) {
+        Volume[] lap = laplacians(maps.blurred());
+        return fit(maps, lap[0], lap[1], model, exclude);
+    }
+
+    /**
+     * @param maps the residual maps (of a box of the image); untrusted voxels are left out
+     * @param lapXy lateral Laplacian of the blurred estimate at the same voxels (see {@link #laplacians}), computed
+     *     on the whole image so that voxels at the box faces use their true neighbours
+     * @param lapZ axial Laplacian at the same voxels
+     * @param model the forward model used for them
+     * @param exclude per voxel: true to leave out (listed regions); may be null
+     */
+    public static MismatchFit fit(ResidualMaps maps, Volume lapXy, Volume lapZ, ResidualModel model,
+            boolean[] exclude) {
         Volume p = maps.blurred();
         int w = p.width();
         int h = p.height();
         int d = p.depth();
         float[] pd = p.data();
+        float[] lx = lapXy.data();
+        float[] lz = lapZ.data();
         float[] r = maps.normalised().data();
         int k = d >= 3 ? 4 : 2;
         double[][] g = new double[k][k];
         double[] b = new double[k];
         double[] u = new double[k];
         long used = 0;
-        for (int z = 0; z < d; z++) {
-            for (int y = 0; y < h; y++) {
-                for (int x = 0; x < w; x++) {
-                    int i = (z * h + y) * w + x;
-                    if (exclude != null && exclude[i]) {
-                        continue;
-                    }
-                    regressors(pd, w, h, d, x, y, z, i, model, u);
-                    for (int a = 0; a < k; a++) {
-                        b[a] += u[a] * r[i];
-                        for (int c = 0; c < k; c++) {
-                            g[a][c] += u[a] * u[c];
-                        }
-                    }
-                    used++;
+        for (int i = 0; i < r.length; i++) {
+            if ((exclude != null && exclude[i]) || !maps.isTrusted(i)) {
+                continue;
+            }
+            regressors(pd, lx, lz, w * h, d, i, model, u);
+            for (int a = 0; a < k; a++) {
+                b[a] += u[a] * r[i];
+                for (int c = 0; c < k; c++) {
+                    g[a][c] += u[a] * u[c];
                 }
             }
+            used++;
         }
-        double nTotal = p.size();
+        double nTotal = Math.max(1, maps.trusted());
         double[] cBg = solve(g, b, new int[] {0});
         double[] cPsf = solve(g, b, k == 4 ? new int[] {1, 2} : new int[] {1});
         double[] cFade = k == 4 ? solve(g, b, new int[] {3}) : new double[k];
@@ -82,40 +93,67 @@ public record MismatchFit(double offsetShift, double curvatureXy, double curvatu
         double eFade = explained(cFade, b) / nTotal;
         double eAll = explained(cAll, b) / nTotal;
         float[] left = new float[r.length];
-        for (int z = 0; z < d; z++) {
-            for (int y = 0; y < h; y++) {
-                for (int x = 0; x < w; x++) {
-                    int i = (z * h + y) * w + x;
-                    regressors(pd, w, h, d, x, y, z, i, model, u);
-                    double f = 0;
-                    for (int a = 0; a < k; a++) {
-                        f += cAll[a] * u[a];
-                    }
-                    left[i] = (float) (r[i] - f);
-                }
+        for (int i = 0; i < r.length; i++) {
+            if (!maps.isTrusted(i)) {
+                continue;
             }
+            regressors(pd, lx, lz, w * h, d, i, model, u);
+            double f = 0;
+            for (int a = 0; a < k; a++) {
+                f += cAll[a] * u[a];
+            }
+            left[i] = (float) (r[i] - f);
         }
         return new MismatchFit(cAll[0], cAll[1], k == 4 ? cAll[2] : 0, k == 4 ? cAll[3] : 0, eBg, ePsf, eFade, eAll,
                 used, left);
     }
 
+    /**
+     * The lateral and axial Laplacians of a blurred estimate, with neighbours clamped at the faces (zero flux,
+     * like a mirror continuation).
+     *
+     * @param p the blurred estimate, not modified
+     * @return {lap_xy, lap_z}; lap_z is 0 for fewer than 3 planes
+     */
+    public static Volume[] laplacians(Volume p) {
+        int w = p.width();
+        int h = p.height();
+        int d = p.depth();
+        float[] v = p.data();
+        float[] lx = new float[v.length];
+        float[] lz = new float[v.length];
+        int pl = w * h;
+        for (int z = 0; z < d; z++) {
+            for (int y = 0; y < h; y++) {
+                for (int x = 0; x < w; x++) {
+                    int i = (z * h + y) * w + x;
+                    double c = v[i];
+                    double xm = v[i - (x > 0 ? 1 : 0)];
+                    double xp = v[i + (x < w - 1 ? 1 : 0)];
+                    double ym = v[i - (y > 0 ? w : 0)];
+                    double yp = v[i + (y < h - 1 ? w : 0)];
+                    lx[i] = (float) (xm + xp + ym + yp - 4 * c);
+                    if (d >= 3) {
+                        double zm = v[i - (z > 0 ? pl : 0)];
+                        double zp = v[i + (z < d - 1 ? pl : 0)];
+                        lz[i] = (float) (zm + zp - 2 * c);
+                    }
+                }
+            }
+        }
+        return new Volume[] {p.withData(lx), p.withData(lz)};
+    }
+
     /** The regressors divided by the noise standard deviation: 1/s, lap_xy(p)/s, lap_z(p)/s, t(z) p / s. */
-    private static void regressors(float[] p, int w, int h, int d, int x, int y, int z, int i, ResidualModel m,
+    private static void regressors(float[] p, float[] lx, float[] lz, int plane, int d, int i, ResidualModel m,
             double[] u) {
         double c = p[i];
         double s = Math.sqrt(m.noise().variance(m.background() + c));
-        // neighbours clamped at the faces: zero-flux (mirror) boundary, like the blur's mirror continuation
-        double xm = p[i - (x > 0 ? 1 : 0)];
-        double xp = p[i + (x < w - 1 ? 1 : 0)];
-        double ym = p[i - (y > 0 ? w : 0)];
-        double yp = p[i + (y < h - 1 ? w : 0)];
         u[0] = 1 / s;
-        u[1] = (xm + xp + ym + yp - 4 * c) / s;
+        u[1] = lx[i] / s;
         if (u.length > 2) {
-            int pl = w * h;
-            double zm = p[i - (z > 0 ? pl : 0)];
-            double zp = p[i + (z < d - 1 ? pl : 0)];
-            u[2] = (zm + zp - 2 * c) / s;
+            int z = i / plane;
+            u[2] = lz[i] / s;
             u[3] = (z - 0.5 * (d - 1)) / (d - 1) * c / s;
         }
     }
@@ -199,6 +237,24 @@ public record MismatchFit(double offsetShift, double curvatureXy, double curvatu
     /** @return extra lateral blur variance the data show over the prediction, voxel^2 (2 c_xy) */
     public double extraVarianceXy() {
         return 2 * curvatureXy;
+    }
+
+    /**
+     * The fitted size of a PSF-width mismatch as a ratio of widths: the data look as if blurred by the PSF and an
+     * extra Gaussian of variance delta (negative: less blurred), so, for a PSF of Gaussian-equivalent variance s2
+     * along that axis, the data's width over the PSF's is sqrt(1 + delta / s2). First order (the heat-equation
+     * term of the fit), so it understates large mismatches somewhat.
+     *
+     * @param delta extra blur variance, voxel^2
+     * @param s2 Gaussian-equivalent variance of the PSF along the axis, voxel^2 (FWHM / 2.3548, squared)
+     * @return the ratio; NaN when s2 is not positive or the ratio would fall below 0.5 (a first-order fit cannot
+     *     size so large a mismatch)
+     */
+    public static double widthRatio(double delta, double s2) {
+        if (!(s2 > 0) || !Double.isFinite(delta) || 1 + delta / s2 < 0.25) {
+            return Double.NaN;
+        }
+        return Math.sqrt(1 + delta / s2);
     }
 
     /** @return extra axial blur variance, voxel^2 (2 c_z) */

@@ -59,6 +59,12 @@ public record ResidualRegions(List<Region> listed, int listedCount, long scatter
      */
     public record Region(int voxels, double x, double y, double z, int x0, int y0, int z0, int x1, int y1, int z1,
             double peak, double chi2) {
+
+        /** @return the same region with its positions moved by (dx, dy, dz): from a box to the whole image */
+        public Region shifted(int dx, int dy, int dz) {
+            return new Region(voxels, x + dx, y + dy, z + dz, x0 + dx, y0 + dy, z0 + dz, x1 + dx, y1 + dy, z1 + dz,
+                    peak, chi2);
+        }
     }
 
     /** Finds the regions of a normalised residual (not modified). */
@@ -169,8 +175,63 @@ public record ResidualRegions(List<Region> listed, int listedCount, long scatter
         return new ResidualRegions(listed, count, scattered, mask);
     }
 
+    /**
+     * @param box x0, y0, z0, w, h, d
+     * @return the listed regions whose centroid lies in the box (scattered voxels and mask as before)
+     */
+    public ResidualRegions within(int[] box) {
+        List<Region> in = new ArrayList<>();
+        for (Region g : listed) {
+            if (inside(g, box)) {
+                in.add(g);
+            }
+        }
+        return new ResidualRegions(List.copyOf(in), in.size(), scatteredVoxels, mask);
+    }
+
+    /** @return how many listed regions have their centroid outside the box */
+    public int outside(int[] box) {
+        int n = 0;
+        for (Region g : listed) {
+            if (!inside(g, box)) {
+                n++;
+            }
+        }
+        return n;
+    }
+
+    private static boolean inside(Region g, int[] b) {
+        return g.x() >= b[0] - 0.5 && g.x() < b[0] + b[3] - 0.5 && g.y() >= b[1] - 0.5 && g.y() < b[1] + b[4] - 0.5
+                && g.z() >= b[2] - 0.5 && g.z() < b[2] + b[5] - 0.5;
+    }
+
+    /** @return the same regions with positions moved by (dx, dy, dz) */
+    public ResidualRegions shifted(int dx, int dy, int dz) {
+        List<Region> out = new ArrayList<>();
+        for (Region g : listed) {
+            out.add(g.shifted(dx, dy, dz));
+        }
+        return new ResidualRegions(List.copyOf(out), listedCount, scatteredVoxels, mask);
+    }
+
     private static boolean hit(float[] r, float[] d, int i) {
         return Math.abs(r[i]) > THRESHOLD && (d == null || Math.abs(d[i]) > THRESHOLD);
+    }
+
+    /**
+     * @param left the residual the regions were found in (e.g. what the cause fit left), not modified
+     * @param n voxels of the judged region
+     * @return the chi^2 per voxel the regions carry above the noise level: sum over region voxels of
+     *     (left^2 - 1), divided by n, at least 0
+     */
+    public double chi2Excess(float[] left, long n) {
+        double s = 0;
+        for (int i = 0; i < left.length; i++) {
+            if (mask[i]) {
+                s += (double) left[i] * left[i] - 1;
+            }
+        }
+        return Math.max(0, s / Math.max(1, n));
     }
 
     /** @return sum of r^2 over all listed-quality regions, divided by the number of voxels n */

@@ -26,16 +26,20 @@ import org.stackwright.op.Values;
 import org.stackwright.parallel.Workers;
 import org.stackwright.psf.PsfChecks;
 import org.stackwright.volume.ImagePlusAdapter;
+import org.stackwright.volume.Padding;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
 
 /**
  * The block side of {@code residuals}. The forward model H x of a voxel needs the estimate within the PSF's
- * half-width, so that is the halo; at the stack's faces the estimate is mirrored as in memory ({@link ForwardBlur}),
- * so the normalised residual stack equals the whole-stack one up to float rounding of the FFT. Chi^2 per voxel and
- * per slice are added up over the blocks. The verdict, spectrum, cause fit and regions look at the whole view at
- * once; in blocks they are taken on a representative part, a central crop of up to {@value #CROP} x {@value #CROP}
- * x {@value #CROP_DEPTH} voxels (recorded as "verdict_from").
+ * half-width, so that is the halo; at the stack's faces the estimate is continued as in memory (mirror, or zeros for
+ * {@code --boundary zero}; {@link ForwardBlur}), so the normalised residual stack equals the whole-stack one up to
+ * float rounding of the FFT. The trusted region ({@link TrustedRegion}: with the default {@code exclude} the voxels
+ * further than the PSF's reach from the stack's faces, less NaN pixels) is the whole stack's: chi^2 over it, over
+ * the whole image, over the border band and per slice are added up over the blocks. The verdict, spectrum, cause
+ * fit and regions look at the whole view at once; in blocks they are taken on a representative part, a central crop
+ * of up to {@value #CROP} x {@value #CROP} x {@value #CROP_DEPTH} voxels (recorded as "verdict_from"), predicted
+ * from the estimate around it, whose band is left out only where it touches the stack's faces.
  */
 final class ResidualsBlocks implements BlockOperation {
 
@@ -102,14 +106,43 @@ final class ResidualsBlocks implements BlockOperation {
         psf(v, data.voxel(), data.depth(), ctx);
         model(v);
         return new Globals(Map.of(), Map.of("voxel_x", data.voxel().x(), "voxel_y", data.voxel().y(), "voxel_z",
-                data.voxel().z(), "depth", (double) data.depth()), Map.of());
+                data.voxel().z(), "depth", (double) data.depth(), "width", (double) data.width(), "height",
+                (double) data.height()), Map.of());
+    }
+
+    /** @return the whole stack's trusted region (no untrusted voxels: those are found block by block) */
+    private static TrustedRegion region(Values v, Volume psf, int w, int h, int d) {
+        int[] band = TrustedRegion.bandOf(psf);
+        String boundary = v.choice("boundary");
+        return new TrustedRegion(w, h, d, band, boundary.equals("exclude"), boundary, null);
+    }
+
+    private static Padding.Mode continuation(Values v) {
+        return v.choice("boundary").equals("zero") ? Padding.Mode.ZERO : Padding.Mode.MIRROR;
+    }
+
+    /** @return true per voxel where the data are NaN or infinite; null for none */
+    private static boolean[] untrusted(Volume data) {
+        InputChecks.Scan scan = InputChecks.scan(data);
+        if (scan.nonFinite() == 0) {
+            return null;
+        }
+        byte[] m = scan.nonFiniteMask();
+        boolean[] u = new boolean[m.length];
+        for (int i = 0; i < u.length; i++) {
+            u[i] = m[i] != 0;
+        }
+        return u;
     }
 
     @Override
     public BlockProcessor processor(Values resolved, Globals g, RunContext ctx) {
         VoxelSize voxel = new VoxelSize(g.number("voxel_x"), g.number("voxel_y"), g.number("voxel_z"));
         int depth = (int) g.number("depth");
-        Volume psf = psf(resolved, voxel, depth, RunContext.quiet(1));
+        Volume psf = ResidualMaps.normalise(psf(resolved, voxel, depth, RunContext.quiet(1)));
+        TrustedRegion region = region(resolved, psf, (int) g.number("width"), (int) g.number("height"), depth);
+        int[] box = region.analysisBox();
+        Padding.Mode continuation = continuation(resolved);
         ResidualModel model = model(resolved);
         FftEngine fft = FftChoice.choose(resolved).engine();
         Workers workers = new Workers(ctx.threads());
@@ -119,28 +152,47 @@ final class ResidualsBlocks implements BlockOperation {
                 Volume data = in.get("input");
                 Volume est = in.get("estimate").withVoxel(data.voxel());
                 InputChecks.requireFinite("estimate", est);
-                InputChecks.Scan scan = InputChecks.scan(data);
-                if (scan.nonFinite() > 0) {
-                    data = ResidualsOperation.predictionWhereUntrusted(data, est, psf, model, scan.nonFiniteMask(), workers,
-                            fft);
-                    c.warn("input: untrusted (NaN or infinite) pixels are given the prediction (residual 0)");
+                boolean[] untrusted = untrusted(data);
+                if (untrusted != null) {
+                    c.warn("input: the NaN or infinite pixels carry no data; they are left out of chi^2, the histogram"
+                            + " and the verdict, and get residual 0");
                 }
-                ResidualMaps maps = ResidualMaps.compute(data, est, psf, model, workers, fft);
+                ResidualMaps maps = ResidualMaps.of(data, ForwardBlur.blur(est, psf, continuation, workers, fft), model,
+                        untrusted, workers);
                 float[] r = maps.normalised().data();
                 Box core = block.core();
                 int[] off = block.coreOffset();
-                double[] chi2 = new double[depth];
+                // per slice: sum of r^2 and count over the box's lateral extent, over all voxels, over the band
+                double[][] sums = new double[6][depth];
                 for (int z = 0; z < core.d(); z++) {
-                    double s = 0;
+                    int gz = core.z() + z;
                     for (int y = 0; y < core.h(); y++) {
+                        int gy = core.y() + y;
                         int row = ((z + off[2]) * data.height() + y + off[1]) * data.width() + off[0];
                         for (int x = 0; x < core.w(); x++) {
-                            s += (double) r[row + x] * r[row + x];
+                            if (!maps.isTrusted(row + x)) {
+                                continue;
+                            }
+                            int gx = core.x() + x;
+                            double q = (double) r[row + x] * r[row + x];
+                            sums[2][gz] += q;
+                            sums[3][gz]++;
+                            if (gx >= box[0] && gx < box[0] + box[3] && gy >= box[1] && gy < box[1] + box[4]) {
+                                sums[0][gz] += q;
+                                sums[1][gz]++;
+                            }
+                            if (region.inBand(gx, gy, gz)) {
+                                sums[4][gz] += q;
+                                sums[5][gz]++;
+                            }
                         }
                     }
-                    chi2[core.z() + z] = s;
                 }
-                return new BlockOutput(Map.of("output", maps.normalised()), Map.of(), Map.of("chi2", chi2));
+                Map<String, double[]> totals = new LinkedHashMap<>();
+                for (int k = 0; k < SUMS.length; k++) {
+                    totals.put(SUMS[k], sums[k]);
+                }
+                return new BlockOutput(Map.of("output", maps.normalised()), Map.of(), totals);
             }
 
             @Override
@@ -150,48 +202,97 @@ final class ResidualsBlocks implements BlockOperation {
         };
     }
 
+    /** The per-slice sums each block adds to. */
+    private static final String[] SUMS = {"chi2_box", "n_box", "chi2_all", "n_all", "chi2_band", "n_band"};
+
     @Override
     public Result finish(Values resolved, Globals g, BlockTotals totals, Map<String, PlaneSource> in,
             RunContext ctx) {
         PlaneSource data = in.get("input");
         PlaneSource est = in.get("estimate");
-        double[] chi2 = totals.sums().get("chi2");
-        long plane = (long) data.width() * data.height();
-        double total = 0;
-        double[] perSlice = new double[chi2.length];
-        for (int z = 0; z < chi2.length; z++) {
-            total += chi2[z];
-            perSlice[z] = chi2[z] / plane;
+        Volume psf = ResidualMaps.normalise(psf(resolved, data.voxel(), data.depth(), RunContext.quiet(1)));
+        TrustedRegion region = region(resolved, psf, data.width(), data.height(), data.depth());
+        int[] box = region.analysisBox();
+        double[][] s = new double[SUMS.length][];
+        for (int k = 0; k < SUMS.length; k++) {
+            s[k] = totals.sums().get(SUMS[k]);
         }
-        double perVoxel = total / (plane * data.depth());
+        double[] perSlice = new double[data.depth()];
+        double boxSum = 0;
+        double boxN = 0;
+        for (int z = 0; z < data.depth(); z++) {
+            perSlice[z] = s[1][z] > 0 ? s[0][z] / s[1][z] : Double.NaN;
+            if (z >= box[2] && z < box[2] + box[5]) {
+                boxSum += s[0][z];
+                boxN += s[1][z];
+            }
+        }
+        double trusted = boxN > 0 ? boxSum / boxN : Double.NaN;
+        double whole = ratio(s[2], s[3]);
+        double band = ratio(s[4], s[5]);
+        // the verdict's part: a central crop, predicted from the estimate around it (a halo of the PSF's reach)
         int cw = Math.min(CROP, data.width());
         int ch = Math.min(CROP, data.height());
         int cd = Math.min(CROP_DEPTH, data.depth());
         Box crop = new Box((data.width() - cw) / 2, (data.height() - ch) / 2, (data.depth() - cd) / 2, cw, ch, cd);
+        int[] reach = {psf.width() / 2, psf.height() / 2, psf.depth() / 2};
+        int x0 = Math.max(0, crop.x() - reach[0]);
+        int y0 = Math.max(0, crop.y() - reach[1]);
+        int z0 = Math.max(0, crop.z() - reach[2]);
+        Box around = new Box(x0, y0, z0, Math.min(data.width(), crop.x() + cw + reach[0]) - x0,
+                Math.min(data.height(), crop.y() + ch + reach[1]) - y0,
+                Math.min(data.depth(), crop.z() + cd + reach[2]) - z0);
         Volume y = data.read(crop);
         Volume x = est.read(crop).withVoxel(y.voxel());
-        Volume psf = psf(resolved, data.voxel(), data.depth(), RunContext.quiet(1));
         ResidualModel model = model(resolved);
         FftEngine fft = FftChoice.choose(resolved).engine();
+        // the band is left out (or reported) only on the sides where the crop reaches a face of the stack
+        int[] cropBand = new int[3];
+        int[] margin = {Math.min(crop.x(), data.width() - crop.x() - cw), Math.min(crop.y(), data.height() - crop.y()
+                - ch), Math.min(crop.z(), data.depth() - crop.z() - cd)};
+        for (int a = 0; a < 3; a++) {
+            cropBand[a] = Math.max(0, region.band()[a] - margin[a]);
+        }
+        TrustedRegion cropRegion = new TrustedRegion(cw, ch, cd, cropBand, region.bandExcluded(), region.boundary(),
+                untrusted(y));
         ResidualReport report;
         try (Workers w = new Workers(ctx.threads())) {
-            InputChecks.Scan scan = InputChecks.scan(y);
-            if (scan.nonFinite() > 0) {
-                y = ResidualsOperation.predictionWhereUntrusted(y, x, psf, model, scan.nonFiniteMask(), w, fft);
-            }
-            report = ResidualReport.analyse(y, x, psf, model, w, fft);
+            Volume blurredAround = ForwardBlur.blur(est.read(around).withVoxel(y.voxel()), psf, continuation(resolved),
+                    w, fft);
+            Volume blurred = Padding.crop(blurredAround, crop.x() - x0, crop.y() - y0, crop.z() - z0, cw, ch, cd);
+            report = ResidualReport.analyse(y, blurred, model, cropRegion, psf, w, fft);
+        }
+        if (report.verdict().code().equals(Verdict.NOT_COMPUTED)) {
+            throw new org.stackwright.op.RunFailedException("residuals: " + report.verdict().text() + " No output is"
+                    + " written; check that the estimate, offset and background are in the data's units (ADU)");
         }
         Result r = new Result();
         ResidualRecord.fill(r, report, resolved.effective());
-        r.record("chi2_per_voxel", perVoxel);
+        r.record("chi2_per_pixel", trusted);
+        r.record("chi2_per_pixel_whole_image", whole);
+        r.record("chi2_per_pixel_border_band", band);
         r.record("chi2_per_slice", perSlice);
+        r.record("trusted_region", region.describe());
+        r.record("trusted_box_xyzwhd", region.box());
+        r.record("trusted_voxels", (long) boxN);
         r.record("verdict_from", "central crop " + crop + " (the whole stack was processed in blocks)");
-        if (resolved.given("summary")) {
+        if (resolved.wants("summary")) {
             r.image("summary", SummaryPicture.render(data.title() + " (central crop)", y, x, report));
         }
-        r.line(String.format(Locale.ROOT, "chi^2 per pixel: %.4f (about 1 when the data fit the noise model)", perVoxel));
+        r.line(String.format(Locale.ROOT, "chi^2 per voxel: %.4f over %s (about 1 when the data fit the noise"
+                + " model)", trusted, region.describe()));
         r.line("verdict (from the central crop " + crop + "): " + report.verdict().code());
         r.line(report.verdict().text());
         return r;
+    }
+
+    private static double ratio(double[] sum, double[] n) {
+        double a = 0;
+        double b = 0;
+        for (int z = 0; z < sum.length; z++) {
+            a += sum[z];
+            b += n[z];
+        }
+        return b > 0 ? a / b : Double.NaN;
     }
 }

@@ -9,7 +9,6 @@ import java.util.Map;
 import ij.ImagePlus;
 
 import org.stackwright.model.NoiseModel;
-import org.stackwright.fft.FftEngine;
 import org.stackwright.fft.FftEngines;
 import org.stackwright.op.FftChoice;
 import org.stackwright.blocks.BlockOperation;
@@ -22,6 +21,7 @@ import org.stackwright.op.Operation;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
 import org.stackwright.op.RunContext;
+import org.stackwright.op.RunFailedException;
 import org.stackwright.op.Values;
 import org.stackwright.parallel.Workers;
 import org.stackwright.psf.PsfChecks;
@@ -67,6 +67,9 @@ public final class ResidualsOperation implements Operation, Blockwise {
                 Param.number("gain", 1.0, 1e-9, 1e9, "ADU/e-", "camera gain (poisson, poisson-gaussian)"),
                 Param.number("read-noise", 0.0, 0, 1e9, "ADU",
                         "read noise (poisson-gaussian) or the noise standard deviation (gaussian)"),
+                Param.choice("boundary", "exclude", ResidualReport.BOUNDARIES, "how the estimate continues past the"
+                        + " field: exclude = judge only voxels further than the PSF's reach from the faces (no guess);"
+                        + " mirror = mirrored, zero = dark outside (whole image judged)"),
                 Param.outputImage("output", false, "the normalised residual stack (32-bit TIFF; leave out when only the"
                         + " verdict is wanted)"),
                 Param.outputPicture("summary", "a one-page summary picture"),
@@ -85,16 +88,19 @@ public final class ResidualsOperation implements Operation, Blockwise {
         if (dataImp.getNChannels() == 1 && dataImp.getNFrames() == 1 && BlockRun.wanted(blocks, v)) {
             return BlockRun.inMemory(this, blocks, v, ctx);
         }
-        // data, estimate, five maps and their interior crops, the padded blur grid and its spectrum (an estimate)
+        // data, estimate, the maps (prediction, raw, normalised, blurred, deviance), their crops to the trusted box,
+        // two Laplacians and their crops, the cause fit's residuals: about 22 image-sized floats; the padded blur
+        // grid and its spectrum (an estimate)
         long voxels = (long) dataImp.getWidth() * dataImp.getHeight() * dataImp.getNSlices();
         long grid = (long) (dataImp.getWidth() + psfImp.getWidth()) * (dataImp.getHeight() + psfImp.getHeight())
                 * (dataImp.getNSlices() + psfImp.getNSlices());
         MemoryCheck.require("residuals of " + dataImp.getWidth() + "x" + dataImp.getHeight() + "x"
-                + dataImp.getNSlices(), MemoryCheck.floats(voxels, 14) + MemoryCheck.floats(grid, 3));
+                + dataImp.getNSlices(), MemoryCheck.floats(voxels, ResidualReport.IMAGE_ARRAYS) + MemoryCheck.floats(grid, 3));
         Volume data = InputChecks.oneVolume("input", dataImp);
         Volume estimate = InputChecks.oneVolume("estimate", v.image("estimate"));
         Volume psf = InputChecks.oneVolume("psf", psfImp);
         InputChecks.Scan scan = InputChecks.check("input", data, ctx);
+        InputChecks.checkOffset("input", data, v.number("offset"), v.number("read-noise"), ctx);
         InputChecks.requireFinite("estimate", estimate);
         if (!ImagePlusAdapter.isCalibrated(psfImp) && !psf.voxel().sameAs(data.voxel())) {
             ctx.warn("the PSF carries no calibration; taking the input's voxel size " + data.voxel());
@@ -112,41 +118,49 @@ public final class ResidualsOperation implements Operation, Blockwise {
         NoiseModel noise = ResidualModel.noiseModel(v.choice("likelihood"), v.number("gain"), v.number("read-noise"));
         ResidualModel model = new ResidualModel(v.number("offset"), v.number("background"), noise);
         ctx.progress(0.1, "computing residuals");
+        boolean[] untrusted = null;
+        if (scan.nonFinite() > 0) {
+            untrusted = new boolean[data.size()];
+            byte[] m = scan.nonFiniteMask();
+            for (int i = 0; i < untrusted.length; i++) {
+                untrusted[i] = m[i] != 0;
+            }
+            ctx.warn(String.format(Locale.ROOT, "input: the %d NaN or infinite pixels carry no data; they are left"
+                    + " out of chi^2, the histogram and the verdict, and get residual 0", scan.nonFinite()));
+        }
         ResidualReport report;
         try (Workers w = new Workers(ctx.threads())) {
-            if (scan.nonFinite() > 0) {
-                data = predictionWhereUntrusted(data, estimate, psf, model, scan.nonFiniteMask(), w, ctx.fft());
-                ctx.warn(String.format(Locale.ROOT, "input: the %d untrusted pixels are given the prediction"
-                        + " (residual 0), so they count as a perfect fit and lower chi^2 per voxel by up to %.3g %%",
-                        scan.nonFinite(), 100.0 * scan.nonFinite() / data.size()));
-            }
-            report = ResidualReport.analyse(data, estimate, psf, model, w, ctx.fft());
+            report = ResidualReport.analyse(data, estimate, psf, model, v.choice("boundary"), untrusted, w,
+                    ctx.fft());
         }
         ctx.checkCancelled();
+        if (report.verdict().code().equals(Verdict.NOT_COMPUTED)) {
+            throw new RunFailedException("residuals: " + report.verdict().text() + " No output is written; check"
+                    + " that the estimate, offset and background are in the data's units (ADU)");
+        }
         ctx.progress(0.8, "writing");
         String title = dataImp.getTitle() == null ? "data" : dataImp.getTitle();
         Result r = new Result();
         r.image("output", ImagePlusAdapter.toImagePlus(report.maps().normalised(), title + "-residuals"));
-        if (v.given("summary")) {
+        if (v.wants("summary")) {
             r.image("summary", SummaryPicture.render(title, data, estimate, report));
         }
         ResidualRecord.fill(r, report, v.effective());
         r.record("fft_engine", ctx.fft().name());
         FftChoice.note(r, fft);
         Verdict verdict = report.verdict();
-        r.line(String.format(Locale.ROOT, "chi^2 per voxel: %.4f (about 1 when the data fit the noise model)",
-                report.maps().chi2PerVoxel()));
+        r.line(String.format(Locale.ROOT, "chi^2 per voxel: %.4f over %s (about 1 when the data fit the noise"
+                + " model)", report.chi2Trusted(), report.region().describe()));
         if (Double.isFinite(report.chi2Band())) {
-            r.line(String.format(Locale.ROOT, "chi^2 per voxel in the interior, further than the PSF half-width"
-                    + " from the faces (used for the verdict): %.4f; in the border band: %.4f", report.chi2Interior(),
-                    report.chi2Band()));
+            r.line(String.format(Locale.ROOT, "chi^2 per voxel in the border band: %.4f%s", report.chi2Band(),
+                    report.region().bandExcluded() ? " (not judged: light from outside the field reaches it)" : ""));
         }
         r.line("verdict: " + verdict.code());
         r.line(verdict.text());
         List<ResidualRegions.Region> regions = report.regions().listed();
         if (!regions.isEmpty()) {
-            r.line(String.format(Locale.ROOT, "regions with |r| > 4 in the whole stack (%d, largest first;"
-                    + " the verdict counts those in the interior):", report.regions().listedCount()));
+            r.line(String.format(Locale.ROOT, "regions with |r| > 4 in the judged region (%d, largest first; %d more"
+                    + " in the border band):", report.regions().listedCount(), report.bandRegions()));
             r.line("  voxels        x        y        z   peak r");
             for (int i = 0; i < Math.min(10, regions.size()); i++) {
                 ResidualRegions.Region g = regions.get(i);
@@ -162,22 +176,6 @@ public final class ResidualsOperation implements Operation, Blockwise {
         }
         ctx.progress(1, "done");
         return r;
-    }
-
-    /**
-     * @return a copy of the data whose untrusted (NaN or infinite) pixels hold the prediction offset + background
-     *     + H x, so that they carry no residual
-     */
-    static Volume predictionWhereUntrusted(Volume data, Volume estimate, Volume psf, ResidualModel model,
-            byte[] untrusted, Workers w, FftEngine fft) {
-        float[] hx = ForwardBlur.blur(estimate, psf, w, fft).data();
-        float[] y = data.data().clone();
-        for (int i = 0; i < y.length; i++) {
-            if (untrusted[i] != 0) {
-                y[i] = (float) (model.offset() + model.background() + hx[i]);
-            }
-        }
-        return data.withData(y);
     }
 
     /** @return the causes as record maps */

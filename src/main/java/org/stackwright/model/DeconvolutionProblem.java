@@ -46,7 +46,18 @@ public final class DeconvolutionProblem {
 
     static final float NO_DATA = -1f;
     private static final double SUPPORT_CUTOFF = 1e-3;
+    /** Absolute floor of the model H x + b (photo-electrons) for data without any light. */
     private static final double TINY = 1e-12;
+    /**
+     * Floor of the model H x + b relative to the brightest datum. A float FFT blur carries an absolute error of a
+     * few 1e-7 of the largest value of H x (single-precision rounding over about log2(n) butterfly stages; Schatzman,
+     * "Accuracy of the discrete Fourier transform and the fast Fourier transform", SIAM J Sci Comput 17, 1996), so
+     * model values below about 1e-6 of the brightest are rounding noise and may even be negative. Dividing a datum by
+     * such a value gives ratios of 1e12 and more, whose own FFT error then swamps the update of every voxel (the
+     * estimate turned to NaN at 5e4 photons per voxel). Flooring the model there bounds every ratio by 1e6, well
+     * inside what the next float FFT carries (common practice for the size of the floor, no source).
+     */
+    static final double MODEL_FLOOR_RELATIVE = 1e-6;
 
     private final int w;
     private final int h;
@@ -68,6 +79,8 @@ public final class DeconvolutionProblem {
     private final Workers workers;
     private final int trusted;
     private final float start;
+    /** lower bound of the model H x + b in the ratio and the fit, photo-electrons */
+    private final double modelFloor;
 
     /**
      * @param data camera data (ADU), not modified; non-finite pixels get no likelihood
@@ -175,6 +188,11 @@ public final class DeconvolutionProblem {
                     + ": nothing is left to deconvolve");
         }
         this.trusted = count;
+        float brightest = 0;
+        for (float v : y) {
+            brightest = Math.max(brightest, v);
+        }
+        this.modelFloor = Math.max(TINY, MODEL_FLOOR_RELATIVE * (brightest + background));
         if (boundary == Boundary.ZERO_SAME) {
             this.norm = new float[n];
             for (int i = 0; i < n; i++) {
@@ -308,6 +326,14 @@ public final class DeconvolutionProblem {
         return trusted;
     }
 
+    /**
+     * @return the smallest value the model H x + b takes in the ratio and the fit (photo-electrons): 1e-6 of the
+     *     brightest datum, so that FFT rounding noise in H x cannot give unbounded ratios
+     */
+    public double modelFloor() {
+        return modelFloor;
+    }
+
     /** @return the background b in photo-electrons (including the read-noise shift) */
     public float background() {
         return background;
@@ -390,6 +416,7 @@ public final class DeconvolutionProblem {
     /** One parallel pass over the grid rows; rows and columns outside the image window carry no likelihood. */
     private double pass(float[] mu, boolean ratio) {
         final float b = background;
+        final double floor = modelFloor;
         return workers.sum(nz * ny, (from, to) -> {
             double kl = 0;
             for (int r = from; r < to; r++) {
@@ -411,7 +438,7 @@ public final class DeconvolutionProblem {
                         }
                         continue;
                     }
-                    double m = Math.max(mu[g + x] + b, TINY);
+                    double m = Math.max(mu[g + x] + b, floor);
                     if (ratio) {
                         mu[g + x] = (float) (yi / m);
                     }
@@ -444,6 +471,28 @@ public final class DeconvolutionProblem {
      */
     public double expectedFit() {
         return new PoissonNoise().expectedDeviance();
+    }
+
+    /**
+     * What an estimate predicts for the data, on the image window, in ADU above the camera offset: gain (H x) +
+     * background, with H x from the whole (extended) grid, so the prediction at the border holds the light of the
+     * object beyond the field as the solver modelled it: no padding guess. In the problem's own units the
+     * prediction is H x + b, and its shifted-Poisson variance H x + b equals the camera variance
+     * (gain (H x) + background) gain + read noise^2 of {@link Camera#variance} divided by gain^2, so the residual
+     * view normalises these ADU values by the camera's Poisson-Gaussian variance. Costs one blur.
+     *
+     * @param x grid-sized estimate, not modified
+     * @return a new image-sized volume
+     */
+    public Volume predictedAboveOffset(float[] x) {
+        float[] work = new float[x.length];
+        forward.apply(x, work);
+        Volume m = toVolume(work);
+        float[] d = m.data();
+        for (int i = 0; i < d.length; i++) {
+            d[i] = (float) (d[i] + backgroundAdu);
+        }
+        return m;
     }
 
     /** @return the estimate on the data grid, in ADU above the offset (x * gain), as a new volume */

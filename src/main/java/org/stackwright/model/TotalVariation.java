@@ -65,7 +65,7 @@ public final class TotalVariation {
                     float a = dx(x, i, ix);
                     float b = dy(x, i, iy);
                     float c = dz(x, i, iz);
-                    s += Math.sqrt(a * a + b * b + c * c);
+                    s += norm(a, b, c);
                 }
             }
             return s;
@@ -157,7 +157,7 @@ public final class TotalVariation {
                     float a = px[i] + sigma * dx(xbar, i, ix);
                     float b = py[i] + sigma * dy(xbar, i, iy);
                     float c = pz[i] + sigma * dz(xbar, i, iz);
-                    float len = (float) Math.sqrt(a * a + b * b + c * c);
+                    float len = (float) norm(a, b, c);
                     float f = len > lambda ? lambda / len : 1f;
                     px[i] = a * f;
                     py[i] = b * f;
@@ -176,7 +176,7 @@ public final class TotalVariation {
      * @param out overwritten (must not be x)
      */
     public void curvature(float[] x, double eps, float[] out) {
-        final float e2 = (float) (eps * eps);
+        final double e2 = eps * eps;
         workers.forRange(nz * ny, (from, to) -> {
             for (int row = from; row < to; row++) {
                 int iz = row / ny;
@@ -186,7 +186,7 @@ public final class TotalVariation {
                     float a = dx(x, i, ix);
                     float b = dy(x, i, iy);
                     float c = dz(x, i, iz);
-                    float inv = (float) (1 / Math.sqrt(a * a + b * b + c * c + e2));
+                    float inv = (float) (1 / Math.sqrt(squares(a, b, c) + e2));
                     v += (a + b + r * c) * inv;
                     if (ix > 0) {
                         v -= dx(x, i - 1, ix - 1) * invNorm(x, i - 1, ix - 1, iy, iz, e2);
@@ -203,10 +203,22 @@ public final class TotalVariation {
         });
     }
 
-    private float invNorm(float[] x, int i, int ix, int iy, int iz, float e2) {
+    private float invNorm(float[] x, int i, int ix, int iy, int iz, double e2) {
         float a = dx(x, i, ix);
         float b = dy(x, i, iy);
         float c = dz(x, i, iz);
-        return (float) (1 / Math.sqrt(a * a + b * b + c * c + e2));
+        return (float) (1 / Math.sqrt(squares(a, b, c) + e2));
+    }
+
+    /**
+     * a^2 + b^2 + c^2 in double: in float the squares overflow once a difference passes 1.8e19 (bright data in
+     * photo-electrons with a small gain), and the norm would turn infinite.
+     */
+    private static double squares(float a, float b, float c) {
+        return (double) a * a + (double) b * b + (double) c * c;
+    }
+
+    private static double norm(float a, float b, float c) {
+        return Math.sqrt(squares(a, b, c));
     }
 }

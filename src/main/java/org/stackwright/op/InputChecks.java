@@ -34,14 +34,24 @@ public final class InputChecks {
      * @param max largest finite value (NaN when there is none)
      * @param finiteMean mean of the finite pixels (NaN when there is none)
      * @param nonFiniteMask one byte per pixel, 1 where the pixel is NaN or infinite; null when there is none
+     * @param absSum sum of the absolute finite values
      */
-    public record Scan(int nonFinite, int negative, double min, double max, double finiteMean, byte[] nonFiniteMask) {
+    public record Scan(int nonFinite, int negative, double min, double max, double finiteMean, byte[] nonFiniteMask,
+            double absSum) {
 
         /** @return true when every finite pixel has the same value */
         public boolean constant() {
             return min == max;
         }
     }
+
+    /**
+     * The largest sum of absolute pixel values an image may have. 32-bit float holds up to 3.4e38; an FFT (blur,
+     * correlation) adds every pixel into its zero-frequency coefficient and the solvers multiply values by ratios
+     * and steps, so 1e30 keeps eight orders of magnitude of room (common practice for the margin, no source). Camera
+     * data are many orders below it (a 2^31-voxel stack of 2^32 ADU sums to 1e19).
+     */
+    public static final double MAX_ABS_SUM = 1e30;
 
     private InputChecks() {
     }
@@ -58,6 +68,7 @@ public final class InputChecks {
         double min = Double.POSITIVE_INFINITY;
         double max = Double.NEGATIVE_INFINITY;
         double sum = 0;
+        double abs = 0;
         byte[] mask = null;
         for (int i = 0; i < d.length; i++) {
             float f = d[i];
@@ -75,10 +86,11 @@ public final class InputChecks {
             min = Math.min(min, f);
             max = Math.max(max, f);
             sum += f;
+            abs += Math.abs(f);
         }
         int good = d.length - bad;
-        return good == 0 ? new Scan(bad, 0, Double.NaN, Double.NaN, Double.NaN, mask)
-                : new Scan(bad, neg, min, max, sum / good, mask);
+        return good == 0 ? new Scan(bad, 0, Double.NaN, Double.NaN, Double.NaN, mask, 0)
+                : new Scan(bad, neg, min, max, sum / good, mask, abs);
     }
 
     /**
@@ -96,6 +108,7 @@ public final class InputChecks {
             throw new IllegalArgumentException(key + ": every one of the " + v.size()
                     + " pixels is NaN or infinite; at least one finite pixel is needed");
         }
+        requireRepresentable(key, s);
         if (s.nonFinite() > 0) {
             ctx.warn(key + ": " + s.nonFinite() + " of " + v.size() + " pixels are NaN or infinite; they are treated as"
                     + " untrusted (masked): their values are not used");
@@ -109,6 +122,122 @@ public final class InputChecks {
                     + " the result will be flat");
         }
         return s;
+    }
+
+    /** Share of pixels below the offset above which a warning is given (a small share: common practice, no source). */
+    public static final double BELOW_OFFSET_WARN = 0.05;
+    /** Share of pixels below the offset above which the offset is refused (most pixels). */
+    public static final double BELOW_OFFSET_REFUSE = 0.5;
+
+    /**
+     * Checks a camera offset against the data: camera data lie above the offset up to the noise, so when the typical
+     * pixel lies below it the offset is set too high, or the data were already offset-subtracted; such pixels would
+     * be clamped to zero photons and the result invented. So: a refusal naming the offset when more than
+     * {@link #BELOW_OFFSET_REFUSE} of the finite pixels lie more than one noise standard deviation below it (the
+     * median more than one sigma below the offset), and a warning when more than {@link #BELOW_OFFSET_WARN} lie
+     * below the offset minus 3 x the read noise given (0.13 % of the dark pixels of a correct camera model). The
+     * noise of the refusal is the read noise given or, when none is given (or a smaller one), the pixel noise
+     * measured in the data ({@link #pixelNoise}): on a dark image with the right offset half the pixels lie below
+     * the offset itself, and a refusal at the offset would be a coin flip. Every operation that takes a camera
+     * offset calls this.
+     *
+     * @param key the image's parameter key, named in messages
+     * @param v the image (ADU), not modified
+     * @param offset the camera offset given (ADU)
+     * @param readNoise the camera read noise given (ADU, 0 or more)
+     * @param ctx where the warning goes
+     * @throws IllegalArgumentException naming offset when most pixels lie below it
+     */
+    public static void checkOffset(String key, Volume v, double offset, double readNoise, RunContext ctx) {
+        double given = Math.max(readNoise, 0);
+        double measured = pixelNoise(v);
+        double noise = Math.max(given, measured);
+        // compared in the pixels' own precision: a pixel of exactly the offset (0 photons, no read noise) stored as
+        // float may lie a rounding step below the offset given as a decimal
+        float warnLimit = (float) (offset - 3 * given);
+        float refuseLimit = (float) (offset - noise);
+        float[] d = v.data();
+        long finite = 0;
+        long belowWarn = 0;
+        long belowRefuse = 0;
+        for (float f : d) {
+            if (Float.isFinite(f)) {
+                finite++;
+                belowWarn += f < warnLimit ? 1 : 0;
+                belowRefuse += f < refuseLimit ? 1 : 0;
+            }
+        }
+        if (finite == 0) {
+            return;
+        }
+        String level = String.format(Locale.ROOT, " (their level: 1st percentile %s, median %s ADU)",
+                num(quantile(d, 0.01)), num(quantile(d, 0.5)));
+        double refuseShare = (double) belowRefuse / finite;
+        if (refuseShare > BELOW_OFFSET_REFUSE) {
+            throw new IllegalArgumentException(String.format(Locale.ROOT, "offset = %s is above most of the data:"
+                    + " %.1f %% of the %s pixels lie more than one noise standard deviation (%s, %s ADU) below the offset"
+                    + " %s ADU%s; allowed: an"
+                    + " offset at or below the camera's dark level (give the camera's offset with --offset; data"
+                    + " that were already offset-subtracted need offset 0)", num(offset), 100 * refuseShare, key,
+                    given >= measured ? "the read noise" : "the pixel noise measured in the data", num(noise),
+                    num(offset), level));
+        }
+        double warnShare = (double) belowWarn / finite;
+        if (warnShare > BELOW_OFFSET_WARN) {
+            ctx.warn(String.format(Locale.ROOT, "offset: %.1f %% of the %s pixels lie below the offset %s ADU%s%s;"
+                    + " they carry no signal above the offset (taken as 0 photons). Check the offset%s", 100 * warnShare,
+                    key, num(offset), given > 0 ? " minus 3 x read-noise" : "", level,
+                    given > 0 ? "" : " and give the read noise"));
+        }
+    }
+
+    /**
+     * The pixel noise of an image, measured without knowing its offset: from the differences of neighbouring
+     * pixels along x, whose median absolute value is 0.6745 x sqrt(2) x sigma for independent Gaussian noise of
+     * standard deviation sigma (the median absolute deviation, Hampel 1974, J. Am. Stat. Assoc. 69:383). Structure
+     * in the image adds to the differences, so on bright structured images this is an upper estimate; the median
+     * keeps it at the noise of the dark background where that covers most of the image. A strided sample of at most
+     * 100 000 differences.
+     *
+     * @param v the image
+     * @return sigma in the image's units (0 for an image one pixel wide or without finite neighbours)
+     */
+    static double pixelNoise(Volume v) {
+        int w = v.width();
+        if (w < 2) {
+            return 0;
+        }
+        float[] d = v.data();
+        int step = Math.max(1, d.length / 100_000);
+        float[] diffs = new float[d.length / step + 1];
+        int n = 0;
+        for (int i = 0; i + 1 < d.length; i += step) {
+            if ((i + 1) % w != 0 && Float.isFinite(d[i]) && Float.isFinite(d[i + 1])) {
+                diffs[n++] = Math.abs(d[i + 1] - d[i]);
+            }
+        }
+        if (n == 0) {
+            return 0;
+        }
+        java.util.Arrays.sort(diffs, 0, n);
+        return diffs[n / 2] / (0.6745 * Math.sqrt(2));
+    }
+
+    /** @return the q-quantile of the finite values, from a strided sample of at most 100 000 (NaN when none) */
+    private static double quantile(float[] d, double q) {
+        int step = Math.max(1, d.length / 100_000);
+        float[] s = new float[(d.length + step - 1) / step];
+        int n = 0;
+        for (int i = 0; i < d.length; i += step) {
+            if (Float.isFinite(d[i])) {
+                s[n++] = d[i];
+            }
+        }
+        if (n == 0) {
+            return Double.NaN;
+        }
+        java.util.Arrays.sort(s, 0, n);
+        return s[(int) Math.min(n - 1, Math.floor(q * n))];
     }
 
     /**
@@ -138,10 +267,25 @@ public final class InputChecks {
      * @throws IllegalArgumentException naming the key and the count
      */
     public static void requireFinite(String key, Volume v) {
-        int bad = v.countNonFinite();
-        if (bad > 0) {
-            throw new IllegalArgumentException(key + ": " + bad + " of " + v.size() + " pixels are NaN or infinite;"
-                    + " allowed: finite values only for this image");
+        Scan s = scan(v);
+        if (s.nonFinite() > 0) {
+            throw new IllegalArgumentException(key + ": " + s.nonFinite() + " of " + v.size() + " pixels are NaN or"
+                    + " infinite; allowed: finite values only for this image");
+        }
+        requireRepresentable(key, s);
+    }
+
+    /**
+     * Refuses values so large that a float Fourier transform of the image overflows ({@link #MAX_ABS_SUM}).
+     *
+     * @throws IllegalArgumentException naming the key, the largest value and the limit
+     */
+    static void requireRepresentable(String key, Scan s) {
+        if (s.absSum() > MAX_ABS_SUM) {
+            throw new IllegalArgumentException(key + ": pixel values up to " + num(Math.max(Math.abs(s.min()),
+                    Math.abs(s.max()))) + " add up to " + num(s.absSum()) + ", beyond what 32-bit Fourier transforms"
+                    + " can hold; allowed: values whose absolute sum stays below " + num(MAX_ABS_SUM)
+                    + " (scale the image down)");
         }
     }
 
@@ -175,9 +319,14 @@ public final class InputChecks {
      * @throws IllegalArgumentException naming the key, the size given and the smallest size allowed
      */
     public static void requireMinSize(String key, Volume v, int minWidth, int minHeight, int minDepth) {
-        if (v.width() < minWidth || v.height() < minHeight || v.depth() < minDepth) {
-            throw new IllegalArgumentException(key + ": image is " + v.shape() + " pixels; allowed: at least "
-                    + minWidth + "x" + minHeight + "x" + minDepth);
+        requireMinSize(key, v.shape(), v.width() >= minWidth && v.height() >= minHeight && v.depth() >= minDepth,
+                minWidth + "x" + minHeight + "x" + minDepth);
+    }
+
+    /** As above for an image not read into a volume: its shape in words, whether it is large enough, the minimum. */
+    public static void requireMinSize(String key, String shape, boolean largeEnough, String minimum) {
+        if (!largeEnough) {
+            throw new IllegalArgumentException(key + ": image is " + shape + " pixels; allowed: at least " + minimum);
         }
     }
 }

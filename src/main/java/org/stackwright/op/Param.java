@@ -118,9 +118,20 @@ public record Param(String key, Kind kind, String defaultValue, String unit, Str
         return new Param(key, Kind.OUTPUT_IMAGE, null, "", help, List.of(), 0, 0, required);
     }
 
-    /** An output picture: a PNG file on the command line, a new (RGB) window in ImageJ. */
+    /**
+     * An output picture for people (an RGB page such as a summary): a PNG file on the command line (a .tif path gives
+     * an RGB TIFF), a new (RGB) window in ImageJ. Its unit is "PNG", which gives the file hint in help texts.
+     */
     public static Param outputPicture(String key, String help) {
         return new Param(key, Kind.OUTPUT_IMAGE, null, "PNG", help, List.of(), 0, 0, false);
+    }
+
+    /** @return the file name ending a door suggests for this output: ".json", ".png" or ".tif" */
+    public String fileEnding() {
+        if (kind == Kind.OUTPUT_FILE) {
+            return ".json";
+        }
+        return kind == Kind.OUTPUT_IMAGE && "PNG".equals(unit) ? ".png" : ".tif";
     }
 
     /** An output file (JSON record). */

@@ -19,6 +19,7 @@ public final class Values {
     private final Map<String, Param> params = new LinkedHashMap<>();
     private final Map<String, String> text = new LinkedHashMap<>();
     private final Map<String, ImagePlus> images = new LinkedHashMap<>();
+    private final java.util.Set<String> wanted = new java.util.LinkedHashSet<>();
 
     private Values(String operation, List<Param> list) {
         this.operation = operation;
@@ -99,11 +100,29 @@ public final class Values {
     }
 
     private static String range(Param p) {
-        return Param.fmt(p.min()) + " to " + (p.max() == Double.MAX_VALUE || p.max() >= Integer.MAX_VALUE ? "any" : Param.fmt(p.max()));
+        boolean noMax = p.max() == Double.MAX_VALUE || p.max() >= Integer.MAX_VALUE;
+        if (p.min() == Double.MIN_VALUE) {
+            // the smallest positive double stands for "above 0"
+            return "above 0" + (noMax ? "" : " up to " + Param.fmt(p.max()));
+        }
+        return Param.fmt(p.min()) + " to " + (noMax ? "any" : Param.fmt(p.max()));
     }
+
+    /**
+     * A plain decimal number: optional sign, digits with an optional decimal point, optional exponent. Java's
+     * parser also takes "520f", "520d" and hexadecimal floating point ("0x1.04p9"), which are not numbers a user
+     * means to type and would be copied into records as typed; "NaN" and "Infinity" are let through to be refused
+     * as not finite.
+     */
+    private static final java.util.regex.Pattern DECIMAL =
+            java.util.regex.Pattern.compile("[+-]?(\\d+\\.?\\d*|\\.\\d+)([eE][+-]?\\d+)?|[+-]?(NaN|Infinity)");
 
     private static double parseNumber(String key, String value) {
         double d;
+        if (!DECIMAL.matcher(value).matches()) {
+            throw new IllegalArgumentException(key + " = '" + shorten(value) + "' is not a number; give a decimal"
+                    + " number such as 520, 0.065 or 1e-3");
+        }
         try {
             d = Double.parseDouble(value);
         } catch (NumberFormatException ex) {
@@ -142,6 +161,26 @@ public final class Values {
     public boolean given(String key) {
         param(key);
         return text.containsKey(key) || images.containsKey(key);
+    }
+
+    /**
+     * Marks output images a door will show (the ImageJ and SciJava doors make outputs as windows, not files, so no
+     * path is given for them).
+     *
+     * @param keys output image keys, not modified
+     */
+    public Values wantOutputs(java.util.Collection<String> keys) {
+        for (String k : keys) {
+            if (param(k).kind() == Param.Kind.OUTPUT_IMAGE) {
+                wanted.add(k);
+            }
+        }
+        return this;
+    }
+
+    /** @return true when an output image is asked for: a path given (command line) or a window wanted (ImageJ) */
+    public boolean wants(String key) {
+        return given(key) || wanted.contains(key);
     }
 
     /** @return the value as given, or the default; null when neither exists */

@@ -91,7 +91,8 @@ final class BeadFinder {
         int[] b = beads.get(i);
         int mx = hx + MARGIN;
         int my = hy + MARGIN;
-        int mz = hz + MARGIN;
+        // a single plane has no z neighbours to keep clear of: the z margin applies to stacks only
+        int mz = stack.depth() == 1 ? 0 : hz + MARGIN;
         if (b[0] < mx || b[1] < my || b[2] < mz || b[0] + mx >= stack.width() || b[1] + my >= stack.height()
                 || b[2] + mz >= stack.depth()) {
             return "too close to the image edge for a " + (2 * hx + 1) + "x" + (2 * hy + 1) + "x" + (2 * hz + 1)
@@ -99,7 +100,7 @@ final class BeadFinder {
         }
         if (!Double.isNaN(level)) {
             int clipped = 0;
-            for (int z = b[2] - 1; z <= b[2] + 1; z++) {
+            for (int z = Math.max(0, b[2] - 1); z <= Math.min(stack.depth() - 1, b[2] + 1); z++) {
                 for (int y = b[1] - 1; y <= b[1] + 1; y++) {
                     for (int x = b[0] - 1; x <= b[0] + 1; x++) {
                         if (stack.get(x, y, z) >= level) {

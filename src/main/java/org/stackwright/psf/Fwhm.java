@@ -35,6 +35,18 @@ public final class Fwhm {
      * @param z plane of the brightest voxel
      */
     public record Widths(double xUm, double yUm, double zUm, int x, int y, int z) {
+
+        /**
+         * @return "FWHM x 0.2252 um, y 0.2252 um, z 0.7591 um"; a width that could not be measured (z of a single
+         *     plane, a profile too short to fit) reads "not measured" instead of NaN
+         */
+        public String text() {
+            return "FWHM x " + um(xUm) + ", y " + um(yUm) + ", z " + um(zUm);
+        }
+
+        private static String um(double v) {
+            return Double.isFinite(v) ? String.format(java.util.Locale.ROOT, "%.4f um", v) : "not measured";
+        }
     }
 
     private Fwhm() {

@@ -61,13 +61,7 @@ public final class MeasurePsfOperation implements Operation {
         r.record("fwhm_um", row);
         r.record("method", "Gaussian plus constant fitted (Levenberg-Marquardt) to the main lobe of the x, y and z "
                 + "profiles through the brightest voxel; FWHM = 2.3548 sigma");
-        r.line(String.format(Locale.ROOT, "FWHM x %s um, y %s um, z %s um (peak at voxel %d, %d, %d)",
-                um(w.xUm()), um(w.yUm()), um(w.zUm()), w.x(), w.y(), w.z()));
+        r.line(String.format(Locale.ROOT, "%s (peak at voxel %d, %d, %d)", w.text(), w.x(), w.y(), w.z()));
         return r;
-    }
-
-    /** @return the width with four decimals, or "n/a" when it could not be measured (e.g. z of a single plane) */
-    static String um(double v) {
-        return Double.isFinite(v) ? String.format(Locale.ROOT, "%.4f", v) : "n/a";
     }
 }

@@ -86,6 +86,13 @@ public final class PsfChecks {
             ctx.warn(key + ": voxel size " + p.voxel() + " differs from the image's " + target + "; resampled from "
                     + p.shape() + " to " + nx + "x" + ny + "x" + nz);
             p = Resampling.resample(p, target, nx, ny, nz);
+            if (p.depth() == 1 && image.depth() > 1) {
+                // the same rule as for a PSF given with one plane: a stack needs the PSF's z extent
+                throw new IllegalArgumentException(key + " resampled to the image's voxel size " + target + " has a"
+                        + " single plane (" + p.shape() + ": its " + fmt(psf.depth() * psf.voxel().z()) + " um depth"
+                        + " is less than one z step of the image); allowed: a PSF that spans several z steps of the"
+                        + " stack (check both voxel sizes)");
+            }
         }
         if (p.width() > image.width() || p.height() > image.height() || p.depth() > image.depth()) {
             throw new IllegalArgumentException(key + " is " + p.shape() + " at the image's voxel size but the image is"

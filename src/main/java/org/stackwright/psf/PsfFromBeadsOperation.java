@@ -97,8 +97,8 @@ public final class PsfFromBeadsOperation implements Operation {
             }
         }
         Fwhm.Widths fw = out.fwhm();
-        r.line(String.format(Locale.ROOT, "used %d of %d beads; PSF %s; FWHM x %.4f um, y %.4f um, z %.4f um",
-                out.used(), out.beads().size(), out.psf().shape(), fw.xUm(), fw.yUm(), fw.zUm()));
+        r.line(String.format(Locale.ROOT, "used %d of %d beads; PSF %s; %s", out.used(), out.beads().size(),
+                out.psf().shape(), fw.text()));
         out.notes().forEach(r::line);
         r.record("operation", name());
         r.record("settings", v.effective());

@@ -109,8 +109,8 @@ public final class PsfOperation implements Operation {
         r.record("fwhm_um", Map.of("x", fw.xUm(), "y", fw.yUm(), "z", fw.zUm()));
         record.forEach(r::record);
         r.record("caution", "modelled PSFs are idealised; a measured PSF is preferred for quantitative work");
-        r.line(String.format(Locale.ROOT, "%s PSF %s voxels of %s; FWHM x %.4f um, y %.4f um, z %.4f um",
-                model.name(), psf.shape(), psf.voxel(), fw.xUm(), fw.yUm(), fw.zUm()));
+        r.line(String.format(Locale.ROOT, "%s PSF %s voxels of %s; %s", model.name(), psf.shape(), psf.voxel(),
+                fw.text()));
         if (record.containsKey("focal_offset_um")) {
             r.line(String.format(Locale.ROOT, "intensity maximum %.4f um from the nominal focus (positive = deeper; "
                     + "paraxial rule %.4f um); the PSF is centred on the maximum",

@@ -88,6 +88,7 @@ public final class PsfRefineOperation implements Operation {
         ImagePlus imp = v.image("input");
         Volume stack = InputChecks.oneVolume("input", imp);
         InputChecks.requireFinite("input", stack);
+        InputChecks.checkOffset("input", stack, v.number("offset"), v.number("read-noise"), ctx);
         VoxelSize voxel = voxel(v, imp, stack);
         stack = stack.withVoxel(voxel);
         int[] size = v.dims("size", 3);

@@ -20,6 +20,7 @@ import org.stackwright.psf.Refinement;
 import org.stackwright.psf.RefinementSearch;
 import org.stackwright.solve.BackgroundEstimate;
 import org.stackwright.solve.IterationListener;
+import org.stackwright.solve.NumericalGuard;
 import org.stackwright.solve.RichardsonLucy;
 import org.stackwright.solve.StopRule;
 import org.stackwright.solve.Stopping;
@@ -129,11 +130,17 @@ public final class SpecimenRefinement {
                 counting, background, workers);
         RichardsonLucy rl = new RichardsonLucy(new Stopping(StopRule.FIXED, iterations, 1e-3), false);
         float[] work = new float[a.gridLength()];
-        float[] xa = rl.solve(a, ctx, IterationListener.NONE).estimate();
+        float[] xa = guarded(rl.solve(a, ctx, IterationListener.NONE));
         double toB = b.meanFit(xa, work) * b.trustedPixels();
-        float[] xb = rl.solve(b, ctx, IterationListener.NONE).estimate();
+        float[] xb = guarded(rl.solve(b, ctx, IterationListener.NONE));
         double toA = a.meanFit(xb, work) * a.trustedPixels();
         return toA + toB;
+    }
+
+    /** The solver's estimate, through the numerical guard every deconvolution passes. */
+    private static float[] guarded(org.stackwright.solve.Solution s) {
+        NumericalGuard.estimate("psf-refine (specimen)", s);
+        return s.estimate();
     }
 
     /**

@@ -24,10 +24,11 @@ final class BiharmonicFill {
     /**
      * @param f image values; read at known pixels, not modified
      * @param g the unknowns
+     * @param solver how the system is solved (the answer is the same to the tolerance)
      * @param out receives the filled values at the unknown linear indices (other entries untouched)
      */
     static ConjugateGradient.Outcome fill(float[] f, MaskedGrid g, double tolerance, int maxIterations,
-            Workers workers, float[] out) {
+            Inpainting.Solver solver, Workers workers, float[] out) {
         int n = g.size();
         int m = g.stride();
         MaskedGrid.IndexSet s = g.ring();
@@ -68,7 +69,7 @@ final class BiharmonicFill {
             diag[j] = v;
         }
         double[] x = new double[n];
-        g.onionGuess(f, x);
+        int depth = g.onionGuess(f, x);
         double[] lu = new double[ns];
         ConjugateGradient.Operator a = (in, res) -> {
             workers.forRange(ns, (from, to) -> {
@@ -96,7 +97,9 @@ final class BiharmonicFill {
                 }
             });
         };
-        ConjugateGradient.Outcome o = new ConjugateGradient(n, tolerance, maxIterations, workers).solve(a, diag, b, x);
+        ConjugateGradient cg = new ConjugateGradient(n, tolerance, maxIterations, workers);
+        ConjugateGradient.Outcome o = solver.multigrid(depth) ? cg.solve(a, new Multigrid(g, true), b, x)
+                : cg.solve(a, diag, b, x);
         for (int j = 0; j < n; j++) {
             out[s.index[j]] = (float) x[j];
         }

@@ -4,7 +4,7 @@ import org.stackwright.parallel.Workers;
 
 /**
  * Preconditioned conjugate gradient for a symmetric positive definite system A x = b given as an operator (no
- * stored matrix), with the diagonal (Jacobi) preconditioner M = diag(A).
+ * stored matrix), with the diagonal (Jacobi) preconditioner M = diag(A) or a given one ({@link Multigrid}).
  *
  * <p>Iteration (Saad, "Iterative Methods for Sparse Linear Systems", 2nd ed., 2003, Algorithm 9.1):
  * r = b - A x, z = M^-1 r, p = z; repeat: alpha = (r.z)/(p.Ap), x += alpha p, r -= alpha Ap, z = M^-1 r,
@@ -18,6 +18,12 @@ final class ConjugateGradient {
     @FunctionalInterface
     interface Operator {
         void apply(double[] x, double[] y);
+    }
+
+    /** z = M^-1 r for a symmetric positive definite M; r is not modified, z is written completely. */
+    @FunctionalInterface
+    interface Preconditioner {
+        void apply(double[] r, double[] z);
     }
 
     /** What a solve did. */
@@ -59,6 +65,22 @@ final class ConjugateGradient {
      * @param x starting guess on entry, solution on return (modified)
      */
     Outcome solve(Operator a, double[] diagonal, double[] b, double[] x) {
+        return solve(a, diagonal, null, b, x);
+    }
+
+    /**
+     * Solves A x = b with a general preconditioner (e.g. {@link Multigrid}).
+     *
+     * @param a the operator, symmetric positive definite
+     * @param m the preconditioner, symmetric positive definite
+     * @param b right-hand side; not modified
+     * @param x starting guess on entry, solution on return (modified)
+     */
+    Outcome solve(Operator a, Preconditioner m, double[] b, double[] x) {
+        return solve(a, null, m, b, x);
+    }
+
+    private Outcome solve(Operator a, double[] diagonal, Preconditioner m, double[] b, double[] x) {
         int n = b.length;
         if (n == 0) {
             return new Outcome(0, 0, true);
@@ -76,7 +98,9 @@ final class ConjugateGradient {
             for (int i = f; i < t; i++) {
                 x[i] += al * p[i];
                 r[i] -= al * ap[i];
-                z[i] = r[i] / diagonal[i];
+                if (diagonal != null) {
+                    z[i] = r[i] / diagonal[i];
+                }
             }
         };
         Workers.RangeBody direction = (f, t) -> {
@@ -89,10 +113,15 @@ final class ConjugateGradient {
         workers.forRange(n, (f, t) -> {
             for (int i = f; i < t; i++) {
                 r[i] = b[i] - ap[i];
-                z[i] = r[i] / diagonal[i];
-                p[i] = z[i];
+                if (diagonal != null) {
+                    z[i] = r[i] / diagonal[i];
+                }
             }
         });
+        if (m != null) {
+            m.apply(r, z);
+        }
+        System.arraycopy(z, 0, p, 0, n);
         double rz = workers.sum(n, rDotZ);
         double rNorm = Math.sqrt(workers.sum(n, rDotR));
         int it = 0;
@@ -104,6 +133,9 @@ final class ConjugateGradient {
             }
             alpha = rz / pap;
             workers.forRange(n, step);
+            if (m != null) {
+                m.apply(r, z);
+            }
             double rzNew = workers.sum(n, rDotZ);
             beta = rzNew / rz;
             rz = rzNew;

@@ -46,6 +46,11 @@ public record DefectMap(int width, int height, PixelDefect[] kinds, String sourc
         return m;
     }
 
+    /** @return the defects as a user sees them: lines, clusters and single pixels ({@link DefectGrouping}) */
+    public java.util.List<Defect> defects() {
+        return DefectGrouping.group(this);
+    }
+
     /** @return counts per kind, for run records */
     public Map<String, Integer> counts() {
         Map<String, Integer> m = new LinkedHashMap<>();

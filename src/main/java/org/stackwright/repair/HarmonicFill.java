@@ -20,11 +20,12 @@ final class HarmonicFill {
     /**
      * @param f image values; read at known pixels, not modified
      * @param g the unknowns and their neighbours
+     * @param solver how the system is solved (the answer is the same to the tolerance)
      * @param out receives the filled values at the unknown linear indices (other entries untouched)
      * @return what the solver did
      */
     static ConjugateGradient.Outcome fill(float[] f, MaskedGrid g, double tolerance, int maxIterations,
-            Workers workers, float[] out) {
+            Inpainting.Solver solver, Workers workers, float[] out) {
         int n = g.size();
         int m = g.stride();
         MaskedGrid.IndexSet u = g.unknown;
@@ -40,7 +41,7 @@ final class HarmonicFill {
             b[j] = s;
         }
         double[] x = new double[n];
-        g.onionGuess(f, x);
+        int depth = g.onionGuess(f, x);
         ConjugateGradient.Operator a = (in, res) -> workers.forRange(n, (from, to) -> {
             for (int j = from; j < to; j++) {
                 double s = u.degree[j] * in[j];
@@ -53,8 +54,9 @@ final class HarmonicFill {
                 res[j] = s;
             }
         });
-        ConjugateGradient.Outcome o = new ConjugateGradient(n, tolerance, maxIterations, workers)
-                .solve(a, u.degree, b, x);
+        ConjugateGradient cg = new ConjugateGradient(n, tolerance, maxIterations, workers);
+        ConjugateGradient.Outcome o = solver.multigrid(depth) ? cg.solve(a, new Multigrid(g, false), b, x)
+                : cg.solve(a, u.degree, b, x);
         for (int j = 0; j < n; j++) {
             out[u.index[j]] = (float) x[j];
         }

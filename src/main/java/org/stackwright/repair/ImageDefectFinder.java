@@ -4,15 +4,17 @@ import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
 
 /**
- * Finds defective pixels in the image itself: a pixel that deviates from the median of its 3x3 neighbourhood by
- * more than k robust sigmas, with the same sign, in at least a given fraction of the slices (z or time; a defect
- * sits at the same sensor position in every exposure, structure does not). A 3x3 median ignores an isolated
- * outlier (common practice for impulse noise).
+ * Finds defective pixels in the image itself, in each slice, then keeps those seen with the same sign in at least
+ * a given fraction of the slices (z or time; a defect sits at the same sensor position in every exposure,
+ * structure does not).
  *
- * <p>In each slice a pixel is a high outlier when it exceeds the largest of its 8 neighbours by more than k noise
- * sigmas and by more than {@link #SHARPNESS} of the neighbours' signal (a low outlier likewise below the
- * smallest). The noise grows with the signal (photon noise), so sigma depends on the local level (the 3x3
- * median) through the Poisson-Gaussian model fitted to the image ({@link NoiseLevel}).
+ * <p>In each slice, first defective lines (columns, rows and segments of them: {@link LineDefectFinder}), then,
+ * with the line pixels left out of every reference, single pixels and clusters of a few touching pixels
+ * ({@link ClusterDefectFinder}): a group is a high outlier when it exceeds every pixel around it by more than k
+ * noise sigmas and by more than {@link #SHARPNESS} of their signal (a low outlier likewise below). The noise grows
+ * with the signal (photon noise), so sigma depends on the local level (the 3x3 median) through the
+ * Poisson-Gaussian model fitted to the image ({@link NoiseLevel}). Lines, clusters and pixels are told apart in
+ * the final map by {@link DefectGrouping}.
  *
  * <p>Kinds: mostly negative deviations = dead; positive deviations of a pixel whose value hardly changes over the
  * slices while its neighbours do (and which is not brighter than every good pixel) = stuck; other positive ones =
@@ -28,6 +30,8 @@ public final class ImageDefectFinder {
      * filament is not taken for a defect, while a hot, dead or stuck pixel differs by far more.
      */
     static final double SHARPNESS = 0.7;
+    /** zeros count as missing data when the typical level is this many sigmas above zero */
+    static final double NO_DATA_SIGMAS = 10;
     /** samples per slice used for the class limits and the class sigmas (deterministic stride) */
     static final int SAMPLES = 200_000;
 
@@ -40,49 +44,6 @@ public final class ImageDefectFinder {
      * @param fraction fraction of slices in which the deviation must be seen, in (0, 1]
      */
     public static DefectMap find(Volume image, double k, double fraction, Workers workers) {
-        return candidates(image, k, fraction, null, workers).decide();
-    }
-
-    /**
-     * The per-pixel verdicts that need only the pixel's own column of slices and its 8 neighbours, before the one
-     * whole-image number (the brightest good value) turns stuck candidates into stuck or hot pixels. Blocks of an
-     * image give the same verdicts for their inner pixels as the whole image, so blocks can be put together and
-     * decided at once.
-     *
-     * @param width columns
-     * @param height rows
-     * @param depth slices
-     * @param codes per pixel: 0 good, 1 hot, 2 dead, 3 stuck unless brighter than every good pixel
-     * @param minimum per pixel: smallest value over the slices
-     * @param brightestGood per pixel: largest value over the slices of a good pixel, -infinity for a flagged one
-     */
-    record Candidates(int width, int height, int depth, byte[] codes, float[] minimum, float[] brightestGood) {
-
-        /** @return the defect map, taking the brightest good value over all pixels */
-        DefectMap decide() {
-            float bright = Float.NEGATIVE_INFINITY;
-            for (float b : brightestGood) {
-                bright = Math.max(bright, b);
-            }
-            PixelDefect[] kinds = new PixelDefect[codes.length];
-            for (int p = 0; p < codes.length; p++) {
-                kinds[p] = switch (codes[p]) {
-                    case 1 -> PixelDefect.HOT;
-                    case 2 -> PixelDefect.DEAD;
-                    case 3 -> minimum[p] > bright ? PixelDefect.HOT : PixelDefect.STUCK;
-                    default -> null;
-                };
-            }
-            return new DefectMap(width, height, kinds, "image (" + depth + " slice" + (depth == 1 ? "" : "s")
-                    + ", 3x3 median)");
-        }
-    }
-
-    /**
-     * @param noise the noise level of each slice (fitted on whole slices), or null to fit it here on the given
-     *     slices (the image is then the whole image)
-     */
-    static Candidates candidates(Volume image, double k, double fraction, NoiseLevel[] noise, Workers workers) {
         int w = image.width();
         int h = image.height();
         int d = image.depth();
@@ -96,12 +57,7 @@ public final class ImageDefectFinder {
             short[] pos = new short[plane];
             short[] neg = new short[plane];
             for (int z = z0; z < z1; z++) {
-                if (noise == null) {
-                    scoreSlice(image.data(), z * plane, w, h, k, med[slot], res[slot], pos, neg);
-                } else {
-                    median3x3(image.data(), z * plane, w, h, med[slot], res[slot]);
-                    count(image.data(), z * plane, w, h, k, med[slot], noise[z], pos, neg);
-                }
+                scoreSlice(image.data(), z * plane, w, h, k, med[slot], res[slot], pos, neg);
             }
             synchronized (lock) {
                 for (int p = 0; p < plane; p++) {
@@ -111,24 +67,18 @@ public final class ImageDefectFinder {
             }
         });
         int need = Math.max(1, (int) Math.ceil(fraction * d - 1e-9));
-        byte[] codes = new byte[plane];
+        PixelDefect[] kinds = new PixelDefect[plane];
         boolean[] flagged = new boolean[plane];
         for (int p = 0; p < plane; p++) {
             flagged[p] = positive[p] >= need || negative[p] >= need;
         }
         double[] spread = d >= 3 ? temporalSpread(image) : null;
+        float brightestGood = Float.NEGATIVE_INFINITY;
         float[] v = image.data();
-        float[] minimum = new float[plane];
-        float[] good = new float[plane];
-        for (int p = 0; p < plane; p++) {
-            minimum[p] = minOverSlices(v, p, plane, d);
-            float m = Float.NEGATIVE_INFINITY;
-            if (!flagged[p]) {
-                for (int z = 0; z < d; z++) {
-                    m = Math.max(m, v[z * plane + p]);
-                }
+        for (int i = 0; i < v.length; i++) {
+            if (!flagged[i % plane]) {
+                brightestGood = Math.max(brightestGood, v[i]);
             }
-            good[p] = m;
         }
         double[] nb = new double[8];
         for (int p = 0; p < plane; p++) {
@@ -136,10 +86,10 @@ public final class ImageDefectFinder {
                 continue;
             }
             if (negative[p] > positive[p]) {
-                codes[p] = 2;
+                kinds[p] = PixelDefect.DEAD;
                 continue;
             }
-            codes[p] = 1;
+            kinds[p] = PixelDefect.HOT;
             if (spread != null) {
                 int x = p % w;
                 int y = p / w;
@@ -154,12 +104,14 @@ public final class ImageDefectFinder {
                     }
                 }
                 double typical = m > 0 ? RobustStats.median(nb, m) : 0;
-                if (spread[p] <= 0.1 * typical) {
-                    codes[p] = 3;
+                boolean constant = spread[p] <= 0.1 * typical;
+                boolean aboveAll = minOverSlices(v, p, plane, d) > brightestGood;
+                if (constant && !aboveAll) {
+                    kinds[p] = PixelDefect.STUCK;
                 }
             }
         }
-        return new Candidates(w, h, d, codes, minimum, good);
+        return new DefectMap(w, h, kinds, "image (" + d + " slice" + (d == 1 ? "" : "s") + ", line, cluster and pixel tests)");
     }
 
     private static float minOverSlices(float[] v, int p, int plane, int d) {
@@ -185,27 +137,33 @@ public final class ImageDefectFinder {
         return out;
     }
 
+    /**
+     * Pixels without data: exact zeros in a plane whose typical level (median of the local levels) lies more than
+     * {@link #NO_DATA_SIGMAS} noise sigmas above zero, as the gaps a stitcher leaves between tiles. A camera with an
+     * offset never reads exactly 0 there; data whose level is near 0 keep their zeros as data.
+     */
+    static boolean[] noData(float[] v, int off, int plane, float[] level, NoiseLevel noise) {
+        boolean[] out = new boolean[plane];
+        double[] sample = new double[Math.min(plane, SAMPLES)];
+        int stride = Math.max(1, plane / sample.length);
+        int m = 0;
+        for (int p = 0; p < plane && m < sample.length; p += stride) {
+            sample[m++] = level[p];
+        }
+        double typical = RobustStats.median(sample, m);
+        if (!(typical > NO_DATA_SIGMAS * noise.sigma(typical))) {
+            return out;
+        }
+        for (int p = 0; p < plane; p++) {
+            out[p] = v[off + p] == 0;
+        }
+        return out;
+    }
+
     /** Scores one slice: counts slices with a high outlier in pos and a low outlier in neg. */
     static void scoreSlice(float[] v, int off, int w, int h, double k, float[] med, float[] res, short[] pos,
             short[] neg) {
-        NoiseLevel noise = sliceNoise(v, off, w, h, med, res);
-        count(v, off, w, h, k, med, noise, pos, neg);
-    }
-
-    /**
-     * The 3x3 median (edges clamped) and the residual of one slice, and the noise level fitted to them.
-     *
-     * @param med receives the median per pixel
-     * @param res receives pixel minus median
-     */
-    static NoiseLevel sliceNoise(float[] v, int off, int w, int h, float[] med, float[] res) {
         int plane = w * h;
-        median3x3(v, off, w, h, med, res);
-        return NoiseLevel.fit(med, res, plane, SAMPLES, LEVEL_CLASSES);
-    }
-
-    /** Writes the 3x3 median (coordinates clamped at the edges) and pixel minus median of one slice. */
-    static void median3x3(float[] v, int off, int w, int h, float[] med, float[] res) {
         float[] win = new float[9];
         for (int y = 0; y < h; y++) {
             for (int x = 0; x < w; x++) {
@@ -222,55 +180,24 @@ public final class ImageDefectFinder {
                 res[p] = v[off + p] - med[p];
             }
         }
-    }
-
-    /** Counts a high outlier in pos and a low outlier in neg for each pixel of one slice, at a given noise level. */
-    static void count(float[] v, int off, int w, int h, double k, float[] med, NoiseLevel noise, short[] pos,
-            short[] neg) {
-        for (int y = 0; y < h; y++) {
-            for (int x = 0; x < w; x++) {
-                int p = y * w + x;
-                float c = v[off + p];
-                float hi = Float.NEGATIVE_INFINITY;
-                float lo = Float.POSITIVE_INFINITY;
-                for (int dy = -1; dy <= 1; dy++) {
-                    int yy = y + dy;
-                    if (yy < 0 || yy >= h) {
-                        continue;
-                    }
-                    for (int dx = -1; dx <= 1; dx++) {
-                        int xx = x + dx;
-                        if ((dx | dy) == 0 || xx < 0 || xx >= w) {
-                            continue;
-                        }
-                        float q = v[off + yy * w + xx];
-                        hi = Math.max(hi, q);
-                        lo = Math.min(lo, q);
-                    }
-                }
-                double limit = k * noise.sigma(med[p]);
-                double above = c - hi;
-                double below = lo - c;
-                if (above > limit && above > SHARPNESS * (hi - noise.floor())) {
-                    pos[p]++;
-                } else if (below > limit && below > SHARPNESS * (lo - noise.floor())) {
-                    neg[p]++;
-                }
+        NoiseLevel noise = NoiseLevel.fit(med, res, plane, SAMPLES, LEVEL_CLASSES);
+        boolean[] noData = noData(v, off, plane, med, noise);
+        boolean[] lineHot = new boolean[plane];
+        boolean[] lineDead = new boolean[plane];
+        LineDefectFinder.scan(v, off, w, h, noise, k, noData, lineHot, lineDead);
+        boolean[] excluded = new boolean[plane];
+        for (int p = 0; p < plane; p++) {
+            excluded[p] = lineHot[p] || lineDead[p];
+        }
+        boolean[] hot = new boolean[plane];
+        boolean[] dead = new boolean[plane];
+        ClusterDefectFinder.scan(v, off, w, h, noise, med, k, excluded, noData, hot, dead);
+        for (int p = 0; p < plane; p++) {
+            if (hot[p] || lineHot[p]) {
+                pos[p]++;
+            } else if (dead[p] || lineDead[p]) {
+                neg[p]++;
             }
         }
-    }
-
-    private static int levelClass(float level, float[] limits) {
-        int lo = 0;
-        int hi = limits.length;
-        while (lo < hi) {
-            int mid = (lo + hi) >>> 1;
-            if (level >= limits[mid]) {
-                lo = mid + 1;
-            } else {
-                hi = mid;
-            }
-        }
-        return lo;
     }
 }

@@ -161,8 +161,9 @@ final class MaskedGrid {
      *
      * @param f the image, read at known pixels
      * @param out one value per unknown, written
+     * @return the number of layers: the largest distance (in steps) from an unknown to a known pixel
      */
-    void onionGuess(float[] f, double[] out) {
+    int onionGuess(float[] f, double[] out) {
         int n = size();
         int m = stride();
         boolean[] set = new boolean[n];
@@ -170,6 +171,7 @@ final class MaskedGrid {
         int[] next = new int[n];
         double[] value = new double[n];
         int done = 0;
+        int layers = 0;
         int layerCount = 0;
         for (int j = 0; j < n; j++) {
             frontier[layerCount++] = j;
@@ -211,6 +213,7 @@ final class MaskedGrid {
             if (newly == 0) {
                 break;
             }
+            layers++;
             System.arraycopy(next, 0, frontier, 0, nextCount);
             layerCount = nextCount;
         }
@@ -219,5 +222,6 @@ final class MaskedGrid {
                 out[j] = 0;
             }
         }
+        return layers;
     }
 }

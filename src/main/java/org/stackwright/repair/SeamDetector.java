@@ -1,45 +1,57 @@
 package org.stackwright.repair;
 
 import java.util.ArrayList;
+import java.util.Arrays;
 import java.util.List;
 
 import org.stackwright.volume.Volume;
 
 /**
- * Finds tile seams in a stitched image: straight lines along which the intensity changes abruptly in (nearly)
- * every row (for vertical seams) or column (for horizontal ones), through all slices.
+ * Finds the tile seams of a stitched image from the periodicity of the tiling: brightness steps between tiles,
+ * shading that repeats in every tile, gaps of zeros and blending bands all leave evidence ({@link SeamEvidence})
+ * at borders that repeat with the tile step; a comb over that evidence gives the step and phase
+ * ({@link SeamComb}). Horizontal seams come first (they cross the whole width); vertical ones are then found in
+ * each tile row on its own with one common step, so that the rows of a snake-order mosaic with overlap, whose
+ * seams are shifted by the overlap, get their own phase (and the shift gives the overlap).
  *
- * <p>For each position x between columns x and x+1 and each row, the step d(x) = I(x+1) - I(x) minus the median
- * of the steps d(x-6) .. d(x-2) and d(x+2) .. d(x+6), e = d(x) - median, removes smooth slopes (vignetting, large
- * structures). Over all rows and slices the signs of e are counted, and the sign test statistic
- * z = (n+ - n-) / sqrt(N), N all lines (ties, e.g. flat regions of noise-free data, count for neither side; Dixon & Mood, "The statistical sign test", J. Am. Stat. Assoc.
- * 41:557-566, 1946) measures how consistently the line steps one way. A seam, a dimmed or brightened band or a
- * change of gain between tiles, steps the same way in nearly every row; structure and noise do not. Positions with
- * |z| > threshold are edges; edges closer than {@link #MAX_BAND} pixels form one band from the first to the last,
- * a lone edge is a step seam and gets a band of the requested width centred on it. A weak edge of opposite
- * sign right next to a strong one is dropped as its echo ({@link #ECHO}). The spacing of the seams found
- * is reported, and whether it is regular (a tile grid gives equal spacing).
+ * <p>Each seam becomes a band: the borders around the comb tooth whose evidence repeats in most teeth (a dimmed
+ * band, a blending band has two, a gap is widened to its zeros), or, for a lone step or corner, the requested
+ * width centred on it. Strong evidence that does not repeat with the step (a defective column, a structure) is no
+ * seam; it is returned as a line for the user to check with find-defects. Without two repeating teeth along an
+ * axis (a mosaic of two tiles along it) the seams along that axis are the strong edges that are not narrow lines,
+ * and the result is marked not regular.
  */
 public final class SeamDetector {
 
-    /** edges closer than this (pixels) belong to one seam band */
+    /** borders of one seam lie at most this far apart (pixels): a blending band or overlap up to this wide */
     public static final int MAX_BAND = 24;
-    /** steps d(x-REACH .. x-2) and d(x+2 .. x+REACH) give the local slope */
-    static final int REACH = 6;
     /**
-     * An edge weaker than this share of an opposite edge within REACH pixels is taken for its echo: removing the
-     * median of the nearby steps biases the lines next to a strong edge slightly the other way.
+     * An end of a seam with less than this share of the summed evidence of its strongest end is dropped: removing
+     * the median of the nearby steps biases the borders next to a strong edge slightly the other way.
      */
     static final double ECHO = 0.5;
+    /** the ends of a seam start within this many pixels of its comb tooth (the tooth may sit on a corner beside a step) */
+    static final int NEAR = 6;
+    /** a seam that does not repeat must be this many times stronger than the threshold */
+    static final double LONE = 2;
 
     /**
-     * A seam band [start, end) along one axis.
+     * A seam band [start, end) along one axis, over the lines [from, to) of the other axis.
      *
      * @param start first pixel of the band
      * @param end one past the last pixel
-     * @param strength largest |z| of the sign test over the band's edges
+     * @param strength largest evidence (sign-test z) over the band's borders
+     * @param from first line the band covers (0 for a whole seam)
+     * @param to one past the last line it covers
+     * @param looks what the seam looks like: step, shading, gap, blend
      */
-    public record Band(int start, int end, double strength) {
+    public record Band(int start, int end, double strength, int from, int to, List<String> looks) {
+
+        /** A band over the whole image. */
+        public Band(int start, int end, double strength) {
+            this(start, end, strength, 0, Integer.MAX_VALUE, List.of());
+        }
+
         /** @return the centre position (start + end) / 2, a tile border for a band centred on it */
         public int centre() {
             return (start + end) / 2;
@@ -47,19 +59,47 @@ public final class SeamDetector {
     }
 
     /**
+     * Strong evidence that does not repeat with the tile step.
+     *
+     * @param position first pixel of the line (its border with the previous pixel)
+     * @param width 1 or 2 for a narrow line (both edges found), 0 for a lone edge
+     * @param strength sign-test z
+     */
+    public record Line(int position, int width, double strength) {
+    }
+
+    /**
+     * The tiling found.
+     *
+     * @param stepX tile step along x (pixels between neighbouring vertical seams), 0 when not found
+     * @param stepY tile step along y, 0 when not found
+     * @param phaseX first vertical seam border of each tile row (the phase of its comb)
+     * @param phaseY first horizontal seam border
+     * @param overlapX the overlap seen from a snake order (shift of the odd tile rows), -1 when not seen
+     * @param blendX width of the blending bands of vertical seams, 0 when none
+     * @param blendY width of the blending bands of horizontal seams, 0 when none
+     */
+    public record Tiling(int stepX, int stepY, int[] phaseX, int phaseY, int overlapX, int blendX, int blendY) {
+    }
+
+    /**
      * What was found.
      *
-     * @param columns vertical seams (x bands)
+     * @param columns vertical seams (x bands; each over the tile rows it crosses)
      * @param rows horizontal seams (y bands)
-     * @param regular true when the spacings of the seams (and of the image borders) along each axis agree within
-     *     2 pixels
+     * @param regular true when a tile period was found along both axes (or an axis has no seam)
+     * @param tiling the steps and phases
+     * @param columnLines strong vertical lines that are not seams
+     * @param rowLines strong horizontal lines that are not seams
      */
-    public record Found(List<Band> columns, List<Band> rows, boolean regular) {
-        /** @return one plane, 255 on every band (full lines) */
+    public record Found(List<Band> columns, List<Band> rows, boolean regular, Tiling tiling, List<Line> columnLines,
+            List<Line> rowLines) {
+
+        /** @return one plane, 255 on every band */
         public byte[] mask(int w, int h) {
             byte[] m = new byte[w * h];
             for (Band b : columns) {
-                for (int y = 0; y < h; y++) {
+                for (int y = Math.max(0, b.from()); y < Math.min(h, b.to()); y++) {
                     for (int x = Math.max(0, b.start()); x < Math.min(w, b.end()); x++) {
                         m[y * w + x] = (byte) 255;
                     }
@@ -67,7 +107,7 @@ public final class SeamDetector {
             }
             for (Band b : rows) {
                 for (int y = Math.max(0, b.start()); y < Math.min(h, b.end()); y++) {
-                    for (int x = 0; x < w; x++) {
+                    for (int x = Math.max(0, b.from()); x < Math.min(w, b.to()); x++) {
                         m[y * w + x] = (byte) 255;
                     }
                 }
@@ -81,115 +121,432 @@ public final class SeamDetector {
 
     /**
      * @param image the image or stack, not modified
-     * @param threshold sign-test z above which a line is an edge (e.g. 8)
-     * @param stepWidth band width given to a lone step edge, pixels
+     * @param threshold sign-test z a seam must exceed somewhere; teeth of a repeating comb need half of it
+     * @param stepWidth band width given to a lone step or corner, pixels
      */
     public static Found detect(Volume image, double threshold, int stepWidth) {
-        double[] zx = signTest(image, true);
-        double[] zy = signTest(image, false);
-        List<Band> cols = bands(zx, threshold, stepWidth, image.width());
-        List<Band> rows = bands(zy, threshold, stepWidth, image.height());
-        boolean regular = regular(cols, image.width()) && regular(rows, image.height());
-        return new Found(cols, rows, regular);
+        int w = image.width();
+        int h = image.height();
+        double tooth = threshold / 2;
+        SeamEvidence ey = SeamEvidence.of(image, false, 0, w);
+        SeamComb.Period py = repeats(ey, SeamComb.find(ey, null, tooth, threshold), tooth);
+        List<Band> rows = py != null ? seams(ey, py, tooth, threshold, stepWidth, 0, w)
+                : lone(ey, threshold, stepWidth, 0, w);
+        // tile rows: the stripes between horizontal seams, each searched on its own
+        int[] cut = new int[rows.size() + 2];
+        cut[0] = 0;
+        for (int i = 0; i < rows.size(); i++) {
+            cut[i + 1] = rows.get(i).centre();
+        }
+        cut[cut.length - 1] = h;
+        int stripes = cut.length - 1;
+        List<SeamEvidence> ex = new ArrayList<>();
+        for (int s = 0; s < stripes; s++) {
+            int y0 = s == 0 ? 0 : rows.get(s - 1).end() + 1;
+            int y1 = s == stripes - 1 ? h : rows.get(s).start() - 1;
+            ex.add(SeamEvidence.of(image, true, y0, Math.max(y0 + 1, y1)));
+        }
+        SeamComb.Period[] px = commonPitch(ex, tooth, threshold);
+        boolean anyRepeat = false;
+        for (int s = 0; s < stripes; s++) {
+            anyRepeat |= repeats(ex.get(s), px[s], tooth) != null;
+        }
+        if (!anyRepeat) {
+            px = new SeamComb.Period[stripes];
+        }
+        List<Band> cols = new ArrayList<>();
+        int[] phases = new int[stripes];
+        int blendX = 0;
+        for (int s = 0; s < stripes; s++) {
+            List<Band> found = px[s] != null ? seams(ex.get(s), px[s], tooth, threshold, stepWidth, cut[s], cut[s + 1])
+                    : lone(ex.get(s), threshold, stepWidth, cut[s], cut[s + 1]);
+            phases[s] = px[s] == null ? -1 : px[s].phase();
+            for (Band b : found) {
+                if (b.looks().contains("blend")) {
+                    blendX = Math.max(blendX, b.end() - b.start());
+                }
+            }
+            cols.addAll(found);
+        }
+        cols = mergeAlongRows(cols, h);
+        int blendY = 0;
+        for (Band b : rows) {
+            if (b.looks().contains("blend")) {
+                blendY = Math.max(blendY, b.end() - b.start());
+            }
+        }
+        int stepX = 0;
+        for (SeamComb.Period p : px) {
+            if (p != null) {
+                stepX = p.pitch();
+            }
+        }
+        Tiling tiling = new Tiling(stepX, py == null ? 0 : py.pitch(), phases, py == null ? -1 : py.phase(),
+                snakeShift(phases, stepX), blendX, blendY);
+        boolean regular = (py != null || rows.isEmpty()) && (stepX > 0 || cols.isEmpty());
+        List<Line> colLines = lines(SeamEvidence.of(image, true, 0, h), cols, threshold);
+        List<Line> rowLines = lines(ey, rows, threshold);
+        return new Found(cols, rows, regular, tiling, colLines, rowLines);
     }
 
-    /** Sign-test z for each position between pixel i and i+1 along x (alongX) or y. */
-    static double[] signTest(Volume v, boolean alongX) {
-        int w = v.width();
-        int h = v.height();
-        int n = alongX ? w : h;
-        int lines = alongX ? h : w;
-        long[] plus = new long[n];
-        long[] minus = new long[n];
-        float[] f = v.data();
-        double[] window = new double[2 * REACH];
-        int step = alongX ? 1 : w;
-        int lineStep = alongX ? w : 1;
-        for (int z = 0; z < v.depth(); z++) {
-            int base = z * w * h;
-            for (int l = 0; l < lines; l++) {
-                int o = base + l * lineStep;
-                for (int i = REACH; i < n - REACH - 1; i++) {
-                    int p = o + i * step;
-                    double d = f[p + step] - f[p];
-                    int m = 0;
-                    for (int k = 2; k <= REACH; k++) {
-                        window[m++] = f[p - (k - 1) * step] - f[p - k * step];
-                        window[m++] = f[p + (k + 1) * step] - f[p + k * step];
-                    }
-                    double e = d - RobustStats.medianInPlace(window, m);
-                    if (e > 0) {
-                        plus[i]++;
-                    } else if (e < 0) {
-                        minus[i]++;
+    /**
+     * @return the period when its evidence repeats at one exact offset from most teeth (a step or a corner), else
+     *     null: a comb whose teeth only catch unrelated evidence within their one-pixel windows is no tiling
+     */
+    static SeamComb.Period repeats(SeamEvidence e, SeamComb.Period p, double tooth) {
+        if (p == null || p.strong() == 0) {
+            return p;
+        }
+        int[] b = p.borders(e.length());
+        return repeating(e, e.step, b, tooth).length > 0 || repeating(e, e.kink, b, tooth).length > 0 ? p : null;
+    }
+
+    /** One pitch for all stripes (the best total of strong teeth), each stripe with its own phase. */
+    static SeamComb.Period[] commonPitch(List<SeamEvidence> ex, double tooth, double threshold) {
+        int n = ex.get(0).length();
+        SeamComb.Period[] best = null;
+        for (int s = SeamComb.MIN_PITCH; s < n; s++) {
+            SeamComb.Period[] at = combs(ex, s, 0, s - 1, 1, tooth, threshold);
+            if (total(at) != null && better(at, best)) {
+                best = at;
+            }
+        }
+        if (best == null) {
+            return new SeamComb.Period[ex.size()];
+        }
+        best = SeamComb.refine(ex, best, tooth);
+        // a stripe without a comb of its own takes the phase of the stripe two above or below (same direction)
+        for (int i = 0; i < best.length; i++) {
+            if (best[i] == null) {
+                for (int j = i % 2; j < best.length; j += 2) {
+                    if (best[j] != null && j != i) {
+                        best[i] = new SeamComb.Period(best[j].pitch(), best[j].phase(), 0, 0, 0);
+                        break;
                     }
                 }
             }
         }
-        double[] z = new double[n];
-        double all = Math.sqrt((double) lines * v.depth());
-        for (int i = 0; i < n; i++) {
-            z[i] = (plus[i] - minus[i]) / all;
-        }
-        return z;
+        return best;
     }
 
-    static List<Band> bands(double[] zIn, double threshold, int stepWidth, int n) {
-        double[] z = zIn.clone();
-        for (int i = 0; i < z.length; i++) {
-            for (int j = Math.max(0, i - REACH); j <= Math.min(z.length - 1, i + REACH); j++) {
-                if (zIn[i] * zIn[j] < 0 && Math.abs(zIn[i]) < ECHO * Math.abs(zIn[j])) {
-                    z[i] = 0;
+    /** The best comb of pitch s of each stripe, phases p0 .. p1 (taken modulo s), teeth looking window px aside. */
+    private static SeamComb.Period[] combs(List<SeamEvidence> ex, int s, int p0, int p1, int window, double tooth,
+            double threshold) {
+        SeamComb.Period[] at = new SeamComb.Period[ex.size()];
+        for (int i = 0; i < ex.size(); i++) {
+            for (int p = p0; p <= p1; p++) {
+                SeamComb.Period c = SeamComb.score(ex.get(i), s, Math.floorMod(p, s), window, tooth, threshold);
+                if (c != null && c.better(at[i])) {
+                    at[i] = c;
                 }
             }
         }
+        return at;
+    }
+
+    /** @return {strong teeth, summed evidence, teeth without evidence} over the stripes, or null if no comb */
+    private static double[] total(SeamComb.Period[] at) {
+        double strong = 0;
+        double sum = 0;
+        double empty = 0;
+        boolean any = false;
+        for (SeamComb.Period p : at) {
+            if (p != null) {
+                any = true;
+                strong += p.strong();
+                sum += p.sum();
+                empty += p.teeth() - p.strong();
+            }
+        }
+        return any ? new double[] {strong, sum, empty} : null;
+    }
+
+    private static boolean better(SeamComb.Period[] a, SeamComb.Period[] b) {
+        if (b == null) {
+            return true;
+        }
+        double[] ta = total(a);
+        double[] tb = total(b);
+        if (ta[0] != tb[0]) {
+            return ta[0] > tb[0];
+        }
+        if (ta[2] != tb[2]) {
+            return ta[2] < tb[2];
+        }
+        return ta[1] > tb[1] * (1 + 1e-9);
+    }
+
+    private static int pitchOf(SeamComb.Period[] at) {
+        for (SeamComb.Period p : at) {
+            if (p != null) {
+                return p.pitch();
+            }
+        }
+        return 0;
+    }
+
+    /** The shift of the odd stripes' phase against the even ones when it is the same for all, else -1. */
+    static int snakeShift(int[] phases, int step) {
+        if (phases.length < 2 || step <= 0) {
+            return -1;
+        }
+        int shift = Integer.MIN_VALUE;
+        for (int i = 1; i < phases.length; i++) {
+            if (phases[i] < 0 || phases[i - 1] < 0) {
+                return -1;
+            }
+            int d = Math.floorMod((i % 2 == 1 ? 1 : -1) * (phases[i] - phases[i - 1]), step);
+            if (d > step / 2) {
+                d -= step;
+            }
+            if (shift == Integer.MIN_VALUE) {
+                shift = d;
+            } else if (Math.abs(shift - d) > 1) {
+                return -1;
+            }
+        }
+        return shift == Integer.MIN_VALUE || shift == 0 ? -1 : Math.abs(shift);
+    }
+
+    /** The seam bands of a comb, over the lines [from, to). */
+    static List<Band> seams(SeamEvidence e, SeamComb.Period p, double tooth, double threshold, int stepWidth, int from,
+            int to) {
+        int n = e.length();
+        int[] borders = p.borders(n);
+        int[] steps = repeating(e, e.step, borders, tooth);
+        int[] kinks = repeating(e, e.kink, borders, tooth);
         List<Band> out = new ArrayList<>();
-        int i = 0;
-        while (i < z.length) {
-            if (Math.abs(z[i]) <= threshold) {
-                i++;
+        for (int t : borders) {
+            // the first and last tiles of a mosaic are whole, at least one step wide: a tooth closer than that to an
+            // end is no seam unless it shows one
+            int slack = SeamComb.END_SLACK;
+            if ((n - t < p.pitch() - slack || t < p.pitch() - slack) && nearest(e, t, tooth) <= tooth) {
                 continue;
             }
-            int first = i;
-            int last = i;
-            double strength = Math.abs(z[i]);
-            int j = i + 1;
-            while (j < z.length && j - last <= MAX_BAND) {
-                if (Math.abs(z[j]) > threshold) {
-                    last = j;
-                    strength = Math.max(strength, Math.abs(z[j]));
-                }
-                j++;
-            }
-            if (last > first) {
-                out.add(new Band(first + 1, last + 1, strength));
-            } else {
-                int border = first + 1;
-                int start = Math.max(0, border - stepWidth / 2);
-                out.add(new Band(start, Math.min(n, border - stepWidth / 2 + stepWidth), strength));
-            }
-            i = last + 1;
+            out.add(band(e, t, steps, kinks, stepWidth, from, to));
         }
         return out;
     }
 
-    /** True when the gaps between image edges and band centres along an axis are equal within 2 pixels. */
-    static boolean regular(List<Band> bands, int n) {
-        if (bands.isEmpty()) {
-            return true;
+    /** @return the largest peak evidence within 2 pixels of t */
+    private static double nearest(SeamEvidence e, int t, double tooth) {
+        double m = 0;
+        for (int d = -2; d <= 2; d++) {
+            m = Math.max(m, e.peak(t + d, tooth));
         }
-        int prev = 0;
-        int min = Integer.MAX_VALUE;
-        int max = 0;
-        for (Band b : bands) {
-            int gap = b.centre() - prev;
-            min = Math.min(min, gap);
-            max = Math.max(max, gap);
-            prev = b.centre();
+        return m;
+    }
+
+    /**
+     * Offsets from the comb teeth (within {@link #MAX_BAND}) at which one kind of evidence repeats in most teeth,
+     * one per group of neighbouring offsets (the offset of the largest summed evidence): the ends of a seam.
+     */
+    static int[] repeating(SeamEvidence e, double[] z, int[] borders, double tooth) {
+        int n = e.length();
+        double[] sum = new double[2 * MAX_BAND + 1];
+        boolean[] rep = new boolean[sum.length];
+        for (int o = -MAX_BAND; o <= MAX_BAND; o++) {
+            int strong = 0;
+            int teeth = 0;
+            for (int b : borders) {
+                int q = b + o;
+                if (q > 0 && q < n) {
+                    teeth++;
+                    if (Math.abs(z[q]) > tooth && e.combStrength(q, tooth) > 0) {
+                        strong++;
+                        sum[o + MAX_BAND] += Math.abs(z[q]);
+                    }
+                }
+            }
+            rep[o + MAX_BAND] = teeth > 0 && strong >= SeamComb.STRONG_SHARE * teeth;
         }
-        int last = n - prev;
-        min = Math.min(min, last);
-        max = Math.max(max, last);
-        return max - min <= 2;
+        List<Integer> ends = new ArrayList<>();
+        double top = 0;
+        int i = 0;
+        while (i < rep.length) {
+            if (!rep[i]) {
+                i++;
+                continue;
+            }
+            int best = i;
+            while (i < rep.length && rep[i]) {
+                if (sum[i] > sum[best]) {
+                    best = i;
+                }
+                i++;
+            }
+            ends.add(best - MAX_BAND);
+            top = Math.max(top, sum[best]);
+        }
+        // an end much weaker than the strongest is the echo of removing the median of nearby steps
+        final double strongest = top;
+        ends.removeIf(o -> sum[o + MAX_BAND] < ECHO * strongest);
+        // keep the ends that chain to the one nearest the tooth within MAX_BAND of each other
+        if (ends.isEmpty()) {
+            return new int[0];
+        }
+        int near = 0;
+        for (int k = 1; k < ends.size(); k++) {
+            if (Math.abs(ends.get(k)) < Math.abs(ends.get(near))) {
+                near = k;
+            }
+        }
+        if (Math.abs(ends.get(near)) > NEAR) {
+            return new int[0];
+        }
+        int a = near;
+        int b = near;
+        while (a > 0 && ends.get(b) - ends.get(a - 1) <= MAX_BAND) {
+            a--;
+        }
+        while (b < ends.size() - 1 && ends.get(b + 1) - ends.get(a) <= MAX_BAND) {
+            b++;
+        }
+        return ends.subList(a, b + 1).stream().mapToInt(Integer::intValue).toArray();
+    }
+
+    /** The band of the seam at comb tooth t, from the repeating ends of steps and kinks. */
+    private static Band band(SeamEvidence e, int t, int[] steps, int[] kinks, int stepWidth, int from, int to) {
+        int n = e.length();
+        int[] ends = steps.length > 0 ? steps : kinks;
+        double strength = 0;
+        for (int o : ends) {
+            strength = Math.max(strength, e.strength(t + o));
+        }
+        int first = ends.length == 0 ? t : t + ends[0];
+        int last = ends.length == 0 ? t : t + ends[ends.length - 1];
+        // zeros of a gap near the seam widen the band to cover them
+        boolean gap = false;
+        for (int x = Math.max(0, first - 3); x < Math.min(n, last + 3); x++) {
+            if (e.zeros[x] >= 0.5) {
+                if (!gap) {
+                    first = Math.min(first, x);
+                }
+                gap = true;
+                first = Math.min(first, x);
+                last = Math.max(last, x + 1);
+            }
+        }
+        List<String> looks = new ArrayList<>();
+        if (steps.length > 0 && !gap) {
+            looks.add(steps.length >= 2 && e.step[t + steps[0]] * e.step[t + steps[steps.length - 1]] < 0 ? "band"
+                    : "step");
+        }
+        if (kinks.length > 0) {
+            looks.add("shading");
+        }
+        if (gap) {
+            looks.add("gap");
+        }
+        if (steps.length == 0 && kinks.length >= 2) {
+            looks.add("blend");
+        }
+        if (last - first < 2 && !gap) {
+            // a lone border (a step or a corner): the requested width centred on it
+            return new Band(Math.max(0, first - stepWidth / 2), Math.min(n, first - stepWidth / 2 + stepWidth),
+                    strength, from, to, looks);
+        }
+        return new Band(first, last, strength, from, to, looks);
+    }
+
+    /**
+     * Without a period: the strong edges that are not narrow lines, each a band of the requested width. Without the
+     * support of repeating teeth an edge must exceed {@link #LONE} times the threshold (structure that runs along a
+     * line gives evidence of the size of the threshold now and then).
+     */
+    static List<Band> lone(SeamEvidence e, double thresholdIn, int stepWidth, int from, int to) {
+        double threshold = LONE * thresholdIn;
+        int n = e.length();
+        List<Band> out = new ArrayList<>();
+        for (int b = 1; b < n; b++) {
+            double s = e.combStrength(b, threshold / 2);
+            if (s > threshold && s >= e.combStrength(b - 1, threshold / 2) && s >= e.combStrength(b + 1 < n ? b + 1 : b,
+                    threshold / 2)) {
+                if (!out.isEmpty() && b - out.get(out.size() - 1).centre() <= MAX_BAND) {
+                    continue;
+                }
+                List<String> looks = new ArrayList<>();
+                looks.add(Math.abs(e.step[b]) >= Math.abs(e.kink[b]) ? "step" : "shading");
+                out.add(new Band(Math.max(0, b - stepWidth / 2), Math.min(n, b - stepWidth / 2 + stepWidth), s, from,
+                        to, looks));
+            }
+        }
+        return out;
+    }
+
+    /** Bands at the same position in every stripe become one band over the whole height. */
+    private static List<Band> mergeAlongRows(List<Band> cols, int h) {
+        List<Band> out = new ArrayList<>();
+        boolean[] used = new boolean[cols.size()];
+        for (int i = 0; i < cols.size(); i++) {
+            if (used[i]) {
+                continue;
+            }
+            Band a = cols.get(i);
+            int from = a.from();
+            int to = a.to();
+            double strength = a.strength();
+            List<String> looks = new ArrayList<>(a.looks());
+            for (int j = i + 1; j < cols.size(); j++) {
+                Band b = cols.get(j);
+                if (!used[j] && b.start() == a.start() && b.end() == a.end() && b.from() == to) {
+                    used[j] = true;
+                    to = b.to();
+                    strength = Math.max(strength, b.strength());
+                    for (String l : b.looks()) {
+                        if (!looks.contains(l)) {
+                            looks.add(l);
+                        }
+                    }
+                }
+            }
+            out.add(new Band(a.start(), a.end(), strength, from, to, looks));
+        }
+        out.sort((x, y) -> x.start() != y.start() ? Integer.compare(x.start(), y.start()) : Integer.compare(x.from(),
+                y.from()));
+        return out;
+    }
+
+    /** Strong evidence more than 2 pixels from every seam band: lines that do not repeat with the tile step. */
+    static List<Line> lines(SeamEvidence e, List<Band> seams, double threshold) {
+        int n = e.length();
+        List<Line> out = new ArrayList<>();
+        for (int b = 1; b < n; b++) {
+            if (e.strength(b) <= threshold || nearSeam(b, seams)) {
+                continue;
+            }
+            int wdt = e.narrowLine(b, threshold / 2);
+            double s = e.strength(b);
+            if (wdt > 0) {
+                s = Math.max(s, e.strength(b + wdt));
+            }
+            if (!out.isEmpty()) {
+                Line prev = out.get(out.size() - 1);
+                if (b <= prev.position() + Math.max(prev.width(), 2)) {
+                    continue;
+                }
+            }
+            out.add(new Line(b, wdt, s));
+        }
+        return out;
+    }
+
+    private static boolean nearSeam(int b, List<Band> seams) {
+        for (Band s : seams) {
+            if (b >= s.start() - 2 && b <= s.end() + 2) {
+                return true;
+            }
+        }
+        return false;
+    }
+
+    /** @return the positions of the bands' centres, ascending, without repeats */
+    static int[] centres(List<Band> bands) {
+        return bands.stream().mapToInt(Band::centre).distinct().sorted().toArray();
+    }
+
+    /** @return a copy of the array as text, for messages */
+    static String text(int[] a) {
+        return Arrays.toString(a);
     }
 }

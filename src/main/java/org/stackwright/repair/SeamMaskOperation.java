@@ -1,10 +1,8 @@
 package org.stackwright.repair;
 
 import java.util.ArrayList;
-import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Locale;
-import java.util.Map;
 
 import ij.ImagePlus;
 
@@ -19,9 +17,11 @@ import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
 
 /**
- * {@code seam-mask}: a mask of the tile seams of a stitched image, from the tile layout ({@link TileLayout}) or
- * found in the image ({@link SeamDetector}); optionally reports per-tile gains ({@link TileLevelling}) and, only
- * when asked for, writes a levelled copy.
+ * {@code seam-mask}: a mask of the tile seams of a stitched image, from the tile layout ({@link TileLayout}, checked
+ * against the image when one is given) or found in the image from the periodicity of the tiling
+ * ({@link SeamDetector}, reported by {@link SeamReport}); optionally reports per-tile gains ({@link TileLevelling}),
+ * after taking out the shading all tiles share ({@link TileShading}) when asked, and, only when asked for, writes a
+ * levelled copy.
  */
 public final class SeamMaskOperation implements Operation {
 
@@ -47,13 +47,19 @@ public final class SeamMaskOperation implements Operation {
                 Param.choice("order", "row-by-row", List.of("row-by-row", "snake"), "order in which tiles were placed"),
                 Param.integer("seam-width", 4, 1, 10_000, "width of each seam band in pixels"),
                 Param.flag("detect", "find the seams in the input image instead of using a layout"),
-                Param.image("input", false, "the stitched image (needed with detect or level)"),
-                Param.number("threshold", 8.0, 2, 1000, "", "detect: sign-test z a seam must exceed"),
+                Param.image("input", false, "the stitched image (needed with detect or level; with a layout it is "
+                        + "checked against the image)"),
+                Param.number("threshold", 8.0, 2, 1000, "", "detect: sign-test z a seam must exceed (repeating seams "
+                        + "need half of it in each tile)"),
                 Param.flag("level", "estimate a gain per tile from the bands beside the seams and report it"),
+                Param.flag("shading", "level: first estimate the shading all tiles share (a flat field from the "
+                        + "mosaic itself) and take it out; gains are then estimated on the corrected image"),
                 Param.number("offset", 0.0, -1e9, 1e9, "ADU", "level: camera offset (dark level) of the input"),
                 Param.integer("strip", 4, 1, 1000, "level: pixels used on each side of a seam"),
                 Param.outputImage("output", true, "the 8-bit seam mask, 255 = seam (TIFF)"),
-                Param.outputImage("levelled-output", false, "level: the input with each tile divided by its gain"),
+                Param.outputImage("levelled-output", false, "level: the input with each tile divided by its gain "
+                        + "(and by the shading with shading)"),
+                Param.outputImage("flat-field", false, "shading: the estimated shading of one tile, mean 1 (32-bit)"),
                 Param.outputFile("record", "run record with seam positions and gains (JSON)"));
     }
 
@@ -81,16 +87,10 @@ public final class SeamMaskOperation implements Operation {
             ctx.progress(0.2, "looking for seams");
             SeamDetector.Found f = SeamDetector.detect(img, v.number("threshold"), sw);
             mask = f.mask(w, h);
-            f.columns().forEach(b -> colBands.add(new int[] {b.start(), b.end()}));
+            // levelling works on a grid of tiles: the vertical seams of the first tile row
+            f.columns().stream().filter(b -> b.from() == 0).forEach(b -> colBands.add(new int[] {b.start(), b.end()}));
             f.rows().forEach(b -> rowBands.add(new int[] {b.start(), b.end()}));
-            r.record("vertical_seams", describe(f.columns()));
-            r.record("horizontal_seams", describe(f.rows()));
-            r.record("regular", f.regular());
-            r.line(String.format(Locale.ROOT, "found %d vertical seams at x = %s and %d horizontal seams at y = %s",
-                    f.columns().size(), centres(f.columns()), f.rows().size(), centres(f.rows())));
-            if (!f.regular()) {
-                ctx.warn("the seams found are not evenly spaced; check the mask against the tile layout");
-            }
+            SeamReport.detected(f, w, h, r, ctx);
         } else {
             if (!v.given("grid") || !v.given("tile")) {
                 throw new IllegalArgumentException("grid and tile are required unless detect is given: e.g. "
@@ -116,13 +116,35 @@ public final class SeamMaskOperation implements Operation {
             }
             r.record("layout", layout.toString());
             r.line("seam mask of " + layout + ", seams " + sw + " px wide");
+            if (img != null) {
+                ctx.progress(0.3, "checking the layout against the image");
+                SeamReport.checkLayout(img, layout, v.number("threshold"), sw, r, ctx);
+            }
             if (layout.snake() && layout.overlapX() > 0 && layout.columns() > 1 && v.flag("level")) {
                 ctx.warn("level uses the seam positions of the first tile row; in snake order with overlap the "
                         + "odd rows are shifted by the overlap, so their gains are approximate");
             }
         }
+        if (v.flag("shading") && !v.flag("level")) {
+            throw new IllegalArgumentException("shading needs level: add --level");
+        }
+        if (v.given("flat-field") && !v.flag("shading")) {
+            throw new IllegalArgumentException("flat-field needs shading: add --level --shading");
+        }
         if (v.flag("level")) {
-            TileLevelling.Gains g = TileLevelling.estimate(img, colBands, rowBands, v.integer("strip"), v.number("offset"));
+            InputChecks.checkOffset("input", img, v.number("offset"), 0, ctx);
+            Volume base = img;
+            if (v.flag("shading")) {
+                ctx.progress(0.5, "estimating the shading of the tiles");
+                TileShading.Flat flat = TileShading.estimate(img, colBands, rowBands, v.number("offset"));
+                ShadingReport.report(flat, r);
+                base = TileShading.apply(img, colBands, rowBands, flat, v.number("offset"));
+                r.image("flat-field", ImagePlusAdapter.toImagePlus(ShadingReport.picture(flat, img.voxel()),
+                        input.getTitle() + "-flat-field"));
+            }
+            ctx.progress(0.7, "estimating the gains of the tiles");
+            TileLevelling.Gains g = TileLevelling.estimate(base, colBands, rowBands, v.integer("strip"),
+                    v.number("offset"));
             r.record("tile_gains", g.gains());
             r.record("tile_gain_rms_log_misfit", g.rmsLogResidual());
             for (int row = 0; row < g.rows(); row++) {
@@ -132,16 +154,18 @@ public final class SeamMaskOperation implements Operation {
                 }
                 r.line(sb.toString());
             }
-            r.line("gains are relative to the average tile; not applied unless levelled-output is given");
+            r.line("gains are relative to the average tile" + (v.flag("shading") ? ", measured after the shading "
+                    + "correction" : "") + "; not applied unless levelled-output is given");
             if (g.rmsLogResidual() > MISFIT_WARNING) {
                 ctx.warn(String.format(Locale.ROOT, "the tile gains disagree around the grid (rms misfit %.1f %%): a "
                         + "structure along a seam or a wrong offset biases them; do not level with them",
                         100 * g.rmsLogResidual()));
             }
-            if (v.given("levelled-output")) {
-                Volume lev = TileLevelling.apply(img, colBands, rowBands, g, v.number("offset"));
-                r.image("levelled-output", ImagePlusAdapter.toImagePlus(lev, input.getTitle() + "-levelled"));
-            }
+            // made whenever level is on; the doors keep it only when levelled-output is asked for
+            Volume lev = TileLevelling.apply(base, colBands, rowBands, g, v.number("offset"));
+            r.image("levelled-output", ImagePlusAdapter.toImagePlus(lev, input.getTitle() + "-levelled"));
+            r.line("levelled-output (when asked for): estimates, not measurements; seam bands are left as they were "
+                    + "(fill them with inpaint)");
         } else if (v.given("levelled-output")) {
             throw new IllegalArgumentException("levelled-output needs level: add --level");
         }
@@ -150,27 +174,5 @@ public final class SeamMaskOperation implements Operation {
                 (input == null ? "tiles" : input.getTitle()) + "-seam-mask"));
         ctx.progress(1, "done");
         return r;
-    }
-
-    private static List<Map<String, Object>> describe(List<SeamDetector.Band> bands) {
-        List<Map<String, Object>> out = new ArrayList<>();
-        for (SeamDetector.Band b : bands) {
-            Map<String, Object> m = new LinkedHashMap<>();
-            m.put("start", b.start());
-            m.put("end", b.end());
-            m.put("centre", b.centre());
-            m.put("sign_test_z", b.strength());
-            out.add(m);
-        }
-        return out;
-    }
-
-    private static String centres(List<SeamDetector.Band> bands) {
-        StringBuilder sb = new StringBuilder("[");
-        for (SeamDetector.Band b : bands) {
-            sb.append(sb.length() > 1 ? ", " : "").append(b.centre()).append(" (").append(b.start()).append("..")
-                    .append(b.end() - 1).append(')');
-        }
-        return sb.append(']').toString();
     }
 }

@@ -65,8 +65,14 @@ public final class TileLevelling {
             }
         }
         int n = rows * cols;
-        if (n == 1 || eq.isEmpty()) {
+        if (n == 1) {
             return new Gains(rows, cols, new double[] {1}, 0, 0);
+        }
+        if (eq.isEmpty()) {
+            // every pair had no signal above the offset beside its seam (the data lie below the offset)
+            throw new IllegalArgumentException("offset = " + offset + ": no pair of neighbouring tiles has signal above"
+                    + " the offset beside its seam, so no tile gain can be estimated; allowed: an offset below the"
+                    + " image's dark level (check --offset)");
         }
         Array2DRowRealMatrix a = new Array2DRowRealMatrix(eq.size() + 1, n);
         ArrayRealVector b = new ArrayRealVector(eq.size() + 1);
@@ -79,7 +85,13 @@ public final class TileLevelling {
         for (int t = 0; t < n; t++) {
             a.setEntry(eq.size(), t, 1);
         }
-        RealVector x = new QRDecomposition(a).getSolver().solve(b);
+        RealVector x;
+        try {
+            x = new QRDecomposition(a).getSolver().solve(b);
+        } catch (org.apache.commons.math3.linear.SingularMatrixException e) {
+            throw new IllegalArgumentException("offset = " + offset + ": some tiles have no neighbour with signal above"
+                    + " the offset beside a seam, so their gains cannot be estimated (check --offset)", e);
+        }
         double ss = 0;
         for (int k = 0; k < eq.size(); k++) {
             double[] e = eq.get(k);
@@ -128,9 +140,9 @@ public final class TileLevelling {
         return new double[][] {java.util.Arrays.copyOf(outA, m), java.util.Arrays.copyOf(outB, m)};
     }
 
-    /** Tile extents between seam bands: tile k spans [lo[k], hi[k]). */
-    /** @return {first, end} pixel of each tile along one axis of n pixels cut by the seam bands */
-    private static int[][] spans(List<int[]> bands, int n) {
+    /** @return {first, end} pixel of each tile along one axis of n pixels cut by the seam bands: tile k spans
+     *     [lo[k], hi[k]) */
+    static int[][] spans(List<int[]> bands, int n) {
         int[] lo = new int[bands.size() + 1];
         int[] hi = new int[bands.size() + 1];
         lo[0] = 0;

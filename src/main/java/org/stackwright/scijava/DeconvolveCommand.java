@@ -130,6 +130,12 @@ public final class DeconvolveCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "memory")
     private String memory;
 
+    @Parameter(type = ItemIO.OUTPUT, label = "residuals")
+    private ImagePlus residuals;
+
+    @Parameter(type = ItemIO.OUTPUT, label = "residuals-summary")
+    private ImagePlus residualsSummary;
+
     @Parameter(persist = false, required = false, label = "record")
     private File record;
 

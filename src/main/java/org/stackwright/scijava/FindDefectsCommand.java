@@ -37,9 +37,6 @@ public final class FindDefectsCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "block-size")
     private String blockSize;
 
-    @Parameter(persist = false, required = false, label = "memory")
-    private String memory;
-
     @Parameter(persist = false, required = false, label = "record")
     private File record;
 

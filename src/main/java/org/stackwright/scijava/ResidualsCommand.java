@@ -40,6 +40,9 @@ public final class ResidualsCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "read-noise")
     private Double readNoise;
 
+    @Parameter(persist = false, required = false, label = "boundary")
+    private String boundary;
+
     @Parameter(type = ItemIO.OUTPUT, label = "output")
     private ImagePlus output;
 

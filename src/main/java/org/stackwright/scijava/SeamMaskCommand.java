@@ -43,6 +43,9 @@ public final class SeamMaskCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "level")
     private Boolean level;
 
+    @Parameter(persist = false, required = false, label = "shading")
+    private Boolean shading;
+
     @Parameter(persist = false, required = false, label = "offset")
     private Double offset;
 
@@ -54,6 +57,9 @@ public final class SeamMaskCommand extends OperationCommand {
 
     @Parameter(type = ItemIO.OUTPUT, label = "levelled-output")
     private ImagePlus levelledOutput;
+
+    @Parameter(type = ItemIO.OUTPUT, label = "flat-field")
+    private ImagePlus flatField;
 
     @Parameter(persist = false, required = false, label = "record")
     private File record;

@@ -98,7 +98,9 @@ public final class SimulateOperation implements Operation {
         ctx.progress(1, "simulated");
         Result r = new Result();
         ImagePlus data = ImagePlusAdapter.toImagePlus(out.data(), "simulated");
-        if (v.choice("bits").equals("16")) {
+        boolean bits16 = v.choice("bits").equals("16");
+        warnClipped(out.data(), camera.fullScale(), bits16, ctx);
+        if (bits16) {
             data = to16bit(data);
         }
         r.image("output", data);
@@ -118,6 +120,31 @@ public final class SimulateOperation implements Operation {
         r.line(String.format(java.util.Locale.ROOT, "simulated %s voxels of %s; PSF Gaussian sigma_xy %.4f um, sigma_z %.4f um",
                 out.data().shape(), voxel, sxy, sz));
         return r;
+    }
+
+    /**
+     * Says how many pixels the camera clipped: at its full scale (saturated, in either bit depth) and, for 16-bit
+     * output, below 0 ADU (an unsigned converter has no negative values). Clipped pixels are no longer Poisson data.
+     */
+    static void warnClipped(Volume adu, double fullScale, boolean bits16, RunContext ctx) {
+        long high = 0;
+        long low = 0;
+        for (float f : adu.data()) {
+            if (f >= fullScale) {
+                high++;
+            } else if (bits16 && Math.round(f) < 0) {
+                low++;
+            }
+        }
+        if (high > 0) {
+            ctx.warn(String.format(java.util.Locale.ROOT, "output: %d pixels (%.3g %%) reached the camera's full scale"
+                    + " %.0f ADU and were clipped (saturated); lower brightness or background to avoid it", high,
+                    100.0 * high / adu.size(), fullScale));
+        }
+        if (low > 0) {
+            ctx.warn(String.format(java.util.Locale.ROOT, "output: %d pixels (%.3g %%) fell below 0 ADU and were set"
+                    + " to 0 (16-bit has no negative values); raise offset to avoid it", low, 100.0 * low / adu.size()));
+        }
     }
 
     /** Rounds to whole ADU and clips to 0..65535, like a 16-bit camera's converter. */

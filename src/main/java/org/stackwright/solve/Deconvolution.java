@@ -29,7 +29,8 @@ public final class Deconvolution {
      * @param solution the solver's output (history, stop reason)
      * @param record the run record (JSON-ready map)
      * @param model the fitted forward model A x + background on the image, ADU above the offset, or null when not
-     *     asked for (see {@link NoiseReplicas})
+     *     asked for (see {@link NoiseReplicas}, {@link RunResiduals}; from
+     *     {@link DeconvolutionProblem#predictedAboveOffset})
      */
     public record Outcome(Volume result, Solution solution, Map<String, Object> record, Volume model) {
     }
@@ -103,6 +104,7 @@ public final class Deconvolution {
     private static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
             RunContext ctx, IterationListener listener, boolean withModel, DepthVariant dv, AfterSolve after) {
         InputChecks.Scan scan = InputChecks.check("input", data, ctx);
+        InputChecks.checkOffset("input", data, s.offset(), s.readNoise(), ctx);
         mask = MaskChecks.union(mask, scan.nonFiniteMask());
         data = InputChecks.finiteCopy(data, scan);
         int warned = ctx.warnings().size();
@@ -139,7 +141,8 @@ public final class Deconvolution {
                         camera, bg, workers, ctx.fft());
             }
             sol = solver.solve(problem, ctx, listener);
-            model = withModel ? forwardModel(problem, sol.estimate(), bg) : null;
+            NumericalGuard.estimate(s.method(), sol);
+            model = withModel ? problem.predictedAboveOffset(sol.estimate()) : null;
             if (after != null) {
                 after.run(problem, sol);
             }
@@ -200,18 +203,6 @@ public final class Deconvolution {
 
     private static Volume emptyOfSize(int[] size, Volume data) {
         return Volume.zeros(size[0], size[1], size[2], data.voxel());
-    }
-
-    /** @return gain * (H x) on the image window plus the background, ADU above the offset */
-    private static Volume forwardModel(DeconvolutionProblem problem, float[] x, double backgroundAdu) {
-        float[] work = new float[x.length];
-        problem.forward().apply(x, work);
-        Volume m = problem.toVolume(work);
-        float[] d = m.data();
-        for (int i = 0; i < d.length; i++) {
-            d[i] = (float) (d[i] + backgroundAdu);
-        }
-        return m;
     }
 
     /**

@@ -135,7 +135,7 @@ final class DeconvolveBlocks implements BlockOperation {
     }
 
     /**
-     * Uncertainty and depth-variant runs need the whole stack at once: they take the usual path (whose memory check
+     * Uncertainty, depth-variant runs and the run's own residuals need the whole stack at once: they take the usual path (whose memory check
      * refuses a stack too large); with a block size given they are refused, naming the setting. Without a PSF the
      * usual path runs too, to say so.
      */
@@ -159,6 +159,11 @@ final class DeconvolveBlocks implements BlockOperation {
         if (!mode.equals("none")) {
             return "uncertainty = " + mode + " needs the whole stack in memory and cannot run in blocks; give"
                     + " uncertainty none (or a smaller stack, or more memory with block-size auto)";
+        }
+        if (RunResiduals.wanted(v)) {
+            return "residuals and residuals-summary compare the whole stack with the run's own prediction and cannot"
+                    + " be made in blocks; leave them out and run the residuals operation on the result (or give"
+                    + " block-size auto and enough memory for the whole stack)";
         }
         if (v.choice("depth-variant").equals("on")) {
             return "depth-variant = on models the PSF over the whole depth and cannot run in blocks; give block-size"

@@ -94,6 +94,7 @@ public final class DeconvolveOperation implements Operation, Blockwise {
                 Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history")));
         p.addAll(p.indexOf(p.stream().filter(q -> q.key().equals("likelihood")).findFirst().orElseThrow()) + 1,
                 UncertaintyStep.params());
+        p.addAll(p.size() - 1, RunResiduals.params());
         return List.copyOf(p);
     }
 
@@ -123,16 +124,40 @@ public final class DeconvolveOperation implements Operation, Blockwise {
             ctx.warn("psf: '" + psfImp.getTitle() + "' is not used: depth-variant on models the PSFs from the optics");
         } else if (psfImp != null) {
             psf = ImagePlusAdapter.toVolume(psfImp);
-            if (!ImagePlusAdapter.isCalibrated(psfImp)) {
-                psf = psf.withVoxel(data.voxel());
-                ctx.warn("psf: '" + psfImp.getTitle() + "' has no calibration; taken to have the image's voxel size " + data.voxel());
+        }
+        String dataNote = ImagePlusAdapter.calibrationNote(in);
+        if (!ImagePlusAdapter.isCalibrated(in)) {
+            if (psf != null && ImagePlusAdapter.isCalibrated(psfImp)) {
+                data = data.withVoxel(psf.voxel());
+                ctx.warn("input: " + dataNote + "; taken to have the PSF's voxel size " + psf.voxel() + ", so the PSF"
+                        + " is used as it is. If that is wrong, set the image's voxel size (a calibrated TIFF, or"
+                        + " Image>Properties in ImageJ)");
+            } else if (psf != null) {
+                ctx.warn("input: " + dataNote + ", nor has the PSF: both are taken as 1 um voxels and the PSF is"
+                        + " used as it is (same voxel size assumed); the z weight of total variation assumes cubic"
+                        + " voxels");
+            } else {
+                ctx.warn("input: " + dataNote + "; taken as 1 um voxels, and the PSFs are modelled for that size. Set"
+                        + " the image's voxel size (a calibrated TIFF, or Image>Properties in ImageJ)");
             }
+        } else if (dataNote != null) {
+            ctx.warn("input: " + dataNote);
+        }
+        if (psf != null && !ImagePlusAdapter.isCalibrated(psfImp)) {
+            psf = psf.withVoxel(data.voxel());
+            ctx.warn("psf: '" + psfImp.getTitle() + "' has no calibration; taken to have the image's voxel size " + data.voxel());
+        } else if (psf != null && ImagePlusAdapter.calibrationNote(psfImp) != null) {
+            ctx.warn("psf: " + ImagePlusAdapter.calibrationNote(psfImp));
         }
         samplingCheck(v, data, ctx);
         byte[] mask = null;
         ImagePlus m = v.image("mask");
         if (m != null) {
             mask = MaskChecks.check("mask", ImagePlusAdapter.toVolume(m), data, ctx);
+        }
+        boolean residuals = RunResiduals.wanted(v);
+        if (residuals) {
+            RunResiduals.check(s, depthVariant, UncertaintyStep.mode(v));
         }
         Result r = new Result();
         Deconvolution.Outcome out;
@@ -147,7 +172,7 @@ public final class DeconvolveOperation implements Operation, Blockwise {
             out.record().forEach(r::record);
             r.record("uncertainty", mode);
         } else {
-            out = UncertaintyStep.run(v, data, psf, psfImp.getTitle(), mask, s, in.getTitle(), ctx, r);
+            out = UncertaintyStep.run(v, data, psf, psfImp.getTitle(), mask, s, in.getTitle(), residuals, ctx, r);
         }
         r.image("output", ImagePlusAdapter.toImagePlus(out.result(), in.getTitle() + "-deconvolve"));
         FftChoice.note(r, fft);
@@ -164,6 +189,9 @@ public final class DeconvolveOperation implements Operation, Blockwise {
         row.put("seconds", out.solution().seconds());
         row.put("final_objective", hist.length > 0 ? hist[hist.length - 1] : Double.NaN);
         r.row(row);
+        if (residuals) {
+            RunResiduals.attach(r, v, data, psf, mask, s, out, in.getTitle(), ctx);
+        }
         return r;
     }
 

@@ -7,7 +7,7 @@ import org.stackwright.op.RunContext;
 
 /**
  * The bookkeeping every iterative solver shares: history arrays sized once, cancel checks, progress, listener
- * calls and the stop decision.
+ * calls, the stop decision and the {@link NumericalGuard} after each iteration.
  */
 final class IterationLog {
 
@@ -19,6 +19,7 @@ final class IterationLog {
     private final double[] change;
     private final long t0 = System.nanoTime();
     private int done;
+    private double best = Double.POSITIVE_INFINITY;
     private String reason;
 
     IterationLog(String method, Stopping stopping, RunContext context, IterationListener listener) {
@@ -41,6 +42,9 @@ final class IterationLog {
      * @return true to stop
      */
     boolean after(double obj, double meanFit, double expectedFit, double ch) {
+        NumericalGuard.iteration(method, done + 1, obj, meanFit, ch);
+        NumericalGuard.notDiverged(method, done + 1, obj, best);
+        best = Math.min(best, obj);
         objective[done] = obj;
         change[done] = ch;
         done++;

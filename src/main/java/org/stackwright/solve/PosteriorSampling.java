@@ -92,6 +92,11 @@ public final class PosteriorSampling {
                 });
         PosteriorSummary sum = holder.summary;
         PosteriorSampler.Draws d = holder.draws;
+        String drawn = d.states().length + " samples";
+        NumericalGuard.values("sampling", "the posterior mean", sum.mean().data(), drawn);
+        NumericalGuard.values("sampling", "the posterior spread", sum.spread().data(), drawn);
+        NumericalGuard.values("sampling", "the interval's lower end", sum.lower().data(), drawn);
+        NumericalGuard.values("sampling", "the interval's upper end", sum.upper().data(), drawn);
         Map<String, Object> rec = new LinkedHashMap<>(out.record());
         rec.put("uncertainty", "sampling");
         Map<String, Object> sm = new LinkedHashMap<>();

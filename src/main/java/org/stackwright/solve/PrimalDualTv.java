@@ -128,6 +128,7 @@ public final class PrimalDualTv implements Solver {
         final float upper = (float) (BOX * Math.max(brightest, 1));
         final float lam = (float) lambda;
         final boolean poisson = dataTerm == DataTerm.POISSON;
+        final double floor = p.modelFloor();
         Sums dualSums = new Sums(1);
         Sums primalSums = new Sums(3);
         Sums fitSums = new Sums(2);
@@ -198,7 +199,7 @@ public final class PrimalDualTv implements Solver {
                     float hn = buf[i];
                     float yi = y[i];
                     if (yi >= 0) {
-                        double m = Math.max(hn + b, 1e-12);
+                        double m = Math.max(hn + b, floor);
                         double k = yi > 0 ? yi * Math.log(yi / m) - yi + m : m;
                         kl += k;
                         primal += poisson ? k : 0.5 * (hn + b - yi) * (hn + b - yi);

@@ -79,10 +79,12 @@ final class UncertaintyStep {
     /**
      * Runs the deconvolution with the uncertainty asked for and puts the outputs, record and lines into r.
      *
+     * @param withModel keep the fitted forward model in the outcome (for the run's own residuals; replicas keep it
+     *     anyway)
      * @return the outcome whose result is the main output (the estimate, or the posterior mean)
      */
     static Deconvolution.Outcome run(Values v, Volume data, Volume psf, String psfName, byte[] mask,
-            DeconvolutionSettings s, String title, RunContext ctx, Result r) {
+            DeconvolutionSettings s, String title, boolean withModel, RunContext ctx, Result r) {
         String mode = mode(v);
         check(v, mode);
         r.record("uncertainty", mode);
@@ -129,7 +131,8 @@ final class UncertaintyStep {
                 return res.outcome();
             }
             default -> {
-                Deconvolution.Outcome out = Deconvolution.run(data, psf, psfName, mask, s, ctx, IterationListener.NONE);
+                Deconvolution.Outcome out = Deconvolution.run(data, psf, psfName, mask, s, ctx, IterationListener.NONE,
+                        withModel);
                 copy(out.record(), r);
                 return out;
             }

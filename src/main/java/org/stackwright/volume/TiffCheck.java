@@ -17,18 +17,26 @@ import ij.io.TiffDecoder;
  */
 final class TiffCheck {
 
+    /**
+     * @param images the number of images (planes) of the first image's size
+     * @param description the first image's ImageDescription (null when it has none), e.g. OME-XML
+     */
+    record Layout(long images, String description) {
+    }
+
     private TiffCheck() {
     }
 
     /**
      * @param path an existing, readable file starting with a TIFF signature
      * @param what the parameter the path came from, for messages
-     * @return the number of images (planes) of the first image's size the file describes: pages of another size
-     *     (thumbnails) are not part of the stack ImageJ opens, so a caller can check ImageJ read them all
+     * @return the number of images (planes) of the first image's size the file describes (pages of another size,
+     *     thumbnails, are not part of the stack ImageJ opens, so a caller can check ImageJ read them all) and the
+     *     first image's description
      * @throws IllegalArgumentException naming the parameter when the header cannot be read or the pixel data
      *     would extend past the end of the file
      */
-    static long requireComplete(Path path, String what) {
+    static Layout requireComplete(Path path, String what) {
         Path abs = path.toAbsolutePath();
         long length;
         FileInfo[] info;
@@ -78,7 +86,7 @@ final class TiffCheck {
                 images += fi.nImages;
             }
         }
-        return images;
+        return new Layout(images, info[0].description);
     }
 
     /**

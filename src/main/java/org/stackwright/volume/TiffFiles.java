@@ -6,12 +6,12 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 
 import ij.ImagePlus;
-import ij.io.FileSaver;
 import ij.io.Opener;
 
 /**
- * TIFF reading and writing through ImageJ 1.x, calibration included. Writing is all-or-nothing: the file is
- * written under a temporary name in the target folder and renamed when complete.
+ * TIFF reading and writing through ImageJ 1.x, calibration included (and what ImageJ misses of OME-TIFFs:
+ * {@link OmeMetadata}). Writing is all-or-nothing ({@link OutputFiles}): the file is written under a temporary name
+ * in the target folder and renamed when complete.
  */
 public final class TiffFiles {
 
@@ -57,7 +57,8 @@ public final class TiffFiles {
             throw new IllegalArgumentException(what + ": " + path + " is not a TIFF file (save it as TIFF first)");
         }
         // the structure walk and the size check run before ImageJ's reader, which trusts the header's offsets
-        long images = TiffCheck.requireComplete(path, what);
+        TiffCheck.Layout layout = TiffCheck.requireComplete(path, what);
+        long images = layout.images();
         ImagePlus imp;
         try {
             Path abs = path.toAbsolutePath();
@@ -80,6 +81,17 @@ public final class TiffFiles {
                     + " (the file is damaged, or mixes pages of other sizes such as thumbnails: save the stack alone"
                     + " as TIFF)");
         }
+        OmeMetadata.Pixels ome = OmeMetadata.parse(layout.description());
+        if (ome != null) {
+            imp = OmeMetadata.apply(imp, ome);
+        }
+        // plain TIFF has no tag for the z step: only ImageJ's description ("spacing=") and OME-XML record it
+        String desc = layout.description();
+        boolean zRecorded = (desc != null && desc.startsWith("ImageJ") && desc.contains("spacing="))
+                || (ome != null && Double.isFinite(ome.sizeZ()));
+        if (imp.getNSlices() > 1 && !zRecorded && ImagePlusAdapter.isCalibrated(imp)) {
+            imp.setProp(ImagePlusAdapter.Z_STEP_UNKNOWN, "true");
+        }
         imp.setTitle(titleOf(path));
         return imp;
     }
@@ -101,7 +113,8 @@ public final class TiffFiles {
     }
 
     /**
-     * Writes an image as TIFF, completely or not at all.
+     * Writes an image as TIFF, completely or not at all ({@link OutputFiles#writeWhole}), to the path's real
+     * location (symbolic links resolved).
      *
      * @param overwrite whether an existing file may be replaced
      * @throws IllegalArgumentException when the folder is missing or not writable, or the file exists and
@@ -109,20 +122,20 @@ public final class TiffFiles {
      * @throws java.io.UncheckedIOException when writing fails (no partial file is left)
      */
     public static void write(ImagePlus imp, Path path, boolean overwrite) {
-        Path abs = path.toAbsolutePath();
-        checkWritable(abs, overwrite);
-        FileSaver saver = new FileSaver(imp);
-        OutputFiles.Save save = imp.getStackSize() > 1 ? saver::saveAsTiffStack : saver::saveAsTiff;
-        OutputFiles.writeWhole(abs, temporaryFor(abs), save);
+        Path target = OutputFiles.prepare(path, overwrite);
+        OutputFiles.writeWhole(target, overwrite, out -> TiffWriting.encode(imp, out), OutputFiles.FILE);
     }
 
     /**
-     * The hidden temporary file an output is written to before it is renamed into place: in the same folder (so
-     * the rename is atomic), named after the output and this process. PNG outputs add ".png" to it.
+     * The hidden temporary file or folder a streaming output (written block by block) goes to before
+     * {@link OutputFiles#moveIntoPlace} renames it: in the output's folder (so the rename is atomic), a short name
+     * ({@link OutputPaths#hiddenSibling}) with this process's id. It is registered with
+     * {@link OutputFiles#temporaryFiles}, so a cancelled run removes it.
      */
     public static Path temporaryFor(Path output) {
-        Path abs = output.toAbsolutePath();
-        return abs.getParent().resolve("." + abs.getFileName() + ".part-" + ProcessHandle.current().pid());
+        Path tmp = OutputPaths.hiddenSibling(output.toAbsolutePath(), ".part-" + ProcessHandle.current().pid());
+        OutputFiles.registerTemporary(tmp);
+        return tmp;
     }
 
     /**
@@ -132,7 +145,11 @@ public final class TiffFiles {
      *     and overwrite is false
      */
     public static void checkWritable(Path path, boolean overwrite) {
-        Path abs = path.toAbsolutePath();
+        Path abs = OutputPaths.real(path);
+        if (Files.isSymbolicLink(abs)) {
+            throw new IllegalArgumentException("output " + path + " is a symbolic link that leads nowhere (a loop of"
+                    + " links); remove it or choose another name");
+        }
         Path dir = abs.getParent();
         if (dir == null || !Files.isDirectory(dir)) {
             throw new IllegalArgumentException("output folder " + dir + " does not exist; create it first");
@@ -143,6 +160,7 @@ public final class TiffFiles {
         if (Files.isDirectory(abs)) {
             throw new IllegalArgumentException("output " + abs + " is a folder; give a file name");
         }
+        OutputPaths.checkName("output", abs);
         if (Files.exists(abs) && !overwrite) {
             throw new IllegalArgumentException("output file " + abs + " exists; choose another name or allow overwriting (--overwrite)");
         }

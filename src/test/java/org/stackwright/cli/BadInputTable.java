@@ -15,6 +15,7 @@ import org.stackwright.op.MaskChecks;
 import org.stackwright.op.MemoryCheck;
 import org.stackwright.op.Operation;
 import org.stackwright.op.RunContext;
+import org.stackwright.op.RunFailedException;
 import org.stackwright.op.Values;
 import org.stackwright.psf.PsfChecks;
 import org.stackwright.volume.ImagePlusAdapter;
@@ -25,7 +26,8 @@ import org.stackwright.volume.VoxelSize;
  * The table of bad inputs: one row per case, with what the user does (command-line arguments or a library call)
  * and what must happen (exit code and a fragment of the message). Exit codes are the command line's: 2 = refused
  * as bad input (a library call throws IllegalArgumentException), 1 = failed, 0 = done (for documented safe
- * behaviours the fragment is then the warning).
+ * behaviours the fragment is then the warning); a library call that fails with {@link RunFailedException} or an
+ * I/O error counts as 1.
  *
  * <p>To add rows for an operation: append {@code cli(...)} rows with its arguments (files from {@link #FILES}) or
  * {@code lib(...)} rows calling its checks, in {@link #rows()}.
@@ -67,6 +69,22 @@ final class BadInputTable {
                 return new Outcome(Main.OK, String.join("\n", ctx.warnings()));
             } catch (IllegalArgumentException e) {
                 return new Outcome(Main.BAD_INPUT, e.getMessage());
+            } catch (RunFailedException | java.io.UncheckedIOException e) {
+                return new Outcome(Main.FAILED, e.getMessage());
+            }
+        }, exit, fragment);
+    }
+
+    /**
+     * A command-line row run while something is held (an output claim of another run, say), released afterwards.
+     */
+    static Case cliWhile(String name, int exit, String fragment, java.util.function.Supplier<AutoCloseable> hold,
+            String... args) {
+        return new Case(name, () -> {
+            try (AutoCloseable held = hold.get()) {
+                return capture(err -> Main.run(args, new PrintStream(new ByteArrayOutputStream()), err));
+            } catch (Exception e) {
+                throw new IllegalStateException(e);
             }
         }, exit, fragment);
     }
@@ -178,8 +196,8 @@ final class BadInputTable {
                 "--input", f("colour.tif"), "--output", out));
         t.add(op("input 64-bit float", scale, 2, "double.tif is of a kind that cannot be read (Unsupported BitsPerSample: 64);"
                 + " allowed: 8, 16 or 32-bit grayscale", "--input", f("double.tif"), "--output", out));
-        t.add(op("hyperstack channel that does not exist", scale, 2, "channel 3 does not exist: image 'channels2' has 2 channels",
-                "--input", f("channels2.tif"), "--channel", "3", "--output", out));
+        t.add(lib("hyperstack channel that does not exist", 2, "channel 3 does not exist: image 'h' has 2 channels",
+                c -> ImagePlusAdapter.toVolume(IJ.createImage("h", "8-bit black", 4, 4, 2, 2, 1), 3, 1)));
         t.add(op("factor 1e400", scale, 2, "factor = 1e400 is not a finite number", "--input", f("good.tif"), "--factor", "1e400",
                 "--output", out));
         // --- command line: pixel values (documented safe behaviours) ---
@@ -193,8 +211,8 @@ final class BadInputTable {
                 "--input", f("constant.tif"), "--output", f("constant-out.tif")));
         // --- command line: batch ---
         t.add(op("batch folder without TIFFs", scale, 2, "matches no file", "--input", f("no-tiffs"), "--output", f("a-folder")));
-        t.add(op("batch output not a folder", scale, 2, "is not a folder; in batch mode", "--input", f("*.tif"), "--output", out));
-        t.add(op("batch pattern in a missing folder", scale, 2, "does not exist", "--input", f("missing") + "/*.tif",
+        t.add(op("batch output not a folder", scale, 2, "is not a folder; in batch mode", "--input", "glob:" + f("*.tif"), "--output", out));
+        t.add(op("batch pattern in a missing folder", scale, 2, "does not exist", "--input", "glob:" + f("missing") + "/*.tif",
                 "--output", f("a-folder")));
         // --- iterations (any iterative operation uses Limits.iterations) ---
         t.add(op("iterations 0", slow, 2, "iterations = 0 is out of range; allowed 1 to 10000", "--iterations", "0", "--output", out));
@@ -242,6 +260,7 @@ final class BadInputTable {
                 c -> MaskChecks.check("mask", vol(32, 32, 1, 0), img, c)));
         t.add(lib("mask covering everything", 2, "mask marks all 16384 pixels as untrusted",
                 c -> MaskChecks.check("mask", vol(32, 32, 1, 255), img, c)));
+        TrustRows.add(t, x);
         OperationBadInputRows.add(t, x);
         return t;
     }

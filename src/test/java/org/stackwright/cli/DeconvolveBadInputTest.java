@@ -58,6 +58,26 @@ class DeconvolveBadInputTest {
         return p.toString();
     }
 
+    /** As {@link #input(String, Volume)} for an image with its own calibration (or none). */
+    private static String inputImage(String name, ij.ImagePlus imp) {
+        Path p = FILES.path(name);
+        if (!Files.exists(p)) {
+            TiffFiles.write(imp, p, false);
+            HASHES.put(p, Fixtures.sha256(p));
+        }
+        return p.toString();
+    }
+
+    /** A TIFF file written by hand (kinds our writer never makes), recorded like the other inputs. */
+    private static String inputBytes(String name, java.util.function.Consumer<Path> write) {
+        Path p = FILES.path(name);
+        if (!Files.exists(p)) {
+            write.accept(p);
+            HASHES.put(p, Fixtures.sha256(p));
+        }
+        return p.toString();
+    }
+
     /** Invented cells blurred by a Gaussian PSF, offset 100 ADU, Poisson noise and read noise 2 ADU. */
     private static Volume cells(int nx, int ny, int nz, long seed) {
         try (Workers w = new Workers(1)) {
@@ -201,6 +221,19 @@ class DeconvolveBadInputTest {
         // files
         t.add(row("output equal to input", 2, "is the same file as --input; the input is never overwritten",
                 "--output", input("cells.tif", good), "--overwrite"));
+        // the run's own residuals (solve.RunResiduals)
+        t.add(row("residuals with likelihood gaussian and no read noise", 2, "read-noise = 0.0 is not allowed with"
+                + " likelihood gaussian and residuals", "--method", "total-variation", "--likelihood", "gaussian",
+                "--residuals", out("own-residuals.tif")));
+        t.add(row("residuals with NaN pixels: left out, residual 0", 0, "residuals of the run's own prediction",
+                "--input", input("cells-nan.tif", good.withData(nan)), "--residuals",
+                out("own-residuals-nan.tif")));
+        t.add(row("residuals with depth-variant", 2, "residuals is not made with depth-variant on", dv[0], dv[1], dv[2],
+                dv[3], dv[4], dv[5], dv[6], dv[7], "--sample-index", "1.33", "--residuals", out("own-dv.tif")));
+        t.add(row("residuals with sampling", 2, "residuals is not made with uncertainty = sampling", "--uncertainty",
+                "sampling", "--residuals-summary", out("own-sampling.png")));
+        t.add(row("residuals-summary named like the output", 2, "--residuals-summary and --output name the same file",
+                "--residuals-summary", out("residuals-summary-named-like-the-output.tif")));
         t.add(memoryRow());
         // blocks (blocks.BlockSettings, solve.DeconvolveBlocks)
         t.add(row("block-size of the wrong form", 2, "block-size = '16x16' has the wrong form; give WxHxD, e.g. 65x65x41,"
@@ -219,7 +252,69 @@ class DeconvolveBadInputTest {
                 + " blocks", concatenate(dv, "--sample-index", "1.33", "--block-size", "16x16x12")));
         t.add(row("blocks in an explicit size run", 0, "global settings for 4 blocks (2x2x1)", "--block-size", "16x16x12",
                 "--iterations", "3", "--stop", "fixed"));
+        trustRows(t, good);
         return t.stream();
+    }
+
+    /** Odd data: very bright counts, the offset above the data, missing or odd calibration, hyperstacks. */
+    private static void trustRows(List<BadInputTable.Case> t, Volume good) {
+        // very bright beads: the ratio of the Richardson-Lucy update once blew up to NaN with exit code 0
+        Volume[] bright = org.stackwright.testing.IndependentStacks.generate(new org.stackwright.testing.IndependentStacks
+                .Spec(77, 48, 40, 16, 5e4, true, 0, 100, 1, 2, 1.2, 1.5, 13, 9));
+        Volume[] brighter = org.stackwright.testing.IndependentStacks.generate(new org.stackwright.testing.IndependentStacks
+                .Spec(78, 48, 40, 16, 1e6, true, 0, 100, 1, 2, 1.2, 1.5, 13, 9));
+        String brightPsf = input("bright-psf.tif", bright[1]);
+        for (String method : List.of("richardson-lucy", "richardson-lucy-tv", "total-variation")) {
+            t.add(row("very bright data (5e4 photons per voxel), " + method + ": finite result", 0, "",
+                    "--input", input("bright.tif", bright[0]), "--psf", brightPsf, "--method", method,
+                    "--iterations", "50", "--stop", "noise", "--read-noise", "2"));
+        }
+        t.add(row("very bright data (1e6 photons per voxel): finite result", 0, "",
+                "--input", input("brighter.tif", brighter[0]), "--psf", brightPsf, "--iterations", "50",
+                "--stop", "noise", "--read-noise", "2"));
+        // the offset against the data (op.InputChecks.checkOffset)
+        t.add(row("offset above most of the data", 2, "offset = 150 is above most of the data",
+                "--offset", "150"));
+        t.add(row("offset above some of the data: a warning", 0, "lie below the offset 112 ADU",
+                "--offset", "112"));
+        short[] negative = new short[32 * 32];
+        for (int i = 0; i < negative.length; i++) {
+            negative[i] = (short) (-300 + (i * 37) % 100);
+        }
+        t.add(row("signed 16-bit TIFF read with its negative values", 2, "offset = 0 is above most of the data",
+                "--input", inputBytes("signed.tif", p -> {
+                    try {
+                        org.stackwright.testing.TinyTiff.writeInt16(p, 32, 32, negative);
+                    } catch (java.io.IOException e) {
+                        throw new java.io.UncheckedIOException(e);
+                    }
+                }), "--psf", input("psf-2d-for-2d.tif", psf(9, 9, 1, VOXEL, d -> { })), "--offset", "0"));
+        // calibration
+        ij.ImagePlus plain = org.stackwright.volume.ImagePlusAdapter.toImagePlus(good, "plain");
+        plain.setCalibration(new ij.measure.Calibration());
+        t.add(row("input without spatial calibration: a warning, the PSF's voxel size", 0,
+                "input: 'uncalibrated' has no spatial calibration (unit 'pixel'), so its voxel size is unknown; taken to"
+                        + " have the PSF's voxel size", "--input", inputImage("uncalibrated.tif", plain)));
+        ij.ImagePlus inches = org.stackwright.volume.ImagePlusAdapter.toImagePlus(good, "inches");
+        ij.measure.Calibration cal = inches.getCalibration().copy();
+        cal.setUnit("inch");
+        cal.pixelWidth = 0.1 / 25400;
+        cal.pixelHeight = 0.1 / 25400;
+        cal.pixelDepth = 0.3 / 25400;
+        inches.setCalibration(cal);
+        t.add(row("input calibrated in inches: converted, with a warning", 0, "is calibrated in inches",
+                "--input", inputImage("inches.tif", inches)));
+        t.add(row("PSF that resamples to one plane", 2, "has a single plane",
+                "--psf", input("psf-thin.tif", psf(9, 9, 3, new VoxelSize(0.1, 0.1, 0.05), d -> { }))));
+        // hyperstacks on the command line (cli.PerChannel through imagej.ChannelRunner)
+        ij.ImagePlus h = ij.IJ.createImage("h", "32-bit ramp", 32, 32, 2, 12, 2);
+        org.stackwright.volume.ImagePlusAdapter.setCalibration(h, VOXEL);
+        String hyper = inputImage("hyper.tif", h);
+        t.add(row("hyperstack: each channel and time point in turn, values per channel", 0, "channel 2, time 2: ",
+                "--input", hyper, "--offset", "0", "--na", "1.2,1.2", "--wavelength", "520,610",
+                "--immersion-index", "1.33"));
+        t.add(row("per-channel list of the wrong length", 2, "offset = '0,0,0' gives 3 values; give one value, or one"
+                + " per channel (2)", "--input", hyper, "--offset", "0,0,0"));
     }
 
     /**

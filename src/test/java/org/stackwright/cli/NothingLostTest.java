@@ -177,13 +177,13 @@ class NothingLostTest {
         files.tiff("in/a1.tif", 4, 4, 1, 1);
         files.tiff("in/a2.tif", 4, 4, 1, 2);
         files.tiff("in/b1.tif", 4, 4, 1, 3);
-        assertEquals(Main.OK, scale("--input", in + "/a*.tif", "--output", outDir.toString()), err());
+        assertEquals(Main.OK, scale("--input", "glob:" + in + "/a*.tif", "--output", outDir.toString()), err());
         assertTrue(err().contains("batch finished: 2 of 2 files done, 0 failed"), err());
         assertFalse(Files.exists(outDir.resolve("b1-test-scale.tif")));
-        assertEquals(Main.FAILED, scale("--input", in + "/a*.tif", "--output", outDir.toString()));
+        assertEquals(Main.FAILED, scale("--input", "glob:" + in + "/a*.tif", "--output", outDir.toString()));
         assertTrue(err().contains("batch finished: 0 of 2 files done, 2 failed"), err());
         assertTrue(err().contains("a1-test-scale.tif exists"), err());
-        assertEquals(Main.OK, scale("--input", in + "/a*.tif", "--output", outDir.toString(), "--overwrite"), err());
+        assertEquals(Main.OK, scale("--input", "glob:" + in + "/a*.tif", "--output", outDir.toString(), "--overwrite"), err());
     }
 
     private static byte[] readAll(Path p) {

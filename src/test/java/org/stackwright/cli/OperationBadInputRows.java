@@ -118,10 +118,14 @@ final class OperationBadInputRows {
                 res, "--input", data, "--estimate", small, "--psf", good, "--output", out));
         t.add(cli("residuals NaN in the estimate", 2, "estimate: 1 of 1280 pixels are NaN or infinite; allowed: finite values only",
                 res, "--input", data, "--estimate", dataNan, "--psf", good, "--output", out));
-        t.add(cli("residuals NaN in the data: untrusted, residual 0", 0, "input: the 1 untrusted pixels are given the prediction (residual 0)",
+        t.add(cli("residuals NaN in the data: untrusted, residual 0", 0, "input: the 1 NaN or infinite pixels carry no"
+                + " data; they are left out of chi^2, the histogram and the verdict, and get residual 0",
                 res, "--input", dataNan, "--estimate", data, "--psf", good, "--output", x.path("res-nan.tif").toString()));
         t.add(cli("residuals data all NaN", 2, "input: every one of the 1280 pixels is NaN or infinite",
                 res, "--input", allNan, "--estimate", data, "--psf", good, "--output", out));
+        t.add(cli("residuals boundary not a choice", 2, "boundary = 'wrap' is not allowed; choose one of exclude,"
+                + " mirror, zero", res, "--input", data, "--estimate", data, "--psf", good, "--boundary", "wrap",
+                "--output", out));
 
         // --- measure-psf: the value rules of PsfChecks (a bead image may be off-centre, even-sized) ---
         t.add(cli("measure-psf all zeros", 2, "input has no positive value", "measure-psf", "--input", zeros));
@@ -163,6 +167,11 @@ final class OperationBadInputRows {
                 "seam-mask", "--grid", "2x2", "--tile", "8x8", "--overlap", "8", "--output", out));
         t.add(cli("seam-mask grid with a 0", 2, "grid = '0x2': each size must be from 1 to 100000", "seam-mask", "--grid", "0x2", "--tile", "8x8", "--output", out));
         t.add(cli("seam-mask detect without input", 2, "input is required with detect", "seam-mask", "--detect", "--output", out));
+        t.add(cli("seam-mask shading without level", 2, "shading needs level: add --level", "seam-mask", "--grid",
+                "2x2", "--tile", "4x4", "--input", small, "--shading", "--output", out));
+        t.add(cli("seam-mask flat-field without shading", 2, "flat-field needs shading: add --level --shading",
+                "seam-mask", "--grid", "2x2", "--tile", "4x4", "--input", small, "--level", "--flat-field", x.path("op-flat.tif").toString(),
+                "--output", out));
 
         // --- psf ---
         String[] optics = {"psf", "--model", "widefield", "--pixel", "0.1", "--step", "0.3", "--output", out};
@@ -182,8 +191,8 @@ final class OperationBadInputRows {
 
         // --- hyperstacks: the command line takes one channel and time point; ImageJ runs each channel in turn ---
         String channels2 = x.path("channels2.tif").toString();
-        t.add(cli("measure-psf hyperstack with 2 channels", 2, "input: image 'channels2' has 2 channel(s) and 1 time"
-                + " point(s); allowed: one channel and one time point", "measure-psf", "--input", channels2));
+        t.add(cli("measure-psf hyperstack with 2 channels: each channel in turn", 0, "channel 2: the image has no spatial"
+                + " calibration", "measure-psf", "--input", channels2));
         t.add(cli("compare reference with 2 channels", 2, "reference: image 'channels2' has 2 channel(s)",
                 "compare", "--reference", channels2, "--input", small));
         t.add(cli("residuals PSF with 2 channels", 2, "psf: image 'channels2' has 2 channel(s)",

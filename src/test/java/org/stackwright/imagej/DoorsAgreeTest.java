@@ -72,13 +72,27 @@ class DoorsAgreeTest {
                         "offset", "100"), ordered("input", "demo-cells.tif", "psf", "demo-psf.tif"), List.of("output")),
                 new Case("deconvolve", "Deconvolve Stack...", ordered("iterations", "3", "offset", "100", "fft", "java"),
                         ordered("input", "demo-cells.tif", "psf", "demo-psf.tif"), List.of("output")),
+                // the run's own residuals (a ticked output in the macro, a declared output in SciJava)
+                new Case("deconvolve", "Deconvolve Stack...", ordered("method", "richardson-lucy", "iterations", "3",
+                        "offset", "100", "read-noise", "2", "fft", "java"), ordered("input", "demo-cells.tif", "psf",
+                        "demo-psf.tif"), List.of("output", "residuals")),
+                new Case("residuals", "Residual View...", ordered("offset", "100", "background", "10", "likelihood",
+                        "poisson-gaussian", "read-noise", "2", "fft", "java"), ordered("input", "demo-cells.tif",
+                        "estimate", "demo-cells-truth.tif", "psf", "demo-psf.tif"), List.of("output")),
                 new Case("inpaint", "Fill Masked Pixels...", ordered("method", "harmonic"),
                         ordered("input", "demo-tiles.tif", "mask", "demo-tiles-damage.tif"), List.of("output")),
                 new Case("find-defects", "Find Defective Pixels...", ordered(), ordered("input", "demo-tiles.tif"),
                         List.of("output")),
                 new Case("interval-profile", "Credible Interval Profile...", ordered("line", "5,5,60,40", "plane", "3"),
                         ordered("mean", "demo-cells.tif", "lower", "demo-cells.tif", "upper", "demo-cells.tif"),
-                        List.of("output")));
+                        List.of("output")),
+                new Case("seam-mask", "Tile Seam Mask...", ordered("grid", "3x4", "tile", "128x128", "level", "true",
+                        "shading", "true", "offset", "100"), ordered("input", "demo-tiles.tif"),
+                        List.of("output", "levelled-output", "flat-field")));
+    }
+
+    private static boolean isFlag(Operation op, String key) {
+        return op.params().stream().anyMatch(p -> p.key().equals(key) && p.kind() == Param.Kind.FLAG);
     }
 
     private static Map<String, String> ordered(String... kv) {
@@ -118,7 +132,8 @@ class DoorsAgreeTest {
         // 1. macro door
         StringBuilder macro = new StringBuilder("setBatchMode(true);\n");
         StringBuilder options = new StringBuilder();
-        c.settings().forEach((k, v) -> options.append(k).append('=').append(MacroOptions.quote(v)).append(' '));
+        // a ticked checkbox is its key alone in a macro
+        c.settings().forEach((k, v) -> options.append(isFlag(op, k) ? k : k + '=' + MacroOptions.quote(v)).append(' '));
         String base = op.name();
         for (Map.Entry<String, String> in : c.inputs().entrySet()) {
             macro.append("open('").append(images.resolve(in.getValue())).append("');\n");

@@ -9,6 +9,7 @@ import java.nio.file.Path;
 
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
+import org.stackwright.testing.CommandLine;
 
 /**
  * The residual view on the command line as a first user meets it: its help names a PNG for the summary, the
@@ -37,7 +38,7 @@ class CommandLineResidualsTest {
 
     @Test
     void helpNamesAPngForTheSummary() {
-        String[] r = InspectOperationsTest.run("residuals", "--help");
+        String[] r = CommandLine.run("residuals", "--help");
         assertEquals("0", r[0]);
         assertTrue(r[1].contains("--summary=FILE.png"), r[1]);
         assertTrue(r[1].contains("--output=FILE.tif"), r[1]);
@@ -47,7 +48,7 @@ class CommandLineResidualsTest {
     @Test
     void verdictWithoutAnyOutputFileAndTheOldNoiseKey() {
         String[] args = scene();
-        String[] r = InspectOperationsTest.run(plus(args, "--noise", "poisson-gaussian"));
+        String[] r = CommandLine.run(plus(args, "--noise", "poisson-gaussian"));
         assertEquals("0", r[0], r[2]);
         assertTrue(r[1].contains("verdict: fits"), r[1]);
         assertTrue(r[2].contains("note: '--noise' is the old name of '--likelihood'"), r[2]);
@@ -56,7 +57,7 @@ class CommandLineResidualsTest {
         } catch (java.io.IOException e) {
             throw new AssertionError(e);
         }
-        String[] both = InspectOperationsTest.run(plus(args, "--noise", "poisson", "--likelihood", "poisson"));
+        String[] both = CommandLine.run(plus(args, "--noise", "poisson", "--likelihood", "poisson"));
         assertEquals("2", both[0], both[2]);
         assertTrue(both[2].contains("give only --likelihood"), both[2]);
     }

@@ -3,10 +3,7 @@ package org.stackwright.inspect;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import java.io.ByteArrayOutputStream;
 import java.io.IOException;
-import java.io.PrintStream;
-import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.List;
@@ -19,7 +16,6 @@ import ij.process.ImageProcessor;
 
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
-import org.stackwright.cli.Main;
 import org.stackwright.registry.Operations;
 import org.stackwright.parallel.Workers;
 import org.stackwright.psf.GaussianPsf;
@@ -28,6 +24,7 @@ import org.stackwright.simulate.Specimen;
 import org.stackwright.volume.TiffFiles;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
+import org.stackwright.testing.CommandLine;
 
 /** The residuals and compare operations through the command line, and the plots and summary picture headless. */
 class InspectOperationsTest {
@@ -37,14 +34,6 @@ class InspectOperationsTest {
     @TempDir
     Path dir;
 
-    static String[] run(String... args) {
-        ByteArrayOutputStream out = new ByteArrayOutputStream();
-        ByteArrayOutputStream err = new ByteArrayOutputStream();
-        int rc = Main.run(args, new PrintStream(out, true, StandardCharsets.UTF_8),
-                new PrintStream(err, true, StandardCharsets.UTF_8));
-        return new String[] {Integer.toString(rc), out.toString(StandardCharsets.UTF_8),
-            err.toString(StandardCharsets.UTF_8)};
-    }
 
     /** Writes a small camera acquisition (offset 100, read noise 2) of a known object, its object and PSF. */
     void writeScene() {
@@ -72,7 +61,7 @@ class InspectOperationsTest {
     @Test
     void residualsFromTheCommandLine() throws IOException {
         writeScene();
-        String[] r = run("residuals", "--input", dir.resolve("data.tif").toString(), "--estimate",
+        String[] r = CommandLine.run("residuals", "--input", dir.resolve("data.tif").toString(), "--estimate",
                 dir.resolve("est.tif").toString(), "--psf", dir.resolve("psf.tif").toString(), "--offset", "100",
                 "--background", "10", "--likelihood", "poisson-gaussian", "--gain", "1", "--read-noise", "2", "--output",
                 dir.resolve("res.tif").toString(), "--summary", dir.resolve("summary.png").toString(), "--record",
@@ -97,12 +86,12 @@ class InspectOperationsTest {
     @Test
     void residualsRefuseBadSettingsNamingThem() {
         writeScene();
-        String[] r = run("residuals", "--input", dir.resolve("data.tif").toString(), "--estimate",
+        String[] r = CommandLine.run("residuals", "--input", dir.resolve("data.tif").toString(), "--estimate",
                 dir.resolve("est.tif").toString(), "--psf", dir.resolve("psf.tif").toString(), "--likelihood", "gaussian",
                 "--output", dir.resolve("res.tif").toString());
         assertEquals("2", r[0]);
         assertTrue(r[2].contains("read-noise"), r[2]);
-        r = run("residuals", "--input", dir.resolve("data.tif").toString(), "--estimate",
+        r = CommandLine.run("residuals", "--input", dir.resolve("data.tif").toString(), "--estimate",
                 dir.resolve("psf.tif").toString(), "--psf", dir.resolve("psf.tif").toString(), "--output",
                 dir.resolve("res.tif").toString());
         assertEquals("2", r[0]);
@@ -117,7 +106,7 @@ class InspectOperationsTest {
         Volume a = Specimen.draw(40, 36, 1, VOXEL, Specimen.Contents.cellField(), 8);
         TiffFiles.write(a, ref, true);
         TiffFiles.write(a, img, true);
-        String[] r = run("compare", "--reference", ref.toString(), "--input", img.toString(), "--data-range", "500");
+        String[] r = CommandLine.run("compare", "--reference", ref.toString(), "--input", img.toString(), "--data-range", "500");
         assertEquals("0", r[0], r[2]);
         assertTrue(r[1].contains("SSIM: 1.000000"), r[1]);
         assertTrue(r[1].contains("data range: 500"), r[1]);

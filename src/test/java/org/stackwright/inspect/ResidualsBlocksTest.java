@@ -7,7 +7,6 @@ import java.util.Locale;
 import java.util.Map;
 import java.util.SplittableRandom;
 
-import org.junit.jupiter.api.Test;
 import org.stackwright.op.Result;
 import org.stackwright.op.RunContext;
 import org.stackwright.op.Values;
@@ -16,11 +15,16 @@ import org.stackwright.volume.ImagePlusAdapter;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
 
-/** The residual view in blocks against the whole stack: the normalised residual stack and chi^2 per slice. */
+/**
+ * The residual view in blocks against the whole stack: the normalised residual stack, chi^2 over the trusted region,
+ * the whole image, the border band and per slice, and (the crop being the whole of this small stack) the verdict,
+ * for the default boundary exclude and for zero.
+ */
 class ResidualsBlocksTest {
 
-    @Test
-    void residualStackAndChiSquareAgreeWithTheWholeStack() {
+    @org.junit.jupiter.params.ParameterizedTest
+    @org.junit.jupiter.params.provider.ValueSource(strings = {"exclude", "zero"})
+    void residualStackAndChiSquareAgreeWithTheWholeStack(String boundary) {
         VoxelSize vx = new VoxelSize(0.1, 0.1, 0.25);
         int w = 70;
         int h = 64;
@@ -43,8 +47,8 @@ class ResidualsBlocksTest {
         ResidualsOperation op = new ResidualsOperation();
         Result[] res = new Result[2];
         for (int k = 0; k < 2; k++) {
-            Values v = Values.parse("residuals", op.params(), k == 0 ? Map.of("offset", "100")
-                    : Map.of("offset", "100", "block-size", "30x30x6"));
+            Values v = Values.parse("residuals", op.params(), k == 0 ? Map.of("offset", "100", "boundary", boundary)
+                    : Map.of("offset", "100", "boundary", boundary, "block-size", "30x30x6"));
             v.withImage("input", ImagePlusAdapter.toImagePlus(data, "data"));
             v.withImage("estimate", ImagePlusAdapter.toImagePlus(estimate, "estimate"));
             v.withImage("psf", ImagePlusAdapter.toImagePlus(psf, "psf"));
@@ -65,6 +69,13 @@ class ResidualsBlocksTest {
         for (int z = 0; z < sa.length; z++) {
             assertEquals(sa[z], sb[z], 1e-5 * sa[z], "slice " + z);
         }
+        for (String key : new String[] {"chi2_per_pixel", "chi2_per_pixel_whole_image", "chi2_per_pixel_border_band"}) {
+            double ca = (double) res[0].record().get(key);
+            double cb = (double) res[1].record().get(key);
+            assertEquals(ca, cb, 1e-5 * ca, key);
+        }
+        assertEquals(res[0].record().get("trusted_voxels"), res[1].record().get("trusted_voxels"));
+        assertEquals(res[0].record().get("verdict"), res[1].record().get("verdict"));
         assertTrue(res[1].record().get("verdict_from").toString().startsWith("central crop"));
     }
 }

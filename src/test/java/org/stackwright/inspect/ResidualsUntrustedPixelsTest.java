@@ -14,9 +14,8 @@ import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
 
 /**
- * NaN data pixels in {@code residuals} are untrusted: they get the prediction, so by the definition of the
- * normalised residual r = (y - mu) / sd their residual is 0 (up to float rounding of y), and every other voxel's
- * residual is exactly what it is without them (the prediction does not depend on the data).
+ * NaN data pixels in {@code residuals} are untrusted: they carry residual 0 and are left out of chi^2, and every
+ * other voxel's residual is exactly what it is without them (the prediction does not depend on the data).
  */
 class ResidualsUntrustedPixelsTest {
 
@@ -27,7 +26,8 @@ class ResidualsUntrustedPixelsTest {
         Volume psf = GaussianPsf.sampled(0.11, 0.45, voxel, 7, 7, 5);
         ResidualModel model = new ResidualModel(100, 10, new PoissonGaussianNoise(1, 2));
         try (Workers w = new Workers(1)) {
-            Volume mean = ForwardBlur.blur(truth, psf, w);
+            Volume unit = ResidualMaps.normalise(psf);
+            Volume mean = ForwardBlur.blur(truth, unit, w);
             float[] m = mean.data();
             for (int i = 0; i < m.length; i++) {
                 m[i] = Math.max(0, m[i]) + 10;
@@ -40,20 +40,26 @@ class ResidualsUntrustedPixelsTest {
             }
             InputChecks.Scan scan = InputChecks.scan(damaged);
             assertEquals(bad.length, scan.nonFinite());
-            Volume unit = ResidualMaps.normalise(psf);
-            Volume filled = ResidualsOperation.predictionWhereUntrusted(damaged, truth, unit, model,
-                    scan.nonFiniteMask(), w, org.stackwright.fft.FftEngines.standard());
-            ResidualMaps withFill = ResidualMaps.compute(filled, truth, unit, model, w);
-            ResidualMaps whole = ResidualMaps.compute(data, truth, unit, model, w);
-            float[] a = withFill.normalised().data();
+            boolean[] untrusted = new boolean[data.size()];
+            for (int i : bad) {
+                untrusted[i] = true;
+            }
+            Volume hx = ForwardBlur.blur(truth, unit, w);
+            ResidualMaps withHoles = ResidualMaps.of(damaged, hx, model, untrusted, w);
+            ResidualMaps whole = ResidualMaps.of(data, hx, model, null, w);
+            float[] a = withHoles.normalised().data();
             float[] b = whole.normalised().data();
+            double sum = 0;
             for (int i = 0; i < a.length; i++) {
-                if (scan.nonFiniteMask()[i] != 0) {
-                    assertTrue(Math.abs(a[i]) < 1e-4, "residual at untrusted voxel " + i + ": " + a[i]);
+                if (untrusted[i]) {
+                    assertEquals(0f, a[i], "residual at untrusted voxel " + i);
                 } else {
                     assertEquals(Float.floatToRawIntBits(b[i]), Float.floatToRawIntBits(a[i]), "voxel " + i);
+                    sum += (double) b[i] * b[i];
                 }
             }
+            assertEquals(data.size() - bad.length, withHoles.trusted());
+            assertEquals(sum / withHoles.trusted(), withHoles.chi2PerVoxel(), 1e-12);
             assertTrue(data.countNonFinite() == 0 && damaged.countNonFinite() == bad.length, "inputs not modified");
         }
     }

@@ -53,6 +53,17 @@ class PsfOperationsTest {
     }
 
     @Test
+    void aOnePlanePsfSaysItsAxialWidthIsNotMeasured() {
+        // "FWHM z NaN um" was printed for --size 13x13x1
+        String[] r = run("psf", "--model", "gaussian", "--na", "1.2", "--wavelength", "520", "--immersion-index",
+                "1.33", "--pixel", "0.1", "--step", "0.3", "--size", "13x13x1", "--output",
+                dir.resolve("plane.tif").toString());
+        assertEquals("0", r[0], r[2]);
+        assertTrue(r[1].contains("FWHM x 0.2252 um, y 0.2252 um, z not measured"), r[1]);
+        assertTrue(!r[1].contains("NaN"), r[1]);
+    }
+
+    @Test
     void warnsWhenTheGridUndersamplesTheOptics() {
         String[] r = run("psf", "--model", "widefield", "--na", "1.4", "--wavelength", "520", "--immersion-index",
                 "1.518", "--pixel", "0.15", "--step", "0.2", "--size", "15x15x9", "--output",

@@ -20,8 +20,10 @@ import org.stackwright.volume.VoxelSize;
  *      org.stackwright.repair.RepairBenchmark [threads]
  * </pre>
  * Cases: 2048 x 2048 with 1 % scattered defective pixels (goal <= 0.5 s) and with 5-px seams of a 4 x 4 grid
- * (goal <= 1 s); 64 x 512 x 512 with seams of a 4 x 4 grid, per slice and as one volume. Times are the best of 5
- * runs after 2 warm-up runs. The floor for any fill is one pass over the image (the copy of the trusted pixels),
+ * (goal <= 1 s); 64 x 512 x 512 with seams of a 4 x 4 grid, per slice and as one volume; a 256 x 256 hole in
+ * 2048 x 2048 (and 128 x 128 in 512 x 512), harmonic and biharmonic, by the automatic solver choice (multigrid for
+ * such holes) and, once, by conjugate gradients with the diagonal preconditioner. Times are the best of 5
+ * runs after 2 warm-up runs (the diagonal-CG hole fills: one run). The floor for any fill is one pass over the image (the copy of the trusted pixels),
  * printed as "copy". When /usr/bin/python3 with scikit-image exists, skimage.restoration.inpaint_biharmonic is
  * timed on the same 2D cases (tools/reference/bench_biharmonic.py) and compared with our biharmonic fill.
  */
@@ -51,6 +53,19 @@ public final class RepairBenchmark {
                     Inpainting.Mode.SLICES, w);
             double[] bm = run("2048x2048, 5-px seams 4x4, biharmonic", img2d, seams2d, Inpainting.Method.BIHARMONIC,
                     Inpainting.Mode.SLICES, w);
+            Volume hole2048 = holeMask(2048, 2048, 256);
+            Volume img512 = smooth(512, 512, 1, 4);
+            Volume hole512 = holeMask(512, 512, 128);
+            for (Inpainting.Method m : new Inpainting.Method[] {Inpainting.Method.HARMONIC, Inpainting.Method.BIHARMONIC}) {
+                double mg = run("2048x2048, 256x256 hole, " + m.word() + ", multigrid (auto)", img2d, hole2048, m,
+                        Inpainting.Mode.SLICES, w)[0];
+                double cg = once("2048x2048, 256x256 hole, " + m.word() + ", diagonal CG", img2d, hole2048, m, w);
+                System.out.printf(Locale.ROOT, "  diagonal CG / multigrid: %.1fx%n", cg / mg);
+                double mg5 = run("512x512, 128x128 hole, " + m.word() + ", multigrid (auto)", img512, hole512, m,
+                        Inpainting.Mode.SLICES, w)[0];
+                double cg5 = once("512x512, 128x128 hole, " + m.word() + ", diagonal CG", img512, hole512, m, w);
+                System.out.printf(Locale.ROOT, "  diagonal CG / multigrid: %.1fx%n", cg5 / mg5);
+            }
             run("64x512x512, 5-px seams 4x4, harmonic per slice", img3d, seams3d, Inpainting.Method.HARMONIC,
                     Inpainting.Mode.SLICES, w);
             run("64x512x512, 5-px seams 4x4, harmonic volume (z step 3x)", img3d, seams3d, Inpainting.Method.HARMONIC,
@@ -74,6 +89,30 @@ public final class RepairBenchmark {
         System.out.printf(Locale.ROOT, "%-60s %8.3f s  (%d pixels filled, %d iterations, converged %s)%n", what, best,
                 last[0].filledCount(), last[0].iterations(), last[0].converged());
         return new double[] {best, last[0].iterations()};
+    }
+
+    /** One timed run with the diagonal preconditioner; @return seconds */
+    static double once(String what, Volume img, Volume mask, Inpainting.Method m, Workers w) {
+        Inpainting.Settings d = Inpainting.Settings.of(m, Inpainting.Mode.SLICES);
+        Inpainting.Settings s = new Inpainting.Settings(m, Inpainting.Mode.SLICES, d.tolerance(), d.maxIterations(),
+                Inpainting.Solver.CONJUGATE_GRADIENT);
+        long t0 = System.nanoTime();
+        Inpainting.Outcome o = Inpainting.run(img, mask, s, w);
+        double t = (System.nanoTime() - t0) * 1e-9;
+        System.out.printf(Locale.ROOT, "%-60s %8.3f s  (%d pixels filled, %d iterations, converged %s; one run)%n",
+                what, t, o.filledCount(), o.iterations(), o.converged());
+        return t;
+    }
+
+    /** A centred square hole of side s. */
+    static Volume holeMask(int w, int h, int s) {
+        float[] m = new float[w * h];
+        for (int y = (h - s) / 2; y < (h + s) / 2; y++) {
+            for (int x = (w - s) / 2; x < (w + s) / 2; x++) {
+                m[y * w + x] = 255;
+            }
+        }
+        return new Volume(w, h, 1, m, VoxelSize.UNIT);
     }
 
     static double time(Runnable r) {

@@ -8,8 +8,8 @@ import java.nio.file.Path;
 
 /**
  * Writes minimal one-plane little-endian TIFF files by hand (baseline TIFF 6.0: Adobe, "TIFF Revision 6.0", 1992,
- * section 2 and the SampleFormat tag of section 19), for kinds of file our own writer never makes: 64-bit float
- * and RGB.
+ * section 2 and the SampleFormat tag of section 19), for kinds of file our own writer never makes: 64-bit float,
+ * signed 16-bit and RGB.
  */
 public final class TinyTiff {
 
@@ -23,6 +23,15 @@ public final class TinyTiff {
             px.putDouble(d);
         }
         write(path, width, height, 1, 64, 3, 1, px.array());
+    }
+
+    /** A one-plane signed 16-bit grayscale TIFF (SampleFormat 2). */
+    public static void writeInt16(Path path, int width, int height, short[] pixels) throws IOException {
+        ByteBuffer px = ByteBuffer.allocate(pixels.length * 2).order(ByteOrder.LITTLE_ENDIAN);
+        for (short v : pixels) {
+            px.putShort(v);
+        }
+        write(path, width, height, 1, 16, 2, 1, px.array());
     }
 
     /** A one-plane 8-bit-per-channel RGB TIFF (rgb holds r, g, b per pixel). */

@@ -106,6 +106,70 @@ class TiffFilesTest {
     }
 
     @Test
+    void signedSixteenBitIsReadWithItsTrueValues() throws IOException {
+        // SampleFormat 2: ImageJ stores the values shifted by +32768 and notes the shift as a calibration function
+        Volume v = TiffFiles.read(reference("signed16.tif"), "--input");
+        assertEquals("16x12x3", v.shape());
+        for (int z = 0; z < 3; z++) {
+            for (int y = 0; y < 12; y++) {
+                for (int x = 0; x < 16; x++) {
+                    assertEquals((16 * 12 * z + 16 * y + x) % 251 - 125, v.get(x, y, z), 0, "at " + x + "," + y + "," + z);
+                }
+            }
+        }
+    }
+
+    @Test
+    void omeTiffGetsItsVoxelSizeAndChannelsFromTheOmeXml() throws IOException {
+        // both plane orders of the OME data model: channel by channel (XYZCT) and interleaved (XYCZT)
+        for (String name : new String[] {"czyx.ome.tif", "zcyx.ome.tif"}) {
+            ij.ImagePlus imp = TiffFiles.open(reference(name), "--input");
+            assertEquals(2, imp.getNChannels(), name);
+            assertEquals(3, imp.getNSlices(), name);
+            assertEquals(1, imp.getNFrames(), name);
+            VoxelSize vs = ImagePlusAdapter.voxelSize(imp);
+            assertEquals(0.065, vs.x(), 1e-9, name);
+            assertEquals(0.065, vs.y(), 1e-9, name + " (65 nm)");
+            assertEquals(0.2, vs.z(), 1e-9, name);
+            for (int c = 1; c <= 2; c++) {
+                Volume v = ImagePlusAdapter.toVolume(imp, c, 1);
+                for (int z = 0; z < 3; z++) {
+                    assertEquals(100 * (c - 1) + 10 * z + (5 + 7) % 7, v.get(5, 7, z), 0, name + " c" + c + " z" + z);
+                }
+            }
+        }
+    }
+
+    @Test
+    void aStackWithoutAZStepSaysSo() throws IOException {
+        // the pixel size comes from the resolution tags; the z step is nowhere in a plain TIFF
+        ij.ImagePlus imp = TiffFiles.open(reference("no-z-step.tif"), "--input");
+        assertEquals(0.1, ImagePlusAdapter.voxelSize(imp).x(), 1e-9);
+        String note = ImagePlusAdapter.calibrationNote(imp);
+        assertTrue(note != null && note.contains("records no z step"), note);
+        // our own files and OME-TIFFs record it
+        assertEquals(null, ImagePlusAdapter.calibrationNote(TiffFiles.open(reference("czyx.ome.tif"), "--input")));
+        Path own = dir.resolve("own.tif");
+        TiffFiles.write(sample(), own, false);
+        assertEquals(null, ImagePlusAdapter.calibrationNote(TiffFiles.open(own, "--input")));
+    }
+
+    @Test
+    void omeXmlIsParsedWithoutExternalEntities() {
+        // a DOCTYPE (the way to external entities and entity expansion) makes the parser refuse the document
+        String hostile = "<?xml version=\"1.0\"?><!DOCTYPE OME [<!ENTITY x SYSTEM \"file:///etc/passwd\">]>"
+                + "<OME><Image><Pixels PhysicalSizeX=\"&x;\" SizeC=\"2\"/></Image></OME>";
+        assertEquals(null, OmeMetadata.parse(hostile));
+        OmeMetadata.Pixels p = OmeMetadata.parse("<OME xmlns=\"http://www.openmicroscopy.org/Schemas/OME/2016-06\">"
+                + "<Image><Pixels DimensionOrder=\"XYZCT\" SizeC=\"2\" SizeZ=\"4\" PhysicalSizeX=\"0.1\""
+                + " PhysicalSizeZ=\"250\" PhysicalSizeZUnit=\"nm\"/></Image></OME>");
+        assertEquals(0.1, p.sizeX(), 1e-12);
+        assertEquals(0.25, p.sizeZ(), 1e-12);
+        assertEquals(2, p.channels());
+        assertEquals(4, p.slices());
+    }
+
+    @Test
     void writeRoundTripsAndLeavesNoTemporaryFile() throws IOException {
         Volume v = sample();
         Path out = dir.resolve("out.tif");

@@ -1,0 +1,171 @@
+package org.stackwright.repair;
+
+import java.util.ArrayList;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+
+import org.stackwright.op.Result;
+import org.stackwright.op.RunContext;
+import org.stackwright.volume.Volume;
+
+/**
+ * What {@code seam-mask} tells the user about seams: the seams found and the tiling they imply, the lines that are
+ * not seams, and whether a given tile layout matches the image.
+ */
+final class SeamReport {
+
+    /** a layout matches when at least this share of its seams is seen in the image */
+    static final double MATCH_SHARE = 0.8;
+
+    private SeamReport() {
+    }
+
+    /** Records and reports a detection. */
+    static void detected(SeamDetector.Found f, int w, int h, Result r, RunContext ctx) {
+        SeamDetector.Tiling t = f.tiling();
+        r.record("vertical_seams", describe(f.columns()));
+        r.record("horizontal_seams", describe(f.rows()));
+        r.record("regular", f.regular());
+        Map<String, Object> tiling = new LinkedHashMap<>();
+        tiling.put("step_x", t.stepX());
+        tiling.put("step_y", t.stepY());
+        tiling.put("origin_x", t.stepX() > 0 && t.phaseX().length > 0 && t.phaseX()[0] >= 0
+                ? Math.floorMod(t.phaseX()[0], t.stepX()) : 0);
+        tiling.put("origin_y", t.stepY() > 0 ? Math.floorMod(t.phaseY(), t.stepY()) : 0);
+        String order = t.overlapX() > 0 ? "snake" : "row-by-row or snake without overlap";
+        tiling.put("order", order);
+        int overlap = t.overlapX() > 0 ? t.overlapX() : Math.max(t.blendX(), t.blendY());
+        tiling.put("overlap", overlap > 0 ? overlap : null);
+        tiling.put("tile_width", t.stepX() > 0 && overlap > 0 ? t.stepX() + overlap : t.stepX());
+        tiling.put("tile_height", t.stepY() > 0 && overlap > 0 ? t.stepY() + overlap : t.stepY());
+        r.record("tiling", tiling);
+        r.record("lines_not_seams", Map.of("vertical", lines(f.columnLines()), "horizontal", lines(f.rowLines())));
+        int[] cx = SeamDetector.centres(f.columns());
+        int[] cy = SeamDetector.centres(f.rows());
+        r.line(String.format(Locale.ROOT, "found %d vertical seams at x = %s and %d horizontal seams at y = %s",
+                f.columns().size(), describeShort(f.columns(), h), f.rows().size(), describeShort(f.rows(), w)));
+        if (t.stepX() > 0 || t.stepY() > 0) {
+            r.line(String.format(Locale.ROOT, "tile step %d x %d px (seams repeat every %d px along x, %d px along y), "
+                    + "origin (%s, %s); %s%s", t.stepX(), t.stepY(), t.stepX(), t.stepY(), tiling.get("origin_x"),
+                    tiling.get("origin_y"), order, overlap > 0 ? String.format(Locale.ROOT, ", overlap %d px: tiles of "
+                    + "%s x %s px", overlap, tiling.get("tile_width"), tiling.get("tile_height"))
+                    : "; an overlap covered by the later tile is not visible: the tiles may be larger than the step"));
+        }
+        if (!f.columnLines().isEmpty() || !f.rowLines().isEmpty()) {
+            r.line(String.format(Locale.ROOT, "not seams (they do not repeat with the tile step): vertical lines at x = "
+                    + "%s, horizontal lines at y = %s; check them with find-defects (defective columns and rows)",
+                    positions(f.columnLines()), positions(f.rowLines())));
+        }
+        if (!f.regular()) {
+            ctx.warn("no tile period was found along " + (t.stepX() == 0 && !f.columns().isEmpty() ? "x" : "y")
+                    + ": the seams reported there are the strongest edges; check the mask against the tile layout");
+        }
+        if (cx.length == 0 && cy.length == 0) {
+            r.line("no seams found");
+        }
+    }
+
+    /** Checks a layout against the image: is there seam evidence within 2 px of each of the layout's seams? */
+    static void checkLayout(Volume img, TileLayout layout, double threshold, int stepWidth, Result r, RunContext ctx) {
+        double tooth = threshold / 2;
+        int seen = 0;
+        int total = 0;
+        SeamEvidence ey = SeamEvidence.of(img, false, 0, img.width());
+        for (int y : layout.rowSeams()) {
+            total++;
+            seen += near(ey, y) > tooth ? 1 : 0;
+        }
+        int step = layout.tileHeight() - layout.overlapY();
+        for (int row = 0; row < layout.rows(); row++) {
+            int y0 = row * step + 3;
+            int y1 = Math.min(img.height(), row == layout.rows() - 1 ? img.height() : (row + 1) * step) - 3;
+            if (y1 <= y0 || layout.columns() < 2) {
+                continue;
+            }
+            SeamEvidence ex = SeamEvidence.of(img, true, y0, y1);
+            for (int x : layout.columnSeams(row)) {
+                total++;
+                seen += near(ex, x) > tooth ? 1 : 0;
+            }
+        }
+        boolean matches = total == 0 || seen >= MATCH_SHARE * total;
+        Map<String, Object> check = new LinkedHashMap<>();
+        check.put("layout_seams", total);
+        check.put("seen_within_2_px", seen);
+        check.put("matches", matches);
+        SeamDetector.Found f = SeamDetector.detect(img, threshold, stepWidth);
+        check.put("detected_step_x", f.tiling().stepX());
+        check.put("detected_step_y", f.tiling().stepY());
+        r.record("layout_check", check);
+        int lx = layout.tileWidth() - layout.overlapX();
+        int ly = layout.tileHeight() - layout.overlapY();
+        if (matches) {
+            r.line(String.format(Locale.ROOT, "the layout matches the image: %d of %d seams seen within 2 px", seen,
+                    total));
+        } else {
+            ctx.warn(String.format(Locale.ROOT, "the layout does not match the image: %d of %d of its seams seen within"
+                    + " 2 px, and the image's seams repeat every %d px along x and %d px along y (the layout's step is "
+                    + "%d x %d); check grid, tile and overlap, or use detect", seen, total, f.tiling().stepX(),
+                    f.tiling().stepY(), lx, ly));
+        }
+    }
+
+    private static double near(SeamEvidence e, int b) {
+        double m = 0;
+        for (int d = -2; d <= 2; d++) {
+            m = Math.max(m, e.strength(b + d));
+        }
+        return m;
+    }
+
+    private static List<Map<String, Object>> describe(List<SeamDetector.Band> bands) {
+        List<Map<String, Object>> out = new ArrayList<>();
+        for (SeamDetector.Band b : bands) {
+            Map<String, Object> m = new LinkedHashMap<>();
+            m.put("start", b.start());
+            m.put("end", b.end());
+            m.put("centre", b.centre());
+            m.put("from", b.from());
+            m.put("to", b.to());
+            m.put("looks", b.looks());
+            m.put("sign_test_z", b.strength());
+            out.add(m);
+        }
+        return out;
+    }
+
+    private static List<Map<String, Object>> lines(List<SeamDetector.Line> lines) {
+        List<Map<String, Object>> out = new ArrayList<>();
+        for (SeamDetector.Line l : lines) {
+            Map<String, Object> m = new LinkedHashMap<>();
+            m.put("position", l.position());
+            m.put("width", l.width());
+            m.put("sign_test_z", l.strength());
+            out.add(m);
+        }
+        return out;
+    }
+
+    private static String positions(List<SeamDetector.Line> lines) {
+        StringBuilder sb = new StringBuilder("[");
+        for (SeamDetector.Line l : lines) {
+            sb.append(sb.length() > 1 ? ", " : "").append(l.position());
+        }
+        return sb.append(']').toString();
+    }
+
+    private static String describeShort(List<SeamDetector.Band> bands, int lines) {
+        StringBuilder sb = new StringBuilder("[");
+        for (SeamDetector.Band b : bands) {
+            sb.append(sb.length() > 1 ? ", " : "").append(b.centre()).append(" (").append(b.start()).append("..")
+                    .append(b.end() - 1);
+            if (b.from() > 0 || b.to() < lines) {
+                sb.append(", lines ").append(b.from()).append("..").append(b.to() - 1);
+            }
+            sb.append(' ').append(String.join("+", b.looks())).append(')');
+        }
+        return sb.append(']').toString();
+    }
+}
