@@ -105,6 +105,8 @@ final class ResidualsBlocks implements BlockOperation {
         }
         psf(v, data.voxel(), data.depth(), ctx);
         model(v);
+        // the offset against the data, as in memory, judged on the verdict's central crop
+        InputChecks.checkOffset("input", data.read(centralCrop(data)), v.number("offset"), v.number("read-noise"), ctx);
         return new Globals(Map.of(), Map.of("voxel_x", data.voxel().x(), "voxel_y", data.voxel().y(), "voxel_z",
                 data.voxel().z(), "depth", (double) data.depth(), "width", (double) data.width(), "height",
                 (double) data.height()), Map.of());
@@ -231,10 +233,10 @@ final class ResidualsBlocks implements BlockOperation {
         double whole = ratio(s[2], s[3]);
         double band = ratio(s[4], s[5]);
         // the verdict's part: a central crop, predicted from the estimate around it (a halo of the PSF's reach)
-        int cw = Math.min(CROP, data.width());
-        int ch = Math.min(CROP, data.height());
-        int cd = Math.min(CROP_DEPTH, data.depth());
-        Box crop = new Box((data.width() - cw) / 2, (data.height() - ch) / 2, (data.depth() - cd) / 2, cw, ch, cd);
+        Box crop = centralCrop(data);
+        int cw = crop.w();
+        int ch = crop.h();
+        int cd = crop.d();
         int[] reach = {psf.width() / 2, psf.height() / 2, psf.depth() / 2};
         int x0 = Math.max(0, crop.x() - reach[0]);
         int y0 = Math.max(0, crop.y() - reach[1]);
@@ -284,6 +286,14 @@ final class ResidualsBlocks implements BlockOperation {
         r.line("verdict (from the central crop " + crop + "): " + report.verdict().code());
         r.line(report.verdict().text());
         return r;
+    }
+
+    /** @return the central part of up to CROP x CROP x CROP_DEPTH voxels the verdict is taken on */
+    private static Box centralCrop(PlaneSource data) {
+        int cw = Math.min(CROP, data.width());
+        int ch = Math.min(CROP, data.height());
+        int cd = Math.min(CROP_DEPTH, data.depth());
+        return new Box((data.width() - cw) / 2, (data.height() - ch) / 2, (data.depth() - cd) / 2, cw, ch, cd);
     }
 
     private static double ratio(double[] sum, double[] n) {

@@ -157,6 +157,10 @@ public final class OutputFiles {
     public static void moveIntoPlace(Path tmp, Path target, boolean overwrite) throws IOException {
         try {
             publish(tmp, target, overwrite);
+            // without overwrite a file is put in place as a hard link: its temporary name goes now
+            if (Files.isRegularFile(tmp, java.nio.file.LinkOption.NOFOLLOW_LINKS)) {
+                Files.delete(tmp);
+            }
         } finally {
             unregisterTemporary(tmp);
         }

@@ -250,6 +250,8 @@ class DeconvolveBadInputTest {
                 + " run in blocks", "--uncertainty", "sampling", "--block-size", "16x16x12"));
         t.add(row("depth-variant in blocks", 2, "depth-variant = on models the PSF over the whole depth and cannot run in"
                 + " blocks", concatenate(dv, "--sample-index", "1.33", "--block-size", "16x16x12")));
+        t.add(row("the run's own residuals in blocks", 2, "residuals and residuals-summary compare the whole stack",
+                "--residuals", out("own-residuals-blocks.tif"), "--block-size", "16x16x12"));
         t.add(row("blocks in an explicit size run", 0, "global settings for 4 blocks (2x2x1)", "--block-size", "16x16x12",
                 "--iterations", "3", "--stop", "fixed"));
         trustRows(t, good);

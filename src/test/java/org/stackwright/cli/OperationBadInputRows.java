@@ -94,6 +94,8 @@ final class OperationBadInputRows {
                 "find-defects", "--input", data, "--flat", x.path("double.tif").toString(), "--output", out));
         t.add(cli("find-defects --dark of another camera size", 2, "dark frames are 8x8 but input is 16x16",
                 "find-defects", "--input", data, "--dark", small, "--output", out));
+        t.add(cli("find-defects in blocks", 2, "block-size = '8x8x1' is not possible for find-defects",
+                "find-defects", "--input", data, "--block-size", "8x8x1", "--output", out));
 
         // --- residuals: the PSF through PsfChecks ---
         t.add(cli("residuals PSF all zeros", 2, "psf has no positive value",
