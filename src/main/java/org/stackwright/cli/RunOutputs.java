@@ -97,6 +97,17 @@ final class RunOutputs implements AutoCloseable {
      */
     void write(Map<String, ImagePlus> images, Map<String, Object> record, PrintStream err,
             java.util.function.BooleanSupplier cancelled) {
+        writeEach(op, targets, overwrite, images, record, err, cancelled);
+    }
+
+    /**
+     * Writes each output as {@link #write} does, to paths checked before (also by the block path,
+     * {@link ResultFiles}).
+     *
+     * @param targets output key to path
+     */
+    static void writeEach(Operation op, Map<String, Path> targets, boolean overwrite, Map<String, ImagePlus> images,
+            Map<String, Object> record, PrintStream err, java.util.function.BooleanSupplier cancelled) {
         List<Path> written = new ArrayList<>();
         for (Map.Entry<String, Path> e : targets.entrySet()) {
             if (cancelled.getAsBoolean()) {
