@@ -17,6 +17,7 @@ final class IterationLog {
     private final String method;
     private final double[] objective;
     private final double[] change;
+    private final double[] heldOut;
     private final long t0 = System.nanoTime();
     private int done;
     private String reason;
@@ -28,6 +29,7 @@ final class IterationLog {
         this.listener = listener;
         this.objective = new double[stopping.maxIterations()];
         this.change = new double[stopping.maxIterations()];
+        this.heldOut = new double[stopping.maxIterations()];
     }
 
     /** Checks for cancel before an iteration. */
@@ -38,16 +40,24 @@ final class IterationLog {
     /**
      * Records one iteration and decides whether to stop.
      *
+     * @param obj the objective
+     * @param meanFit mean data fit per trusted pixel of the estimate that entered the iteration
+     * @param expectedFit its expected value
+     * @param ch relative change or gap
+     * @param held mean fit of the held-out pixels (NaN when none), computed in the same pass as meanFit
+     * @param estimate the estimate after the iteration (read by listeners, not modified)
      * @return true to stop
      */
-    boolean after(double obj, double meanFit, double expectedFit, double ch) {
+    boolean after(double obj, double meanFit, double expectedFit, double ch, double held, float[] estimate) {
         objective[done] = obj;
         change[done] = ch;
+        heldOut[done] = held;
         done++;
         listener.iteration(done, stopping.maxIterations(), obj, ch);
+        listener.state(new IterationState(done, stopping.maxIterations(), obj, meanFit, expectedFit, held, ch, estimate));
         context.progress((double) done / stopping.maxIterations(),
                 String.format(Locale.ROOT, "%s iteration %d of at most %d", method, done, stopping.maxIterations()));
-        reason = stopping.check(done, meanFit, expectedFit, ch);
+        reason = stopping.check(done, meanFit, expectedFit, ch, Arrays.copyOf(heldOut, done));
         return reason != null;
     }
 

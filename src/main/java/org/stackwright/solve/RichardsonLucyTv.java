@@ -77,6 +77,7 @@ public final class RichardsonLucyTv implements Solver {
                 tv.curvature(x, eps, curv);
             }
             h.apply(x, buf);
+            double held = p.heldOutFit(buf);
             double fit = p.ratioAndFit(buf) / trusted;
             h.applyAdjoint(buf, buf);
             double[] s = sums.run(workers, n, (from, to, acc) -> {
@@ -98,7 +99,7 @@ public final class RichardsonLucyTv implements Solver {
                 acc[1] += xx;
             });
             double change = Math.sqrt(s[0] / Math.max(s[1], 1e-300));
-            if (log.after(fit + lambda * tvValue / trusted, fit, p.expectedFit(), change)) {
+            if (log.after(fit + lambda * tvValue / trusted, fit, p.expectedFit(), change, held, x)) {
                 break;
             }
         }

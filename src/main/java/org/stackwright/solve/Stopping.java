@@ -34,6 +34,15 @@ public record Stopping(StopRule rule, int maxIterations, double tolerance) {
      * @return why the run stops now, or null to go on
      */
     public String check(int iteration, double meanFit, double expectedFit, double change) {
+        return check(iteration, meanFit, expectedFit, change, new double[0]);
+    }
+
+    /**
+     * As {@link #check(int, double, double, double)}, with the history of the held-out fit (cross-validation).
+     *
+     * @param heldOut held-out fit per iteration so far (index 0 = iteration 1), NaN where not measured; not modified
+     */
+    public String check(int iteration, double meanFit, double expectedFit, double change, double[] heldOut) {
         if (rule == StopRule.CHANGE && change < tolerance) {
             return String.format(Locale.ROOT, "change: relative change %.3g fell below the tolerance %.3g", change, tolerance);
         }

@@ -1,0 +1,221 @@
+package org.stackwright.model;
+
+import org.apache.commons.math3.distribution.GammaDistribution;
+import org.apache.commons.math3.random.RandomGenerator;
+import org.apache.commons.math3.special.Gamma;
+import org.apache.commons.math3.random.Well44497b;
+import org.stackwright.volume.Volume;
+import org.stackwright.volume.VoxelSize;
+
+/**
+ * Invented camera images for the checks of the camera estimates, made independently of {@link Camera#record} and
+ * of the simulator: its own specimen (smooth blobs on a sloping background, with bright points and lines that are
+ * not smooth), its own random numbers (commons-math Well44497b; Poisson counts by multiplication of uniforms below a
+ * mean of 30 and by the transformed rejection of Hoermann, "The transformed rejection method for generating Poisson
+ * random variables", Insurance: Mathematics and Economics 12, 1993, above; gamma variables by Marsaglia &amp; Tsang,
+ * "A simple method for generating gamma variables", ACM TOMS 26(3), 2000) and three camera types:
+ * <ul>
+ * <li>CCD-like: gain 1 ADU/e-, read noise 1.5 ADU, offset 100 ADU;</li>
+ * <li>sCMOS-like: gain 2.2 ADU/e-, read noise different per pixel (3 ADU times the square root of a gamma variable
+ * of mean 1 and shape 4, so the root-mean-square is 3 ADU), offset 100 ADU plus a fixed pattern of 0.5 ADU;</li>
+ * <li>EM-like: EM gain 10 ADU/e- applied by a gamma-distributed multiplication register (the output of n electrons
+ * is Gamma(n, 10); Basden, Haniff &amp; Mackay, "Photon counting strategies with low-light-level CCDs", MNRAS 345,
+ * 2003), read noise 20 ADU, offset 500 ADU. Its excess-noise factor F^2 is 2 (Robbins &amp; Hadwen, IEEE Trans.
+ * Electron Devices 50(5), 2003), so the photon-transfer slope is 2 x 10 = 20 ADU/e-.</li>
+ * </ul>
+ * All values are rounded to whole ADU and clipped to 16 bits, as a camera does.
+ */
+final class CameraData {
+
+    enum Kind {
+        CCD(1, 1.5, 100, 1), SCMOS(2.2, 3, 100, 1), EM(10, 20, 500, 2);
+
+        final double gain;
+        final double readNoise;
+        final double offset;
+        /** excess-noise factor F^2 */
+        final double excess;
+
+        Kind(double gain, double readNoise, double offset, double excess) {
+            this.gain = gain;
+            this.readNoise = readNoise;
+            this.offset = offset;
+            this.excess = excess;
+        }
+
+        /** @return the slope of variance against mean level that a photon-transfer fit should find */
+        double transferSlope() {
+            return gain * excess;
+        }
+    }
+
+    private final Kind kind;
+    private final RandomGenerator rng;
+    private final double[] pixelReadNoise;
+    private final double[] pixelOffset;
+    private final int w;
+    private final int h;
+
+    CameraData(Kind kind, int w, int h, long seed) {
+        this.kind = kind;
+        this.w = w;
+        this.h = h;
+        this.rng = new Well44497b(seed);
+        this.pixelReadNoise = new double[w * h];
+        this.pixelOffset = new double[w * h];
+        GammaDistribution spread = new GammaDistribution(rng, 4, 0.25);
+        for (int i = 0; i < w * h; i++) {
+            pixelReadNoise[i] = kind == Kind.SCMOS ? kind.readNoise * Math.sqrt(spread.sample()) : kind.readNoise;
+            pixelOffset[i] = kind.offset + (kind == Kind.SCMOS ? 0.5 * rng.nextGaussian() : 0);
+        }
+    }
+
+    /**
+     * Expected photo-electrons of the invented specimen: a dark background sloping from 3 to 6 electrons, six smooth
+     * blobs in the left 60% of the field (Gaussian, sigma 5 to 10 pixels, peaks 50 to 1500 electrons, for a range of
+     * levels; the rest is mostly dark background, where the read noise shows), 20 bright points
+     * and 3 thin lines (not smooth; Gaussian sigma 1 pixel, 1.5 planes: as fine as a microscope sampled at about
+     * the Nyquist rate shows anything); from plane to plane the blobs and lines drift slowly.
+     */
+    static double[] specimen(int w, int h, int d, double brightness, long seed) {
+        RandomGenerator r = new Well44497b(seed);
+        double[] mu = new double[w * h * d];
+        double[][] blobs = new double[6][];
+        for (int b = 0; b < blobs.length; b++) {
+            blobs[b] = new double[] {0.6 * r.nextDouble() * w, r.nextDouble() * h, 5 + 5 * r.nextDouble(),
+                50 + 1450 * r.nextDouble(), r.nextDouble() - 0.5, r.nextDouble() - 0.5};
+        }
+        double[][] points = new double[20][];
+        for (int p = 0; p < points.length; p++) {
+            points[p] = new double[] {r.nextDouble() * w, r.nextDouble() * h, r.nextDouble() * d, 500 + 2000 * r.nextDouble()};
+        }
+        double[][] lines = new double[3][];
+        for (int l = 0; l < lines.length; l++) {
+            lines[l] = new double[] {r.nextDouble() * w, r.nextDouble() * h, Math.PI * r.nextDouble(), 300};
+        }
+        for (int z = 0; z < d; z++) {
+            for (int y = 0; y < h; y++) {
+                for (int x = 0; x < w; x++) {
+                    double v = 3 + 3.0 * x / w;
+                    for (double[] b : blobs) {
+                        double dx = x - b[0] - b[4] * z;
+                        double dy = y - b[1] - b[5] * z;
+                        v += b[3] * Math.exp(-(dx * dx + dy * dy) / (2 * b[2] * b[2]));
+                    }
+                    for (double[] p : points) {
+                        double dd = sq(x - p[0]) + sq(y - p[1]) + sq((z - p[2]) / 1.5);
+                        v += p[3] * Math.exp(-dd / 2);
+                    }
+                    for (double[] l : lines) {
+                        double dist = Math.abs(-(x - l[0] - 0.7 * z) * Math.sin(l[2]) + (y - l[1]) * Math.cos(l[2]));
+                        v += l[3] * Math.exp(-dist * dist / 2);
+                    }
+                    mu[(z * h + y) * w + x] = brightness * v;
+                }
+            }
+        }
+        return mu;
+    }
+
+    private static double sq(double v) {
+        return v * v;
+    }
+
+    /** One camera image of the expected electrons (planes of w x h), ADU. */
+    Volume record(double[] electrons, int d) {
+        float[] out = new float[electrons.length];
+        for (int i = 0; i < out.length; i++) {
+            out[i] = adu(electrons[i], i % (w * h));
+        }
+        return new Volume(w, h, d, out, new VoxelSize(0.1, 0.1, 0.3));
+    }
+
+    /** n dark frames (no light). */
+    Volume dark(int n) {
+        return record(new double[w * h * n], n);
+    }
+
+    /**
+     * Flat frames: {@code perLevel} frames at each of the given mean electron levels, in order, with a fixed
+     * pixel-to-pixel sensitivity pattern of 1% (which pairs of frames at one level cancel).
+     */
+    Volume flats(double[] levels, int perLevel) {
+        double[] prnu = new double[w * h];
+        for (int i = 0; i < prnu.length; i++) {
+            prnu[i] = 1 + 0.01 * rng.nextGaussian();
+        }
+        int n = levels.length * perLevel;
+        double[] mu = new double[w * h * n];
+        for (int f = 0; f < n; f++) {
+            for (int i = 0; i < w * h; i++) {
+                mu[f * w * h + i] = levels[f / perLevel] * prnu[i];
+            }
+        }
+        return record(mu, n);
+    }
+
+    private float adu(double electrons, int pixel) {
+        long n = electrons > 0 ? poisson(electrons) : 0;
+        double signal;
+        if (kind == Kind.EM) {
+            signal = n > 0 ? gamma(n) * kind.gain : 0;
+        } else {
+            signal = kind.gain * n;
+        }
+        double v = signal + pixelOffset[pixel] + pixelReadNoise[pixel] * rng.nextGaussian();
+        return (float) Math.min(65535, Math.max(0, Math.rint(v)));
+    }
+
+    /** A Poisson count of the given mean. */
+    private long poisson(double lam) {
+        if (lam < 30) {
+            double limit = Math.exp(-lam);
+            double prod = rng.nextDouble();
+            long k = 0;
+            while (prod > limit) {
+                prod *= rng.nextDouble();
+                k++;
+            }
+            return k;
+        }
+        double slam = Math.sqrt(lam);
+        double loglam = Math.log(lam);
+        double b = 0.931 + 2.53 * slam;
+        double a = -0.059 + 0.02483 * b;
+        double invAlpha = 1.1239 + 1.1328 / (b - 3.4);
+        double vr = 0.9277 - 3.6224 / (b - 2);
+        while (true) {
+            double u = rng.nextDouble() - 0.5;
+            double v = rng.nextDouble();
+            double us = 0.5 - Math.abs(u);
+            long k = (long) Math.floor((2 * a / us + b) * u + lam + 0.43);
+            if (us >= 0.07 && v <= vr) {
+                return k;
+            }
+            if (k < 0 || (us < 0.013 && v > us)) {
+                continue;
+            }
+            if (Math.log(v) + Math.log(invAlpha) - Math.log(a / (us * us) + b) <= -lam + k * loglam - Gamma.logGamma(k + 1.0)) {
+                return k;
+            }
+        }
+    }
+
+    /** A gamma variable of integer shape n (at least 1) and scale 1. */
+    private double gamma(long n) {
+        double d = n - 1.0 / 3;
+        double c = 1 / Math.sqrt(9 * d);
+        while (true) {
+            double x = rng.nextGaussian();
+            double v = 1 + c * x;
+            if (v <= 0) {
+                continue;
+            }
+            v = v * v * v;
+            double u = rng.nextDouble();
+            if (Math.log(u) < 0.5 * x * x + d - d * v + d * Math.log(v)) {
+                return d * v;
+            }
+        }
+    }
+}
