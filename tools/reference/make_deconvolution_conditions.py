@@ -26,8 +26,9 @@ Conditions (one data file each; the truth is the same specimen scaled to each co
 Run from the repository root:  /usr/bin/python3 tools/reference/make_deconvolution_conditions.py
 Writes src/test/resources/reference/conditions/: <condition>.tif (uint16, ImageJ hyperstack, calibrated),
 truth.tif (float32, the specimen in the view with its brightest voxel 1), psf-{true,cropped60,wide10,narrow10}.tif
-(float32, calibrated) and conditions.json (all truths: camera values, backgrounds, photon scale per condition,
-energy share of the cropped PSF, library versions, seeds). Deterministic.
+(float32, calibrated), conditions.json (all truths: camera values, backgrounds, photon scale per condition,
+energy share of the cropped PSF, library versions, seeds) and conditions.txt (the same truths as a table for the
+tests). Deterministic.
 """
 import json
 import os
@@ -191,6 +192,13 @@ def main():
     write_stack("psf-cropped60.tif", cropped, np.float32)
     write_stack("psf-wide10.tif", wide, np.float32)
     write_stack("psf-narrow10.tif", narrow, np.float32)
+    with open(os.path.join(OUT, "conditions.txt"), "w") as f:
+        f.write("# condition gain_adu_per_e read_noise_adu offset_adu background_photons (uniform; for the ramp its"
+                " minimum) photons_per_truth_unit\n")
+        for name, e in meta["conditions"].items():
+            bg = e.get("background_min", e["background"])
+            f.write("%s %g %g %g %g %.6f\n" % (name, e["gain"], e["read_noise"], e["offset"], bg,
+                                               e["photons_per_truth_unit"]))
     with open(os.path.join(OUT, "conditions.json"), "w") as f:
         json.dump(meta, f, indent=1, sort_keys=True)
         f.write("\n")

@@ -5,7 +5,6 @@ import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 
-import org.stackwright.model.Camera;
 import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.op.InputChecks;
 import org.stackwright.op.MaskChecks;
@@ -30,8 +29,11 @@ public final class Deconvolution {
      * @param record the run record (JSON-ready map)
      * @param model the fitted forward model A x + background on the image, ADU above the offset, or null when not
      *     asked for (see {@link NoiseReplicas})
+     * @param settings the settings the run used, nothing automatic left (camera values, background, lambda, a fixed
+     *     iteration count when the stop was auto): repeat the run, or run parts of a volume, with these
      */
-    public record Outcome(Volume result, Solution solution, Map<String, Object> record, Volume model) {
+    public record Outcome(Volume result, Solution solution, Map<String, Object> record, Volume model,
+            DeconvolutionSettings settings) {
     }
 
     private Deconvolution() {
@@ -43,87 +45,107 @@ public final class Deconvolution {
      * @param psfName where the PSF came from, for the record
      * @param mask untrusted pixels (nonzero), one per data voxel, or null (checked by {@link MaskChecks#check}
      *     when it comes from the user)
-     * @param s settings
+     * @param s settings; automatic values are resolved first ({@link AutomaticSettings})
      * @param ctx threads, progress, cancel, warnings
      * @param listener told about each iteration
      */
     public static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
             RunContext ctx, IterationListener listener) {
-        return run(data, psf, psfName, mask, s, ctx, listener, false);
+        return run(data, psf, psfName, mask, s, null, null, ctx, listener, false);
+    }
+
+    /** As above, with dark and/or flat frames for the camera values (each may be null). */
+    public static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
+            Volume dark, Volume flat, RunContext ctx, IterationListener listener) {
+        return run(data, psf, psfName, mask, s, dark, flat, ctx, listener, false);
     }
 
     /** As above; with {@code withModel} the outcome also holds the fitted forward model (one more blur). */
-    static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
-            RunContext ctx, IterationListener listener, boolean withModel) {
+    static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s, Volume dark,
+            Volume flat, RunContext ctx, IterationListener listener, boolean withModel) {
         InputChecks.Scan scan = InputChecks.check("input", data, ctx);
         mask = MaskChecks.union(mask, scan.nonFiniteMask());
         data = InputChecks.finiteCopy(data, scan);
+        DeconvolutionProblem.Boundary boundary = AutomaticSettings.boundary(s);
         int warned = ctx.warnings().size();
-        Volume p = PsfChecks.prepare("psf", psf, data, ctx);
+        PsfChecks.Prepared prepared = PsfChecks.prepare("psf", psf, data,
+                boundary == DeconvolutionProblem.Boundary.EXTENDED, ctx);
+        Volume p = prepared.psf();
         List<String> notes = new ArrayList<>(ctx.warnings().subList(warned, ctx.warnings().size()));
-        double bg = s.background();
-        boolean estimated = Double.isNaN(bg);
-        if (estimated) {
-            bg = BackgroundEstimate.estimate(data, mask, s.offset());
-        }
-        Camera camera = s.camera();
-        DeconvolutionProblem.Boundary boundary = s.boundary().equals("periodic")
-                ? DeconvolutionProblem.Boundary.PERIODIC : DeconvolutionProblem.Boundary.EXTENDED;
-        Solver solver = s.solver();
+        Solver planned = s.solver();
         long grid = gridVoxels(data, p, boundary);
-        long need = memoryEstimate(grid, solver.gridArrays(), data.size());
+        long need = memoryEstimate(grid, planned.gridArrays(), data.size());
         MemoryCheck.require("deconvolve of " + data.shape() + " (grid " + gridShape(data, p, boundary)
                 + (boundary == DeconvolutionProblem.Boundary.EXTENDED ? "; --boundary periodic needs a smaller grid" : "")
                 + ")", need);
-        ctx.progress(0, "preparing " + s.method());
+        AutomaticSettings.Resolved resolved = AutomaticSettings.resolve(data, p, mask, s, dark, flat, ctx);
+        DeconvolutionSettings r = resolved.settings();
+        double bg = r.background();
+        Solver solver = r.solver();
+        ctx.progress(0, "preparing " + r.method());
         Solution sol;
         DeconvolutionProblem problem;
         Volume model;
+        double[] fit;
         try (Workers workers = new Workers(ctx.threads())) {
-            problem = new DeconvolutionProblem(data, p, mask, boundary, camera, bg, workers);
+            problem = new DeconvolutionProblem(data, p, mask, boundary, r.camera(), bg, workers);
             sol = solver.solve(problem, ctx, listener);
+            fit = finalFit(problem, sol.estimate());
             model = withModel ? forwardModel(problem, sol.estimate(), bg) : null;
         }
+        boolean early = resolved.stop() != null ? resolved.stop().met() : r.stopping().rule() == StopRule.FIXED;
+        String reason = (resolved.stop() != null ? resolved.stop().reason() : sol.stopReason()) + "; "
+                + FitStatus.describe(fit[0], fit[1], early);
+        sol = new Solution(sol.estimate(), sol.iterations(), reason, sol.objective(), sol.change(), sol.seconds());
         Volume result = problem.toVolume(sol.estimate());
-        Map<String, Object> r = new LinkedHashMap<>();
-        r.put("operation", "deconvolve");
-        r.put("method", s.method());
-        r.put("iterations", sol.iterations());
-        r.put("stop_reason", sol.stopReason());
-        r.put("seconds", sol.seconds());
-        r.put("objective", solver.objectiveName());
-        r.put("history", sol.objective());
-        r.put("change_history", sol.change());
+        Map<String, Object> rec = new LinkedHashMap<>();
+        rec.put("operation", "deconvolve");
+        rec.put("method", r.method());
+        rec.put("iterations", sol.iterations());
+        rec.put("stop_reason", sol.stopReason());
+        rec.put("seconds", sol.seconds());
+        rec.put("objective", solver.objectiveName());
+        rec.put("history", sol.objective());
+        rec.put("change_history", sol.change());
+        rec.put("fit_per_pixel", fit[0]);
+        rec.put("fit_expected_from_noise", fit[1]);
         Map<String, Object> set = new LinkedHashMap<>();
         set.put("stop", s.stopping().rule().word());
         set.put("max_iterations", s.stopping().maxIterations());
         set.put("tolerance", s.stopping().tolerance());
-        set.put("offset_adu", s.offset());
-        set.put("background_adu", bg);
-        set.put("background_estimated", estimated);
-        set.put("gain", s.gain());
-        set.put("read_noise_adu", s.readNoise());
-        set.put("regularization", s.method().equals("richardson-lucy") ? 0.0 : s.lambda());
-        set.put("boundary", s.boundary());
-        set.put("acceleration", s.method().equals("richardson-lucy") && s.accelerated());
-        set.put("likelihood", s.likelihood());
+        set.putAll(resolved.record());
+        set.put("regularization", r.regularized() ? r.lambda() : 0.0);
+        set.put("boundary", r.boundary());
+        set.put("acceleration", r.method().equals("richardson-lucy") && r.accelerated());
+        set.put("likelihood", r.likelihood());
         set.put("threads", ctx.threads());
-        r.put("settings", set);
+        rec.put("settings", set);
         Map<String, Object> psfInfo = new LinkedHashMap<>();
         psfInfo.put("source", psfName);
         psfInfo.put("shape_as_read", psf.shape());
         psfInfo.put("voxel_um_as_read", List.of(psf.voxel().x(), psf.voxel().y(), psf.voxel().z()));
         psfInfo.put("shape_used", p.shape());
         psfInfo.put("sum_as_read", psf.sum());
+        psfInfo.put("energy_share_dropped", prepared.droppedShare());
         psfInfo.put("changes", notes);
-        r.put("psf", psfInfo);
-        r.put("image_shape", data.shape());
-        r.put("voxel_um", List.of(data.voxel().x(), data.voxel().y(), data.voxel().z()));
-        r.put("grid_shape", problem.gridWidth() + "x" + problem.gridHeight() + "x" + problem.gridDepth());
-        r.put("trusted_pixels", problem.trustedPixels());
-        r.put("peak_memory_estimate_bytes", need);
-        r.put("result_units", "ADU above the camera offset (background removed)");
-        return new Outcome(result, sol, r, model);
+        rec.put("psf", psfInfo);
+        rec.put("image_shape", data.shape());
+        rec.put("voxel_um", List.of(data.voxel().x(), data.voxel().y(), data.voxel().z()));
+        rec.put("grid_shape", problem.gridWidth() + "x" + problem.gridHeight() + "x" + problem.gridDepth());
+        rec.put("trusted_pixels", problem.trustedPixels());
+        rec.put("peak_memory_estimate_bytes", need);
+        rec.put("result_units", "ADU above the camera offset (background removed)");
+        return new Outcome(result, sol, rec, model, r);
+    }
+
+    /** @return {mean fit per trusted pixel, what noise alone leaves} of the final estimate (one more blur) */
+    private static double[] finalFit(DeconvolutionProblem problem, float[] x) {
+        float[] work = new float[x.length];
+        for (int i = 0; i < x.length; i++) {
+            work[i] = Math.max(x[i], 0f);
+        }
+        problem.blur().apply(work, work);
+        return new double[] {problem.fit(work) / problem.trustedPixels(), problem.expectedFit(work)};
     }
 
     /** @return gain * (H x) on the image window plus the background, ADU above the offset */

@@ -29,6 +29,13 @@ public final class DeconvolveOperation implements Operation {
 
     /** Seed of the noise replicas (fixed, so that a run can be repeated bit for bit). */
     static final long REPLICA_SEED = 20260101L;
+    /** The word for a value the run finds itself. */
+    static final String AUTO = "auto";
+    /**
+     * Default maximum of iterations: the automatic stop ends well before it on the test conditions (bright data
+     * needed up to about 300 in the trial); reaching it is reported as a failure of the rule.
+     */
+    static final int DEFAULT_MAX_ITERATIONS = 500;
 
     @Override
     public String name() {
@@ -47,17 +54,25 @@ public final class DeconvolveOperation implements Operation {
                 Param.image("psf", true, "the PSF (odd sizes, centre at n/2; resampled when its voxel size differs)"),
                 Param.outputImage("output", true, "the deconvolved estimate, 32-bit, ADU above the offset"),
                 Param.choice("method", "richardson-lucy", DeconvolutionSettings.METHODS, "deconvolution method"),
-                Limits.iterations("iterations", 50, "maximum number of iterations (wiener: ignored)"),
-                Param.choice("stop", "noise", List.of("fixed", "change", "noise"),
-                        "fixed = all iterations; change = relative change below tolerance; noise = data fit reaches "
-                                + "its expected value (discrepancy principle)"),
+                Limits.iterations("iterations", DEFAULT_MAX_ITERATIONS, "maximum number of iterations: reaching it is"
+                        + " reported as a failure of the stop rule (wiener: ignored)"),
+                Param.choice("stop", StopRule.AUTO.word(), StopRule.words(),
+                        "auto = where the fit to held-out pixels is best (trial on half the pixels, then the full "
+                                + "run); fixed = all iterations; change = relative change below tolerance; noise = "
+                                + "data fit reaches its expected value (discrepancy principle)"),
                 Param.number("tolerance", 1e-3, 1e-12, 1, "", "tolerance of the change rule (total-variation: relative primal-dual gap)"),
-                Param.number("offset", 0.0, -1e9, 1e9, "ADU", "camera offset (bias), part of the forward model"),
+                Param.number("offset", null, -1e9, 1e9, "ADU", "camera offset (bias), part of the forward model; not "
+                        + "given: from the dark frames, or together with the read noise from the image"),
                 Param.text("background", "auto", "background above the offset in ADU, or auto to estimate it"),
-                Param.number("gain", 1.0, 1e-9, 1e9, "ADU/e-", "camera gain"),
-                Param.number("read-noise", 0.0, 0, 1e9, "ADU", "camera read noise (standard deviation)"),
-                Param.number("regularization", null, 0, 1e9, "", "lambda: richardson-lucy-tv default 0.002, "
-                        + "total-variation 0.01, wiener 0.001; ignored by richardson-lucy"),
+                // automatic camera values and regularisation (issue: settle on data it was not made with)
+                Param.text("gain", AUTO, "camera gain in ADU per photo-electron, or auto: from the flat frames or the"
+                        + " image (photon transfer)"),
+                Param.text("read-noise", AUTO, "camera read noise in ADU (standard deviation), or auto: from the dark"
+                        + " frames or the image"),
+                Param.image("dark", false, "dark frames (no light, several planes): offset and read noise"),
+                Param.image("flat", false, "flat frames (even light, runs of 2 or more frames per level): gain"),
+                Param.text("regularization", AUTO, "lambda of richardson-lucy-tv and total-variation, or auto: chosen "
+                        + "from the data; wiener: default 0.001; ignored by richardson-lucy"),
                 Param.image("mask", false, "pixels to exclude from the data fit: nonzero = dead, saturated, seam"),
                 Param.choice("boundary", "extended", List.of("extended", "periodic"),
                         "extended = object larger than the image, no wrap-around; periodic = wraps around (smaller, faster)"),
@@ -106,9 +121,11 @@ public final class DeconvolveOperation implements Operation {
         if (replicas > 0) {
             NoiseReplicas.check(replicas, noise, s);
         }
+        Volume dark = frames(v, "dark", data);
+        Volume flat = frames(v, "flat", data);
         Deconvolution.Outcome out = replicas > 0
-                ? NoiseReplicas.deconvolveWithModel(data, psf, psfImp.getTitle(), mask, s, ctx, IterationListener.NONE)
-                : Deconvolution.run(data, psf, psfImp.getTitle(), mask, s, ctx, IterationListener.NONE);
+                ? NoiseReplicas.deconvolveWithModel(data, psf, psfImp.getTitle(), mask, s, dark, flat, ctx, IterationListener.NONE)
+                : Deconvolution.run(data, psf, psfImp.getTitle(), mask, s, dark, flat, ctx, IterationListener.NONE);
         Result r = new Result();
         r.image("output", ImagePlusAdapter.toImagePlus(out.result(), in.getTitle() + "-deconvolve"));
         for (Map.Entry<String, Object> e : out.record().entrySet()) {
@@ -116,7 +133,7 @@ public final class DeconvolveOperation implements Operation {
         }
         r.record("replicas", replicas);
         if (replicas > 0) {
-            NoiseReplicas.Spread sp = NoiseReplicas.run(data, psf, mask, s, out, replicas, noise, REPLICA_SEED, ctx);
+            NoiseReplicas.Spread sp = NoiseReplicas.run(data, psf, mask, out.settings(), out, replicas, noise, REPLICA_SEED, ctx);
             sp.record(noise, REPLICA_SEED).forEach(r::record);
             r.image("spread-output", ImagePlusAdapter.toImagePlus(sp.spread(), in.getTitle() + "-spread"));
             r.image("bias-output", ImagePlusAdapter.toImagePlus(sp.bias(), in.getTitle() + "-bias"));
@@ -153,13 +170,52 @@ public final class DeconvolveOperation implements Operation {
             }
         }
         String method = v.choice("method");
-        double lambda = v.given("regularization") ? v.number("regularization") : Double.NaN;
+        double lambda = numberOrAuto(v, "regularization", 0, "a number (0 or more)");
         if (!Double.isNaN(lambda) && lambda <= 0 && (method.equals("wiener") || method.equals("total-variation"))) {
-            throw new IllegalArgumentException("regularization = " + lambda + " is not allowed for " + method + "; give a positive number");
+            throw new IllegalArgumentException("regularization = " + lambda + " is not allowed for " + method + "; give a positive number or auto");
         }
         Stopping stopping = new Stopping(StopRule.of(v.choice("stop")), v.integer("iterations"), v.number("tolerance"));
-        return new DeconvolutionSettings(method, stopping, v.number("offset"), bg, v.number("gain"), v.number("read-noise"),
+        double offset = v.given("offset") ? v.number("offset") : Double.NaN;
+        double gain = numberOrAuto(v, "gain", Double.MIN_VALUE, "a positive number of ADU per photo-electron");
+        double readNoise = numberOrAuto(v, "read-noise", 0, "a number of ADU (0 or more)");
+        return new DeconvolutionSettings(method, stopping, offset, bg, gain, readNoise,
                 lambda, v.choice("boundary"), v.choice("acceleration").equals("on"), v.choice("likelihood"));
+    }
+
+    /**
+     * @return the number given for key, or NaN for auto (or nothing given)
+     * @throws IllegalArgumentException naming the key for text that is neither auto nor a number of at least min
+     */
+    static double numberOrAuto(Values v, String key, double min, String what) {
+        String t = v.text(key);
+        if (t == null || t.trim().equalsIgnoreCase(AUTO)) {
+            return Double.NaN;
+        }
+        double d;
+        try {
+            d = Double.parseDouble(t.trim());
+        } catch (NumberFormatException e) {
+            throw new IllegalArgumentException(key + " = '" + t + "' is not allowed; give " + what + " or auto");
+        }
+        if (!(d >= min) || Double.isInfinite(d)) {
+            throw new IllegalArgumentException(key + " = '" + t + "' is not allowed; give " + what + " or auto");
+        }
+        return d;
+    }
+
+    /** Reads calibration frames: one channel, the image's plane size. */
+    private static Volume frames(Values v, String key, Volume data) {
+        ImagePlus imp = v.image(key);
+        if (imp == null) {
+            return null;
+        }
+        Volume f = ImagePlusAdapter.toVolume(imp);
+        if (f.width() != data.width() || f.height() != data.height()) {
+            throw new IllegalArgumentException(key + ": frames of " + f.width() + "x" + f.height() + " pixels do not match"
+                    + " the image's " + data.width() + "x" + data.height() + "; give frames from the same camera and"
+                    + " region of interest");
+        }
+        return f;
     }
 
     /**

@@ -21,6 +21,31 @@ public record Stopping(StopRule rule, int maxIterations, double tolerance) {
         }
     }
 
+    /**
+     * Iterations the automatic rule waits after the best held-out fit before it stops: 10, or 30% of the iterations
+     * to the best when that is more (the held-out fit is flat near its best and wiggles by a little; common practice,
+     * no source).
+     *
+     * @param best iterations to the best held-out fit
+     */
+    public static int patience(int best) {
+        return Math.max(10, (int) Math.ceil(0.3 * best));
+    }
+
+    /**
+     * @param heldOut held-out fit per iteration (index k = the estimate after k iterations), NaN where not measured
+     * @return the index of the smallest value, -1 when none is measured
+     */
+    public static int bestHeldOut(double[] heldOut) {
+        int best = -1;
+        for (int k = 0; k < heldOut.length; k++) {
+            if (!Double.isNaN(heldOut[k]) && (best < 0 || heldOut[k] < heldOut[best])) {
+                best = k;
+            }
+        }
+        return best;
+    }
+
     /** Exactly n iterations. */
     public static Stopping fixed(int n) {
         return new Stopping(StopRule.FIXED, n, 1e-3);
@@ -43,10 +68,18 @@ public record Stopping(StopRule rule, int maxIterations, double tolerance) {
      * @param heldOut held-out fit per iteration so far (index 0 = iteration 1), NaN where not measured; not modified
      */
     public String check(int iteration, double meanFit, double expectedFit, double change, double[] heldOut) {
+        if (rule == StopRule.AUTO) {
+            int best = bestHeldOut(heldOut);
+            if (best >= 0 && iteration - (best + 1) >= patience(best)) {
+                return String.format(Locale.ROOT, "auto: the held-out fit was best after %d iterations (%.4f per pixel)"
+                        + " and did not improve in the %d after", best, heldOut[best], iteration - 1 - best);
+            }
+        }
+        boolean noise = rule == StopRule.NOISE || (rule == StopRule.AUTO && bestHeldOut(heldOut) < 0);
         if (rule == StopRule.CHANGE && change < tolerance) {
             return String.format(Locale.ROOT, "change: relative change %.3g fell below the tolerance %.3g", change, tolerance);
         }
-        if (rule == StopRule.NOISE && meanFit <= expectedFit) {
+        if (noise && meanFit <= expectedFit) {
             return String.format(Locale.ROOT, "noise: mean data fit %.4f per pixel reached its expected value %.4f "
                     + "(discrepancy principle)", meanFit, expectedFit);
         }
