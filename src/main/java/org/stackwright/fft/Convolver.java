@@ -12,16 +12,20 @@ import org.stackwright.volume.Volume;
  * no allocation. For a non-periodic ("same" size, zero outside) result, embed the data in a grid at least
  * data + kernel - 1 large: see {@link Convolution}.
  *
- * <p>Not safe to call from two threads at once (it owns its work buffer).
+ * <p>Memory: the transfer function (a spectrum, about one grid of floats) and the engine's work space. Give the
+ * output an array of {@link #workLength()} floats ({@link #newWorkArray()}) and the transform runs in it, in place,
+ * with no further grid-sized buffer; with a grid-sized output the Java engine allocates a work spectrum once.
+ *
+ * <p>Not safe to call from two threads at once (it owns its work space).
  */
 public final class Convolver {
 
-    private final RealFft3D fft;
-    private final Workers workers;
+    private final RealTransform fft;
     private final float[] otf;
-    private final float[] work;
 
     /**
+     * A convolver on the JVM's standard engine ({@link FftEngines#standard()}).
+     *
      * @param kernel the kernel (a PSF), used as given (not normalised); not modified
      * @param nx grid width
      * @param ny grid height
@@ -29,13 +33,23 @@ public final class Convolver {
      * @param workers the threads (not closed by this object)
      */
     public Convolver(Volume kernel, int nx, int ny, int nz, Workers workers) {
-        this.fft = new RealFft3D(nx, ny, nz, workers);
-        this.workers = workers;
+        this(kernel, nx, ny, nz, workers, FftEngines.standard());
+    }
+
+    /**
+     * @param kernel the kernel (a PSF), used as given (not normalised); not modified
+     * @param nx grid width
+     * @param ny grid height
+     * @param nz grid depth
+     * @param workers the threads (not closed by this object)
+     * @param engine the FFT engine
+     */
+    public Convolver(Volume kernel, int nx, int ny, int nz, Workers workers, FftEngine engine) {
+        this.fft = engine.transform(nx, ny, nz, workers);
         float[] wrapped = new float[nx * ny * nz];
         wrapCentred(kernel, nx, ny, nz, wrapped);
         this.otf = fft.newSpectrum();
         fft.forward(wrapped, otf);
-        this.work = fft.newSpectrum();
     }
 
     /**
@@ -77,24 +91,44 @@ public final class Convolver {
         return fft.realLength();
     }
 
+    /** @return the length of an output array that lets the transform run in place (at least the grid length) */
+    public int workLength() {
+        return Math.max(fft.workLength(), fft.realLength());
+    }
+
+    /** @return a new array of {@link #workLength()} floats: a grid in its first {@link #gridLength()} floats */
+    public float[] newWorkArray() {
+        return new float[workLength()];
+    }
+
+    /** @return the engine's name for the run record: java or native */
+    public String engine() {
+        return fft.engine();
+    }
+
+    /** @return how the engine planned this grid ({@link RealTransform#planning()}) */
+    public String planning() {
+        return fft.planning();
+    }
+
     /**
      * out = kernel (*) in, periodic on the grid.
      *
-     * @param in grid-sized input, not modified
-     * @param out grid-sized output, overwritten (may be the same array as in)
+     * @param in grid in the first {@link #gridLength()} floats, not modified (unless it is out)
+     * @param out grid-sized output or a {@link #newWorkArray()}, overwritten (may be the same array as in)
      */
     public void convolve(float[] in, float[] out) {
-        apply(in, out, false);
+        fft.filter(in, out, otf, SpectrumProduct.MULTIPLY);
     }
 
     /**
      * out = kernel (x) in (correlation), the adjoint of {@link #convolve}.
      *
-     * @param in grid-sized input, not modified
-     * @param out grid-sized output, overwritten (may be the same array as in)
+     * @param in grid in the first {@link #gridLength()} floats, not modified (unless it is out)
+     * @param out grid-sized output or a {@link #newWorkArray()}, overwritten (may be the same array as in)
      */
     public void correlate(float[] in, float[] out) {
-        apply(in, out, true);
+        fft.filter(in, out, otf, SpectrumProduct.CONJUGATE);
     }
 
     /** @return the transfer function's value at frequency 0: the kernel's sum */
@@ -111,40 +145,6 @@ public final class Convolver {
      * @param lambda regularisation, positive
      */
     public void tikhonov(float[] in, float[] out, double lambda) {
-        fft.forward(in, work);
-        int n = otf.length / 2;
-        final float lam = (float) lambda;
-        workers.forRange(n, (from, to) -> {
-            float[] w = work;
-            float[] h = otf;
-            for (int i = 2 * from, e = 2 * to; i < e; i += 2) {
-                float a = w[i];
-                float b = w[i + 1];
-                float c = h[i];
-                float d = -h[i + 1];
-                float s = 1f / (c * c + d * d + lam);
-                w[i] = (a * c - b * d) * s;
-                w[i + 1] = (a * d + b * c) * s;
-            }
-        });
-        fft.inverse(work, out);
-    }
-
-    private void apply(float[] in, float[] out, boolean conjugate) {
-        fft.forward(in, work);
-        int n = otf.length / 2;
-        workers.forRange(n, (from, to) -> {
-            float[] w = work;
-            float[] h = otf;
-            for (int i = 2 * from, e = 2 * to; i < e; i += 2) {
-                float a = w[i];
-                float b = w[i + 1];
-                float c = h[i];
-                float d = conjugate ? -h[i + 1] : h[i + 1];
-                w[i] = a * c - b * d;
-                w[i + 1] = a * d + b * c;
-            }
-        });
-        fft.inverse(work, out);
+        fft.filter(in, out, otf, SpectrumProduct.tikhonov(lambda));
     }
 }

@@ -56,12 +56,7 @@ public final class RealFft3D {
      * @param workers the threads to use (not closed by this object)
      */
     public RealFft3D(int nx, int ny, int nz, Workers workers) {
-        if (nx < 1 || ny < 1 || nz < 1) {
-            throw new IllegalArgumentException("FFT size must be at least 1x1x1 (given " + nx + "x" + ny + "x" + nz + ")");
-        }
-        if ((long) (nx / 2 + 1) * ny * nz * 2 > Integer.MAX_VALUE - 8) {
-            throw new IllegalArgumentException("FFT size " + nx + "x" + ny + "x" + nz + " is too large for one array");
-        }
+        RealTransform.checkSize(nx, ny, nz);
         this.nx = nx;
         this.ny = ny;
         this.nz = nz;
@@ -132,18 +127,7 @@ public final class RealFft3D {
      */
     public void forward(float[] real, float[] spectrum) {
         checkLengths(real, spectrum);
-        if (lx[0] != null) {
-            xPairs(real, spectrum, true);
-            complexPasses(spectrum, true);
-            return;
-        }
-        workers.forSlots(ny * nz, (slot, from, to) -> {
-            float[] b = bufX[slot];
-            for (int row = from; row < to; row++) {
-                rowForward(real, row * nx, spectrum, row * hx * 2, b, fx[slot]);
-            }
-        });
-        complexPasses(spectrum, true);
+        forward(real, nx, spectrum);
     }
 
     /**
@@ -154,15 +138,69 @@ public final class RealFft3D {
      */
     public void inverse(float[] spectrum, float[] real) {
         checkLengths(real, spectrum);
-        complexPasses(spectrum, false);
+        inverse(spectrum, real, nx);
+    }
+
+    /**
+     * Forward transform in place: on entry real row r (r = y + ny z) sits at float {@code 2 (nx/2+1) r} of
+     * {@code buf} (rows padded to the length of a spectrum row); on exit {@code buf} holds the spectrum. The same
+     * operations as {@link #forward(float[], float[])}, so the values are bit-identical.
+     *
+     * @param buf at least {@link #spectrumLength()} floats, modified
+     */
+    void forwardInPlace(float[] buf) {
+        checkInPlace(buf);
+        forward(buf, 2 * hx, buf);
+    }
+
+    /**
+     * Inverse transform in place, the counterpart of {@link #forwardInPlace}: on exit real row r sits at float
+     * {@code 2 (nx/2+1) r}; the floats between rows are undefined.
+     *
+     * @param buf at least {@link #spectrumLength()} floats, modified
+     */
+    void inverseInPlace(float[] buf) {
+        checkInPlace(buf);
+        inverse(buf, buf, 2 * hx);
+    }
+
+    private void checkInPlace(float[] buf) {
+        if (buf.length < spectrumLength()) {
+            throw new IllegalArgumentException("in-place array of " + buf.length + " floats is shorter than the spectrum ("
+                    + spectrumLength() + ") of FFT size " + nx + "x" + ny + "x" + nz);
+        }
+    }
+
+    /**
+     * Forward transform without length checks; real row r starts at float {@code r * rs}. In place when
+     * real == spectrum and rs = 2 (nx/2+1).
+     */
+    void forward(float[] real, int rs, float[] spectrum) {
         if (lx[0] != null) {
-            xPairs(real, spectrum, false);
+            xPairs(real, rs, spectrum, true);
+            complexPasses(spectrum, true);
             return;
         }
         workers.forSlots(ny * nz, (slot, from, to) -> {
             float[] b = bufX[slot];
             for (int row = from; row < to; row++) {
-                rowInverse(spectrum, row * hx * 2, real, row * nx, b, fx[slot]);
+                rowForward(real, row * rs, spectrum, row * hx * 2, b, fx[slot]);
+            }
+        });
+        complexPasses(spectrum, true);
+    }
+
+    /** Inverse transform without length checks, scaled; real row r starts at float {@code r * rs}. */
+    void inverse(float[] spectrum, float[] real, int rs) {
+        complexPasses(spectrum, false);
+        if (lx[0] != null) {
+            xPairs(real, rs, spectrum, false);
+            return;
+        }
+        workers.forSlots(ny * nz, (slot, from, to) -> {
+            float[] b = bufX[slot];
+            for (int row = from; row < to; row++) {
+                rowInverse(spectrum, row * hx * 2, real, row * rs, b, fx[slot]);
             }
         });
     }
@@ -362,9 +400,10 @@ public final class RealFft3D {
      * (the two-for-one real FFT; Brigham, The Fast Fourier Transform and its Applications, 1988, section 9.3).
      * Inverse: Z_k = A_k + i B_k with A_{n-k} = conj A_k, and a = Re z, b = Im z; as in a real inverse DFT the
      * imaginary parts of the k = 0 and (n even) k = n/2 coefficients are ignored. Rows are paired by their index
-     * (2p, 2p+1), whatever the thread count.
+     * (2p, 2p+1), whatever the thread count. Real row r starts at float {@code r * rs}; a task reads all its rows
+     * before it writes any, so the pass also works in place (real == spec, rs = 2 hx).
      */
-    private void xPairs(float[] real, float[] spec, boolean forward) {
+    private void xPairs(float[] real, int rs, float[] spec, boolean forward) {
         final int rows = ny * nz;
         final int perTask = 2 * LINES;
         final int tasks = (rows + perTask - 1) / perTask;
@@ -380,9 +419,9 @@ public final class RealFft3D {
                 int width = (count + 1) / 2;
                 if (forward) {
                     for (int j = 0; j < width; j++) {
-                        int ra = (r0 + 2 * j) * n;
+                        int ra = (r0 + 2 * j) * rs;
                         boolean hasB = 2 * j + 1 < count;
-                        int rb = ra + n;
+                        int rb = ra + rs;
                         for (int x = 0, q = j; x < n; x++, q += width) {
                             re[q] = real[ra + x];
                             im[q] = hasB ? real[rb + x] : 0f;
@@ -431,9 +470,9 @@ public final class RealFft3D {
                     float[] zr = inPlace ? re : w[2];
                     float[] zi = inPlace ? im : w[3];
                     for (int j = 0; j < width; j++) {
-                        int ra = (r0 + 2 * j) * n;
+                        int ra = (r0 + 2 * j) * rs;
                         boolean hasB = 2 * j + 1 < count;
-                        int rb = ra + n;
+                        int rb = ra + rs;
                         for (int x = 0, q = j; x < n; x++, q += width) {
                             real[ra + x] = zr[q];
                             if (hasB) {

@@ -2,6 +2,8 @@ package org.stackwright.inspect;
 
 import org.stackwright.fft.Convolver;
 import org.stackwright.fft.FastSizes;
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Padding;
 import org.stackwright.volume.Volume;
@@ -33,6 +35,11 @@ public final class ForwardBlur {
      * @return H x, a new volume of the estimate's size and calibration
      */
     public static Volume blur(Volume estimate, Volume psf, Workers workers) {
+        return blur(estimate, psf, workers, FftEngines.standard());
+    }
+
+    /** As above, on a given FFT engine. */
+    public static Volume blur(Volume estimate, Volume psf, Workers workers, FftEngine fft) {
         Volume k = estimate.depth() == 1 && psf.depth() > 1 ? centrePlane(psf) : psf;
         int hx = k.width() / 2;
         int hy = k.height() / 2;
@@ -41,7 +48,7 @@ public final class ForwardBlur {
         int ny = gridSize(estimate.height(), hy);
         int nz = gridSize(estimate.depth(), hz);
         Volume grid = Padding.pad(estimate, nx, ny, nz, hx, hy, hz, Padding.Mode.MIRROR);
-        Convolver c = new Convolver(k, nx, ny, nz, workers);
+        Convolver c = new Convolver(k, nx, ny, nz, workers, fft);
         c.convolve(grid.data(), grid.data());
         return Padding.crop(grid, hx, hy, hz, estimate.width(), estimate.height(), estimate.depth());
     }

@@ -1,5 +1,7 @@
 package org.stackwright.inspect;
 
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Padding;
 import org.stackwright.volume.Volume;
@@ -39,9 +41,15 @@ public record ResidualMaps(Volume predicted, Volume raw, Volume normalised, doub
      *     not usable
      */
     public static ResidualMaps compute(Volume data, Volume estimate, Volume psf, ResidualModel model, Workers workers) {
+        return compute(data, estimate, psf, model, workers, FftEngines.standard());
+    }
+
+    /** As above, with the FFT engine of the blur. */
+    public static ResidualMaps compute(Volume data, Volume estimate, Volume psf, ResidualModel model, Workers workers,
+            FftEngine fft) {
         check(data, estimate, psf);
         Volume unit = normalise(psf);
-        Volume hx = ForwardBlur.blur(estimate, unit, workers);
+        Volume hx = ForwardBlur.blur(estimate, unit, workers, fft);
         int n = data.size();
         float[] y = data.data();
         float[] b = hx.data();

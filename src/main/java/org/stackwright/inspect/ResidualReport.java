@@ -1,5 +1,7 @@
 package org.stackwright.inspect;
 
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
 
@@ -43,7 +45,13 @@ public record ResidualReport(ResidualMaps maps, ResidualHistogram histogram, Res
      */
     public static ResidualReport analyse(Volume data, Volume estimate, Volume psf, ResidualModel model,
             Workers workers) {
-        ResidualMaps maps = ResidualMaps.compute(data, estimate, psf, model, workers);
+        return analyse(data, estimate, psf, model, workers, FftEngines.standard());
+    }
+
+    /** As above, with the FFT engine of the blur and the spectrum. */
+    public static ResidualReport analyse(Volume data, Volume estimate, Volume psf, ResidualModel model,
+            Workers workers, FftEngine fft) {
+        ResidualMaps maps = ResidualMaps.compute(data, estimate, psf, model, workers, fft);
         ResidualRegions regions = ResidualRegions.find(maps.normalised(), maps.deviance());
         int[] box = interior(data, maps.border());
         ResidualMaps inner = maps.crop(box[0], box[1], box[2], box[3], box[4], box[5]);
@@ -63,7 +71,7 @@ public record ResidualReport(ResidualMaps maps, ResidualHistogram histogram, Res
             // report the fading from the first to the last slice of the whole stack, not of the interior
             fit = fit.withFadingOver((data.depth() - 1) / (double) (box[5] - 1));
         }
-        ResidualSpectrum spectrum = ResidualSpectrum.of(inner.normalised(), unexplained.mask(), workers);
+        ResidualSpectrum spectrum = ResidualSpectrum.of(inner.normalised(), unexplained.mask(), workers, fft);
         ResidualHistogram histogram = ResidualHistogram.of(maps.normalised().data());
         SliceTrend[] trends = trends(inner, fit, unexplained.mask());
         Verdict verdict = Verdict.decide(inner, spectrum, unexplained, fit, trends[0], trends[1], chi2Band, box);

@@ -1,6 +1,8 @@
 package org.stackwright.inspect;
 
-import org.stackwright.fft.RealFft3D;
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
+import org.stackwright.fft.RealTransform;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
 
@@ -46,10 +48,15 @@ public record ResidualSpectrum(double[] frequency, double[] power, long[] modes,
      *     pose as low-frequency structure); may be null
      */
     public static ResidualSpectrum of(Volume residual, boolean[] exclude, Workers workers) {
+        return of(residual, exclude, workers, FftEngines.standard());
+    }
+
+    /** As above, on a given FFT engine. */
+    public static ResidualSpectrum of(Volume residual, boolean[] exclude, Workers workers, FftEngine engine) {
         int nx = residual.width();
         int ny = residual.height();
         int nz = residual.depth();
-        RealFft3D fft = new RealFft3D(nx, ny, nz, workers);
+        RealTransform fft = engine.transform(nx, ny, nz, workers);
         float[] spec = fft.newSpectrum();
         float[] in = residual.data();
         if (exclude != null) {

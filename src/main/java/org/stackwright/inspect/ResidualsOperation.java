@@ -9,6 +9,9 @@ import java.util.Map;
 import ij.ImagePlus;
 
 import org.stackwright.model.NoiseModel;
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
+import org.stackwright.op.FftChoice;
 import org.stackwright.op.InputChecks;
 import org.stackwright.op.MemoryCheck;
 import org.stackwright.op.Operation;
@@ -55,11 +58,14 @@ public final class ResidualsOperation implements Operation {
                         "read noise (poisson-gaussian) or the noise standard deviation (gaussian)"),
                 Param.outputImage("output", true, "the normalised residual stack (32-bit TIFF)"),
                 Param.outputImage("summary", false, "a one-page summary picture (PNG)"),
+                FftChoice.param(),
                 Param.outputFile("record", "run record (JSON) with chi^2, verdict, histogram, spectrum and regions"));
     }
 
     @Override
-    public Result run(Values v, RunContext ctx) {
+    public Result run(Values v, RunContext door) {
+        FftEngines.Choice fft = FftChoice.choose(v);
+        RunContext ctx = FftChoice.context(door, fft);
         ImagePlus dataImp = v.image("input");
         ImagePlus psfImp = v.image("psf");
         // data, estimate, five maps and their interior crops, the padded blur grid and its spectrum (an estimate)
@@ -92,12 +98,12 @@ public final class ResidualsOperation implements Operation {
         ResidualReport report;
         try (Workers w = new Workers(ctx.threads())) {
             if (scan.nonFinite() > 0) {
-                data = predictionWhereUntrusted(data, estimate, psf, model, scan.nonFiniteMask(), w);
+                data = predictionWhereUntrusted(data, estimate, psf, model, scan.nonFiniteMask(), w, ctx.fft());
                 ctx.warn(String.format(Locale.ROOT, "input: the %d untrusted pixels are given the prediction"
                         + " (residual 0), so they count as a perfect fit and lower chi^2 per pixel by up to %.3g %%",
                         scan.nonFinite(), 100.0 * scan.nonFinite() / data.size()));
             }
-            report = ResidualReport.analyse(data, estimate, psf, model, w);
+            report = ResidualReport.analyse(data, estimate, psf, model, w, ctx.fft());
         }
         ctx.checkCancelled();
         ctx.progress(0.8, "writing");
@@ -108,6 +114,8 @@ public final class ResidualsOperation implements Operation {
             r.image("summary", SummaryPicture.render(title, data, estimate, report));
         }
         ResidualRecord.fill(r, report, v.effective());
+        r.record("fft_engine", ctx.fft().name());
+        FftChoice.note(r, fft);
         Verdict verdict = report.verdict();
         r.line(String.format(Locale.ROOT, "chi^2 per pixel: %.4f (about 1 when the data fit the noise model)",
                 report.maps().chi2PerVoxel()));
@@ -142,8 +150,8 @@ public final class ResidualsOperation implements Operation {
      *     + H x, so that they carry no residual
      */
     static Volume predictionWhereUntrusted(Volume data, Volume estimate, Volume psf, ResidualModel model,
-            byte[] untrusted, Workers w) {
-        float[] hx = ForwardBlur.blur(estimate, psf, w).data();
+            byte[] untrusted, Workers w, FftEngine fft) {
+        float[] hx = ForwardBlur.blur(estimate, psf, w, fft).data();
         float[] y = data.data().clone();
         for (int i = 0; i < y.length; i++) {
             if (untrusted[i] != 0) {

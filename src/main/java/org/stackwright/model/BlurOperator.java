@@ -1,6 +1,8 @@
 package org.stackwright.model;
 
 import org.stackwright.fft.Convolver;
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
 
@@ -9,7 +11,9 @@ import org.stackwright.volume.Volume;
  * correlation with the PSF. Non-periodic boundaries come from the grid being larger than the data (extended
  * object domain) together with weights that are zero outside the data, see {@link DeconvolutionProblem}.
  *
- * <p>Not safe to call from two threads at once (owns its FFT work buffer).
+ * <p>Not safe to call from two threads at once (owns its FFT work buffer). {@code out} of {@link #apply} and
+ * {@link #applyAdjoint} may be a grid-sized array or a {@link #newWorkArray()}; with the latter the transforms run in
+ * place in it.
  */
 public final class BlurOperator implements LinearOperator {
 
@@ -22,7 +26,16 @@ public final class BlurOperator implements LinearOperator {
      * @param nz grid depth
      */
     public BlurOperator(Volume psf, int nx, int ny, int nz, Workers workers) {
-        this.convolver = new Convolver(psf, nx, ny, nz, workers);
+        this(psf, nx, ny, nz, workers, FftEngines.standard());
+    }
+
+    /**
+     * As above, on a given FFT engine.
+     *
+     * @param fft the FFT engine
+     */
+    public BlurOperator(Volume psf, int nx, int ny, int nz, Workers workers, FftEngine fft) {
+        this.convolver = new Convolver(psf, nx, ny, nz, workers, fft);
     }
 
     @Override
@@ -53,6 +66,25 @@ public final class BlurOperator implements LinearOperator {
      */
     public void tikhonov(float[] in, float[] out, double lambda) {
         convolver.tikhonov(in, out, lambda);
+    }
+
+    /**
+     * @return a new array in which {@link #apply} and {@link #applyAdjoint} run in place (give it as {@code out}):
+     *     a grid in its first {@link #domainLength()} floats, with room for the FFT's work (no further grid-sized
+     *     buffer is then allocated)
+     */
+    public float[] newWorkArray() {
+        return convolver.newWorkArray();
+    }
+
+    /** @return the FFT engine of the blur ({@code java} or {@code native}), for the run record */
+    public String fftEngine() {
+        return convolver.engine();
+    }
+
+    /** @return how that engine planned the transforms, for the run record */
+    public String fftPlanning() {
+        return convolver.planning();
     }
 
     /** @return the PSF's sum (the transfer function at frequency zero) */

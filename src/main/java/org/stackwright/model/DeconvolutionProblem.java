@@ -1,6 +1,8 @@
 package org.stackwright.model;
 
 import org.stackwright.fft.Convolution;
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
@@ -79,28 +81,39 @@ public final class DeconvolutionProblem {
      */
     public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
             double backgroundAdu, Workers workers) {
-        this(data, psf, mask, boundary, camera, backgroundAdu, workers, Float.NaN, 0, 0);
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, FftEngines.standard(), Float.NaN, 0, 0);
+    }
+
+    /**
+     * As above, with the FFT engine of the blur.
+     *
+     * @param fft the FFT engine (a run's choice: {@code op.RunContext#fft()})
+     */
+    public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
+            double backgroundAdu, Workers workers, FftEngine fft) {
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, fft, Float.NaN, 0, 0);
     }
 
     /**
      * A trial problem for cross-validation: as the constructor, but a random share of the trusted pixels carries
      * no likelihood and is kept apart, so that {@link #heldOutFit} can tell how well an estimate predicts data it
-     * was not fitted to. The estimate of such a problem barely differs from the full one (the blur spreads every
-     * object voxel over several pixels), so the iteration where the held-out fit is best serves the full problem.
+     * was not fitted to.
      *
+     * @param fft the FFT engine of the blur
      * @param share share of the trusted pixels held out, in (0, 0.5]
      * @param seed which pixels are held out (the same seed gives the same pixels)
      */
     public static DeconvolutionProblem withHeldOut(Volume data, Volume psf, byte[] mask, Boundary boundary,
-            Camera camera, double backgroundAdu, Workers workers, double share, long seed) {
+            Camera camera, double backgroundAdu, Workers workers, FftEngine fft, double share, long seed) {
         if (!(share > 0 && share <= 0.5)) {
             throw new IllegalArgumentException("held-out share = " + share + " is not allowed; give a value in (0, 0.5]");
         }
-        return new DeconvolutionProblem(data, psf, mask, boundary, camera, backgroundAdu, workers, Float.NaN, share, seed);
+        return new DeconvolutionProblem(data, psf, mask, boundary, camera, backgroundAdu, workers, fft, Float.NaN, share,
+                seed);
     }
 
     private DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
-            double backgroundAdu, Workers workers, float start, double heldShare, long heldSeed) {
+            double backgroundAdu, Workers workers, FftEngine fft, float start, double heldShare, long heldSeed) {
         if (!(backgroundAdu >= 0) || !Double.isFinite(backgroundAdu)) {
             throw new IllegalArgumentException("background = " + backgroundAdu + " is not allowed; give 0 or more ADU above the offset");
         }
@@ -127,7 +140,7 @@ public final class DeconvolutionProblem {
         }
         Volume.checkSize(nx, ny, nz);
         int n = nx * ny * nz;
-        this.blur = new BlurOperator(psf, nx, ny, nz, workers);
+        this.blur = new BlurOperator(psf, nx, ny, nz, workers, fft);
         this.y = new float[w * h * d];
         double s = camera.readNoiseShift();
         this.background = (float) (backgroundAdu / camera.gain() + s);
@@ -160,23 +173,26 @@ public final class DeconvolutionProblem {
                     + ": nothing is left to deconvolve");
         }
         this.trusted = count;
-        this.norm = new float[n];
         if (boundary == Boundary.ZERO_SAME) {
+            this.norm = new float[n];
             for (int i = 0; i < n; i++) {
                 norm[i] = inWindow(i) ? 1f : 0f;
             }
             this.start = start;
         } else {
+            // H^T w computed in the blur's in-place work array (no FFT work buffer kept for the run), then trimmed
+            float[] t = blur.newWorkArray();
             for (int z = 0; z < d; z++) {
                 for (int yy = 0; yy < h; yy++) {
                     int row = (z * ny + yy) * nx;
                     int wrow = (z * h + yy) * w;
                     for (int x = 0; x < w; x++) {
-                        norm[row + x] = y[wrow + x] >= 0 ? 1f : 0f;
+                        t[row + x] = y[wrow + x] >= 0 ? 1f : 0f;
                     }
                 }
             }
-            blur.applyAdjoint(norm, norm);
+            blur.applyAdjoint(t, t);
+            this.norm = t.length == n ? t : java.util.Arrays.copyOf(t, n);
             float max = 0;
             for (float v : norm) {
                 max = Math.max(max, v);
@@ -196,7 +212,8 @@ public final class DeconvolutionProblem {
      * no normalisation (H^T 1 taken as 1), no background, start value 0.5 everywhere.
      */
     public static DeconvolutionProblem compatible(Volume data, Volume psf, Workers workers) {
-        return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), 0, workers, 0.5f, 0, 0);
+        return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), 0, workers,
+                FftEngines.standard(), 0.5f, 0, 0);
     }
 
     private boolean inWindow(int i) {

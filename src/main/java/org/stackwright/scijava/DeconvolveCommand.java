@@ -88,6 +88,9 @@ public final class DeconvolveCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "immersion-index")
     private Double immersionIndex;
 
+    @Parameter(persist = false, required = false, label = "fft")
+    private String fft;
+
     @Parameter(persist = false, required = false, label = "record")
     private File record;
 

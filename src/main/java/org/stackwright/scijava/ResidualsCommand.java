@@ -46,6 +46,9 @@ public final class ResidualsCommand extends OperationCommand {
     @Parameter(type = ItemIO.OUTPUT, label = "summary")
     private ImagePlus summary;
 
+    @Parameter(persist = false, required = false, label = "fft")
+    private String fft;
+
     @Parameter(persist = false, required = false, label = "record")
     private File record;
 

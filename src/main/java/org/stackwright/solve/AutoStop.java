@@ -65,14 +65,13 @@ public final class AutoStop {
             Camera camera, double backgroundAdu, DeconvolutionSettings s, RunContext ctx) {
         int max = s.stopping().maxIterations();
         DeconvolutionSettings trial = s.withStopping(new Stopping(StopRule.AUTO, max, s.stopping().tolerance()));
-        RunContext trialContext = new RunContext(ctx.threads(),
-                (f, status) -> ctx.progress(0.5 * f, "automatic stop, trial on half the pixels: " + status), ctx::warn,
-                ctx::isCancelled);
+        RunContext trialContext = ctx.withProgress(
+                (f, status) -> ctx.progress(0.5 * f, "automatic stop, trial on half the pixels: " + status));
         Solution sol;
         HeldOutRecorder recorder = new HeldOutRecorder(max);
         try (Workers workers = new Workers(ctx.threads())) {
             DeconvolutionProblem p = DeconvolutionProblem.withHeldOut(data, psf, mask, boundary, camera, backgroundAdu,
-                    workers, HELD_OUT_SHARE, SEED);
+                    workers, ctx.fft(), HELD_OUT_SHARE, SEED);
             sol = trial.solver().solve(p, trialContext, recorder);
         }
         return choice(sol, recorder.history(), max);

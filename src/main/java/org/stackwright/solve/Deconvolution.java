@@ -88,7 +88,7 @@ public final class Deconvolution {
         Volume model;
         double[] fit;
         try (Workers workers = new Workers(ctx.threads())) {
-            problem = new DeconvolutionProblem(data, p, mask, boundary, r.camera(), bg, workers);
+            problem = new DeconvolutionProblem(data, p, mask, boundary, r.camera(), bg, workers, ctx.fft());
             sol = solver.solve(problem, ctx, listener);
             fit = finalFit(problem, sol.estimate());
             model = withModel ? forwardModel(problem, sol.estimate(), bg) : null;
@@ -133,6 +133,8 @@ public final class Deconvolution {
         rec.put("voxel_um", List.of(data.voxel().x(), data.voxel().y(), data.voxel().z()));
         rec.put("grid_shape", problem.gridWidth() + "x" + problem.gridHeight() + "x" + problem.gridDepth());
         rec.put("trusted_pixels", problem.trustedPixels());
+        rec.put("fft_engine", problem.blur().fftEngine());
+        rec.put("fft_planning", problem.blur().fftPlanning());
         rec.put("peak_memory_estimate_bytes", need);
         rec.put("result_units", "ADU above the camera offset (background removed)");
         return new Outcome(result, sol, rec, model, r);

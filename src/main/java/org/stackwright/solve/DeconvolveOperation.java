@@ -7,6 +7,8 @@ import java.util.Map;
 
 import ij.ImagePlus;
 
+import org.stackwright.fft.FftEngines;
+import org.stackwright.op.FftChoice;
 import org.stackwright.op.Limits;
 import org.stackwright.op.MaskChecks;
 import org.stackwright.op.Operation;
@@ -87,12 +89,15 @@ public final class DeconvolveOperation implements Operation {
                 Param.number("na", null, 0.01, 1.7, "", "numerical aperture, for the sampling check (optional)"),
                 Param.number("wavelength", null, 200, 2000, "nm", "emission wavelength, for the sampling check (optional)"),
                 Param.number("immersion-index", null, 1.0, 2.0, "", "immersion index, for the sampling check (optional)"),
+                FftChoice.param(),
                 Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history"));
     }
 
     @Override
-    public Result run(Values v, RunContext ctx) {
+    public Result run(Values v, RunContext door) {
         DeconvolutionSettings s = settings(v);
+        FftEngines.Choice fft = FftChoice.choose(v);
+        RunContext ctx = FftChoice.context(door, fft);
         ImagePlus in = v.image("input");
         ImagePlus psfImp = v.image("psf");
         if (in.getNChannels() > 1 || in.getNFrames() > 1) {
@@ -128,6 +133,7 @@ public final class DeconvolveOperation implements Operation {
                 : Deconvolution.run(data, psf, psfImp.getTitle(), mask, s, dark, flat, ctx, IterationListener.NONE);
         Result r = new Result();
         r.image("output", ImagePlusAdapter.toImagePlus(out.result(), in.getTitle() + "-deconvolve"));
+        FftChoice.note(r, fft);
         for (Map.Entry<String, Object> e : out.record().entrySet()) {
             r.record(e.getKey(), e.getValue());
         }

@@ -110,7 +110,7 @@ public final class NoiseReplicas {
         double[] m2 = new double[n];
         Volume photons = model.withData(scaled(model.data(), 1.0 / s.gain()));
         Camera camera = s.camera();
-        RunContext quiet = new RunContext(ctx.threads(), null, null, ctx::isCancelled);
+        RunContext quiet = new RunContext(ctx.threads(), null, null, ctx::isCancelled).withFft(ctx.fft());
         try (Workers workers = new Workers(ctx.threads())) {
             for (int r = 0; r < replicas; r++) {
                 ctx.checkCancelled();

@@ -82,7 +82,7 @@ public final class RichardsonLucy implements Solver {
         BlurOperator h = p.blur();
         Workers workers = p.workers();
         float[] norm = p.normalisation();
-        float[] buf = new float[n];
+        float[] buf = h.newWorkArray(); // grid in its first n floats; the FFTs run in place in it
         Sums sums = new Sums(2);
         IterationLog log = new IterationLog(method(), stopping, context, listener);
         double trusted = p.trustedPixels();
@@ -119,7 +119,7 @@ public final class RichardsonLucy implements Solver {
         BlurOperator h = p.blur();
         Workers workers = p.workers();
         float[] norm = p.normalisation();
-        float[] buf = new float[n];
+        float[] buf = h.newWorkArray(); // grid in its first n floats; the FFTs run in place in it
         float[] xOld = y.clone();
         float[] gPrev = new float[n];
         Sums sums = new Sums(4);

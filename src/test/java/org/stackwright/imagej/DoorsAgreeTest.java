@@ -66,6 +66,8 @@ class DoorsAgreeTest {
                         Map.of(), List.of("output")),
                 new Case("deconvolve", "Deconvolve Stack...", ordered("method", "richardson-lucy", "iterations", "5",
                         "offset", "100"), ordered("input", "demo-cells.tif", "psf", "demo-psf.tif"), List.of("output")),
+                new Case("deconvolve", "Deconvolve Stack...", ordered("iterations", "3", "offset", "100", "fft", "java"),
+                        ordered("input", "demo-cells.tif", "psf", "demo-psf.tif"), List.of("output")),
                 new Case("inpaint", "Fill Masked Pixels...", ordered("method", "harmonic"),
                         ordered("input", "demo-tiles.tif", "mask", "demo-tiles-damage.tif"), List.of("output")),
                 new Case("find-defects", "Find Defective Pixels...", ordered(), ordered("input", "demo-tiles.tif"),

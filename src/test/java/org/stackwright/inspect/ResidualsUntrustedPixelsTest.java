@@ -42,7 +42,7 @@ class ResidualsUntrustedPixelsTest {
             assertEquals(bad.length, scan.nonFinite());
             Volume unit = ResidualMaps.normalise(psf);
             Volume filled = ResidualsOperation.predictionWhereUntrusted(damaged, truth, unit, model,
-                    scan.nonFiniteMask(), w);
+                    scan.nonFiniteMask(), w, org.stackwright.fft.FftEngines.standard());
             ResidualMaps withFill = ResidualMaps.compute(filled, truth, unit, model, w);
             ResidualMaps whole = ResidualMaps.compute(data, truth, unit, model, w);
             float[] a = withFill.normalised().data();

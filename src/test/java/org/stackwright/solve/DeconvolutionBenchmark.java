@@ -12,11 +12,15 @@ import java.nio.file.Paths;
 import java.nio.file.StandardOpenOption;
 import java.util.ArrayList;
 import java.util.Arrays;
+import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Locale;
+import java.util.Map;
 import java.util.SplittableRandom;
 import java.util.concurrent.TimeUnit;
 
+import org.stackwright.fft.FftEngine;
+import org.stackwright.fft.FftEngines;
 import org.stackwright.fft.RealFft3D;
 import org.stackwright.model.Camera;
 import org.stackwright.model.DeconvolutionProblem;
@@ -30,12 +34,17 @@ import org.stackwright.volume.VoxelSize;
 /**
  * The deconvolution benchmark (not a test). Prints, in one run:
  * <ol>
- * <li>for 64x256x256 and 128x512x512 with a 31^3 PSF (extended boundary): one Richardson-Lucy iteration against
- * the 4 FFTs it needs at the padded size (ratio, goal &lt;= 1.15), and the reference library's RL per-iteration
- * time on the same data (ratio, goal ours &gt;= 3x faster), when /usr/bin/python3 has scikit-image;</li>
- * <li>live heap during a run against the float size of the padded volume (goal &lt;= 6x);</li>
+ * <li>for 64x256x256 and 128x512x512 with a 31^3 PSF (extended boundary), on each FFT engine (java, and native
+ * where it loads) with 1 and all threads: one Richardson-Lucy iteration against the 4 FFTs it needs at the padded
+ * size (ratio, goal &lt;= 1.2), and the reference library's RL per-iteration time on the same data (ratio, goal
+ * ours &gt;= 3x faster), when /usr/bin/python3 has scikit-image;</li>
+ * <li>live heap (and native memory) during plain and accelerated RL against the float size of the padded volume
+ * (goal &lt;= 6x);</li>
+ * <li>the transform alone: our native round trip against FFTW through pyFFTW (Debian python3-pyfftw) at the same
+ * thread count and planning (goal ours &lt;= 1.25x), with each side's planning time;</li>
  * <li>on the bundled demo stack (invented truth known): the reference library's best NRMSE over a range of
- * iteration counts, and the time ours (accelerated, noise stop) needs to reach that NRMSE (goal &gt;= 8x shorter).</li>
+ * iteration counts, and the time ours (accelerated, noise stop, standard engine) needs to reach that NRMSE (goal
+ * &gt;= 4x shorter).</li>
  * </ol>
  * Run from the repository root after {@code mvn -q -DskipTests package test-compile}:
  * {@code java -Xmx12g -cp target/stackwright.jar:target/test-classes org.stackwright.solve.DeconvolutionBenchmark [--small-only]}
@@ -44,6 +53,7 @@ public final class DeconvolutionBenchmark {
 
     private static final String PYTHON = "/usr/bin/python3";
     private static final Path SCRIPT = Paths.get("tools", "benchmark", "skimage_rl.py");
+    private static final Path PYFFTW = Paths.get("tools", "benchmark", "pyfftw_roundtrip.py");
 
     private DeconvolutionBenchmark() {
     }
@@ -57,11 +67,21 @@ public final class DeconvolutionBenchmark {
                 System.getProperty("java.version"), Runtime.getRuntime().maxMemory() / 1073741824.0, threads);
         Path tmp = Files.createTempDirectory("stackwright-bench");
         boolean python = Files.isExecutable(Paths.get(PYTHON)) && Files.exists(SCRIPT);
+        // measured plans must be measured here, not read from an earlier run's wisdom; RL runs use estimated plans
+        System.setProperty("stackwright.cache", tmp.resolve("cache").toString());
+        System.setProperty("stackwright.fft.planning", "estimate");
+        System.out.printf(Locale.ROOT, "load average at start: %s%n", loadAverage());
         if (!demoOnly) {
             iterationCost(new int[] {256, 256, 64}, 31, threads, tmp, python, 3);
+            if (python) {
+                transformAlone(288, 288, 96, threads, 5);
+            }
         }
         if (!smallOnly && !demoOnly) {
             iterationCost(new int[] {512, 512, 128}, 31, threads, tmp, python, 2);
+            if (python) {
+                transformAlone(576, 576, 160, threads, 3);
+            }
         }
         timeToBest(threads, tmp, python);
     }
@@ -77,83 +97,163 @@ public final class DeconvolutionBenchmark {
             d[i] = (float) (50 + 100 * r.nextDouble());
         }
         String label = size[0] + "x" + size[1] + "x" + size[2];
-        try (Workers w = new Workers(threads)) {
-            int nx = org.stackwright.fft.Convolution.paddedSize(size[0], psfSize);
-            int ny = org.stackwright.fft.Convolution.paddedSize(size[1], psfSize);
-            int nz = org.stackwright.fft.Convolution.paddedSize(size[2], psfSize);
-            long grid = (long) nx * ny * nz;
-            double[] fft = fourFfts(nx, ny, nz, w, reps);
-            double fourFft = fft[0];
-            System.gc();
-            System.gc();
-            long[] base = {used()};
-            long[] live = new long[1];
-            long[] stamps = new long[reps + 2];
-            DeconvolutionProblem p = new DeconvolutionProblem(data, psf, null, DeconvolutionProblem.Boundary.EXTENDED,
-                    Camera.of(1, 0, 0), 10, w);
-            long[] cpu = new long[reps + 2];
-            stamps[0] = System.nanoTime();
-            new RichardsonLucy(Stopping.fixed(reps + 1), false).solve(p, RunContext.quiet(threads), (k, max, obj, ch) -> {
-                stamps[k] = System.nanoTime();
-                cpu[k] = processCpu();
-                if (k == 1) {
-                    System.gc();
-                    live[0] = used() - base[0];
-                    stamps[k] = System.nanoTime();
-                    cpu[k] = processCpu();
-                }
-            });
-            double iter = Double.POSITIVE_INFINITY;
-            for (int k = 2; k <= reps + 1; k++) {
-                iter = Math.min(iter, (stamps[k] - stamps[k - 1]) * 1e-9);
-            }
-            double iterCpu = (cpu[reps + 1] - cpu[1]) * 1e-9 / reps;
-            System.out.printf(Locale.ROOT, "%s, PSF %d^3, grid %dx%dx%d: RL iteration %.3f s wall / %.3f s CPU, 4 FFTs "
-                    + "%.3f s wall / %.3f s CPU, ratio %.2f wall / %.2f CPU (goal <= 1.15); live heap during RL %.0f MiB "
-                    + "= %.2f x the padded float volume (goal <= 6)%n", label, psfSize, nx, ny, nz, iter, iterCpu,
-                    fourFft, fft[1], iter / fourFft, iterCpu / fft[1], live[0] / 1048576.0, live[0] / (4.0 * grid));
-            p = null;
-            System.gc();
-            System.gc();
-            base[0] = used();
-            DeconvolutionProblem pa = new DeconvolutionProblem(data, psf, null, DeconvolutionProblem.Boundary.EXTENDED,
-                    Camera.of(1, 0, 0), 10, w);
-            new RichardsonLucy(Stopping.fixed(2), true).solve(pa, RunContext.quiet(threads), (k, max, obj, ch) -> {
-                if (k == 2) {
-                    System.gc();
-                    live[0] = used() - base[0];
-                }
-            });
-            pa = null;
-            System.out.printf(Locale.ROOT, "%s: live heap during accelerated RL %.0f MiB = %.2f x the padded float volume%n",
-                    label, live[0] / 1048576.0, live[0] / (4.0 * grid));
-            System.gc();
-            if (python) {
-                Path img = tmp.resolve("bench-image.raw");
-                Path ps = tmp.resolve("bench-psf.raw");
-                writeRaw(data.data(), img);
-                writeRaw(psf.data(), ps);
-                List<String> out = runPython("periter", img, size, ps, psfSize, Integer.toString(reps));
-                for (String line : out) {
-                    if (line.startsWith("periter")) {
-                        double theirs = Double.parseDouble(line.split(" ")[1]);
-                        double theirsCpu = Double.parseDouble(line.split(" ")[2]);
-                        System.out.printf(Locale.ROOT, "%s: reference library RL iteration %.3f s wall, %.3f s CPU (%s); "
-                                + "ours %.3f s wall, %.3f s CPU (all threads): ours %.2fx faster in wall time (goal >= 3), "
-                                + "%.2fx in CPU time%n", label, theirs, theirsCpu, out.get(0), iter, iterCpu, theirs / iter,
-                                theirsCpu / iterCpu);
+        int nx = org.stackwright.fft.Convolution.paddedSize(size[0], psfSize);
+        int ny = org.stackwright.fft.Convolution.paddedSize(size[1], psfSize);
+        int nz = org.stackwright.fft.Convolution.paddedSize(size[2], psfSize);
+        long grid = (long) nx * ny * nz;
+        System.out.printf(Locale.ROOT, "%s, PSF %d^3, grid %dx%dx%d%n", label, psfSize, nx, ny, nz);
+        Map<String, Double> rlTwoThreads = new LinkedHashMap<>();
+        for (FftEngine engine : engines()) {
+            for (int t : threadCounts(threads)) {
+                try (Workers w = new Workers(t)) {
+                    double[] fft = fourFfts(engine, nx, ny, nz, w, reps);
+                    double[] rl = rlIteration(data, psf, engine, w, reps);
+                    System.out.printf(Locale.ROOT, "  %s engine, %d thread(s): RL iteration %.3f s wall / %.3f s CPU, "
+                            + "4 FFTs %.3f s wall / %.3f s CPU, ratio %.2f wall / %.2f CPU (goal <= 1.2)%n",
+                            engine.name(), t, rl[0], rl[1], fft[0], fft[1], rl[0] / fft[0], rl[1] / fft[1]);
+                    if (t == threads) {
+                        rlTwoThreads.put(engine.name(), rl[0]);
                     }
                 }
-                Files.deleteIfExists(img);
+            }
+        }
+        for (FftEngine engine : engines()) {
+            try (Workers w = new Workers(threads)) {
+                for (boolean accelerated : new boolean[] {false, true}) {
+                    long[] mem = liveMemory(data, psf, engine, w, accelerated);
+                    System.out.printf(Locale.ROOT, "  %s engine: during %s RL live heap %.0f MiB = %.2f x the padded float "
+                            + "volume, native memory %.0f MiB, together %.2f x (goal <= 6)%n", engine.name(),
+                            accelerated ? "accelerated" : "plain", mem[0] / 1048576.0, mem[0] / (4.0 * grid),
+                            mem[1] / 1048576.0, (mem[0] + mem[1]) / (4.0 * grid));
+                }
+            }
+        }
+        if (python) {
+            Path img = tmp.resolve("bench-image.raw");
+            Path ps = tmp.resolve("bench-psf.raw");
+            writeRaw(data.data(), img);
+            writeRaw(psf.data(), ps);
+            List<String> out = runPython("periter", img, size, ps, psfSize, Integer.toString(reps));
+            for (String line : out) {
+                if (line.startsWith("periter")) {
+                    double theirs = Double.parseDouble(line.split(" ")[1]);
+                    double theirsCpu = Double.parseDouble(line.split(" ")[2]);
+                    System.out.printf(Locale.ROOT, "  reference library RL iteration %.3f s wall, %.3f s CPU (%s)%n",
+                            theirs, theirsCpu, out.get(0));
+                    rlTwoThreads.forEach((engine, ours) -> System.out.printf(Locale.ROOT, "  %s engine, %d threads: "
+                            + "ours %.2fx faster per iteration (goal >= 3)%n", engine, threads, theirs / ours));
+                }
+            }
+            Files.deleteIfExists(img);
+        }
+    }
+
+    /** One forward + inverse transform alone: our native engine against pyFFTW, each planned both ways. */
+    private static void transformAlone(int nx, int ny, int nz, int threads, int reps) throws Exception {
+        if (engines().size() < 2) {
+            System.out.println("  transform alone: no native engine here");
+            return;
+        }
+        for (int t : threadCounts(threads)) {
+            Map<String, double[]> ours = new LinkedHashMap<>();
+            for (String planning : new String[] {"estimate", "measure"}) {
+                Object[] o = (Object[]) Class.forName("org.stackwright.fft.fftw.FftwTiming")
+                        .getMethod("roundTrip", int.class, int.class, int.class, int.class, String.class, int.class)
+                        .invoke(null, nx, ny, nz, t, planning, reps);
+                ours.put(planning, new double[] {(Double) o[0], (Double) o[1]});
+            }
+            List<String> py = runCommand(List.of(PYTHON, PYFFTW.toString(), "" + nz, "" + ny, "" + nx, "" + t, "" + reps));
+            for (String line : py) {
+                if (line.startsWith("roundtrip")) {
+                    String[] f = line.split(" ");
+                    String planning = f[1].equals("FFTW_MEASURE") ? "measure" : "estimate";
+                    double[] o = ours.get(planning);
+                    double theirs = Double.parseDouble(f[3]);
+                    System.out.printf(Locale.ROOT, "  transform alone %dx%dx%d, %d thread(s), %s plans: ours %.3f s "
+                            + "(planning %.2f s), %s %.3f s (planning %.2f s): ours / theirs %.2f (goal <= 1.25)%n",
+                            nx, ny, nz, t, planning, o[1], o[0], py.get(0), theirs, Double.parseDouble(f[2]), o[1] / theirs);
+                }
             }
         }
     }
 
+    private static int[] threadCounts(int threads) {
+        return threads > 1 ? new int[] {1, threads} : new int[] {1};
+    }
+
+    /** @return the Java engine and, where it loads, the native engine */
+    private static List<FftEngine> engines() {
+        List<FftEngine> e = new ArrayList<>(List.of(FftEngines.java()));
+        try {
+            e.add(FftEngines.choose("native").engine());
+        } catch (IllegalArgumentException notHere) {
+            // the Java engine only
+        }
+        return e;
+    }
+
+    /** @return {best wall seconds, mean CPU seconds} of one plain RL iteration after the first */
+    private static double[] rlIteration(Volume data, Volume psf, FftEngine engine, Workers w, int reps) {
+        DeconvolutionProblem p = new DeconvolutionProblem(data, psf, null, DeconvolutionProblem.Boundary.EXTENDED,
+                Camera.of(1, 0, 0), 10, w, engine);
+        long[] stamps = new long[reps + 2];
+        long[] cpu = new long[reps + 2];
+        new RichardsonLucy(Stopping.fixed(reps + 1), false).solve(p, RunContext.quiet(w.threads()).withFft(engine),
+                (k, max, obj, ch) -> {
+                    stamps[k] = System.nanoTime();
+                    cpu[k] = processCpu();
+                });
+        double iter = Double.POSITIVE_INFINITY;
+        for (int k = 2; k <= reps + 1; k++) {
+            iter = Math.min(iter, (stamps[k] - stamps[k - 1]) * 1e-9);
+        }
+        return new double[] {iter, (cpu[reps + 1] - cpu[1]) * 1e-9 / reps};
+    }
+
+    /** @return {live heap bytes, native bytes (JavaCPP)} during the second iteration of RL */
+    private static long[] liveMemory(Volume data, Volume psf, FftEngine engine, Workers w, boolean accelerated)
+            throws Exception {
+        System.gc();
+        System.gc();
+        long base = used();
+        long nativeBase = nativeBytes();
+        long[] live = new long[2];
+        DeconvolutionProblem p = new DeconvolutionProblem(data, psf, null, DeconvolutionProblem.Boundary.EXTENDED,
+                Camera.of(1, 0, 0), 10, w, engine);
+        new RichardsonLucy(Stopping.fixed(2), accelerated).solve(p, RunContext.quiet(w.threads()).withFft(engine),
+                (k, max, obj, ch) -> {
+                    if (k == 2) {
+                        System.gc();
+                        live[0] = used() - base;
+                        live[1] = nativeBytes() - nativeBase;
+                    }
+                });
+        return live;
+    }
+
+    /** @return bytes JavaCPP has allocated (the native engine's buffers), 0 without FFTW */
+    private static long nativeBytes() {
+        try {
+            return (Long) Class.forName("org.bytedeco.javacpp.Pointer").getMethod("totalBytes").invoke(null);
+        } catch (ReflectiveOperationException | LinkageError e) {
+            return 0;
+        }
+    }
+
     /**
-     * @return the shortest wall time of forward + inverse + forward + inverse at the grid size, and the mean CPU
-     *     time (all threads) of the same (arrays freed after)
+     * @return the shortest wall time of forward + inverse + forward + inverse at the grid size on the engine (the
+     *     Java engine out of place as a solver's transforms; the native one in place without copies), and the mean
+     *     CPU time (all threads) of the same (arrays freed after)
      */
-    private static double[] fourFfts(int nx, int ny, int nz, Workers w, int reps) {
+    private static double[] fourFfts(FftEngine engine, int nx, int ny, int nz, Workers w, int reps) throws Exception {
+        if (!engine.name().equals(FftEngines.JAVA_NAME)) {
+            long c0 = processCpu();
+            Object[] o = (Object[]) Class.forName("org.stackwright.fft.fftw.FftwTiming")
+                    .getMethod("roundTrip", int.class, int.class, int.class, int.class, String.class, int.class)
+                    .invoke(null, nx, ny, nz, w.threads(), "estimate", reps);
+            double cpu = (processCpu() - c0) * 1e-9 / (reps + 1) * 2;
+            return new double[] {2 * (Double) o[1], cpu};
+        }
         RealFft3D fft = new RealFft3D(nx, ny, nz, w);
         float[] a = new float[nx * ny * nz];
         float[] spec = fft.newSpectrum();
@@ -243,8 +343,9 @@ public final class DeconvolutionBenchmark {
         long t0 = System.nanoTime();
         Deconvolution.run(data, psf, "demo-psf.tif", null, s, RunContext.quiet(threads), IterationListener.NONE);
         double full = (System.nanoTime() - t0) * 1e-9;
-        System.out.printf(Locale.ROOT, "demo: ours accelerated + noise stop: %d iterations, %.2f s including set-up, "
-                + "NRMSE %.4f (%s)%n", o.solution().iterations(), full, ourFinal, o.solution().stopReason());
+        System.out.printf(Locale.ROOT, "demo: ours accelerated + noise stop (%s engine): %d iterations, %.2f s including "
+                + "set-up, NRMSE %.4f (%s)%n", o.record().get("fft_engine"), o.solution().iterations(), full, ourFinal,
+                o.solution().stopReason());
         if (reach > 0) {
             t0 = System.nanoTime();
             long c0 = processCpu();
@@ -253,7 +354,7 @@ public final class DeconvolutionBenchmark {
             double t = (System.nanoTime() - t0) * 1e-9;
             double c = (processCpu() - c0) * 1e-9;
             System.out.printf(Locale.ROOT, "demo: ours reaches the reference best NRMSE %.4f at iteration %d in %.2f s wall, "
-                    + "%.2f s CPU: %.1fx shorter in wall time (goal >= 8), %.1fx less CPU; with the noise stop it runs "
+                    + "%.2f s CPU: %.1fx shorter in wall time (goal >= 4), %.1fx less CPU; with the noise stop it runs "
                     + "%.2f s: %.1fx shorter%n", bestE, reach, t, c, bestT / t, bestCpu / c, full, bestT / full);
         } else {
             System.out.printf(Locale.ROOT, "demo: ours did not reach the reference best NRMSE %.4f before the noise stop "
@@ -273,6 +374,10 @@ public final class DeconvolutionBenchmark {
         if (fourth != null) {
             cmd.add(fourth);
         }
+        return runCommand(cmd);
+    }
+
+    private static List<String> runCommand(List<String> cmd) throws IOException, InterruptedException {
         Process pr = new ProcessBuilder(cmd).redirectErrorStream(true).start();
         List<String> lines = new ArrayList<>();
         try (BufferedReader b = new BufferedReader(new InputStreamReader(pr.getInputStream()))) {
@@ -300,6 +405,14 @@ public final class DeconvolutionBenchmark {
     private static long processCpu() {
         return ((com.sun.management.OperatingSystemMXBean) java.lang.management.ManagementFactory
                 .getOperatingSystemMXBean()).getProcessCpuTime();
+    }
+
+    private static String loadAverage() {
+        try {
+            return Files.readString(Paths.get("/proc/loadavg")).trim();
+        } catch (IOException e) {
+            return "unknown";
+        }
     }
 
     private static long used() {

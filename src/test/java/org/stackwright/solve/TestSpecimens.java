@@ -9,7 +9,7 @@ import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
 
 /** Small invented 3D problems with known truth, shared by the solver tests (deterministic seeds). */
-final class TestSpecimens {
+public final class TestSpecimens {
 
     static final VoxelSize VOXEL = new VoxelSize(0.1, 0.1, 0.25);
 
@@ -17,7 +17,7 @@ final class TestSpecimens {
     }
 
     /** A Gaussian PSF with sigma 1.5 px laterally and 1.2 planes axially, 11 x 11 x 9. */
-    static Volume psf() {
+    public static Volume psf() {
         return GaussianPsf.sampled(0.15, 0.3, VOXEL, 11, 11, 9);
     }
 
@@ -27,7 +27,7 @@ final class TestSpecimens {
      *
      * @param brightness scales the photon counts (lower = noisier)
      */
-    static Simulation.Outcome cells(int nx, int ny, int nz, double brightness, double background, Camera camera,
+    public static Simulation.Outcome cells(int nx, int ny, int nz, double brightness, double background, Camera camera,
             long seed) {
         Specimen.Contents c = Specimen.Contents.cellField();
         Specimen.Contents s = new Specimen.Contents(c.beads(), c.filaments(), c.vesicles(), c.beadPhotons() * brightness,
