@@ -37,6 +37,22 @@ public final class CalibrationFrames {
     public record Flat(Estimate gain, List<double[]> levels, int pixelsLeftOut) {
     }
 
+    /**
+     * @param key the frames' parameter key
+     * @param frames calibration frames, not modified
+     * @param image the image they are for (only its plane size is used)
+     * @return the frames, when their planes have the image's size
+     * @throws IllegalArgumentException naming the key otherwise
+     */
+    public static Volume requireSamePlanes(String key, Volume frames, Volume image) {
+        if (frames.width() != image.width() || frames.height() != image.height()) {
+            throw new IllegalArgumentException(key + ": frames of " + frames.width() + "x" + frames.height() + " pixels"
+                    + " do not match the image's " + image.width() + "x" + image.height() + "; give frames from the same"
+                    + " camera and region of interest");
+        }
+        return frames;
+    }
+
     private static final double HOT_SIGMAS = 6;
     private static final double NOISY_FACTOR = 25;
     private static final double SAME_LEVEL = 0.05;

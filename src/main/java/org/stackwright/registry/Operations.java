@@ -5,6 +5,7 @@ import java.util.Optional;
 
 import org.stackwright.op.Operation;
 
+import org.stackwright.inspect.CameraNoiseOperation;
 import org.stackwright.inspect.CompareOperation;
 import org.stackwright.inspect.ResidualsOperation;
 import org.stackwright.repair.FindDefectsOperation;
@@ -37,6 +38,7 @@ public final class Operations {
                 new InpaintOperation(),
                 new ResidualsOperation(),
                 new CompareOperation(),
+                new CameraNoiseOperation(),
                 new DeconvolveOperation());
     }
 

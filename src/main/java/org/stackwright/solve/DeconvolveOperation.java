@@ -9,6 +9,7 @@ import ij.ImagePlus;
 
 import org.stackwright.fft.FftEngines;
 import org.stackwright.op.FftChoice;
+import org.stackwright.model.CalibrationFrames;
 import org.stackwright.op.Limits;
 import org.stackwright.op.MaskChecks;
 import org.stackwright.op.Operation;
@@ -209,19 +210,10 @@ public final class DeconvolveOperation implements Operation {
         return d;
     }
 
-    /** Reads calibration frames: one channel, the image's plane size. */
+    /** Reads calibration frames (the first channel), with the image's plane size. */
     private static Volume frames(Values v, String key, Volume data) {
         ImagePlus imp = v.image(key);
-        if (imp == null) {
-            return null;
-        }
-        Volume f = ImagePlusAdapter.toVolume(imp);
-        if (f.width() != data.width() || f.height() != data.height()) {
-            throw new IllegalArgumentException(key + ": frames of " + f.width() + "x" + f.height() + " pixels do not match"
-                    + " the image's " + data.width() + "x" + data.height() + "; give frames from the same camera and"
-                    + " region of interest");
-        }
-        return f;
+        return imp == null ? null : CalibrationFrames.requireSamePlanes(key, ImagePlusAdapter.toVolume(imp), data);
     }
 
     /**

@@ -71,7 +71,9 @@ class DoorsAgreeTest {
                 new Case("inpaint", "Fill Masked Pixels...", ordered("method", "harmonic"),
                         ordered("input", "demo-tiles.tif", "mask", "demo-tiles-damage.tif"), List.of("output")),
                 new Case("find-defects", "Find Defective Pixels...", ordered(), ordered("input", "demo-tiles.tif"),
-                        List.of("output")));
+                        List.of("output")),
+                new Case("camera-noise", "Camera Noise...", ordered("offset", "100"), ordered("input", "demo-cells.tif"),
+                        List.of("plot")));
     }
 
     private static Map<String, String> ordered(String... kv) {

@@ -8,6 +8,7 @@ import java.util.Locale;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.EnumSource;
 import org.junit.jupiter.api.Test;
+import org.stackwright.testing.CameraData;
 import org.stackwright.volume.Volume;
 
 /**

@@ -1,4 +1,4 @@
-package org.stackwright.model;
+package org.stackwright.testing;
 
 import org.apache.commons.math3.distribution.GammaDistribution;
 import org.apache.commons.math3.random.RandomGenerator;
@@ -8,7 +8,7 @@ import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
 
 /**
- * Invented camera images for the checks of the camera estimates, made independently of {@link Camera#record} and
+ * Invented camera images for the checks of the camera estimates, made independently of {@code model.Camera#record} and
  * of the simulator: its own specimen (smooth blobs on a sloping background, with bright points and lines that are
  * not smooth), its own random numbers (commons-math Well44497b; Poisson counts by multiplication of uniforms below a
  * mean of 30 and by the transformed rejection of Hoermann, "The transformed rejection method for generating Poisson
@@ -25,16 +25,17 @@ import org.stackwright.volume.VoxelSize;
  * </ul>
  * All values are rounded to whole ADU and clipped to 16 bits, as a camera does.
  */
-final class CameraData {
+public final class CameraData {
 
-    enum Kind {
+    /** The three camera types. */
+    public enum Kind {
         CCD(1, 1.5, 100, 1), SCMOS(2.2, 3, 100, 1), EM(10, 20, 500, 2);
 
-        final double gain;
-        final double readNoise;
-        final double offset;
+        public final double gain;
+        public final double readNoise;
+        public final double offset;
         /** excess-noise factor F^2 */
-        final double excess;
+        public final double excess;
 
         Kind(double gain, double readNoise, double offset, double excess) {
             this.gain = gain;
@@ -44,7 +45,7 @@ final class CameraData {
         }
 
         /** @return the slope of variance against mean level that a photon-transfer fit should find */
-        double transferSlope() {
+        public double transferSlope() {
             return gain * excess;
         }
     }
@@ -56,7 +57,7 @@ final class CameraData {
     private final int w;
     private final int h;
 
-    CameraData(Kind kind, int w, int h, long seed) {
+    public CameraData(Kind kind, int w, int h, long seed) {
         this.kind = kind;
         this.w = w;
         this.h = h;
@@ -77,7 +78,7 @@ final class CameraData {
      * and 3 thin lines (not smooth; Gaussian sigma 1 pixel, 1.5 planes: as fine as a microscope sampled at about
      * the Nyquist rate shows anything); from plane to plane the blobs and lines drift slowly.
      */
-    static double[] specimen(int w, int h, int d, double brightness, long seed) {
+    public static double[] specimen(int w, int h, int d, double brightness, long seed) {
         RandomGenerator r = new Well44497b(seed);
         double[] mu = new double[w * h * d];
         double[][] blobs = new double[6][];
@@ -122,7 +123,7 @@ final class CameraData {
     }
 
     /** One camera image of the expected electrons (planes of w x h), ADU. */
-    Volume record(double[] electrons, int d) {
+    public Volume record(double[] electrons, int d) {
         float[] out = new float[electrons.length];
         for (int i = 0; i < out.length; i++) {
             out[i] = adu(electrons[i], i % (w * h));
@@ -131,7 +132,7 @@ final class CameraData {
     }
 
     /** n dark frames (no light). */
-    Volume dark(int n) {
+    public Volume dark(int n) {
         return record(new double[w * h * n], n);
     }
 
@@ -139,7 +140,7 @@ final class CameraData {
      * Flat frames: {@code perLevel} frames at each of the given mean electron levels, in order, with a fixed
      * pixel-to-pixel sensitivity pattern of 1% (which pairs of frames at one level cancel).
      */
-    Volume flats(double[] levels, int perLevel) {
+    public Volume flats(double[] levels, int perLevel) {
         double[] prnu = new double[w * h];
         for (int i = 0; i < prnu.length; i++) {
             prnu[i] = 1 + 0.01 * rng.nextGaussian();
