@@ -82,9 +82,11 @@ public final class AutoStop {
         int best = Stopping.bestHeldOut(heldOut);
         boolean met = sol.stopReason().startsWith("auto");
         int iterations = Math.max(1, met ? best : max);
+        boolean levelled = sol.stopReason().contains("levelled off");
         String reason = met
-                ? String.format(Locale.ROOT, "auto: %d iterations, where the fit to held-out pixels was best (trial on"
-                        + " half of the pixels, %d iterations)", iterations, sol.iterations())
+                ? String.format(Locale.ROOT, "auto: %d iterations, where the fit to held-out pixels %s (trial on"
+                        + " half of the pixels, %d iterations)", iterations, levelled ? "levelled off" : "was best",
+                        sol.iterations())
                 : String.format(Locale.ROOT, "maximum: the fit to held-out pixels still improved after %d iterations, the"
                         + " maximum, so the automatic rule was not met; give a larger --iterations", max);
         return new Choice(iterations, met, reason, heldOut, sol.seconds());

@@ -21,6 +21,7 @@ final class IterationLog {
     private final long t0 = System.nanoTime();
     private int done;
     private String reason;
+    private int levelOffPixels;
 
     IterationLog(String method, Stopping stopping, RunContext context, IterationListener listener) {
         this.method = method;
@@ -30,6 +31,16 @@ final class IterationLog {
         this.objective = new double[stopping.maxIterations()];
         this.change = new double[stopping.maxIterations()];
         this.heldOut = new double[stopping.maxIterations()];
+    }
+
+    /**
+     * For a regularised method under the automatic rule: also stop when the held-out fit levels off
+     * ({@link Stopping#levelledOff}).
+     *
+     * @param heldOutPixels number of held-out pixels of the problem (0 = none)
+     */
+    void stopWhenLevelledOff(int heldOutPixels) {
+        levelOffPixels = stopping.rule() == StopRule.AUTO ? heldOutPixels : 0;
     }
 
     /** Checks for cancel before an iteration. */
@@ -57,7 +68,12 @@ final class IterationLog {
         listener.state(new IterationState(done, stopping.maxIterations(), obj, meanFit, expectedFit, held, ch, estimate));
         context.progress((double) done / stopping.maxIterations(),
                 String.format(Locale.ROOT, "%s iteration %d of at most %d", method, done, stopping.maxIterations()));
-        reason = stopping.check(done, meanFit, expectedFit, ch, Arrays.copyOf(heldOut, done));
+        double[] history = Arrays.copyOf(heldOut, done);
+        reason = stopping.check(done, meanFit, expectedFit, ch, history);
+        if (levelOffPixels > 0 && (reason == null || reason.startsWith("maximum"))) {
+            String levelled = Stopping.levelledOff(history, levelOffPixels);
+            reason = levelled != null ? levelled : reason;
+        }
         return reason != null;
     }
 

@@ -68,6 +68,9 @@ public final class RichardsonLucyTv implements Solver {
         double eps = 1e-3 * Math.max(Sums.maxAtLeastZero(x), 1e-6);
         Sums sums = new Sums(2);
         IterationLog log = new IterationLog(method(), stopping, context, listener);
+        if (lambda > 0) {
+            log.stopWhenLevelledOff(p.heldOutPixels());
+        }
         double trusted = p.trustedPixels();
         final float lam = (float) lambda;
         while (true) {

@@ -46,6 +46,40 @@ public record Stopping(StopRule rule, int maxIterations, double tolerance) {
         return best;
     }
 
+    /**
+     * The automatic rule for a regularised method, whose held-out fit levels off at the minimiser of its objective
+     * instead of turning up: stop when the best held-out fit improved, over the last {@link #patience} iterations, by
+     * less than its own statistical fluctuation, the standard error of a mean over the held-out pixels. Smaller gains
+     * cannot be told from noise in a fresh recording (the "improvement below its statistical fluctuation" criterion).
+     * For Poisson counts 2 KL is about chi-square with one degree of freedom, so the divergence per pixel has variance
+     * about 1/2 (Wilks' theorem; McCullagh &amp; Nelder, "Generalized Linear Models", 2nd ed., 1989, sec. 2.3; below
+     * a few counts per pixel an approximation).
+     *
+     * @param heldOut held-out fit per iteration so far (index k = the estimate after k iterations), not modified
+     * @param heldOutPixels number of held-out pixels (0: no held-out fit, never levels off)
+     * @return the stop reason, or null to go on
+     */
+    public static String levelledOff(double[] heldOut, int heldOutPixels) {
+        int k = heldOut.length;
+        int window = patience(k);
+        if (heldOutPixels <= 0 || k <= window) {
+            return null;
+        }
+        int before = bestHeldOut(java.util.Arrays.copyOf(heldOut, k - window));
+        int now = bestHeldOut(heldOut);
+        if (before < 0 || now < 0) {
+            return null;
+        }
+        double gain = heldOut[before] - heldOut[now];
+        double fluctuation = Math.sqrt(0.5 / heldOutPixels);
+        if (gain < fluctuation) {
+            return String.format(Locale.ROOT, "auto: the held-out fit levelled off at %.4f per pixel: it improved by"
+                    + " %.2g in the last %d iterations, less than its statistical fluctuation %.2g", heldOut[now], gain,
+                    window, fluctuation);
+        }
+        return null;
+    }
+
     /** Exactly n iterations. */
     public static Stopping fixed(int n) {
         return new Stopping(StopRule.FIXED, n, 1e-3);
