@@ -2,7 +2,7 @@ package org.stackwright.testing;
 
 import org.apache.commons.math3.distribution.GammaDistribution;
 import org.apache.commons.math3.random.RandomGenerator;
-import org.apache.commons.math3.special.Gamma;
+import org.apache.commons.math3.distribution.PoissonDistribution;
 import org.apache.commons.math3.random.Well44497b;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
@@ -10,10 +10,8 @@ import org.stackwright.volume.VoxelSize;
 /**
  * Invented camera images for the checks of the camera estimates, made independently of {@code model.Camera#record} and
  * of the simulator: its own specimen (smooth blobs on a sloping background, with bright points and lines that are
- * not smooth), its own random numbers (commons-math Well44497b; Poisson counts by multiplication of uniforms below a
- * mean of 30 and by the transformed rejection of Hoermann, "The transformed rejection method for generating Poisson
- * random variables", Insurance: Mathematics and Economics 12, 1993, above; gamma variables by Marsaglia &amp; Tsang,
- * "A simple method for generating gamma variables", ACM TOMS 26(3), 2000) and three camera types:
+ * not smooth), its own random numbers (commons-math: Well44497b, and its Poisson and gamma distributions, not the
+ * project's {@code model.PoissonSampler}) and three camera types:
  * <ul>
  * <li>CCD-like: gain 1 ADU/e-, read noise 1.5 ADU, offset 100 ADU;</li>
  * <li>sCMOS-like: gain 2.2 ADU/e-, read noise different per pixel (3 ADU times the square root of a gamma variable
@@ -167,56 +165,14 @@ public final class CameraData {
         return (float) Math.min(65535, Math.max(0, Math.rint(v)));
     }
 
-    /** A Poisson count of the given mean. */
+    /** A Poisson count of the given mean (commons-math). */
     private long poisson(double lam) {
-        if (lam < 30) {
-            double limit = Math.exp(-lam);
-            double prod = rng.nextDouble();
-            long k = 0;
-            while (prod > limit) {
-                prod *= rng.nextDouble();
-                k++;
-            }
-            return k;
-        }
-        double slam = Math.sqrt(lam);
-        double loglam = Math.log(lam);
-        double b = 0.931 + 2.53 * slam;
-        double a = -0.059 + 0.02483 * b;
-        double invAlpha = 1.1239 + 1.1328 / (b - 3.4);
-        double vr = 0.9277 - 3.6224 / (b - 2);
-        while (true) {
-            double u = rng.nextDouble() - 0.5;
-            double v = rng.nextDouble();
-            double us = 0.5 - Math.abs(u);
-            long k = (long) Math.floor((2 * a / us + b) * u + lam + 0.43);
-            if (us >= 0.07 && v <= vr) {
-                return k;
-            }
-            if (k < 0 || (us < 0.013 && v > us)) {
-                continue;
-            }
-            if (Math.log(v) + Math.log(invAlpha) - Math.log(a / (us * us) + b) <= -lam + k * loglam - Gamma.logGamma(k + 1.0)) {
-                return k;
-            }
-        }
+        return new PoissonDistribution(rng, lam, PoissonDistribution.DEFAULT_EPSILON,
+                PoissonDistribution.DEFAULT_MAX_ITERATIONS).sample();
     }
 
-    /** A gamma variable of integer shape n (at least 1) and scale 1. */
+    /** A gamma variable of integer shape n (at least 1) and scale 1 (commons-math). */
     private double gamma(long n) {
-        double d = n - 1.0 / 3;
-        double c = 1 / Math.sqrt(9 * d);
-        while (true) {
-            double x = rng.nextGaussian();
-            double v = 1 + c * x;
-            if (v <= 0) {
-                continue;
-            }
-            v = v * v * v;
-            double u = rng.nextDouble();
-            if (Math.log(u) < 0.5 * x * x + d - d * v + d * Math.log(v)) {
-                return d * v;
-            }
-        }
+        return new GammaDistribution(rng, n, 1).sample();
     }
 }
