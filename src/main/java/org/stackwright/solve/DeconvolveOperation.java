@@ -148,6 +148,7 @@ public final class DeconvolveOperation implements Operation {
                     + "over bright voxels (photon and camera noise only)", replicas, sp.spreadMedian(), sp.relativeMedian()));
         }
         double[] hist = out.solution().objective();
+        r.line(valuesUsed(out));
         r.line(String.format(Locale.ROOT, "deconvolved %s with %s: %d iteration(s), %.2f s; stopped by %s",
                 data.shape(), s.method(), out.solution().iterations(), out.solution().seconds(), out.solution().stopReason()));
         Map<String, Object> row = new LinkedHashMap<>();
@@ -187,6 +188,31 @@ public final class DeconvolveOperation implements Operation {
         double readNoise = numberOrAuto(v, "read-noise", 0, "a number of ADU (0 or more)");
         return new DeconvolutionSettings(method, stopping, offset, bg, gain, readNoise,
                 lambda, v.choice("boundary"), v.choice("acceleration").equals("on"), v.choice("likelihood"));
+    }
+
+    /** @return one line of the camera values, background and lambda the run used, each with how it was found */
+    @SuppressWarnings("unchecked")
+    static String valuesUsed(Deconvolution.Outcome out) {
+        DeconvolutionSettings u = out.settings();
+        Map<String, Object> set = (Map<String, Object>) out.record().get("settings");
+        Map<String, Object> source = (Map<String, Object>) set.getOrDefault("camera_source", Map.of());
+        Map<String, Object> error = (Map<String, Object>) set.getOrDefault("camera_standard_error", Map.of());
+        StringBuilder b = new StringBuilder("values used: ");
+        b.append(found("gain", u.gain(), "ADU/e-", source.get("gain"), error.get("gain"))).append(", ");
+        b.append(found("read noise", u.readNoise(), "ADU", source.get("read_noise_adu"), error.get("read_noise_adu")));
+        b.append(", ").append(found("offset", u.offset(), "ADU", source.get("offset_adu"), error.get("offset_adu")));
+        b.append(String.format(Locale.ROOT, ", background %.4g ADU (%s)", u.background(),
+                Boolean.TRUE.equals(set.get("background_estimated")) ? "estimated" : "given"));
+        if (u.regularized()) {
+            b.append(String.format(Locale.ROOT, ", lambda %.3g (%s)", u.lambda(),
+                    set.containsKey("regularization_choice") ? "chosen from the data" : "given"));
+        }
+        return b.toString();
+    }
+
+    private static String found(String what, double value, String unit, Object source, Object error) {
+        String se = error instanceof Number n ? String.format(Locale.ROOT, " +- %.2g", n.doubleValue()) : "";
+        return String.format(Locale.ROOT, "%s %.4g%s %s (%s)", what, value, se, unit, source == null ? "given" : source);
     }
 
     /**
