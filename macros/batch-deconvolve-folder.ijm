@@ -11,7 +11,9 @@
 // virtual one):
 //   xvfb-run -a java -Dplugins.dir=ImageJ/plugins -jar ImageJ/ij.jar -batch batch-deconvolve-folder.ijm \
 //       "images=[/data/in] output=[/data/out]"
-// Without arguments it uses the demo images in test-images/ beside this macros/ folder.
+// Without arguments it deconvolves the demo images in test-images/ beside this macros/ folder into
+// demo-output/batch-deconvolve/ in the working folder. Files whose name contains "bead" are skipped (bead stacks
+// are for PSF from Beads), as are the demo's truth, PSF and damage files.
 //
 // Caution: deconvolved pixels are estimates, not measurements. Check the residuals (Plugins>Stackwright>Inspect)
 // before you measure, and follow your facility's validated protocol where it differs.
@@ -29,14 +31,21 @@ READ_NOISE = 2;        // camera read noise (ADU, standard deviation): the noise
 ITERATIONS = 50;       // the most iterations; the noise-based stop usually ends earlier
 // -----------------------------------------------------
 
+// With no one at the screen (ImageJ -batch), an ImageJ error from here on ends the run with the message on
+// stderr and exit code 1 instead of a window that waits for a click.
+call("org.stackwright.imagej.MacroCalls.guard");
 args = getArgument();
 images = option(args, "images", "");
-if (images == "") images = defaultImages();
-output = option(args, "output", images + "deconvolved" + File.separator);
-ITERATIONS = parseInt(option(args, "iterations", "" + ITERATIONS));
+demo = false;
+if (images == "") demo = true;
+if (demo) images = defaultImages();
 images = withSeparator(images);
+output = option(args, "output", "");
+if (output == "" && demo) output = defaultOutput("batch-deconvolve");
+if (output == "") output = images + "deconvolved" + File.separator;
+ITERATIONS = parseInt(option(args, "iterations", "" + ITERATIONS));
 output = withSeparator(output);
-File.makeDirectory(output);
+makeDirectories(output);
 
 setBatchMode(true);
 list = getFileList(images);
@@ -46,7 +55,11 @@ for (i = 0; i < list.length; i++) {
     name = list[i];
     if (!endsWith(toLowerCase(name), ".tif") && !endsWith(toLowerCase(name), ".tiff")) continue;
     if (indexOf(name, "-truth") >= 0 || indexOf(name, "-psf") >= 0 || indexOf(name, "-damage") >= 0) continue;
-    open(images + name);
+    if (indexOf(toLowerCase(name), "bead") >= 0) {   // bead stacks make PSFs (psf-from-beads-then-deconvolve.ijm)
+        skipped = skipped + name + ": a bead stack (for PSF from Beads), not a specimen\n";
+        continue;
+    }
+    openInput(images + name);
     title = getTitle();
     base = File.getNameWithoutExtension(title);
     if (nSlices < 2) {                  // this macro is for z-stacks
@@ -91,14 +104,43 @@ function option(text, key, fallback) {
     return substring(value, 0, end);
 }
 
-// The bundled demo images: test-images/ beside the macros/ folder this file is in.
+// The bundled demo images: test-images/ beside the macros/ folder this file is in. getInfo("macro.filepath")
+// is relative when ImageJ was started with "-batch macros/NAME.ijm", so it is resolved against the working folder.
 function defaultImages() {
     path = getInfo("macro.filepath");
     if (path != "null" && path != "") {
+        if (!startsWith(path, "/") && !startsWith(path, "\\") && indexOf(path, ":") != 1)
+            path = getInfo("user.dir") + File.separator + path;
         dir = File.getParent(File.getParent(path)) + File.separator + "test-images" + File.separator;
         if (File.exists(dir)) return dir;
     }
-    return getDirectory("Choose the folder with the TIFF stacks");
+    fail("no images given and the demo images (test-images/ beside the macros/ folder) were not found; "
+        + "run it with the argument \"images=[/path/to/folder] output=[/path/to/results]\"");
+}
+
+// Results of a run without arguments go to demo-output/ in the working folder, never into the source tree.
+function defaultOutput(name) {
+    return getInfo("user.dir") + File.separator + "demo-output" + File.separator + name + File.separator;
+}
+
+// Stops with an error: unattended (ImageJ -batch) on stderr with a non-zero exit code, otherwise in a window.
+function fail(message) {
+    call("org.stackwright.imagej.MacroCalls.fail", message);
+    exit(message);
+}
+
+// Opens a file of the input folder, or stops with an error naming it (ImageJ's own error would wait for a click).
+function openInput(path) {
+    if (!File.exists(path)) fail("input file not found: " + path);
+    open(path);
+}
+
+// Makes a folder and the folder it is in (File.makeDirectory makes one level only).
+function makeDirectories(dir) {
+    parent = File.getParent(dir);
+    if (parent != "" && !File.exists(parent)) makeDirectories(parent);
+    File.makeDirectory(dir);
+    if (!File.isDirectory(dir)) fail("could not make the output folder " + dir);
 }
 
 function withSeparator(dir) {

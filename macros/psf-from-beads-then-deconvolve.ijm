@@ -8,7 +8,8 @@
 // <specimen>-deconvolve.tif and <specimen>-run.json (the run record: settings, iterations, stop reason, history).
 //
 // Arguments (all optional): "images=[DIR] output=[DIR] beads=FILE specimen=FILE"
-// Without arguments it uses test-images/demo-beads.tif and test-images/demo-cells.tif.
+// Without arguments it uses test-images/demo-beads.tif and test-images/demo-cells.tif and writes into
+// demo-output/psf-from-beads/ in the working folder.
 //
 // Caution: deconvolved pixels are estimates, not measurements; follow your facility's validated protocol.
 
@@ -18,18 +19,26 @@ OFFSET = 100;          // camera offset (ADU)
 READ_NOISE = 2;        // camera read noise (ADU, standard deviation): the noise-based stop needs it
 ITERATIONS = 30;
 
+// With no one at the screen (ImageJ -batch), an ImageJ error from here on ends the run with the message on
+// stderr and exit code 1 instead of a window that waits for a click.
+call("org.stackwright.imagej.MacroCalls.guard");
 args = getArgument();
 images = option(args, "images", "");
-if (images == "") images = defaultImages();
+demo = false;
+if (images == "") demo = true;
+if (demo) images = defaultImages();
 images = withSeparator(images);
-output = withSeparator(option(args, "output", images + "deconvolved" + File.separator));
+output = option(args, "output", "");
+if (output == "" && demo) output = defaultOutput("psf-from-beads");
+if (output == "") output = images + "deconvolved" + File.separator;
+output = withSeparator(output);
 beads = option(args, "beads", "demo-beads.tif");
 specimen = option(args, "specimen", "demo-cells.tif");
-File.makeDirectory(output);
+makeDirectories(output);
 setBatchMode(true);
 
 // 1. PSF from the bead stack: isolated beads are found, aligned with sub-voxel shifts and averaged.
-open(images + beads);
+openInput(images + beads);
 beadTitle = getTitle();
 run("PSF from Beads...", "input=[" + beadTitle + "] size=" + PSF_SIZE + " bead-diameter=" + BEAD_DIAMETER);
 psf = getTitle();
@@ -42,7 +51,7 @@ if (isOpen("measure-psf results")) Table.save(output + "psf-width.csv", "measure
 else Table.save(output + "psf-width.csv", "Stackwright Runs");
 
 // 3. Deconvolve the specimen with the measured PSF (resampled with a note if its voxel size differs).
-open(images + specimen);
+openInput(images + specimen);
 title = getTitle();
 base = File.getNameWithoutExtension(title);
 run("Deconvolve Stack...", "input=[" + title + "] psf=[" + psf + "] method=richardson-lucy iterations=" + ITERATIONS
@@ -64,13 +73,43 @@ function option(text, key, fallback) {
     return substring(value, 0, end);
 }
 
+// The bundled demo images: test-images/ beside the macros/ folder this file is in. getInfo("macro.filepath")
+// is relative when ImageJ was started with "-batch macros/NAME.ijm", so it is resolved against the working folder.
 function defaultImages() {
     path = getInfo("macro.filepath");
     if (path != "null" && path != "") {
+        if (!startsWith(path, "/") && !startsWith(path, "\\") && indexOf(path, ":") != 1)
+            path = getInfo("user.dir") + File.separator + path;
         dir = File.getParent(File.getParent(path)) + File.separator + "test-images" + File.separator;
         if (File.exists(dir)) return dir;
     }
-    return getDirectory("Choose the folder with the bead and specimen stacks");
+    fail("no images given and the demo images (test-images/ beside the macros/ folder) were not found; "
+        + "run it with the argument \"images=[/path/to/folder] output=[/path/to/results]\"");
+}
+
+// Results of a run without arguments go to demo-output/ in the working folder, never into the source tree.
+function defaultOutput(name) {
+    return getInfo("user.dir") + File.separator + "demo-output" + File.separator + name + File.separator;
+}
+
+// Stops with an error: unattended (ImageJ -batch) on stderr with a non-zero exit code, otherwise in a window.
+function fail(message) {
+    call("org.stackwright.imagej.MacroCalls.fail", message);
+    exit(message);
+}
+
+// Opens a file of the input folder, or stops with an error naming it (ImageJ's own error would wait for a click).
+function openInput(path) {
+    if (!File.exists(path)) fail("input file not found: " + path);
+    open(path);
+}
+
+// Makes a folder and the folder it is in (File.makeDirectory makes one level only).
+function makeDirectories(dir) {
+    parent = File.getParent(dir);
+    if (parent != "" && !File.exists(parent)) makeDirectories(parent);
+    File.makeDirectory(dir);
+    if (!File.isDirectory(dir)) fail("could not make the output folder " + dir);
 }
 
 function withSeparator(dir) {

@@ -7,7 +7,8 @@
 // The demo image test-images/demo-tiles.tif is 512 x 384 pixels, 3 rows x 4 columns of 128 x 128 tiles without
 // overlap, with 4-pixel seams and planted hot, dead and stuck pixels. Set the grid for your own acquisition.
 //
-// Arguments (all optional): "images=[DIR] output=[DIR] file=NAME"
+// Arguments (all optional): "images=[DIR] output=[DIR] file=NAME". Without arguments it repairs
+// test-images/demo-tiles.tif into demo-output/repair-tiles/ in the working folder.
 //
 // Caution: inpainted pixels are estimates invented from their surroundings, not measurements.
 
@@ -18,16 +19,24 @@ SEAM_WIDTH = 4;        // width of the band masked along each seam, in pixels
 THRESHOLD = 6;         // defective-pixel threshold in robust standard deviations
 METHOD = "harmonic";   // harmonic (seams, small holes), biharmonic (smoother), total-variation (keeps edges), median
 
+// With no one at the screen (ImageJ -batch), an ImageJ error from here on ends the run with the message on
+// stderr and exit code 1 instead of a window that waits for a click.
+call("org.stackwright.imagej.MacroCalls.guard");
 args = getArgument();
 images = option(args, "images", "");
-if (images == "") images = defaultImages();
+demo = false;
+if (images == "") demo = true;
+if (demo) images = defaultImages();
 images = withSeparator(images);
-output = withSeparator(option(args, "output", images + "repaired" + File.separator));
+output = option(args, "output", "");
+if (output == "" && demo) output = defaultOutput("repair-tiles");
+if (output == "") output = images + "repaired" + File.separator;
+output = withSeparator(output);
 file = option(args, "file", "demo-tiles.tif");
-File.makeDirectory(output);
+makeDirectories(output);
 setBatchMode(true);
 
-open(images + file);
+openInput(images + file);
 title = getTitle();
 base = File.getNameWithoutExtension(title);
 
@@ -66,13 +75,43 @@ function option(text, key, fallback) {
     return substring(value, 0, end);
 }
 
+// The bundled demo images: test-images/ beside the macros/ folder this file is in. getInfo("macro.filepath")
+// is relative when ImageJ was started with "-batch macros/NAME.ijm", so it is resolved against the working folder.
 function defaultImages() {
     path = getInfo("macro.filepath");
     if (path != "null" && path != "") {
+        if (!startsWith(path, "/") && !startsWith(path, "\\") && indexOf(path, ":") != 1)
+            path = getInfo("user.dir") + File.separator + path;
         dir = File.getParent(File.getParent(path)) + File.separator + "test-images" + File.separator;
         if (File.exists(dir)) return dir;
     }
-    return getDirectory("Choose the folder with the tiled image");
+    fail("no images given and the demo images (test-images/ beside the macros/ folder) were not found; "
+        + "run it with the argument \"images=[/path/to/folder] output=[/path/to/results]\"");
+}
+
+// Results of a run without arguments go to demo-output/ in the working folder, never into the source tree.
+function defaultOutput(name) {
+    return getInfo("user.dir") + File.separator + "demo-output" + File.separator + name + File.separator;
+}
+
+// Stops with an error: unattended (ImageJ -batch) on stderr with a non-zero exit code, otherwise in a window.
+function fail(message) {
+    call("org.stackwright.imagej.MacroCalls.fail", message);
+    exit(message);
+}
+
+// Opens a file of the input folder, or stops with an error naming it (ImageJ's own error would wait for a click).
+function openInput(path) {
+    if (!File.exists(path)) fail("input file not found: " + path);
+    open(path);
+}
+
+// Makes a folder and the folder it is in (File.makeDirectory makes one level only).
+function makeDirectories(dir) {
+    parent = File.getParent(dir);
+    if (parent != "" && !File.exists(parent)) makeDirectories(parent);
+    File.makeDirectory(dir);
+    if (!File.isDirectory(dir)) fail("could not make the output folder " + dir);
 }
 
 function withSeparator(dir) {

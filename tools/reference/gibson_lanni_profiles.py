@@ -6,19 +6,23 @@ W = depth (ns cs - ni ci) + (tg - tg*) (ng cg - ni ci) - z ni ci,  c_m = sqrt(1 
 rho_max = min(1, ns / NA, ng / NA) (Gibson & Lanni, JOSA A 8(10):1601-1613, 1991; uniform pupil, z = focus
 movement from where a matched sample would be in focus, positive = deeper).
 Cases: oil objective (ni 1.518, NA 1.3) into water (ns 1.33) at depth 10 um; and a thick coverslip (ng 1.522,
-tg - tg* = 20 um) with matched sample. Writes src/test/resources/reference/gibson-lanni-profiles.txt with
-lines "case r_um z_um intensity". Run with Debian's /usr/bin/python3 (python3-scipy).
+tg - tg* = 20 um) with matched sample; and oil into water at 5, 15, 25 and 30 um, sampled around the axial
+intensity maximum (found by a scan and a bounded scalar minimisation, scipy.optimize.minimize_scalar). Writes
+src/test/resources/reference/gibson-lanni-profiles.txt with lines "case r_um z_um intensity", and for the depth
+cases "peak case z_um intensity". Run with Debian's /usr/bin/python3 (python3-scipy).
 """
 import os
 import numpy as np
 import scipy
 from scipy.integrate import quad
+from scipy.optimize import minimize_scalar
 from scipy.special import j0
 
 CASES = {
     "oil-into-water": dict(na=1.3, lam=0.52, ni=1.518, ns=1.33, ng=1.518, depth=10.0, dt=0.0),
     "thick-coverslip": dict(na=1.3, lam=0.52, ni=1.518, ns=1.518, ng=1.522, depth=0.0, dt=20.0),
 }
+DEPTHS = (5.0, 15.0, 25.0, 30.0)
 
 
 def intensity(c, r, z):
@@ -48,4 +52,17 @@ with open(out, "w") as f:
         for z in (-1.0, 0.0, 0.8, 1.6, 2.4):
             for r in (0.0, 0.1, 0.2, 0.3, 0.5, 0.8):
                 f.write("%s %.3f %.3f %.10e\n" % (name, r, z, intensity(c, r, z)))
+    for depth in DEPTHS:
+        name = "water-depth-%g" % depth
+        c = dict(CASES["oil-into-water"], depth=depth)
+        zs = np.linspace(-1.0, 0.4 * depth + 1.0, 121)
+        z0 = zs[int(np.argmax([intensity(c, 0.0, z) for z in zs]))]
+        step = zs[1] - zs[0]
+        best = minimize_scalar(lambda z: -intensity(c, 0.0, z), bounds=(z0 - step, z0 + step), method="bounded",
+                               options=dict(xatol=1e-6))
+        zp = best.x
+        f.write("peak %s %.6f %.10e\n" % (name, zp, intensity(c, 0.0, zp)))
+        for dz in (-1.5, -0.5, 0.0, 0.7, 2.0):
+            for r in (0.0, 0.15, 0.3, 0.6):
+                f.write("%s %.3f %.6f %.10e\n" % (name, r, zp + dz, intensity(c, r, zp + dz)))
 print(open(out).read())

@@ -32,17 +32,23 @@ import picocli.CommandLine.Model.OptionSpec;
 import picocli.CommandLine.ParseResult;
 
 /**
- * {@code demo}: deconvolves the bundled invented cell stack (test-images/demo-cells.tif) with its PSF by
- * accelerated Richardson-Lucy with the noise-based stop, and writes the result, the run record and a side-by-side
- * picture (maximum projections of data, result and the invented truth) into one folder; prints the error against
- * the truth. Then checks the result against the data with the residual view (same camera model: Poisson plus
- * Gaussian read noise), writes its summary picture and prints chi^2 per pixel and the verdict.
+ * {@code demo}: deconvolves the bundled invented cell stack (carried in the jar, see {@link DemoData}) with its
+ * PSF by accelerated Richardson-Lucy with the noise-based stop, and writes the result, the run record and a
+ * side-by-side picture (maximum projections of data, result and the invented truth) into one folder; prints the
+ * error against the truth. Then checks the result against the data with the residual view (same camera model:
+ * Poisson plus Gaussian read noise), writes its summary picture and prints chi^2 per voxel and the verdict. Like
+ * every command it refuses to replace existing files unless {@code --overwrite} is given, and checks that before
+ * any work.
  */
 final class DemoCommand {
 
     static final String NAME = "demo";
 
     private static final double OFFSET = 100;
+
+    /** The files the demo writes, in its output folder. */
+    static final List<String> FILES = List.of("demo-cells-deconvolved.tif", "demo-cells-run.json",
+            "demo-side-by-side.png", "demo-convergence.png", "demo-residuals.png");
 
     private final PrintStream out;
     private final PrintStream err;
@@ -55,56 +61,81 @@ final class DemoCommand {
     static CommandSpec spec() {
         CommandSpec spec = CommandSpec.create().name(NAME);
         spec.mixinStandardHelpOptions(true);
-        spec.usageMessage().description("deconvolve the bundled invented demo stack (test-images/) and compare with its truth");
+        spec.usageMessage().description("deconvolve the bundled invented demo stack and compare with its truth");
         spec.addOption(OptionSpec.builder("--images").type(String.class).paramLabel("DIR")
-                .description("folder with the demo images [default test-images]").build());
+                .description("folder with demo-cells.tif, demo-psf.tif and demo-cells-truth.tif "
+                        + "[default: the copies inside this jar]").build());
         spec.addOption(OptionSpec.builder("--output-dir").type(String.class).paramLabel("DIR")
                 .description("folder for the results, created if missing [default demo-output]").build());
+        spec.addOption(OptionSpec.builder("--overwrite").arity("0").type(boolean.class)
+                .description("replace result files that exist (default: refuse)").build());
         return spec;
     }
 
     int run(ParseResult pr) {
-        Path images = Paths.get(pr.matchedOptionValue("--images", "test-images"));
         Path dir = Paths.get(pr.matchedOptionValue("--output-dir", "demo-output"));
+        boolean overwrite = pr.hasMatchedOption("--overwrite");
+        int threads = Runtime.getRuntime().availableProcessors();
+        CliProgress progress = new CliProgress(err);
         try {
-            Volume data = TiffFiles.read(images.resolve("demo-cells.tif"), "--images");
-            Volume truth = TiffFiles.read(images.resolve("demo-cells-truth.tif"), "--images");
-            Volume psf = TiffFiles.read(images.resolve("demo-psf.tif"), "--images");
             Files.createDirectories(dir);
+            for (String f : FILES) {
+                try {
+                    TiffFiles.checkWritable(dir.toAbsolutePath().resolve(f), overwrite);
+                } catch (IllegalArgumentException e) {
+                    throw new IllegalArgumentException("--output-dir: " + e.getMessage()
+                            + (e.getMessage().contains("exists") ? " (give --overwrite to replace the demo's files)" : ""));
+                }
+            }
+            progress.report(0, "reading the demo images");
+            DemoData.Images images = pr.hasMatchedOption("--images")
+                    ? DemoData.folder(Paths.get(pr.matchedOptionValue("--images", "test-images")))
+                    : DemoData.bundled(threads);
+            Volume data = images.data();
+            Volume truth = images.truth();
+            Volume psf = images.psf();
             // the camera of tools/make-test-images.sh: offset 100 ADU, read noise 2 ADU, gain 1; background estimated
             DeconvolutionSettings settings = new DeconvolutionSettings("richardson-lucy",
                     new Stopping(StopRule.NOISE, 200, 1e-3), OFFSET, Double.NaN, 1, 2, Double.NaN, "extended", true,
                     "poisson");
-            RunContext ctx = new RunContext(Runtime.getRuntime().availableProcessors(), new CliProgress(err),
+            // progress: deconvolution 5 to 80 % (the noise stop usually ends long before the 200-iteration cap, so
+            // its own fraction jumps to the end), residual view 80 to 95 %, files to 100 %
+            RunContext ctx = new RunContext(threads, (f, s) -> progress.report(0.05 + 0.75 * f, s),
                     w -> err.println("warning: " + w), null);
             Deconvolution.Outcome o = Deconvolution.run(data, psf, "demo-psf.tif", null, settings, ctx,
                     IterationListener.NONE);
-            err.print(CliProgress.CLEAR);
-            Path tif = dir.resolve("demo-cells-deconvolved.tif");
-            TiffFiles.write(o.result(), tif, true);
-            Path json = dir.resolve("demo-cells-run.json");
-            OutputFiles.writeText(Json.write(o.record()).getBytes(StandardCharsets.UTF_8), json, true);
-            Path png = dir.resolve("demo-side-by-side.png");
-            OutputFiles.writePng(Pictures.sideBySide(List.of(data, o.result(), truth),
-                    List.of("camera data", "deconvolved", "invented truth"), "demo"), png, true);
-            Path curve = dir.resolve("demo-convergence.png");
-            OutputFiles.writePng(ConvergencePlot.of(o.solution(), "mean KL divergence per pixel", 0.5), curve, true);
+            progress.report(0.8, "residual view of the result");
             double bg = ((Number) ((java.util.Map<?, ?>) o.record().get("settings")).get("background_adu")).doubleValue();
             ResidualModel model = new ResidualModel(OFFSET, bg, ResidualModel.noiseModel("poisson-gaussian", 1, 2));
             ResidualReport report;
-            try (Workers w = new Workers(ctx.threads())) {
+            try (Workers w = new Workers(threads)) {
                 report = ResidualReport.analyse(data, o.result(), psf, model, w);
             }
-            Path residuals = dir.resolve("demo-residuals.png");
-            OutputFiles.writePng(SummaryPicture.render("demo-cells", data, o.result(), report), residuals, true);
+            progress.report(0.95, "writing");
+            Path tif = dir.resolve(FILES.get(0));
+            TiffFiles.write(o.result(), tif, overwrite);
+            Path json = dir.resolve(FILES.get(1));
+            OutputFiles.writeText(Json.write(o.record()).getBytes(StandardCharsets.UTF_8), json, overwrite);
+            Path png = dir.resolve(FILES.get(2));
+            OutputFiles.writePng(Pictures.sideBySide(List.of(data, o.result(), truth),
+                    List.of("camera data", "deconvolved", "invented truth"), "demo"), png, overwrite);
+            Path curve = dir.resolve(FILES.get(3));
+            OutputFiles.writePng(ConvergencePlot.of(o.solution(), "mean KL divergence per voxel", 0.5), curve, overwrite);
+            Path residuals = dir.resolve(FILES.get(4));
+            OutputFiles.writePng(SummaryPicture.render("demo-cells", data, o.result(), report), residuals, overwrite);
+            progress.report(1, "done");
+            err.print(CliProgress.CLEAR);
+            out.println("demo images: " + images.where());
             out.println(String.format(Locale.ROOT, "deconvolved %s (accelerated Richardson-Lucy): %d iterations, "
                     + "%.2f s; stopped by %s", data.shape(), o.solution().iterations(), o.solution().seconds(),
                     o.solution().stopReason()));
+            out.println(String.format(Locale.ROOT, "background: %.4g ADU above the offset (estimated: background "
+                    + "auto)", bg));
             out.println(String.format(Locale.ROOT, "NRMSE against the invented truth: camera data (minus offset and "
                     + "background) %.3f, deconvolved %.3f", Nrmse.of(data.data(), truth.data(), OFFSET + bg),
                     Nrmse.of(o.result().data(), truth.data())));
-            out.println(String.format(Locale.ROOT, "residual check (data against the blurred result): chi^2 per pixel "
-                    + "%.3f (about 1 when the data fit the noise model), inside the border band %.3f; verdict: %s",
+            out.println(String.format(Locale.ROOT, "residual check (data against the blurred result): chi^2 per voxel "
+                    + "%.3f (about 1 when the data fit the noise model), in the interior %.3f; verdict: %s",
                     report.maps().chi2PerVoxel(), report.chi2Interior(), report.verdict().code()));
             out.println(report.verdict().text());
             out.println("wrote " + tif);

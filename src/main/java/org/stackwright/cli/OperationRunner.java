@@ -52,13 +52,16 @@ final class OperationRunner {
         spec.mixinStandardHelpOptions(true);
         spec.usageMessage().description(op.summary());
         for (Param p : op.params()) {
-            OptionSpec.Builder b = OptionSpec.builder("--" + p.key()).type(String.class).description(describe(p));
-            if (p.kind() == Param.Kind.FLAG) {
-                b.arity("0..1").fallbackValue("true").paramLabel("");
-            } else {
-                b.arity("1").paramLabel(label(p));
+            for (String name : names(p)) {
+                OptionSpec.Builder b = OptionSpec.builder("--" + name).type(String.class).description(describe(p))
+                        .hidden(!name.equals(p.key()));
+                if (p.kind() == Param.Kind.FLAG) {
+                    b.arity("0..1").fallbackValue("true").paramLabel("");
+                } else {
+                    b.arity("1").paramLabel(label(p));
+                }
+                spec.addOption(b.build());
             }
-            spec.addOption(b.build());
         }
         spec.addOption(OptionSpec.builder("--threads").type(String.class).paramLabel("N")
                 .description("worker threads (default: all cores)").build());
@@ -67,9 +70,17 @@ final class OperationRunner {
         return spec;
     }
 
+    /** @return the key, then the old keys (accepted as hidden options, with a note) */
+    private static List<String> names(Param p) {
+        List<String> names = new java.util.ArrayList<>(List.of(p.key()));
+        names.addAll(p.aliases());
+        return names;
+    }
+
     private static String label(Param p) {
         return switch (p.kind()) {
-            case IMAGE, OUTPUT_IMAGE -> "FILE.tif";
+            case IMAGE -> "FILE.tif";
+            case OUTPUT_IMAGE -> p.unit().equals("PNG") ? "FILE.png" : "FILE.tif";
             case OUTPUT_FILE -> "FILE.json";
             case CHOICE -> String.join("|", p.choices());
             case INTEGER -> "N";
@@ -118,6 +129,15 @@ final class OperationRunner {
         try {
             for (OptionSpec o : pr.matchedOptions()) {
                 String key = o.longestName().substring(2);
+                Param p = aliased(key);
+                if (p != null) {
+                    err.println("note: " + p.aliasNote(key, "--"));
+                    if (pr.hasMatchedOption("--" + p.key())) {
+                        throw new IllegalArgumentException("--" + key + " and --" + p.key() + " name the same setting; "
+                                + "give only --" + p.key());
+                    }
+                    key = p.key();
+                }
                 Object value = o.getValue();
                 if (key.equals("threads")) {
                     threads = parseThreads(String.valueOf(value));
@@ -194,6 +214,11 @@ final class OperationRunner {
             err.println("  failed: " + e.getKey() + ": " + e.getValue());
         }
         return failed.isEmpty() ? Main.OK : Main.FAILED;
+    }
+
+    /** @return the setting whose old key this is, or null */
+    private Param aliased(String name) {
+        return op.params().stream().filter(p -> p.aliases().contains(name)).findFirst().orElse(null);
     }
 
     /** Runs one input: reads, checks outputs, runs, writes. Throws on any problem. */

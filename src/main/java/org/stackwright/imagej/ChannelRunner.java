@@ -106,7 +106,14 @@ public final class ChannelRunner {
         List<Values> values = new ArrayList<>();
         for (int t = 1; t <= nt; t++) {
             for (int c = 1; c <= nc; c++) {
-                Values v = Values.parse(op.name(), op.params(), perChannel(op, settings.text(), c, nc));
+                Map<String, String> raw = perChannel(op, settings.text(), c, nc);
+                for (Param p : op.params()) {
+                    if (p.kind() == Param.Kind.OUTPUT_IMAGE && settings.outputs().contains(p.key())
+                            && (settings.outputsAsked() || p.required())) {
+                        raw.put(p.key(), ""); // asked for, as a path on the command line asks for it
+                    }
+                }
+                Values v = Values.parse(op.name(), op.params(), raw);
                 for (Map.Entry<String, ImagePlus> e : settings.images().entrySet()) {
                     ImagePlus imp = e.getValue();
                     boolean whole = imp.getNChannels() == 1 && imp.getNFrames() == 1;
@@ -143,13 +150,25 @@ public final class ChannelRunner {
             for (Part part : parts) {
                 got.add(part.result().images().get(p.key()));
             }
-            String title = p.key().equals("output") ? base : base + "-" + p.key();
+            String title = p.key().equals("output") ? mainTitle(op, main, got.get(0), base) : base + "-" + p.key();
             ImagePlus out = Hyperstacks.assemble(got, nc, nt, main, settings.images().values(), title, warnings);
             if (out != null) {
                 images.put(p.key(), out);
             }
         }
         return new Outcome(main, parts, images);
+    }
+
+    /**
+     * @return the title of the main output: "&lt;title&gt;-&lt;operation&gt;"; for an operation without input image,
+     *     the title the operation gave it when that starts with its name (a modelled PSF says what it is:
+     *     "psf-gibson-lanni-NA1.3-520nm")
+     */
+    static String mainTitle(Operation op, ImagePlus main, ImagePlus made, String base) {
+        if (main == null && made != null && made.getTitle() != null && made.getTitle().startsWith(op.name() + "-")) {
+            return made.getTitle();
+        }
+        return base;
     }
 
     /**

@@ -22,6 +22,7 @@ public final class DoorSettings {
     private final Set<String> outputs = new LinkedHashSet<>();
     private final Map<String, String> files = new LinkedHashMap<>();
     private boolean overwrite;
+    private boolean outputsAsked = true;
 
     /** @return key to value of every text-like setting given (numbers, words, choices, flags as true/false) */
     public Map<String, String> text() {
@@ -33,9 +34,23 @@ public final class DoorSettings {
         return images;
     }
 
-    /** @return keys of the output images to make */
+    /** @return keys of the output images to make (or, see {@link #outputsAsked}, to collect when made) */
     public Set<String> outputs() {
         return outputs;
+    }
+
+    /**
+     * @return true (the default) when {@link #outputs} were asked for, so the operation makes them as for a path
+     *     on the command line; false when they only list what to collect (a SciJava command has every output
+     *     field and cannot ask for one; the operation then makes its required outputs and what its settings imply)
+     */
+    public boolean outputsAsked() {
+        return outputsAsked;
+    }
+
+    public DoorSettings outputsAsked(boolean asked) {
+        outputsAsked = asked;
+        return this;
     }
 
     /** @return key to path of the output files (run records) to write */

@@ -93,6 +93,33 @@ public final class MacroOptions {
     }
 
     /**
+     * Replaces every old key of a setting (see {@link org.stackwright.op.Param#withAlias}) by its current key.
+     *
+     * @param params the operation's settings; not modified
+     * @param notes receives one note per old key used, naming the current key
+     * @throws IllegalArgumentException when both an old key and its current key are given
+     */
+    public void resolveAliases(String operation, List<org.stackwright.op.Param> params,
+            java.util.function.Consumer<String> notes) {
+        for (org.stackwright.op.Param p : params) {
+            for (String old : p.aliases()) {
+                if (!values.containsKey(old)) {
+                    continue;
+                }
+                if (values.containsKey(p.key())) {
+                    throw new IllegalArgumentException(operation + ": macro keys '" + old + "' and '" + p.key()
+                            + "' name the same setting; give only '" + p.key() + "'");
+                }
+                Map<String, String> renamed = new LinkedHashMap<>();
+                values.forEach((k, v) -> renamed.put(k.equals(old) ? p.key() : k, v));
+                values.clear();
+                values.putAll(renamed);
+                notes.accept(operation + ": " + p.aliasNote(old, ""));
+            }
+        }
+    }
+
+    /**
      * @param allowed the keys the dialog has
      * @throws IllegalArgumentException naming the first key that is not allowed and listing the allowed ones
      */
@@ -125,7 +152,7 @@ public final class MacroOptions {
         for (org.stackwright.op.Param p : params) {
             String k = p.key();
             boolean valued = switch (p.kind()) {
-                case NUMBER, INTEGER, TEXT, CHOICE -> true;
+                case NUMBER, INTEGER, TEXT, CHOICE, OUTPUT_FILE -> true;
                 default -> false;
             };
             if (!valued || values.containsKey(k)) {

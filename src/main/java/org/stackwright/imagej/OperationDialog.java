@@ -1,14 +1,19 @@
 package org.stackwright.imagej;
 
+import java.awt.Checkbox;
+import java.awt.Component;
+import java.awt.Font;
 import java.math.BigDecimal;
 import java.math.MathContext;
 import java.util.ArrayList;
+import java.util.LinkedHashMap;
 import java.util.LinkedHashSet;
 import java.util.List;
-import java.util.Locale;
+import java.util.Map;
 import java.util.Set;
 
 import ij.ImagePlus;
+import ij.Macro;
 import ij.WindowManager;
 import ij.gui.GenericDialog;
 
@@ -17,27 +22,27 @@ import org.stackwright.op.Param;
 import org.stackwright.volume.ImagePlusAdapter;
 
 /**
- * The recordable dialog of one operation, built from its {@link Param}s. Every label starts with the parameter
- * key, because ImageJ takes the first word of a label as the macro key: the Macro Recorder so writes
- * {@code key=value} with the same words as the command line. Numbers are text fields, so a value reaches the
- * operation exactly as typed or recorded, and a multi-channel image can take one value per channel
- * ({@code wavelength=520,610}).
+ * The recordable dialog of one operation, built from its {@link Param}s: fields under headings
+ * ({@link DialogLayout}), human labels with units, fields that do not apply greyed out ({@link FieldRules}), and,
+ * for a person (not in a macro), the values last confirmed in this dialog ({@link SessionMemory}). Every field is
+ * created with its key as label, because ImageJ takes the macro key from the label's first word: the Macro
+ * Recorder so writes {@code key=value} with the same words as the command line, whatever the label shows. Numbers
+ * are text fields, so a value reaches the operation exactly as typed or recorded, and a multi-channel image can
+ * take one value per channel ({@code wavelength=520,610}).
  */
 public final class OperationDialog {
 
     /** The choice that leaves an optional image out. */
     public static final String NONE = "none";
 
+    private static final int WRAP = 72;
+
     private OperationDialog() {
     }
 
-    /** @return the dialog label of a parameter: its key, then the unit or what kind of entry it is */
+    /** @return the text shown beside a setting's field (the key is the macro key; this is for people) */
     public static String label(Param p) {
-        return switch (p.kind()) {
-            case OUTPUT_FILE -> p.key() + " (JSON file, empty = none)";
-            case OUTPUT_IMAGE -> p.key() + " (make this image too)";
-            default -> p.key() + (p.unit().isEmpty() ? "" : " (" + p.unit() + ")");
-        };
+        return DialogLayout.label(p);
     }
 
     /**
@@ -52,9 +57,7 @@ public final class OperationDialog {
     public static Set<String> macroKeys(Operation op) {
         Set<String> keys = new LinkedHashSet<>();
         for (Param p : dialogOrder(op)) {
-            if (inDialog(p)) {
-                keys.add(p.key());
-            }
+            keys.add(p.key());
         }
         if (hasFiles(op)) {
             keys.add(DoorSettings.OVERWRITE);
@@ -62,28 +65,15 @@ public final class OperationDialog {
         return keys;
     }
 
-    /**
-     * @return the parameters in dialog order: input images first, then the settings in the operation's order,
-     *     then the outputs
-     */
+    /** @return the parameters that have a dialog item, in dialog order (see {@link DialogLayout#order}) */
     public static List<Param> dialogOrder(Operation op) {
-        List<Param> out = new ArrayList<>();
+        List<Param> fields = new ArrayList<>();
         for (Param p : op.params()) {
-            if (p.kind() == Param.Kind.IMAGE) {
-                out.add(p);
+            if (inDialog(p)) {
+                fields.add(p);
             }
         }
-        for (Param p : op.params()) {
-            if (!p.isImageOrFile()) {
-                out.add(p);
-            }
-        }
-        for (Param p : op.params()) {
-            if (p.kind() == Param.Kind.OUTPUT_IMAGE || p.kind() == Param.Kind.OUTPUT_FILE) {
-                out.add(p);
-            }
-        }
-        return out;
+        return DialogLayout.order(op, fields);
     }
 
     static boolean hasFiles(Operation op) {
@@ -91,74 +81,130 @@ public final class OperationDialog {
     }
 
     /**
-     * Builds the dialog (not shown). In a macro, ImageJ fills it from the options instead of showing it.
+     * Builds the dialog (not shown). In a macro, ImageJ fills it from the options instead of showing it; there
+     * the defaults are the operation's own, since the recorded line says everything else.
      *
-     * @param current the image the first image choice defaults to and whose calibration gives the defaults of
-     *     "pixel" (voxel width) and "step" (z step), or null
+     * @param current the image the main input defaults to and whose calibration gives the defaults of "pixel"
+     *     (voxel width) and "step" (z step), or null
      */
     public static GenericDialog build(Operation op, String title, ImagePlus current) {
+        boolean person = Macro.getOptions() == null;
+        Suggestions suggest = person ? Suggestions.of(op) : Suggestions.none();
         GenericDialog gd = new GenericDialog(title);
-        gd.addMessage(op.summary());
-        String[] titles = WindowManager.getImageTitles();
-        boolean firstImage = true;
+        String summary = op.summary();
+        gd.addMessage(wrap(Character.toUpperCase(summary.charAt(0)) + summary.substring(1) + ".", WRAP));
+        List<String> titles = ImageChoices.titles();
+        Map<String, Component[]> fields = new LinkedHashMap<>();
+        String heading = null;
+        String input = null;
+        String mainKey = ChannelRunner.mainInput(op);
         for (Param p : dialogOrder(op)) {
-            String label = label(p);
+            String h = DialogLayout.heading(op, p);
+            if (!h.equals(heading)) {
+                gd.setInsets(heading == null ? 10 : 12, 0, 0);
+                gd.addMessage(h, new Font("SansSerif", Font.BOLD, 12));
+                heading = h;
+            }
+            String key = p.key();
             switch (p.kind()) {
                 case IMAGE -> {
-                    List<String> items = new ArrayList<>(List.of(titles));
+                    List<String> items = new ArrayList<>(titles);
                     if (!p.required()) {
                         items.add(0, NONE);
+                    }
+                    boolean main = key.equals(mainKey);
+                    if (key.equals("psf") && p.required() && ImageChoices.newestPsf(items, input) == null
+                            && !suggest.images().containsKey(key)) {
+                        items.add(0, ImageChoices.CHOOSE_PSF);
                     }
                     if (items.isEmpty()) {
                         items.add(NONE);
                     }
-                    String def = defaultImage(p, items, current, firstImage);
-                    firstImage = false;
-                    gd.addChoice(label, items.toArray(new String[0]), def);
-                }
-                case OUTPUT_IMAGE -> {
-                    if (inDialog(p)) {
-                        gd.addCheckbox(label, false);
+                    String def = ImageChoices.initial(key, p.required(), items, current, main,
+                            suggest.images().get(key), input);
+                    if (main) {
+                        input = def;
                     }
+                    gd.addChoice(key, items.toArray(new String[0]), def);
+                    fields.put(key, labelled(gd, gd.getChoices(), p));
                 }
-                case OUTPUT_FILE -> gd.addFileField(label, "", 24);
-                case CHOICE -> gd.addChoice(label, p.choices().toArray(new String[0]),
-                        p.defaultValue() == null ? p.choices().get(0) : p.defaultValue());
-                case FLAG -> gd.addCheckbox(label, "true".equals(p.defaultValue()));
-                default -> gd.addStringField(label, defaultText(p, current), p.kind() == Param.Kind.TEXT ? 16 : 10);
+                case OUTPUT_IMAGE, FLAG -> {
+                    String remembered = suggest.values().get(key);
+                    boolean on = remembered != null ? remembered.equals("true") : "true".equals(p.defaultValue());
+                    gd.addCheckbox(key, on);
+                    Checkbox cb = (Checkbox) gd.getCheckboxes().lastElement();
+                    cb.setLabel(label(p));
+                    fields.put(key, new Component[] {cb});
+                }
+                case OUTPUT_FILE -> {
+                    gd.addFileField(key, "", 24);
+                    fields.put(key, labelled(gd, gd.getStringFields(), p));
+                }
+                case CHOICE -> {
+                    String remembered = suggest.values().get(key);
+                    String def = remembered != null && p.choices().contains(remembered) ? remembered
+                            : p.defaultValue() == null ? p.choices().get(0) : p.defaultValue();
+                    gd.addChoice(key, p.choices().toArray(new String[0]), def);
+                    fields.put(key, labelled(gd, gd.getChoices(), p));
+                }
+                default -> {
+                    String def = defaultText(p, current);
+                    String remembered = suggest.values().get(key);
+                    if (remembered != null && !calibrationDefault(p, current)) {
+                        def = remembered;
+                    }
+                    gd.addStringField(key, def, p.kind() == Param.Kind.TEXT ? 16 : 10);
+                    fields.put(key, labelled(gd, gd.getStringFields(), p));
+                }
             }
         }
         if (hasFiles(op)) {
-            gd.addCheckbox(DoorSettings.OVERWRITE + " (replace existing files)", false);
+            gd.addCheckbox(DoorSettings.OVERWRITE, false);
+            ((Checkbox) gd.getCheckboxes().lastElement()).setLabel(DialogLayout.overwriteLabel());
         }
         gd.addHelp(HelpText.html(op));
+        if (person) {
+            Greying.attach(op.name(), fields);
+        }
         return gd;
     }
 
-    private static String defaultImage(Param p, List<String> items, ImagePlus current, boolean first) {
-        if (first && current != null && items.contains(current.getTitle())) {
-            return current.getTitle();
+    /**
+     * Replaces the text shown beside the field just added by the human label; the macro key was already taken
+     * from the key the field was created with.
+     *
+     * @return the field and its label (for greying out)
+     */
+    private static Component[] labelled(GenericDialog gd, java.util.Vector<?> components, Param p) {
+        Component field = (Component) components.lastElement();
+        java.awt.Label label = gd.getLabel();
+        if (label == null) {
+            return new Component[] {field};
         }
-        if (!p.required()) {
-            return NONE;
-        }
-        for (String t : items) {
-            if (t.toLowerCase(Locale.ROOT).contains(p.key()) && (current == null || !t.equals(current.getTitle()))) {
-                return t;
-            }
-        }
-        return items.get(0);
+        label.setText(label(p));
+        return new Component[] {field, label};
     }
 
-    /** The default text of a number or text field: the voxel size of the current image for pixel and step. */
+    /** @return true when the default of this field comes from the current image's calibration */
+    private static boolean calibrationDefault(Param p, ImagePlus current) {
+        return p.kind() == Param.Kind.NUMBER && current != null && ImagePlusAdapter.isCalibrated(current)
+                && (p.key().equals("pixel") || p.key().equals("step") && current.getNSlices() > 1);
+    }
+
+    /**
+     * The default text of a number or text field: the voxel size of the current image for pixel and step; its
+     * line selection (x0,y0,x1,y1) for line and its current slice for plane.
+     */
     static String defaultText(Param p, ImagePlus current) {
-        if (p.kind() == Param.Kind.NUMBER && current != null && ImagePlusAdapter.isCalibrated(current)) {
-            if (p.key().equals("pixel")) {
-                return round(ImagePlusAdapter.voxelSize(current).x());
-            }
-            if (p.key().equals("step") && current.getNSlices() > 1) {
-                return round(ImagePlusAdapter.voxelSize(current).z());
-            }
+        if (current != null && p.key().equals("line") && current.getRoi() instanceof ij.gui.Line l) {
+            return String.format(java.util.Locale.ROOT, "%.1f,%.1f,%.1f,%.1f", l.x1d, l.y1d, l.x2d, l.y2d);
+        }
+        if (current != null && p.key().equals("plane") && p.kind() == Param.Kind.INTEGER) {
+            return Integer.toString(current.getZ());
+        }
+        if (calibrationDefault(p, current)) {
+            return p.key().equals("pixel") ? round(ImagePlusAdapter.voxelSize(current).x())
+                    : round(ImagePlusAdapter.voxelSize(current).z());
         }
         return p.defaultValue() == null ? "" : p.defaultValue();
     }
@@ -170,7 +216,8 @@ public final class OperationDialog {
     /**
      * Reads the dialog back, in the order it was built (after showDialog, or directly in macro mode).
      *
-     * @throws IllegalArgumentException when an image named in a macro is not open, naming the key
+     * @throws IllegalArgumentException when an image named in a macro is not open, or the PSF was not chosen,
+     *     naming the key
      */
     public static DoorSettings read(GenericDialog gd, Operation op) {
         DoorSettings s = new DoorSettings();
@@ -178,6 +225,10 @@ public final class OperationDialog {
             switch (p.kind()) {
                 case IMAGE -> {
                     String t = gd.getNextChoice();
+                    if (ImageChoices.CHOOSE_PSF.equals(t)) {
+                        throw new IllegalArgumentException(p.key() + ": choose the PSF image (none of the open images "
+                                + "looks like one: odd sizes, no larger than the input, brightest at the centre)");
+                    }
                     if (t != null && !t.isEmpty() && !t.equals(NONE)) {
                         ImagePlus imp = WindowManager.getImage(t);
                         if (imp == null) {
@@ -187,7 +238,7 @@ public final class OperationDialog {
                     }
                 }
                 case OUTPUT_IMAGE -> {
-                    if (!inDialog(p) || gd.getNextBoolean()) {
+                    if (gd.getNextBoolean()) {
                         s.outputs().add(p.key());
                     }
                 }
@@ -207,9 +258,63 @@ public final class OperationDialog {
                 }
             }
         }
+        for (Param p : op.params()) {
+            if (p.kind() == Param.Kind.OUTPUT_IMAGE && !inDialog(p)) {
+                s.outputs().add(p.key());
+            }
+        }
         if (hasFiles(op)) {
             s.overwrite(gd.getNextBoolean());
         }
         return s;
+    }
+
+    /** @return the text with line breaks at spaces so that no line is longer than width (longer words stay whole) */
+    static String wrap(String text, int width) {
+        StringBuilder out = new StringBuilder();
+        for (String line : text.split("\n", -1)) {
+            if (out.length() > 0) {
+                out.append('\n');
+            }
+            int col = 0;
+            for (String word : line.split(" ", -1)) {
+                if (col > 0 && col + 1 + word.length() > width) {
+                    out.append('\n');
+                    col = 0;
+                } else if (col > 0) {
+                    out.append(' ');
+                    col++;
+                }
+                out.append(word);
+                col += word.length();
+            }
+        }
+        return out.toString();
+    }
+
+    /** The values and images a dialog starts on for a person: remembered ones, or a follow-up of the last run. */
+    record Suggestions(Map<String, String> values, Map<String, String> images) {
+
+        static Suggestions none() {
+            return new Suggestions(Map.of(), Map.of());
+        }
+
+        static Suggestions of(Operation op) {
+            Map<String, String> values = SessionMemory.values(op.name());
+            Map<String, String> images = SessionMemory.images(op.name());
+            String lastEstimate = images.get("estimate");
+            images.remove(ChannelRunner.mainInput(op)); // the main input is the current image, as in ImageJ
+            SessionMemory.Deconvolution d = SessionMemory.lastDeconvolution();
+            if (op.name().equals("residuals") && d != null && d.result() != null
+                    && WindowManager.getImage(d.result()) != null && !d.result().equals(lastEstimate)) {
+                images.put("input", d.input());
+                images.put("estimate", d.result());
+                if (d.psf() != null) {
+                    images.put("psf", d.psf());
+                }
+                values.putAll(d.camera());
+            }
+            return new Suggestions(values, images);
+        }
     }
 }

@@ -34,12 +34,15 @@ import org.stackwright.volume.TiffFiles;
  * convergence (not in batch mode: the history is in the record), shows the operation's own rows (widths, metrics)
  * in the table "&lt;operation&gt; results" and writes the run record when asked. Progress goes to the
  * status bar, warnings to the Log, Esc cancels within one iteration and then nothing is shown. Errors go to
- * IJ.error, which in a macro aborts the macro with the message.
+ * IJ.error, which in a macro aborts the macro with the message; with no one at the screen (ImageJ started with
+ * {@code -batch}) they go to stderr and end the process with exit code 2 (bad input) or 1 ({@link Unattended}).
+ * A dialog shown to a person starts on the values last confirmed in it ({@link SessionMemory}).
  */
 public class OperationPlugin implements PlugIn {
 
     @Override
     public void run(String arg) {
+        Unattended.guard();
         String name = arg == null ? "" : arg.trim();
         if (name.equals("about")) {
             About.show();
@@ -47,8 +50,8 @@ public class OperationPlugin implements PlugIn {
         }
         Operation op = lookup(name);
         if (op == null) {
-            IJ.error("Stackwright", "This version of Stackwright has no operation '" + name + "'. It has: "
-                    + String.join(", ", Operations.all().stream().map(Operation::name).toList()));
+            error("Stackwright", "This version of Stackwright has no operation '" + name + "'. It has: "
+                    + String.join(", ", Operations.all().stream().map(Operation::name).toList()), Unattended.FAILED);
             return;
         }
         run(op);
@@ -63,16 +66,19 @@ public class OperationPlugin implements PlugIn {
         String title = "Stackwright " + op.name();
         try {
             String options = Macro.getOptions();
+            boolean person = options == null;
             if (options != null) {
                 MacroOptions mo = MacroOptions.parse(options);
+                mo.resolveAliases(op.name(), op.params(), IJ::log);
                 mo.checkKeys(op.name(), OperationDialog.macroKeys(op));
                 mo.fillShadowedKeys(op.params());
                 // " " keeps macro mode (all defaults); an empty string would make the dialog appear and wait
                 Macro.setOptions(mo.canonical().isEmpty() ? " " : mo.canonical());
             }
             boolean needsImage = op.params().stream().anyMatch(p -> p.kind() == Param.Kind.IMAGE && p.required());
-            if (needsImage && WindowManager.getImageCount() == 0) {
-                IJ.error(title, op.name() + " needs an open image: open or select one first.");
+            if (needsImage && ImageChoices.titles().isEmpty()) {
+                error(title, op.name() + " needs an open image (not an RGB picture): open or select one first.",
+                        Unattended.BAD_INPUT);
                 return;
             }
             GenericDialog gd = OperationDialog.build(op, title, WindowManager.getCurrentImage());
@@ -80,29 +86,46 @@ public class OperationPlugin implements PlugIn {
             if (gd.wasCanceled()) {
                 return;
             }
-            execute(op, OperationDialog.read(gd, op));
+            DoorSettings settings = OperationDialog.read(gd, op);
+            if (person) {
+                SessionMemory.remember(op.name(), settings, op.params());
+            }
+            execute(op, settings);
         } catch (IllegalArgumentException e) {
             IJ.showProgress(1.0);
-            IJ.error(title, e.getMessage());
+            error(title, e.getMessage(), Unattended.BAD_INPUT);
         } catch (CancelledException e) {
             IJ.showProgress(1.0);
             IJ.showStatus(op.name() + ": cancelled; no output made");
             IJ.log(op.name() + ": cancelled by the user; no output was made and the input is unchanged.");
-            if (Macro.getOptions() != null) {
-                IJ.error(title, op.name() + " was cancelled; no output was made.");
+            if (Macro.getOptions() != null || Unattended.active()) {
+                error(title, op.name() + " was cancelled; no output was made.", Unattended.FAILED);
             }
         } catch (OutOfMemoryError e) {
             IJ.showProgress(1.0);
-            IJ.error(title, op.name() + " ran out of memory: give ImageJ more memory (Edit>Options>Memory & "
-                    + "Threads) or use a smaller image.");
+            error(title, op.name() + " ran out of memory: give ImageJ more memory (Edit>Options>Memory & "
+                    + "Threads) or use a smaller image.", Unattended.FAILED);
         } catch (RuntimeException e) {
             if (Macro.MACRO_CANCELED.equals(e.getMessage())) {
                 throw e; // ImageJ aborting the macro (Esc, an earlier error): let it pass
             }
             IJ.showProgress(1.0);
             IJ.log(op.name() + " failed: " + e + "\n" + stack(e));
-            IJ.error(title, op.name() + " failed: " + e);
+            error(title, op.name() + " failed: " + e, Unattended.FAILED);
         }
+    }
+
+    /**
+     * Reports an error: with no one at the screen (ImageJ -batch) on stderr, ending the process with the exit code;
+     * otherwise in ImageJ's error window, its text wrapped to a readable width (in a macro this also stops the
+     * macro with the message).
+     */
+    static void error(String title, String message, int exitCode) {
+        if (Unattended.active()) {
+            Unattended.fail(title, message, exitCode);
+            return;
+        }
+        IJ.error(title, OperationDialog.wrap(message, 90));
     }
 
     /** Runs with the collected settings and shows what the run made. */
@@ -138,6 +161,12 @@ public class OperationPlugin implements PlugIn {
             } catch (IOException e) {
                 throw new UncheckedIOException("could not write " + f.getKey() + " " + path + ": " + e.getMessage(), e);
             }
+        }
+        if (op.name().equals("deconvolve") && outcome.parts().size() == 1) {
+            ChannelRunner.Part part = outcome.parts().get(0);
+            SessionMemory.deconvolved(outcome.mainInput(), s.images().get("psf"), outcome.images().get("output"),
+                    RunReport.cameraUsed(part.values().effective(), part.result().record()),
+                    RunReport.backgroundUsed(part.result().record()));
         }
         RunReport.table(op.name(), outcome);
         RunReport.rows(op.name(), outcome);

@@ -2,6 +2,7 @@ package org.stackwright.imagej;
 
 import java.awt.Color;
 import java.util.ArrayList;
+import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 
@@ -34,27 +35,30 @@ final class RunReport {
             rt = new ResultsTable();
         }
         for (ChannelRunner.Part part : outcome.parts()) {
-            rt.incrementCounter();
-            rt.addValue("operation", operation);
-            rt.addValue("input", outcome.mainInput() == null ? "" : outcome.mainInput().getTitle());
-            rt.addValue("channel", part.channel());
-            rt.addValue("frame", part.frame());
+            Map<String, Object> row = new LinkedHashMap<>();
+            row.put("operation", operation);
+            row.put("input", outcome.mainInput() == null ? "" : outcome.mainInput().getTitle());
+            row.put("channel", part.channel());
+            row.put("frame", part.frame());
             for (Param p : part.values().params()) {
                 if (p.kind() == Param.Kind.IMAGE) {
                     ImagePlus imp = part.values().image(p.key());
-                    rt.addValue(p.key(), imp == null ? OperationDialog.NONE : imp.getTitle());
+                    row.put(p.key(), imp == null ? OperationDialog.NONE : imp.getTitle());
                 }
             }
-            for (Map.Entry<String, String> e : part.values().effective().entrySet()) {
-                add(rt, e.getKey(), e.getValue());
+            row.putAll(part.values().effective());
+            double bg = backgroundUsed(part.result().record());
+            if (Double.isFinite(bg)) {
+                row.put("background_used", bg);
             }
             for (Map.Entry<String, Object> e : part.result().record().entrySet()) {
                 Object v = e.getValue();
                 if (v instanceof Number || v instanceof String || v instanceof Boolean) {
-                    add(rt, "record." + e.getKey(), v.toString());
+                    row.put("record." + e.getKey(), v);
                 }
             }
-            rt.addValue("warnings", part.warnings().size());
+            row.put("warnings", part.warnings().size());
+            addRow(rt, row);
         }
         rt.show(TABLE);
         return rt;
@@ -76,18 +80,52 @@ final class RunReport {
             rt = new ResultsTable();
         }
         for (ChannelRunner.Part part : outcome.parts()) {
-            for (Map<String, Object> row : part.result().rows()) {
-                rt.incrementCounter();
-                rt.addValue("input", outcome.mainInput() == null ? "" : outcome.mainInput().getTitle());
-                rt.addValue("channel", part.channel());
-                rt.addValue("frame", part.frame());
-                for (Map.Entry<String, Object> e : row.entrySet()) {
-                    add(rt, e.getKey(), String.valueOf(e.getValue()));
-                }
+            for (Map<String, Object> r : part.result().rows()) {
+                Map<String, Object> row = new LinkedHashMap<>();
+                row.put("input", outcome.mainInput() == null ? "" : outcome.mainInput().getTitle());
+                row.put("channel", part.channel());
+                row.put("frame", part.frame());
+                row.putAll(r);
+                addRow(rt, row);
             }
         }
         rt.show(title);
         return rt;
+    }
+
+    /**
+     * Adds one row. A column this row has no value for, and a new column in the rows before it, hold an empty text:
+     * a table shared by operations never shows 0 (ImageJ's default for a missing number) or "NaN" for a setting
+     * a run does not have, on screen or in a saved file.
+     */
+    static void addRow(ResultsTable rt, Map<String, Object> row) {
+        List<String> before = columns(rt);
+        rt.incrementCounter();
+        int at = rt.size() - 1;
+        for (Map.Entry<String, Object> e : row.entrySet()) {
+            add(rt, e.getKey(), String.valueOf(e.getValue()));
+        }
+        for (String c : columns(rt)) {
+            if (!row.containsKey(c)) {
+                rt.setValue(c, at, "");
+            }
+            if (!before.contains(c)) {
+                for (int r = 0; r < at; r++) {
+                    rt.setValue(c, r, "");
+                }
+            }
+        }
+    }
+
+    private static List<String> columns(ResultsTable rt) {
+        String[] h = rt.getHeadings();
+        List<String> out = new ArrayList<>();
+        for (String c : h == null ? new String[0] : h) {
+            if (c != null && !c.isEmpty() && !c.equals(" ")) {
+                out.add(c);
+            }
+        }
+        return out;
     }
 
     /** @return the title of an operation's own table */
@@ -106,6 +144,35 @@ final class RunReport {
             // a word: stored as text below
         }
         rt.addValue(column, value);
+    }
+
+    /**
+     * @return the background a run used, ADU above the offset ("background_adu" of the record or of its
+     *     "settings"; the estimate when the background was "auto"), or NaN when the record has none
+     */
+    static double backgroundUsed(Map<String, Object> record) {
+        Object v = record.get("background_adu");
+        if (v == null && record.get("settings") instanceof Map<?, ?> settings) {
+            v = settings.get("background_adu");
+        }
+        return v instanceof Number n ? n.doubleValue() : Double.NaN;
+    }
+
+    /**
+     * @return the settings a dialog or macro gave, with the camera values the run used in place of "auto" or empty
+     *     ones (gain, read noise, offset from the record's "settings", where they were found from the data)
+     */
+    static Map<String, String> cameraUsed(Map<String, String> given, Map<String, Object> record) {
+        Map<String, String> out = new java.util.LinkedHashMap<>(given);
+        if (record.get("settings") instanceof Map<?, ?> settings) {
+            String[][] keys = {{"gain", "gain"}, {"read-noise", "read_noise_adu"}, {"offset", "offset_adu"}};
+            for (String[] k : keys) {
+                if (settings.get(k[1]) instanceof Number n && Double.isFinite(n.doubleValue())) {
+                    out.put(k[0], org.stackwright.op.Param.fmt(n.doubleValue()));
+                }
+            }
+        }
+        return out;
     }
 
     /** @return the convergence plot, or null when no part's record has a history */

@@ -52,12 +52,13 @@ public final class ResidualsOperation implements Operation {
                 Param.number("offset", 0.0, -1e9, 1e9, "ADU", "camera offset (bias) added to the prediction"),
                 Param.number("background", 0.0, -1e9, 1e9, "ADU", "background per voxel above the offset"),
                 Param.choice("likelihood", "poisson", List.of("poisson", "poisson-gaussian", "gaussian"),
-                        "noise model: photon counting, camera (gain and read noise) or constant Gaussian"),
+                        "noise model: photon counting, camera (gain and read noise) or constant Gaussian").withAlias("noise"),
                 Param.number("gain", 1.0, 1e-9, 1e9, "ADU/e-", "camera gain (poisson, poisson-gaussian)"),
                 Param.number("read-noise", 0.0, 0, 1e9, "ADU",
                         "read noise (poisson-gaussian) or the noise standard deviation (gaussian)"),
-                Param.outputImage("output", true, "the normalised residual stack (32-bit TIFF)"),
-                Param.outputImage("summary", false, "a one-page summary picture (PNG)"),
+                Param.outputImage("output", false, "the normalised residual stack (32-bit TIFF; leave out when only the"
+                        + " verdict is wanted)"),
+                Param.outputPicture("summary", "a one-page summary picture"),
                 FftChoice.param(),
                 Param.outputFile("record", "run record (JSON) with chi^2, verdict, histogram, spectrum and regions"));
     }
@@ -100,7 +101,7 @@ public final class ResidualsOperation implements Operation {
             if (scan.nonFinite() > 0) {
                 data = predictionWhereUntrusted(data, estimate, psf, model, scan.nonFiniteMask(), w, ctx.fft());
                 ctx.warn(String.format(Locale.ROOT, "input: the %d untrusted pixels are given the prediction"
-                        + " (residual 0), so they count as a perfect fit and lower chi^2 per pixel by up to %.3g %%",
+                        + " (residual 0), so they count as a perfect fit and lower chi^2 per voxel by up to %.3g %%",
                         scan.nonFinite(), 100.0 * scan.nonFinite() / data.size()));
             }
             report = ResidualReport.analyse(data, estimate, psf, model, w, ctx.fft());
@@ -117,17 +118,19 @@ public final class ResidualsOperation implements Operation {
         r.record("fft_engine", ctx.fft().name());
         FftChoice.note(r, fft);
         Verdict verdict = report.verdict();
-        r.line(String.format(Locale.ROOT, "chi^2 per pixel: %.4f (about 1 when the data fit the noise model)",
+        r.line(String.format(Locale.ROOT, "chi^2 per voxel: %.4f (about 1 when the data fit the noise model)",
                 report.maps().chi2PerVoxel()));
         if (Double.isFinite(report.chi2Band())) {
-            r.line(String.format(Locale.ROOT, "chi^2 per pixel inside the border band (used for the verdict): %.4f;"
-                    + " in the band: %.4f", report.chi2Interior(), report.chi2Band()));
+            r.line(String.format(Locale.ROOT, "chi^2 per voxel in the interior, further than the PSF half-width"
+                    + " from the faces (used for the verdict): %.4f; in the border band: %.4f", report.chi2Interior(),
+                    report.chi2Band()));
         }
         r.line("verdict: " + verdict.code());
         r.line(verdict.text());
         List<ResidualRegions.Region> regions = report.regions().listed();
         if (!regions.isEmpty()) {
-            r.line(String.format(Locale.ROOT, "regions with |r| > 4 (%d, largest first):", report.regions().listedCount()));
+            r.line(String.format(Locale.ROOT, "regions with |r| > 4 in the whole stack (%d, largest first;"
+                    + " the verdict counts those in the interior):", report.regions().listedCount()));
             r.line("  voxels        x        y        z   peak r");
             for (int i = 0; i < Math.min(10, regions.size()); i++) {
                 ResidualRegions.Region g = regions.get(i);

@@ -76,7 +76,7 @@ public final class SummaryPicture {
         cp.setFont(TITLE);
         String head = "Residual view: " + title + "   verdict: " + report.verdict().code() + "   chi\u00b2 per voxel "
                 + String.format(Locale.ROOT, "%.3f", report.chi2Interior()) + (Double.isFinite(report.chi2Band())
-                ? String.format(Locale.ROOT, " inside the border band (whole stack %.3f)", report.maps().chi2PerVoxel())
+                ? String.format(Locale.ROOT, " in the interior (whole stack %.3f)", report.maps().chi2PerVoxel())
                 : "");
         cp.drawString(head, MARGIN, MARGIN + 20);
         cp.setFont(TEXT);

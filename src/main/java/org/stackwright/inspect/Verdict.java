@@ -101,7 +101,7 @@ public record Verdict(String code, List<Cause> causes, String text) {
         int ox = box == null ? 0 : box[0];
         int oy = box == null ? 0 : box[1];
         int oz = box == null ? 0 : box[2];
-        String where = box == null || (box[0] == 0 && box[1] == 0 && box[2] == 0) ? "" : " inside the border band";
+        String where = box == null || (box[0] == 0 && box[1] == 0 && box[2] == 0) ? "" : " in the interior";
         long n = maps.normalised().size();
         double chi2 = maps.chi2PerVoxel();
         double width = 5 * Math.sqrt(2.0 / n);
@@ -115,9 +115,9 @@ public record Verdict(String code, List<Cause> causes, String text) {
         if (regions.listedCount() > 0) {
             ResidualRegions.Region big = regions.listed().get(0);
             causes.add(new Cause("isolated-regions", regions.chi2Share(maps.normalised()), String.format(Locale.ROOT,
-                    "%d isolated region%s with |r| > 4 (largest %d voxels at x %.0f, y %.0f, z %.0f, data %s the"
+                    "%d isolated region%s with |r| > 4%s (largest %d voxels at x %.0f, y %.0f, z %.0f, data %s the"
                     + " prediction): saturation, hot or dead pixels or other defects; mask them before measuring.",
-                    regions.listedCount(), regions.listedCount() == 1 ? "" : "s", big.voxels(), big.x() + ox,
+                    regions.listedCount(), regions.listedCount() == 1 ? "" : "s", where, big.voxels(), big.x() + ox,
                     big.y() + oy, big.z() + oz, big.peak() < 0 ? "below" : "above")));
         }
         boolean bg = fit.explainedByBackground() >= minExplained;
@@ -179,7 +179,8 @@ public record Verdict(String code, List<Cause> causes, String text) {
         causes.sort(Comparator.comparingDouble(Cause::share).reversed());
         if (causes.isEmpty()) {
             return new Verdict(FITS, List.of(), String.format(Locale.ROOT, "Fits the noise model: chi^2 per voxel"
-                    + " %.3f%s, flat residual spectrum (low/high frequency power %.2f), no isolated regions.", chi2,
+                    + " %.3f%s, no excess residual power at low frequencies (low/high frequency power %.2f), no"
+                    + " isolated regions.", chi2,
                     where, spectrum.lowFrequencyRatio()));
         }
         List<Cause> named = new ArrayList<>();

@@ -63,6 +63,8 @@ public final class DeconvolutionProblem {
     private final float[] norm;
     private final float background;
     private final BlurOperator blur;
+    /** H: the blur, or the depth-variant blur (then {@link #blur} is null) */
+    private final LinearOperator forward;
     private final Workers workers;
     private final int trusted;
     private final float start;
@@ -81,7 +83,7 @@ public final class DeconvolutionProblem {
      */
     public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
             double backgroundAdu, Workers workers) {
-        this(data, psf, mask, boundary, camera, backgroundAdu, workers, FftEngines.standard(), Float.NaN, 0, 0);
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, FftEngines.standard(), Float.NaN, null, null, 0, 0);
     }
 
     /**
@@ -91,7 +93,7 @@ public final class DeconvolutionProblem {
      */
     public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
             double backgroundAdu, Workers workers, FftEngine fft) {
-        this(data, psf, mask, boundary, camera, backgroundAdu, workers, fft, Float.NaN, 0, 0);
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, fft, Float.NaN, null, null, 0, 0);
     }
 
     /**
@@ -108,12 +110,28 @@ public final class DeconvolutionProblem {
         if (!(share > 0 && share <= 0.5)) {
             throw new IllegalArgumentException("held-out share = " + share + " is not allowed; give a value in (0, 0.5]");
         }
-        return new DeconvolutionProblem(data, psf, mask, boundary, camera, backgroundAdu, workers, fft, Float.NaN, share,
-                seed);
+        return new DeconvolutionProblem(data, psf, mask, boundary, camera, backgroundAdu, workers, fft, Float.NaN, null,
+                null, share, seed);
+    }
+
+    /**
+     * A problem whose blur changes with depth ({@link DepthVariantBlur}): only solvers that use {@link #forward()}
+     * (Richardson-Lucy, plain and accelerated) can solve it.
+     *
+     * @param psfs the PSFs of the strata at the data's voxel size, all of one odd size, unit sum; not modified
+     * @param planes the data plane where each PSF holds, increasing
+     * @param fft the FFT engine
+     * @see #DeconvolutionProblem(Volume, Volume, byte[], Boundary, Camera, double, Workers)
+     */
+    public static DeconvolutionProblem depthVariant(Volume data, java.util.List<Volume> psfs, double[] planes,
+            byte[] mask, Boundary boundary, Camera camera, double backgroundAdu, Workers workers, FftEngine fft) {
+        return new DeconvolutionProblem(data, psfs.get(0), mask, boundary, camera, backgroundAdu, workers, fft,
+                Float.NaN, psfs, planes, 0, 0);
     }
 
     private DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
-            double backgroundAdu, Workers workers, FftEngine fft, float start, double heldShare, long heldSeed) {
+            double backgroundAdu, Workers workers, FftEngine fft, float start, java.util.List<Volume> strata,
+            double[] planes, double heldShare, long heldSeed) {
         if (!(backgroundAdu >= 0) || !Double.isFinite(backgroundAdu)) {
             throw new IllegalArgumentException("background = " + backgroundAdu + " is not allowed; give 0 or more ADU above the offset");
         }
@@ -140,7 +158,13 @@ public final class DeconvolutionProblem {
         }
         Volume.checkSize(nx, ny, nz);
         int n = nx * ny * nz;
-        this.blur = new BlurOperator(psf, nx, ny, nz, workers, fft);
+        if (strata == null) {
+            this.blur = new BlurOperator(psf, nx, ny, nz, workers, fft);
+            this.forward = blur;
+        } else {
+            this.blur = null;
+            this.forward = new DepthVariantBlur(strata, planes, d, nx, ny, nz, workers, fft);
+        }
         this.y = new float[w * h * d];
         double s = camera.readNoiseShift();
         this.background = (float) (backgroundAdu / camera.gain() + s);
@@ -181,7 +205,7 @@ public final class DeconvolutionProblem {
             this.start = start;
         } else {
             // H^T w computed in the blur's in-place work array (no FFT work buffer kept for the run), then trimmed
-            float[] t = blur.newWorkArray();
+            float[] t = forward.newWorkArray();
             for (int z = 0; z < d; z++) {
                 for (int yy = 0; yy < h; yy++) {
                     int row = (z * ny + yy) * nx;
@@ -191,7 +215,7 @@ public final class DeconvolutionProblem {
                     }
                 }
             }
-            blur.applyAdjoint(t, t);
+            forward.applyAdjoint(t, t);
             this.norm = t.length == n ? t : java.util.Arrays.copyOf(t, n);
             float max = 0;
             for (float v : norm) {
@@ -213,7 +237,7 @@ public final class DeconvolutionProblem {
      */
     public static DeconvolutionProblem compatible(Volume data, Volume psf, Workers workers) {
         return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), 0, workers,
-                FftEngines.standard(), 0.5f, 0, 0);
+                FftEngines.standard(), 0.5f, null, null, 0, 0);
     }
 
     private boolean inWindow(int i) {
@@ -275,9 +299,30 @@ public final class DeconvolutionProblem {
         return workers;
     }
 
-    /** @return the blur H on the object grid */
+    /**
+     * @return the blur H on the object grid
+     * @throws IllegalStateException for a depth-variant problem (use {@link #forward()})
+     */
     public BlurOperator blur() {
+        if (blur == null) {
+            throw new IllegalStateException("this solver needs one PSF; a depth-variant blur works with richardson-lucy only");
+        }
         return blur;
+    }
+
+    /** @return the name of the FFT engine of the forward operator, for run records */
+    public String fftEngine() {
+        return blur != null ? blur.fftEngine() : ((DepthVariantBlur) forward).fftEngine();
+    }
+
+    /** @return how the FFT engine planned its transforms, for run records */
+    public String fftPlanning() {
+        return blur != null ? blur.fftPlanning() : ((DepthVariantBlur) forward).fftPlanning();
+    }
+
+    /** @return the forward operator H on the object grid: the blur, or the depth-variant blur */
+    public LinearOperator forward() {
+        return forward;
     }
 
     /** @return number of pixels that carry likelihood */
@@ -444,7 +489,7 @@ public final class DeconvolutionProblem {
      * @return mean Kullback-Leibler divergence per trusted pixel
      */
     public double meanFit(float[] x, float[] work) {
-        blur.apply(x, work);
+        forward.apply(x, work);
         return fit(work) / trusted;
     }
 

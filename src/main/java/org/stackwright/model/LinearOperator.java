@@ -28,6 +28,14 @@ public interface LinearOperator {
      */
     void applyAdjoint(float[] in, float[] out);
 
+    /**
+     * @return a new array to pass as the output of {@link #apply} and {@link #applyAdjoint}: at least
+     *     {@link #rangeLength()} floats (an operator whose transforms can run in place in a longer array gives one)
+     */
+    default float[] newWorkArray() {
+        return new float[Math.max(rangeLength(), domainLength())];
+    }
+
     /** @return the operator "first this, then next": next * this */
     default LinearOperator then(LinearOperator next) {
         return new ComposedOperator(this, next);

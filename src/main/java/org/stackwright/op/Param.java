@@ -15,9 +15,11 @@ import java.util.List;
  * @param min smallest allowed number (NUMBER, INTEGER), inclusive
  * @param max largest allowed number (NUMBER, INTEGER), inclusive
  * @param required whether the value must be given (no default)
+ * @param aliases older keys of this setting that macros and the command line still accept, with a note that names
+ *     the current key (see {@link #withAlias}); never shown in dialogs or help
  */
 public record Param(String key, Kind kind, String defaultValue, String unit, String help, List<String> choices,
-        double min, double max, boolean required) {
+        double min, double max, boolean required, List<String> aliases) {
 
     /** Kinds of settings. */
     public enum Kind {
@@ -44,6 +46,38 @@ public record Param(String key, Kind kind, String defaultValue, String unit, Str
             throw new IllegalArgumentException("bad parameter key '" + key + "'");
         }
         choices = List.copyOf(choices);
+        aliases = List.copyOf(aliases);
+        for (String a : aliases) {
+            if (!a.matches("[a-z][a-z0-9-]*") || a.equals(key)) {
+                throw new IllegalArgumentException("bad alias '" + a + "' of parameter '" + key + "'");
+            }
+        }
+    }
+
+    /** A setting without aliases. */
+    public Param(String key, Kind kind, String defaultValue, String unit, String help, List<String> choices,
+            double min, double max, boolean required) {
+        this(key, kind, defaultValue, unit, help, choices, min, max, required, List.of());
+    }
+
+    /**
+     * @param oldKey a key this setting had before it was renamed; macros and command lines that use it keep
+     *     working, with a note naming the new key
+     * @return a copy that also accepts the old key
+     */
+    public Param withAlias(String oldKey) {
+        List<String> a = new java.util.ArrayList<>(aliases);
+        a.add(oldKey);
+        return new Param(key, kind, defaultValue, unit, help, choices, min, max, required, a);
+    }
+
+    /**
+     * @param prefix how the door writes a key: "" (macro), "--" (command line)
+     * @return the note a door shows when an old key was used
+     */
+    public String aliasNote(String oldKey, String prefix) {
+        return "'" + prefix + oldKey + "' is the old name of '" + prefix + key + "'; it still works, but write '"
+                + prefix + key + "' in new macros and scripts";
     }
 
     /** A required or optional number in [min, max]. */
@@ -84,6 +118,11 @@ public record Param(String key, Kind kind, String defaultValue, String unit, Str
         return new Param(key, Kind.OUTPUT_IMAGE, null, "", help, List.of(), 0, 0, required);
     }
 
+    /** An output picture: a PNG file on the command line, a new (RGB) window in ImageJ. */
+    public static Param outputPicture(String key, String help) {
+        return new Param(key, Kind.OUTPUT_IMAGE, null, "PNG", help, List.of(), 0, 0, false);
+    }
+
     /** An output file (JSON record). */
     public static Param outputFile(String key, String help) {
         return new Param(key, Kind.OUTPUT_FILE, null, "", help, List.of(), 0, 0, false);
@@ -91,7 +130,7 @@ public record Param(String key, Kind kind, String defaultValue, String unit, Str
 
     /** @return a copy that must be given */
     public Param asRequired() {
-        return new Param(key, kind, null, unit, help, choices, min, max, true);
+        return new Param(key, kind, null, unit, help, choices, min, max, true, aliases);
     }
 
     /** @return true for the kinds that a door supplies as files or windows rather than as text */

@@ -13,7 +13,8 @@ import org.stackwright.volume.Volume;
  * standard deviations (1.4826 x median absolute deviation) and more than 2 % of the brightest smoothed voxel
  * above the median background are candidates. A
  * candidate dimmer than a fifth of a brighter candidate whose PSF box holds it is a side lobe of that bead, not a
- * bead, and is dropped. Rejections, each with its reason:
+ * bead, and is dropped; so is any candidate within two voxels of the axis of a brighter one inside its box (the
+ * axial side maxima of a bead seen through spherical aberration). Rejections, each with its reason:
  * <ul>
  * <li>too close to the edge: the PSF box (plus two voxels for interpolation) does not fit in the stack;</li>
  * <li>neighbour: another bead lies inside the PSF box, so its light would enter the average;</li>
@@ -65,8 +66,8 @@ final class BeadFinder {
         for (int[] m : maxima) {
             boolean lobe = false;
             for (int[] b : beads) {
-                if (insideBox(m, b, hx, hy, hz) && smooth.get(m[0], m[1], m[2]) - stats[0]
-                        < 0.2 * (smooth.get(b[0], b[1], b[2]) - stats[0])) {
+                boolean dim = smooth.get(m[0], m[1], m[2]) - stats[0] < 0.2 * (smooth.get(b[0], b[1], b[2]) - stats[0]);
+                if (insideBox(m, b, hx, hy, hz) && (dim || onAxis(m, b))) {
                     lobe = true;
                     break;
                 }
@@ -124,6 +125,15 @@ final class BeadFinder {
             return String.format(Locale.ROOT, "close pair: another bead %.1f voxels away, inside the PSF box", nearest);
         }
         return "";
+    }
+
+    /**
+     * @return true when a lies within two voxels of b's axis: the axial side maxima of a bead imaged through
+     *     spherical aberration (deep in a sample of lower index) lie there and can be nearly as bright as the
+     *     main one
+     */
+    private static boolean onAxis(int[] a, int[] b) {
+        return Math.abs(a[0] - b[0]) <= 2 && Math.abs(a[1] - b[1]) <= 2;
     }
 
     private static boolean insideBox(int[] a, int[] b, int hx, int hy, int hz) {

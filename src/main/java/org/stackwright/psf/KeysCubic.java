@@ -21,4 +21,18 @@ final class KeysCubic {
         }
         return 0;
     }
+
+    /** @return the derivative of the kernel at offset s (in samples) */
+    static double derivative(double s) {
+        double x = Math.abs(s);
+        double d;
+        if (x <= 1) {
+            d = (4.5 * x - 5) * x;
+        } else if (x < 2) {
+            d = (-1.5 * x + 5) * x - 4;
+        } else {
+            return 0;
+        }
+        return s < 0 ? -d : d;
+    }
 }

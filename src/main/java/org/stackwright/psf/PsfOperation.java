@@ -102,7 +102,7 @@ public final class PsfOperation implements Operation {
         ctx.progress(1, "PSF done");
         Fwhm.Widths fw = Fwhm.measure(psf);
         Result r = new Result();
-        r.image("output", ImagePlusAdapter.toImagePlus(psf, "psf-" + model.name()));
+        r.image("output", ImagePlusAdapter.toImagePlus(psf, title(model.name(), v.number("na"), v.number("wavelength"))));
         r.record("operation", name());
         r.record("settings", v.effective());
         r.record("model", model.name());
@@ -117,5 +117,10 @@ public final class PsfOperation implements Operation {
                     (double) record.get("focal_offset_um"), (double) record.get("paraxial_focal_offset_um")));
         }
         return r;
+    }
+
+    /** @return a title that says what the PSF is: "psf-gibson-lanni-NA1.3-520nm" */
+    static String title(String model, double na, double wavelength) {
+        return "psf-" + model + "-NA" + Param.fmt(na) + "-" + Param.fmt(wavelength) + "nm";
     }
 }

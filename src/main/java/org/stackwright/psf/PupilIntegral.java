@@ -62,9 +62,9 @@ final class PupilIntegral {
         double[] fixed = phaseVariation(s, k, aberrated, rhoMax, 0);
         // cycles over the aperture: the total phase change; the aberration term of a deep emitter in a sample of
         // lower index oscillates much faster near the rim than on average, so its fastest local rate (at most
-        // three times its total) counts when it is larger
+        // five times its total) counts when it is larger
         double total = Math.max(up[0], down[0]);
-        double phaseCycles = Math.max(total, Math.min(fixed[1], 3 * fixed[0])) / (2 * Math.PI);
+        double phaseCycles = Math.max(total, Math.min(fixed[1], 5 * fixed[0])) / (2 * Math.PI);
         int n = (int) Math.ceil(16 * (besselCycles + phaseCycles)) + 64;
         this.nodes = n + (n % 2) + 1;
         weights = new double[nodes];

@@ -7,6 +7,7 @@ import org.stackwright.op.Operation;
 
 import org.stackwright.inspect.CameraNoiseOperation;
 import org.stackwright.inspect.CompareOperation;
+import org.stackwright.inspect.IntervalProfileOperation;
 import org.stackwright.inspect.ResidualsOperation;
 import org.stackwright.repair.FindDefectsOperation;
 import org.stackwright.repair.InpaintOperation;
@@ -14,6 +15,7 @@ import org.stackwright.repair.SeamMaskOperation;
 import org.stackwright.psf.MeasurePsfOperation;
 import org.stackwright.psf.PsfFromBeadsOperation;
 import org.stackwright.psf.PsfOperation;
+import org.stackwright.refine.PsfRefineOperation;
 import org.stackwright.simulate.SimulateOperation;
 import org.stackwright.solve.DeconvolveOperation;
 
@@ -33,12 +35,14 @@ public final class Operations {
                 new PsfOperation(),
                 new PsfFromBeadsOperation(),
                 new MeasurePsfOperation(),
+                new PsfRefineOperation(),
                 new FindDefectsOperation(),
                 new SeamMaskOperation(),
                 new InpaintOperation(),
                 new ResidualsOperation(),
                 new CompareOperation(),
                 new CameraNoiseOperation(),
+                new IntervalProfileOperation(),
                 new DeconvolveOperation());
     }
 

@@ -70,14 +70,41 @@ public final class DeconvolveCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "likelihood")
     private String likelihood;
 
+    @Parameter(persist = false, required = false, label = "uncertainty")
+    private String uncertainty;
+
     @Parameter(persist = false, required = false, label = "replicas")
     private Integer replicas;
+
+    @Parameter(persist = false, required = false, label = "samples")
+    private Integer samples;
+
+    @Parameter(persist = false, required = false, label = "level")
+    private Double level;
+
+    @Parameter(persist = false, required = false, label = "chains")
+    private Integer chains;
+
+    @Parameter(persist = false, required = false, label = "burn-in")
+    private Integer burnIn;
+
+    @Parameter(persist = false, required = false, label = "thinning")
+    private Integer thinning;
 
     @Parameter(type = ItemIO.OUTPUT, label = "spread-output")
     private ImagePlus spreadOutput;
 
     @Parameter(type = ItemIO.OUTPUT, label = "bias-output")
     private ImagePlus biasOutput;
+
+    @Parameter(type = ItemIO.OUTPUT, label = "lower-output")
+    private ImagePlus lowerOutput;
+
+    @Parameter(type = ItemIO.OUTPUT, label = "upper-output")
+    private ImagePlus upperOutput;
+
+    @Parameter(type = ItemIO.OUTPUT, label = "width-output")
+    private ImagePlus widthOutput;
 
     @Parameter(persist = false, required = false, label = "na")
     private Double na;
@@ -87,6 +114,18 @@ public final class DeconvolveCommand extends OperationCommand {
 
     @Parameter(persist = false, required = false, label = "immersion-index")
     private Double immersionIndex;
+
+    @Parameter(persist = false, required = false, label = "depth-variant")
+    private String depthVariant;
+
+    @Parameter(persist = false, required = false, label = "strata")
+    private Integer strata;
+
+    @Parameter(persist = false, required = false, label = "sample-index")
+    private Double sampleIndex;
+
+    @Parameter(persist = false, required = false, label = "first-depth")
+    private Double firstDepth;
 
     @Parameter(persist = false, required = false, label = "fft")
     private String fft;

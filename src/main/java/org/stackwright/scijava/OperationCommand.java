@@ -240,7 +240,7 @@ public abstract class OperationCommand extends ContextCommand {
             }
         }
         s.overwrite(Boolean.TRUE.equals(overwrite));
-        return s;
+        return s.outputsAsked(false);
     }
 
     /** A value as the text the operation parses: Double.toString gives back the same double. */

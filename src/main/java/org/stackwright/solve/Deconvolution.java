@@ -17,8 +17,8 @@ import org.stackwright.volume.Volume;
 /**
  * Runs one deconvolution from camera data, a PSF and settings: checks the pixels ({@link InputChecks}: NaN and
  * infinite pixels are masked with a warning, joined to the caller's mask), prepares the PSF ({@link PsfChecks}),
- * estimates the background when asked, checks memory ({@link MemoryCheck}), builds the
- * {@link DeconvolutionProblem}, runs the solver and writes the run record. Used by the {@code deconvolve}
+ * checks memory ({@link MemoryCheck}), resolves automatic values ({@link AutomaticSettings}: camera, background,
+ * lambda, stop), builds the {@link DeconvolutionProblem}, runs the solver and writes the run record. Used by the {@code deconvolve}
  * operation, the demo and the benchmark; no ImageJ needed.
  */
 public final class Deconvolution {
@@ -63,97 +63,181 @@ public final class Deconvolution {
     /** As above; with {@code withModel} the outcome also holds the fitted forward model (one more blur). */
     static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s, Volume dark,
             Volume flat, RunContext ctx, IterationListener listener, boolean withModel) {
+        return run(data, psf, psfName, mask, s, dark, flat, ctx, listener, withModel, null, null);
+    }
+
+    /**
+     * Depth-variant deconvolution: as {@link #run(Volume, Volume, String, byte[], DeconvolutionSettings,
+     * RunContext, IterationListener)} with the PSF modelled at {@code depthVariant.strata()} depths
+     * ({@link DepthStrata}) instead of one given PSF; Richardson-Lucy (plain or accelerated) only.
+     *
+     * @param depthVariant optics at the first plane and the number of strata
+     */
+    public static Outcome runDepthVariant(Volume data, byte[] mask, DeconvolutionSettings s, DepthVariant depthVariant,
+            RunContext ctx, IterationListener listener) {
+        return runDepthVariant(data, mask, s, depthVariant, null, null, ctx, listener);
+    }
+
+    /** As above, with dark and/or flat frames for the camera values (each may be null). */
+    public static Outcome runDepthVariant(Volume data, byte[] mask, DeconvolutionSettings s, DepthVariant depthVariant,
+            Volume dark, Volume flat, RunContext ctx, IterationListener listener) {
+        if (!s.method().equals("richardson-lucy")) {
+            throw new IllegalArgumentException("depth-variant on works with method richardson-lucy only (given "
+                    + s.method() + "); choose method richardson-lucy (acceleration on or off)");
+        }
+        return run(data, null, "modelled: gibson-lanni at " + depthVariant.strata() + " depths", mask, s, dark, flat,
+                ctx, listener, false, depthVariant, null);
+    }
+
+    /**
+     * The settings of a depth-variant deconvolution.
+     *
+     * @param optics Gibson-Lanni optics, depth = depth below the coverslip of the emitters in focus at the first
+     *     plane (grid sizes unused)
+     * @param strata number of PSFs
+     */
+    public record DepthVariant(org.stackwright.psf.PsfSettings optics, int strata) {
+    }
+
+    /** Work that needs the problem and the solver's grid estimate, done before the problem's threads stop. */
+    interface AfterSolve {
+        /**
+         * @param problem the problem the solver ran on (its threads still running)
+         * @param solution the solver's output (grid estimate), not to be modified
+         */
+        void run(DeconvolutionProblem problem, Solution solution);
+    }
+
+    /** As above; {@code after} (or null) runs on the problem and the solution before the problem's threads stop. */
+    static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
+            RunContext ctx, IterationListener listener, boolean withModel, AfterSolve after) {
+        return run(data, psf, psfName, mask, s, null, null, ctx, listener, withModel, null, after);
+    }
+
+    private static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
+            Volume dark, Volume flat, RunContext ctx, IterationListener listener, boolean withModel, DepthVariant dv,
+            AfterSolve after) {
         InputChecks.Scan scan = InputChecks.check("input", data, ctx);
         mask = MaskChecks.union(mask, scan.nonFiniteMask());
         data = InputChecks.finiteCopy(data, scan);
         DeconvolutionProblem.Boundary boundary = AutomaticSettings.boundary(s);
         int warned = ctx.warnings().size();
-        PsfChecks.Prepared prepared = PsfChecks.prepare("psf", psf, data,
-                boundary == DeconvolutionProblem.Boundary.EXTENDED, ctx);
+        // one PSF as given, or (depth-variant) an empty volume of the modelled PSFs' size for the grid
+        PsfChecks.Prepared prepared = dv == null
+                ? PsfChecks.prepare("psf", psf, data, boundary == DeconvolutionProblem.Boundary.EXTENDED, ctx)
+                : new PsfChecks.Prepared(emptyOfSize(DepthStrata.psfSize(dv.optics(), data), data), 0);
         Volume p = prepared.psf();
         List<String> notes = new ArrayList<>(ctx.warnings().subList(warned, ctx.warnings().size()));
         Solver planned = s.solver();
         long grid = gridVoxels(data, p, boundary);
-        long need = memoryEstimate(grid, planned.gridArrays(), data.size());
+        // a depth-variant blur holds K transfer functions, two spectra and a buffer instead of one blur's two
+        long need = memoryEstimate(grid, planned.gridArrays() + (dv == null ? 0 : dv.strata() + 1), data.size());
         MemoryCheck.require("deconvolve of " + data.shape() + " (grid " + gridShape(data, p, boundary)
                 + (boundary == DeconvolutionProblem.Boundary.EXTENDED ? "; --boundary periodic needs a smaller grid" : "")
-                + ")", need);
-        AutomaticSettings.Resolved resolved = AutomaticSettings.resolve(data, p, mask, s, dark, flat, ctx);
-        DeconvolutionSettings r = resolved.settings();
-        double bg = r.background();
-        Solver solver = r.solver();
-        ctx.progress(0, "preparing " + r.method());
+                + (dv == null ? "" : "; " + dv.strata() + " strata: fewer strata need less") + ")", need);
+        DepthStrata strata = null;
+        if (dv != null) {
+            ctx.progress(0, "modelling " + dv.strata() + " PSFs across the depth");
+            try (Workers workers = new Workers(ctx.threads())) {
+                strata = DepthStrata.build(dv.optics(), data, dv.strata(), workers);
+            }
+        }
+        // automatic values from the data; a depth-variant run finds its stop with the PSF of the middle stratum
+        Volume trialPsf = strata == null ? p : strata.psfs().get(strata.psfs().size() / 2);
+        AutomaticSettings.Resolved resolved = AutomaticSettings.resolve(data, trialPsf, mask, s, dark, flat, ctx);
+        DeconvolutionSettings used = resolved.settings();
+        double bg = used.background();
+        Solver solver = used.solver();
+        ctx.progress(0, "preparing " + used.method());
         Solution sol;
         DeconvolutionProblem problem;
         Volume model;
         double[] fit;
         try (Workers workers = new Workers(ctx.threads())) {
-            problem = new DeconvolutionProblem(data, p, mask, boundary, r.camera(), bg, workers, ctx.fft());
+            if (strata == null) {
+                problem = new DeconvolutionProblem(data, p, mask, boundary, used.camera(), bg, workers, ctx.fft());
+            } else {
+                problem = DeconvolutionProblem.depthVariant(data, strata.psfs(), strata.planes(), mask, boundary,
+                        used.camera(), bg, workers, ctx.fft());
+            }
             sol = solver.solve(problem, ctx, listener);
             fit = finalFit(problem, sol.estimate());
             model = withModel ? forwardModel(problem, sol.estimate(), bg) : null;
+            if (after != null) {
+                after.run(problem, sol);
+            }
         }
-        boolean early = resolved.stop() != null ? resolved.stop().met() : r.stopping().rule() == StopRule.FIXED;
+        boolean early = resolved.stop() != null ? resolved.stop().met() : used.stopping().rule() == StopRule.FIXED;
         String reason = (resolved.stop() != null ? resolved.stop().reason() : sol.stopReason()) + "; "
                 + FitStatus.describe(fit[0], fit[1], early);
         sol = new Solution(sol.estimate(), sol.iterations(), reason, sol.objective(), sol.change(), sol.seconds());
         Volume result = problem.toVolume(sol.estimate());
-        Map<String, Object> rec = new LinkedHashMap<>();
-        rec.put("operation", "deconvolve");
-        rec.put("method", r.method());
-        rec.put("iterations", sol.iterations());
-        rec.put("stop_reason", sol.stopReason());
-        rec.put("seconds", sol.seconds());
-        rec.put("objective", solver.objectiveName());
-        rec.put("history", sol.objective());
-        rec.put("change_history", sol.change());
-        rec.put("fit_per_pixel", fit[0]);
-        rec.put("fit_expected_from_noise", fit[1]);
+        Map<String, Object> r = new LinkedHashMap<>();
+        r.put("operation", "deconvolve");
+        r.put("method", used.method());
+        r.put("iterations", sol.iterations());
+        r.put("stop_reason", sol.stopReason());
+        r.put("seconds", sol.seconds());
+        r.put("objective", solver.objectiveName());
+        r.put("history", sol.objective());
+        r.put("change_history", sol.change());
+        r.put("fit_per_pixel", fit[0]);
+        r.put("fit_expected_from_noise", fit[1]);
         Map<String, Object> set = new LinkedHashMap<>();
         set.put("stop", s.stopping().rule().word());
         set.put("max_iterations", s.stopping().maxIterations());
         set.put("tolerance", s.stopping().tolerance());
         set.putAll(resolved.record());
-        set.put("regularization", r.regularized() ? r.lambda() : 0.0);
-        set.put("boundary", r.boundary());
-        set.put("acceleration", r.method().equals("richardson-lucy") && r.accelerated());
-        set.put("likelihood", r.likelihood());
+        set.put("regularization", used.regularized() ? used.lambda() : 0.0);
+        set.put("boundary", used.boundary());
+        set.put("acceleration", used.method().equals("richardson-lucy") && used.accelerated());
+        set.put("likelihood", used.likelihood());
         set.put("threads", ctx.threads());
-        rec.put("settings", set);
+        r.put("settings", set);
         Map<String, Object> psfInfo = new LinkedHashMap<>();
         psfInfo.put("source", psfName);
-        psfInfo.put("shape_as_read", psf.shape());
-        psfInfo.put("voxel_um_as_read", List.of(psf.voxel().x(), psf.voxel().y(), psf.voxel().z()));
+        if (psf != null) {
+            psfInfo.put("shape_as_read", psf.shape());
+            psfInfo.put("voxel_um_as_read", List.of(psf.voxel().x(), psf.voxel().y(), psf.voxel().z()));
+            psfInfo.put("sum_as_read", psf.sum());
+        }
         psfInfo.put("shape_used", p.shape());
-        psfInfo.put("sum_as_read", psf.sum());
         psfInfo.put("energy_share_dropped", prepared.droppedShare());
         psfInfo.put("changes", notes);
-        rec.put("psf", psfInfo);
-        rec.put("image_shape", data.shape());
-        rec.put("voxel_um", List.of(data.voxel().x(), data.voxel().y(), data.voxel().z()));
-        rec.put("grid_shape", problem.gridWidth() + "x" + problem.gridHeight() + "x" + problem.gridDepth());
-        rec.put("trusted_pixels", problem.trustedPixels());
-        rec.put("fft_engine", problem.blur().fftEngine());
-        rec.put("fft_planning", problem.blur().fftPlanning());
-        rec.put("peak_memory_estimate_bytes", need);
-        rec.put("result_units", "ADU above the camera offset (background removed)");
-        return new Outcome(result, sol, rec, model, r);
+        r.put("psf", psfInfo);
+        if (strata != null) {
+            r.put("depth_variant", strata.record());
+        }
+        r.put("image_shape", data.shape());
+        r.put("voxel_um", List.of(data.voxel().x(), data.voxel().y(), data.voxel().z()));
+        r.put("grid_shape", problem.gridWidth() + "x" + problem.gridHeight() + "x" + problem.gridDepth());
+        r.put("trusted_pixels", problem.trustedPixels());
+        r.put("fft_engine", problem.fftEngine());
+        r.put("fft_planning", problem.fftPlanning());
+        r.put("peak_memory_estimate_bytes", need);
+        r.put("result_units", "ADU above the camera offset (background removed)");
+        return new Outcome(result, sol, r, model, used);
     }
 
     /** @return {mean fit per trusted pixel, what noise alone leaves} of the final estimate (one more blur) */
     private static double[] finalFit(DeconvolutionProblem problem, float[] x) {
-        float[] work = new float[x.length];
+        float[] pos = new float[x.length];
         for (int i = 0; i < x.length; i++) {
-            work[i] = Math.max(x[i], 0f);
+            pos[i] = Math.max(x[i], 0f);
         }
-        problem.blur().apply(work, work);
+        float[] work = new float[x.length];
+        problem.forward().apply(pos, work);
         return new double[] {problem.fit(work) / problem.trustedPixels(), problem.expectedFit(work)};
+    }
+
+    private static Volume emptyOfSize(int[] size, Volume data) {
+        return Volume.zeros(size[0], size[1], size[2], data.voxel());
     }
 
     /** @return gain * (H x) on the image window plus the background, ADU above the offset */
     private static Volume forwardModel(DeconvolutionProblem problem, float[] x, double backgroundAdu) {
         float[] work = new float[x.length];
-        problem.blur().apply(x, work);
+        problem.forward().apply(x, work);
         Volume m = problem.toVolume(work);
         float[] d = m.data();
         for (int i = 0; i < d.length; i++) {

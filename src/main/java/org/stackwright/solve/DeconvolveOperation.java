@@ -30,8 +30,6 @@ import org.stackwright.volume.Volume;
  */
 public final class DeconvolveOperation implements Operation {
 
-    /** Seed of the noise replicas (fixed, so that a run can be repeated bit for bit). */
-    static final long REPLICA_SEED = 20260101L;
     /** The word for a value the run finds itself. */
     static final String AUTO = "auto";
     /**
@@ -52,9 +50,10 @@ public final class DeconvolveOperation implements Operation {
 
     @Override
     public List<Param> params() {
-        return List.of(
+        List<Param> p = new java.util.ArrayList<>(List.of(
                 Param.image("input", true, "camera data to deconvolve (raw ADU; do not subtract the offset or background)"),
-                Param.image("psf", true, "the PSF (odd sizes, centre at n/2; resampled when its voxel size differs)"),
+                Param.image("psf", false, "the PSF (odd sizes, centre at n/2; resampled when its voxel size differs); "
+                        + "required unless depth-variant is on"),
                 Param.outputImage("output", true, "the deconvolved estimate, 32-bit, ADU above the offset"),
                 Param.choice("method", "richardson-lucy", DeconvolutionSettings.METHODS, "deconvolution method"),
                 Limits.iterations("iterations", DEFAULT_MAX_ITERATIONS, "maximum number of iterations: reaching it is"
@@ -81,17 +80,25 @@ public final class DeconvolveOperation implements Operation {
                         "extended = object larger than the image, no wrap-around; periodic = wraps around (smaller, faster)"),
                 Param.choice("acceleration", "on", List.of("on", "off"), "vector extrapolation for richardson-lucy"),
                 Param.choice("likelihood", "poisson", List.of("poisson", "gaussian"), "data term of total-variation; with "
-                        + "replicas also their noise (gaussian: additive, read-noise as standard deviation)"),
-                Param.integer("replicas", 0, 0, NoiseReplicas.MAX_REPLICAS, "noise replicas for the spread map: 0 = off, "
-                        + "2 to " + NoiseReplicas.MAX_REPLICAS + "; costs that many more deconvolutions"),
-                Param.outputImage("spread-output", false, "per-voxel standard deviation over the noise replicas, 32-bit, "
-                        + "ADU (photon and camera noise only; needs replicas)"),
-                Param.outputImage("bias-output", false, "per-voxel replica mean minus the estimate, 32-bit, ADU (needs replicas)"),
+                        + "replicas also their noise (gaussian: additive, read-noise as standard deviation)").withAlias("noise"),
                 Param.number("na", null, 0.01, 1.7, "", "numerical aperture, for the sampling check (optional)"),
                 Param.number("wavelength", null, 200, 2000, "nm", "emission wavelength, for the sampling check (optional)"),
                 Param.number("immersion-index", null, 1.0, 2.0, "", "immersion index, for the sampling check (optional)"),
+                // depth-variant deconvolution (Gibson-Lanni PSFs at several depths): na, wavelength and
+                // immersion-index above give its optics
+                Param.choice("depth-variant", "off", List.of("off", "on"), "on = model Gibson-Lanni PSFs at several "
+                        + "depths from the optics and interpolate between them (richardson-lucy only; needs na, "
+                        + "wavelength, immersion-index, sample-index)"),
+                Param.integer("strata", 4, DepthStrata.MIN_STRATA, DepthStrata.MAX_STRATA, "depth-variant: number of "
+                        + "PSFs across the stack (time and memory grow with it)"),
+                Param.number("sample-index", null, 1.0, 2.0, "", "depth-variant: refractive index of the sample medium"),
+                Param.number("first-depth", 0.0, 0, 10_000, "um", "depth-variant: depth below the coverslip of the "
+                        + "first plane's focus"),
                 FftChoice.param(),
-                Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history"));
+                Param.outputFile("record", "run record (JSON): method, iterations, stop reason, time, history")));
+        p.addAll(p.indexOf(p.stream().filter(q -> q.key().equals("likelihood")).findFirst().orElseThrow()) + 1,
+                UncertaintyStep.params());
+        return List.copyOf(p);
     }
 
     @Override
@@ -107,10 +114,20 @@ public final class DeconvolveOperation implements Operation {
                     + "PSF: split the hyperstack first)");
         }
         Volume data = ImagePlusAdapter.toVolume(in);
-        Volume psf = ImagePlusAdapter.toVolume(psfImp);
-        if (!ImagePlusAdapter.isCalibrated(psfImp)) {
-            psf = psf.withVoxel(data.voxel());
-            ctx.warn("psf: '" + psfImp.getTitle() + "' has no calibration; taken to have the image's voxel size " + data.voxel());
+        boolean depthVariant = v.choice("depth-variant").equals("on");
+        if (psfImp == null && !depthVariant) {
+            throw new IllegalArgumentException("image 'psf' is required for deconvolve: give the PSF, or depth-variant on "
+                    + "with the optics to model it");
+        }
+        Volume psf = null;
+        if (psfImp != null && depthVariant) {
+            ctx.warn("psf: '" + psfImp.getTitle() + "' is not used: depth-variant on models the PSFs from the optics");
+        } else if (psfImp != null) {
+            psf = ImagePlusAdapter.toVolume(psfImp);
+            if (!ImagePlusAdapter.isCalibrated(psfImp)) {
+                psf = psf.withVoxel(data.voxel());
+                ctx.warn("psf: '" + psfImp.getTitle() + "' has no calibration; taken to have the image's voxel size " + data.voxel());
+            }
         }
         samplingCheck(v, data, ctx);
         byte[] mask = null;
@@ -118,39 +135,33 @@ public final class DeconvolveOperation implements Operation {
         if (m != null) {
             mask = MaskChecks.check("mask", ImagePlusAdapter.toVolume(m), data, ctx);
         }
-        int replicas = v.integer("replicas");
-        NoiseReplicas.Noise noise = s.likelihood().equals("gaussian") ? NoiseReplicas.Noise.GAUSSIAN : NoiseReplicas.Noise.CAMERA;
-        if (replicas == 0 && (v.given("spread-output") || v.given("bias-output"))) {
-            throw new IllegalArgumentException("replicas = 0 gives no spread-output or bias-output; give replicas 2 to "
-                    + NoiseReplicas.MAX_REPLICAS);
-        }
-        if (replicas > 0) {
-            NoiseReplicas.check(replicas, noise, s);
-        }
         Volume dark = frames(v, "dark", data);
         Volume flat = frames(v, "flat", data);
-        Deconvolution.Outcome out = replicas > 0
-                ? NoiseReplicas.deconvolveWithModel(data, psf, psfImp.getTitle(), mask, s, dark, flat, ctx, IterationListener.NONE)
-                : Deconvolution.run(data, psf, psfImp.getTitle(), mask, s, dark, flat, ctx, IterationListener.NONE);
         Result r = new Result();
+        Deconvolution.Outcome out;
+        if (depthVariant) {
+            String mode = UncertaintyStep.mode(v);
+            if (!mode.equals("none")) {
+                throw new IllegalArgumentException("uncertainty = " + mode + " needs one PSF; give uncertainty none "
+                        + "with depth-variant on");
+            }
+            UncertaintyStep.check(v, mode);
+            out = Deconvolution.runDepthVariant(data, mask, s, depthVariant(v, data), dark, flat, ctx,
+                    IterationListener.NONE);
+            out.record().forEach(r::record);
+            r.record("uncertainty", mode);
+        } else {
+            out = UncertaintyStep.run(v, data, psf, psfImp.getTitle(), mask, s, dark, flat, in.getTitle(), ctx, r);
+        }
         r.image("output", ImagePlusAdapter.toImagePlus(out.result(), in.getTitle() + "-deconvolve"));
         FftChoice.note(r, fft);
-        for (Map.Entry<String, Object> e : out.record().entrySet()) {
-            r.record(e.getKey(), e.getValue());
-        }
-        r.record("replicas", replicas);
-        if (replicas > 0) {
-            NoiseReplicas.Spread sp = NoiseReplicas.run(data, psf, mask, out.settings(), out, replicas, noise, REPLICA_SEED, ctx);
-            sp.record(noise, REPLICA_SEED).forEach(r::record);
-            r.image("spread-output", ImagePlusAdapter.toImagePlus(sp.spread(), in.getTitle() + "-spread"));
-            r.image("bias-output", ImagePlusAdapter.toImagePlus(sp.bias(), in.getTitle() + "-bias"));
-            r.line(String.format(Locale.ROOT, "noise replicas: %d; median spread %.4g ADU, median relative spread %.3g "
-                    + "over bright voxels (photon and camera noise only)", replicas, sp.spreadMedian(), sp.relativeMedian()));
-        }
         double[] hist = out.solution().objective();
         r.line(valuesUsed(out));
         r.line(String.format(Locale.ROOT, "deconvolved %s with %s: %d iteration(s), %.2f s; stopped by %s",
                 data.shape(), s.method(), out.solution().iterations(), out.solution().seconds(), out.solution().stopReason()));
+        Map<?, ?> used = (Map<?, ?>) out.record().get("settings");
+        r.line(String.format(Locale.ROOT, "background: %.4g ADU above the offset (%s)", used.get("background_adu"),
+                Boolean.TRUE.equals(used.get("background_estimated")) ? "estimated: background auto" : "given"));
         Map<String, Object> row = new LinkedHashMap<>();
         row.put("method", s.method());
         row.put("iterations", out.solution().iterations());
@@ -159,6 +170,22 @@ public final class DeconvolveOperation implements Operation {
         row.put("final_objective", hist.length > 0 ? hist[hist.length - 1] : Double.NaN);
         r.row(row);
         return r;
+    }
+
+    /** Reads and checks the optics of a depth-variant run: na, wavelength, immersion-index, sample-index. */
+    static Deconvolution.DepthVariant depthVariant(Values v, Volume data) {
+        for (String key : List.of("na", "wavelength", "immersion-index", "sample-index")) {
+            if (!v.given(key)) {
+                throw new IllegalArgumentException(key + " is required with depth-variant on: give na, wavelength, "
+                        + "immersion-index and sample-index (the Gibson-Lanni optics of the PSFs)");
+            }
+        }
+        double ni = v.number("immersion-index");
+        PsfSettings optics = new PsfSettings(v.number("na"), v.number("wavelength"), 0, ni, v.number("sample-index"), ni,
+                PsfSettings.STANDARD_COVERSLIP_UM, PsfSettings.STANDARD_COVERSLIP_UM, v.number("first-depth"), 1,
+                data.voxel(), 1, 1, 1);
+        optics.check("gibson-lanni");
+        return new Deconvolution.DepthVariant(optics, v.integer("strata"));
     }
 
     /** Reads and checks the settings. */
@@ -190,7 +217,7 @@ public final class DeconvolveOperation implements Operation {
                 lambda, v.choice("boundary"), v.choice("acceleration").equals("on"), v.choice("likelihood"));
     }
 
-    /** @return one line of the camera values, background and lambda the run used, each with how it was found */
+    /** @return one line of the camera values and lambda the run used, each with how it was found */
     @SuppressWarnings("unchecked")
     static String valuesUsed(Deconvolution.Outcome out) {
         DeconvolutionSettings u = out.settings();
@@ -201,8 +228,6 @@ public final class DeconvolveOperation implements Operation {
         b.append(found("gain", u.gain(), "ADU/e-", source.get("gain"), error.get("gain"))).append(", ");
         b.append(found("read noise", u.readNoise(), "ADU", source.get("read_noise_adu"), error.get("read_noise_adu")));
         b.append(", ").append(found("offset", u.offset(), "ADU", source.get("offset_adu"), error.get("offset_adu")));
-        b.append(String.format(Locale.ROOT, ", background %.4g ADU (%s)", u.background(),
-                Boolean.TRUE.equals(set.get("background_estimated")) ? "estimated" : "given"));
         if (u.regularized()) {
             b.append(String.format(Locale.ROOT, ", lambda %.3g (%s)", u.lambda(),
                     set.containsKey("regularization_choice") ? "chosen from the data" : "given"));

@@ -1,6 +1,6 @@
 package org.stackwright.solve;
 
-import org.stackwright.model.BlurOperator;
+import org.stackwright.model.LinearOperator;
 import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.op.RunContext;
 import org.stackwright.parallel.Workers;
@@ -79,7 +79,7 @@ public final class RichardsonLucy implements Solver {
 
     private Solution plain(DeconvolutionProblem p, float[] x, RunContext context, IterationListener listener) {
         int n = p.gridLength();
-        BlurOperator h = p.blur();
+        LinearOperator h = p.forward();
         Workers workers = p.workers();
         float[] norm = p.normalisation();
         float[] buf = h.newWorkArray(); // grid in its first n floats; the FFTs run in place in it
@@ -116,7 +116,7 @@ public final class RichardsonLucy implements Solver {
 
     private Solution accelerated(DeconvolutionProblem p, float[] y, RunContext context, IterationListener listener) {
         int n = p.gridLength();
-        BlurOperator h = p.blur();
+        LinearOperator h = p.forward();
         Workers workers = p.workers();
         float[] norm = p.normalisation();
         float[] buf = h.newWorkArray(); // grid in its first n floats; the FFTs run in place in it

@@ -119,6 +119,12 @@ class DeconvolveBadInputTest {
         return BadInputTable.cli(name, exit, fragment, a.toArray(String[]::new));
     }
 
+    private static String[] concatenate(String[] a, String... b) {
+        String[] c = java.util.Arrays.copyOf(a, a.length + b.length);
+        System.arraycopy(b, 0, c, a.length, b.length);
+        return c;
+    }
+
     static Stream<BadInputTable.Case> rows() {
         Volume good = GOOD;
         List<BadInputTable.Case> t = new ArrayList<>();
@@ -145,6 +151,19 @@ class DeconvolveBadInputTest {
                 "--gain", "1", "--read-noise", "2", "--dark", input("dark-small2.tif", constant(32, 32, 4, 100))));
         t.add(row("regularization 0 for wiener", 2, "regularization = 0.0 is not allowed for wiener; give a positive number",
                 "--method", "wiener", "--regularization", "0"));
+        // depth-variant deconvolution (Gibson-Lanni PSFs modelled at several depths)
+        String[] dv = {"--depth-variant", "on", "--na", "1.2", "--wavelength", "520", "--immersion-index", "1.518"};
+        t.add(row("depth-variant without sample-index", 2, "sample-index is required with depth-variant on", dv));
+        t.add(row("depth-variant with wiener", 2, "depth-variant on works with method richardson-lucy only",
+                concatenate(dv, "--sample-index", "1.33", "--method", "wiener")));
+        t.add(row("depth-variant with more strata than planes", 2, "strata = 20 is not allowed for a stack of 12 planes",
+                concatenate(dv, "--sample-index", "1.33", "--strata", "20")));
+        t.add(row("depth-variant with replicas", 2, "uncertainty = replicas needs one PSF; give uncertainty none with depth-variant on",
+                concatenate(dv, "--sample-index", "1.33", "--replicas", "2")));
+        t.add(row("depth-variant: a given PSF is not used", 0, "is not used: depth-variant on models the PSFs from the optics",
+                concatenate(dv, "--sample-index", "1.33", "--strata", "2")));
+        t.add(BadInputTable.cli("no PSF and depth-variant off", 2, "image 'psf' is required for deconvolve: give the PSF, "
+                + "or depth-variant on", "deconvolve", "--input", input("cells.tif", GOOD), "--output", out("no-psf.tif")));
         // the PSF (psf.PsfChecks)
         t.add(row("PSF all zeros", 2, "psf has no positive value",
                 "--psf", input("psf-zero.tif", psf(9, 9, 7, VOXEL, d -> java.util.Arrays.fill(d, 0)))));
@@ -198,6 +217,16 @@ class DeconvolveBadInputTest {
         t.add(row("background negative", 2, "background = '-5' is not allowed; give a number of ADU (0 or more) or auto",
                 "--background", "-5"));
         t.add(row("background not a number", 2, "background = 'dark' is not allowed", "--background", "dark"));
+        // uncertainty (solve.UncertaintyStep, solve.PosteriorSampler)
+        t.add(row("interval output without sampling", 2, "lower-output is not made with uncertainty = none; give "
+                + "uncertainty sampling", "--lower-output", out("lower.tif")));
+        t.add(row("replica bias output with sampling", 2, "bias-output is not made with uncertainty = sampling; give "
+                + "uncertainty replicas", "--uncertainty", "sampling", "--bias-output", out("bias.tif")));
+        t.add(row("too few samples for the chains", 2, "samples = 5 is not allowed with 4 chains", "--uncertainty",
+                "sampling", "--samples", "5", "--chains", "4"));
+        t.add(row("credible level out of range", 2, "level", "--uncertainty", "sampling", "--level", "1.5"));
+        t.add(row("gaussian sampling without read noise", 2, "read-noise = 0.0 is not allowed with likelihood gaussian "
+                + "and sampling", "--uncertainty", "sampling", "--likelihood", "gaussian", "--read-noise", "0"));
         // optics for the sampling check
         t.add(row("NA above the immersion index", 2, "na = 1.4 must be smaller than immersion-index = 1.33",
                 "--na", "1.4", "--wavelength", "520", "--immersion-index", "1.33"));

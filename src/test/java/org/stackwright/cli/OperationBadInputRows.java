@@ -42,6 +42,12 @@ final class OperationBadInputRows {
         });
     }
 
+    private static String[] concat(String[] a, String... b) {
+        String[] c = Arrays.copyOf(a, a.length + b.length);
+        System.arraycopy(b, 0, c, a.length, b.length);
+        return c;
+    }
+
     static void add(List<BadInputTable.Case> t, Fixtures x) {
         String data = x.tiff("data.tif", 16, 16, 5).toString();
         String small = x.path("good.tif").toString();
@@ -188,6 +194,17 @@ final class OperationBadInputRows {
         t.add(BadInputTable.lib("ImageJ door: per-channel list of the wrong length", 2,
                 "offset = '1,2,3' gives 3 values; give one value, or one per channel (2)",
                 c -> ChannelRunner.run(new ResidualsOperation(), hyperstacks(2, "1,2,3"), 1, (f, m) -> { }, w -> { }, () -> false)));
+
+        // --- psf-refine ---
+        String flat = x.volume("refine-flat.tif", filled(32, 32, 9, 20f, VOXEL, px -> { })).toString();
+        String[] refineArgs = {"psf-refine", "--input", flat, "--na", "1.2", "--wavelength", "520", "--immersion-index",
+            "1.518", "--size", "9x9x5", "--output", out};
+        t.add(cli("psf-refine --fit with a word it cannot fit", 2, "'colour' cannot be fitted; choose from depth, "
+                + "sample-index, na, coverslip-thickness", concat(refineArgs, "--fit", "depth,colour")));
+        t.add(cli("psf-refine --fit naming a value twice", 2, "names depth twice", concat(refineArgs, "--fit", "depth,depth")));
+        t.add(cli("psf-refine start depth below the deepest searched", 2, "depth = 80 lies below deepest = 50",
+                concat(refineArgs, "--depth", "80")));
+        t.add(cli("psf-refine on a stack without beads", 2, "input: no usable bead", refineArgs));
 
         // --- psf-from-beads ---
         t.add(cli("psf-from-beads on an image without beads", 2, "input: no usable bead",

@@ -64,6 +64,10 @@ class DoorsAgreeTest {
                 new Case("psf", "Model PSF...", ordered("model", "gaussian", "na", "1.0", "wavelength", "520",
                         "immersion-index", "1.33", "pixel", "0.08", "step", "0.2", "size", "33x33x21"),
                         Map.of(), List.of("output")),
+                new Case("psf-refine", "Refine PSF Optics...", ordered("na", "1.0", "wavelength", "520",
+                        "immersion-index", "1.518", "sample-index", "1.33", "size", "15x15x21", "fit", "depth",
+                        "deepest", "10", "offset", "100", "read-noise", "2"), ordered("input", "demo-beads.tif"),
+                        List.of("output")),
                 new Case("deconvolve", "Deconvolve Stack...", ordered("method", "richardson-lucy", "iterations", "5",
                         "offset", "100"), ordered("input", "demo-cells.tif", "psf", "demo-psf.tif"), List.of("output")),
                 new Case("deconvolve", "Deconvolve Stack...", ordered("iterations", "3", "offset", "100", "fft", "java"),
@@ -73,7 +77,10 @@ class DoorsAgreeTest {
                 new Case("find-defects", "Find Defective Pixels...", ordered(), ordered("input", "demo-tiles.tif"),
                         List.of("output")),
                 new Case("camera-noise", "Camera Noise...", ordered("offset", "100"), ordered("input", "demo-cells.tif"),
-                        List.of("plot")));
+                        List.of("plot")),
+                new Case("interval-profile", "Credible Interval Profile...", ordered("line", "5,5,60,40", "plane", "3"),
+                        ordered("mean", "demo-cells.tif", "lower", "demo-cells.tif", "upper", "demo-cells.tif"),
+                        List.of("output")));
     }
 
     private static Map<String, String> ordered(String... kv) {
@@ -128,8 +135,9 @@ class DoorsAgreeTest {
             }
         }
         macro.append("run('").append(c.menu()).append("', '").append(options.toString().trim()).append("');\n");
+        macro.append("main = getTitle();\n"); // the main output is the current image after a run
         for (String out : c.outputs()) {
-            macro.append("selectImage('").append(out.equals("output") ? base : base + "-" + out).append("');\n")
+            macro.append(out.equals("output") ? "selectImage(main);\n" : "selectImage('" + base + "-" + out + "');\n")
                     .append("saveAs('Tiff', '").append(dir.resolve("macro-" + out + ".tif")).append("');\n");
         }
         String err = ImageJHarness.runMacro(macro.toString(), "");

@@ -57,16 +57,32 @@ public final class ImageJHarness {
         if (ij != null) {
             return;
         }
-        Path build = Paths.get(System.getProperty("stackwright.build.dir", "target")).toAbsolutePath();
-        Path plugins = Files.createTempDirectory(build, "imagej-plugins-");
-        jar(build.resolve("classes"), plugins.resolve("Stackwright_.jar"), null);
-        jar(null, plugins.resolve("Stackwright_Test_.jar"), "Plugins>Stackwright>Test, \"Offset Test...\", "
-                + "org.stackwright.imagej.TestPlugin(\"test-offset\")\n");
+        Path plugins = pluginsFolder();
         System.setProperty("plugins.dir", plugins.toString());
         ij = new ImageJ(ImageJ.NO_SHOW);
         Thread watchdog = new Thread(ImageJHarness::watch, "dialog watchdog");
         watchdog.setDaemon(true);
         watchdog.start();
+    }
+
+    /**
+     * @return a new plugins folder under target/ holding {@code Stackwright_.jar} (the classes and plugins.config of
+     *     target/classes, as the package phase would) and a jar with the menu entries of the test-only doors
+     */
+    static Path pluginsFolder() throws IOException {
+        Path build = Paths.get(System.getProperty("stackwright.build.dir", "target")).toAbsolutePath();
+        Path plugins = Files.createTempDirectory(build, "imagej-plugins-");
+        jar(build.resolve("classes"), plugins.resolve("Stackwright_.jar"), null);
+        StringBuilder config = new StringBuilder("Plugins>Stackwright>Test, \"Offset Test...\", "
+                + "org.stackwright.imagej.TestPlugin(\"test-offset\")\n");
+        List<String> names = new ArrayList<>(List.of("test-offset"));
+        org.stackwright.registry.Operations.all().forEach(o -> names.add(o.name()));
+        for (String name : names) {
+            config.append("Plugins>Stackwright>Test, \"").append(DryRunPlugin.label(name))
+                    .append("\", org.stackwright.imagej.DryRunPlugin(\"").append(name).append("\")\n");
+        }
+        jar(null, plugins.resolve("Stackwright_Test_.jar"), config.toString());
+        return plugins;
     }
 
     /** Writes a jar with plugins.config at its root: the classes folder's (and its classes), or the given text. */

@@ -50,6 +50,23 @@ class MenusTest {
         return m;
     }
 
+    /** Submenus in the order of the work: ImageJ creates them in the order of their first line. */
+    @Test
+    void submenusFollowTheOrderOfTheWork() throws IOException {
+        java.util.List<String> groups = new java.util.ArrayList<>();
+        try (InputStream in = MenusTest.class.getResourceAsStream("/plugins.config")) {
+            for (String line : new String(in.readAllBytes(), StandardCharsets.UTF_8).split("\n")) {
+                Matcher mt = LINE.matcher(line.trim());
+                if (mt.matches() && !groups.contains(mt.group(1))) {
+                    groups.add(mt.group(1));
+                }
+            }
+        }
+        assertEquals(java.util.List.of("Plugins>Stackwright>PSF", "Plugins>Stackwright>Deconvolve",
+                "Plugins>Stackwright>Inspect", "Plugins>Stackwright>Repair", "Plugins>Stackwright>Tools",
+                "Plugins>Stackwright"), groups);
+    }
+
     @Test
     void everyRegisteredOperationHasAMenuEntry() throws IOException {
         Set<String> listed = new HashSet<>(entries().values());

@@ -2,6 +2,7 @@ package org.stackwright.imagej;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertNotNull;
+import static org.junit.jupiter.api.Assertions.assertNull;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.awt.Button;
@@ -19,10 +20,10 @@ import java.nio.file.Paths;
 import java.util.ArrayList;
 import java.util.Iterator;
 import java.util.List;
-import java.util.concurrent.atomic.AtomicReference;
 
 import javax.imageio.ImageIO;
 
+import ij.IJ;
 import ij.ImagePlus;
 import ij.Macro;
 import ij.gui.GenericDialog;
@@ -37,10 +38,19 @@ import org.stackwright.op.Param;
 import org.stackwright.op.Values;
 
 /**
- * Recorder round trip of every key of every operation: the real dialog is shown (under Xvfb), filled with values
- * other than the defaults and confirmed, while ImageJ's Macro Recorder records it; then the dialog is built in
- * macro mode from the recorded options string and must give the same settings. A screenshot of each dialog is
- * written to target/dialogs/ for a person to look at.
+ * The real Macro Recorder on every dialog of every operation (and of the test operation, whose keys
+ * {@code noise} and {@code read-noise} shadow each other on purpose): the command is started from its menu entry
+ * with the Recorder window open, as a person would, every field is given a value other than its default, OK is
+ * pressed, and then
+ * <ul>
+ * <li>the Recorder must not have refused a key (its "Duplicate keyword" message);</li>
+ * <li>ImageJ's own {@code Macro.getValue} must read back, from the recorded line, the value each field showed
+ * (and each checkbox must be a word of the line exactly when it was ticked);</li>
+ * <li>the recorded line, run as a macro, must give the same settings.</li>
+ * </ul>
+ * The commands are the dry-run doors ({@link DryRunPlugin}: the real dialog and macro reading, no computation).
+ * Generic over {@link Operations#all()}: a new key is checked when its operation is. A screenshot of each dialog
+ * is written to target/dialogs/ for a person to look at.
  */
 class RecorderRoundTripTest {
 
@@ -56,10 +66,12 @@ class RecorderRoundTripTest {
         psf.show();
         cells.getWindow().toFront();
         ij.WindowManager.setTempCurrentImage(cells);
+        EventQueue.invokeAndWait(() -> new Recorder(true));
     }
 
     @AfterAll
     static void stop() {
+        Recorder.record = false;
         ImageJHarness.closeAll();
     }
 
@@ -76,71 +88,115 @@ class RecorderRoundTripTest {
 
     private void roundTrip(Operation op, Path shots) throws Exception {
         String title = "Stackwright " + op.name();
-        Recorder.record = true; // before building: the dialog keeps its macro keys only while recording
-        Recorder.resetCommandOptions();
-        GenericDialog gd = OperationDialog.build(op, title, cells);
+        String command = DryRunPlugin.label(op.name());
+        ImageJHarness.closedDialogs();
         ImageJHarness.allowDialog(title);
-        AtomicReference<Throwable> failed = new AtomicReference<>();
-        Thread filler = new Thread(() -> {
-            try {
-                fillAndConfirm(gd, op, shots.resolve(op.name() + ".png"));
-            } catch (Throwable t) {
-                failed.set(t);
-                gd.dispose();
+        DryRunPlugin.last = null;
+        int before = Recorder.getInstance().getText().length();
+        cells.getWindow().toFront();
+        IJ.doCommand(command);
+        GenericDialog gd = waitForDialog(title);
+        fillAndConfirm(gd, op, shots.resolve(op.name() + ".png"));
+        long end = System.currentTimeMillis() + 30_000;
+        String added = "";
+        while (System.currentTimeMillis() < end) {
+            added = Recorder.getInstance().getText().substring(before);
+            if (DryRunPlugin.last != null && added.contains("run(\"" + command + "\"")) {
+                break;
             }
-        });
-        filler.start();
-        gd.showDialog();
-        filler.join();
-        if (failed.get() != null) {
-            throw new AssertionError(failed.get());
+            Thread.sleep(100);
         }
-        DoorSettings shown = OperationDialog.read(gd, op);
-        String recorded = Recorder.getCommandOptions();
-        Recorder.record = false;
         ImageJHarness.allowDialog(null);
-        assertNotNull(recorded, op.name() + ": nothing recorded");
-        for (String key : OperationDialog.macroKeys(op)) {
-            assertTrue((" " + recorded + " ").matches("(?s).* " + java.util.regex.Pattern.quote(key) + "[= ].*"),
-                    op.name() + ": key " + key + " not recorded in: " + recorded);
-        }
+        List<String> refused = ImageJHarness.closedDialogs();
+        assertEquals(List.of(), refused, op.name() + ": the Recorder (or another window) stopped the command");
+        DoorSettings shown = DryRunPlugin.last;
+        assertNotNull(shown, op.name() + ": the command did not finish");
+        String options = recordedOptions(added, command);
+        String where = op.name() + " recorded as '" + options + "'";
 
-        AtomicReference<Object> fromMacro = new AtomicReference<>();
-        Thread macro = new Thread(() -> {
-            try {
-                MacroOptions mo = MacroOptions.parse(recorded);
-                mo.checkKeys(op.name(), OperationDialog.macroKeys(op));
-                Macro.setOptions(mo.canonical());
-                GenericDialog m = OperationDialog.build(op, title, cells);
-                m.showDialog();
-                fromMacro.set(OperationDialog.read(m, op));
-                Macro.setOptions(null);
-            } catch (Throwable t) {
-                fromMacro.set(t);
+        // ImageJ's own reading of the recorded line gives each field's value
+        for (Param p : OperationDialog.dialogOrder(op)) {
+            String key = p.key();
+            String got = Macro.getValue(options, key, null);
+            switch (p.kind()) {
+                case IMAGE -> assertEquals(shown.images().containsKey(key) ? shown.images().get(key).getTitle()
+                        : OperationDialog.NONE, got, where + ": " + key);
+                case OUTPUT_FILE -> assertEquals(shown.files().get(key), got, where + ": " + key);
+                case FLAG -> assertEquals(Boolean.parseBoolean(shown.text().get(key)), isWord(options, key),
+                        where + ": " + key);
+                case OUTPUT_IMAGE -> assertEquals(shown.outputs().contains(key), isWord(options, key), where + ": " + key);
+                // an empty text field is recorded as key=[] and read as "not given"
+                default -> assertEquals(shown.text().getOrDefault(key, ""), got, where + ": " + key);
             }
-        }, "Run$_recorder round trip");
-        macro.start();
-        macro.join(20_000);
-        if (fromMacro.get() instanceof Throwable t) {
-            throw new AssertionError(op.name() + ": macro mode failed on " + recorded, t);
         }
-        DoorSettings back = (DoorSettings) fromMacro.get();
-        assertNotNull(back, op.name() + ": macro mode gave nothing");
-        String where = op.name() + " from '" + recorded + "'";
+        if (OperationDialog.hasFiles(op)) {
+            assertEquals(shown.overwrite(), isWord(options, DoorSettings.OVERWRITE), where + ": overwrite");
+        }
+        assertNotDefaults(op, shown, where);
+
+        // the recorded line as a macro gives the same settings
+        DryRunPlugin.last = null;
+        String err = ImageJHarness.runMacro("run(\"" + command + "\", \"" + options + "\");", "");
+        assertNull(err, where + ": " + err);
+        DoorSettings back = DryRunPlugin.last;
+        assertNotNull(back, where + ": the macro gave nothing");
         assertEquals(shown.text(), back.text(), where);
         assertEquals(shown.images(), back.images(), where);
         assertEquals(shown.outputs(), back.outputs(), where);
         assertEquals(shown.files(), back.files(), where);
         assertEquals(shown.overwrite(), back.overwrite(), where);
+    }
+
+    /** @return the options of the last {@code run("command", "options");} line the recorder wrote */
+    private static String recordedOptions(String text, String command) {
+        String head = "run(\"" + command + "\", \"";
+        int at = text.lastIndexOf(head);
+        assertTrue(at >= 0, "the recorder wrote no line for " + command + ": " + text);
+        int end = text.indexOf("\");", at);
+        return text.substring(at + head.length(), end);
+    }
+
+    /** @return true when the key is a word of the options outside brackets, as ImageJ reads a checkbox */
+    static boolean isWord(String options, String key) {
+        int depth = 0;
+        String s = options + " ";
+        for (int i = 0; i + key.length() < s.length(); i++) {
+            char c = s.charAt(i);
+            if (c == '[') {
+                depth++;
+            } else if (c == ']') {
+                depth--;
+            }
+            if (depth == 0 && (i == 0 || s.charAt(i - 1) == ' ') && s.startsWith(key, i)
+                    && s.charAt(i + key.length()) == ' ') {
+                return true;
+            }
+        }
+        return false;
+    }
+
+    private static void assertNotDefaults(Operation op, DoorSettings shown, String where) {
         Values a = Values.parse(op.name(), op.params(), ChannelRunner.perChannel(op, shown.text(), 1, 1));
-        Values b = Values.parse(op.name(), op.params(), ChannelRunner.perChannel(op, back.text(), 1, 1));
-        assertEquals(a.effective(), b.effective(), where);
         for (Param p : op.params()) {
             if (p.kind() == Param.Kind.NUMBER || p.kind() == Param.Kind.INTEGER || p.kind() == Param.Kind.CHOICE) {
                 assertTrue(!a.raw(p.key()).equals(p.defaultValue()) || p.choices().size() == 1,
                         where + ": " + p.key() + " kept its default, so the round trip proves nothing for it");
             }
         }
+    }
+
+    private static GenericDialog waitForDialog(String title) throws InterruptedException {
+        long end = System.currentTimeMillis() + 20_000;
+        while (System.currentTimeMillis() < end) {
+            for (java.awt.Window w : java.awt.Window.getWindows()) {
+                if (w instanceof GenericDialog g && g.isShowing() && title.equals(g.getTitle())) {
+                    return g;
+                }
+            }
+            Thread.sleep(50);
+        }
+        throw new AssertionError("the dialog '" + title + "' did not open; closed instead: "
+                + ImageJHarness.closedDialogs());
     }
 
     /** Sets a value other than the default in every item, takes a screenshot, then presses OK. */

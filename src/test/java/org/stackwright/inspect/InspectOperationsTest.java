@@ -78,7 +78,7 @@ class InspectOperationsTest {
                 dir.resolve("res.tif").toString(), "--summary", dir.resolve("summary.png").toString(), "--record",
                 dir.resolve("r.json").toString(), "--threads", "2");
         assertEquals("0", r[0], r[2]);
-        assertTrue(r[1].contains("chi^2 per pixel"), r[1]);
+        assertTrue(r[1].contains("chi^2 per voxel"), r[1]);
         assertTrue(r[1].contains("verdict: fits"), r[1]);
         String json = Files.readString(dir.resolve("r.json"));
         assertTrue(json.contains("\"chi2_per_pixel\""), json);

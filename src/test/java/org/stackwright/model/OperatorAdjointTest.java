@@ -66,6 +66,18 @@ class OperatorAdjointTest {
         }
     }
 
+    /** Depth-variant blur (Preza &amp; Conchello 2004): K PSFs, interpolation weights, padding planes, odd grid. */
+    @Test
+    void depthVariantBlurPassesTheAdjointTest() {
+        try (Workers w = new Workers(2)) {
+            VoxelSize v = new VoxelSize(0.1, 0.1, 0.2);
+            java.util.List<Volume> psfs = java.util.List.of(GaussianPsf.sampled(0.15, 0.3, v, 7, 5, 5),
+                    GaussianPsf.sampled(0.2, 0.45, v, 7, 5, 5), GaussianPsf.sampled(0.3, 0.6, v, 7, 5, 5));
+            check(new DepthVariantBlur(psfs, new double[] {0, 4.5, 9}, 10, 17, 13, 15, w), "depth-variant 17x13x15");
+            check(new DepthVariantBlur(psfs.subList(0, 2), new double[] {0, 6}, 7, 9, 8, 7, w), "depth-variant, no padding");
+        }
+    }
+
     @Test
     void totalVariationGradientAndAdjointPassTheAdjointTest() {
         try (Workers w = new Workers(2)) {
