@@ -74,7 +74,7 @@ class DeconvolveOperationTest {
         assertEquals(Main.OK, code, err.toString());
         String text = out.toString(StandardCharsets.UTF_8);
         assertTrue(text.contains("values used: gain ") && text.contains("ADU/e- (image)")
-                && text.contains("offset 100.0 ADU (given)") && text.contains("(estimated)"), text);
+                && text.contains("offset 100.0 ADU (given)") && text.contains("(estimated: background auto)"), text);
         assertTrue(text.contains("stopped by auto: "), text);
     }
 
