@@ -92,7 +92,7 @@ public final class RunResiduals {
     public static Deconvolution.Outcome deconvolve(Volume data, Volume psf, String psfName, byte[] mask,
             DeconvolutionSettings s, RunContext ctx, IterationListener listener) {
         check(s);
-        return Deconvolution.run(data, psf, psfName, mask, s, ctx, listener, true);
+        return Deconvolution.run(data, psf, psfName, mask, s, null, null, ctx, listener, true);
     }
 
     /**
@@ -139,7 +139,8 @@ public final class RunResiduals {
     static void attach(Result r, Values v, Volume data, Volume psf, byte[] mask, DeconvolutionSettings s,
             Deconvolution.Outcome run, String title, RunContext ctx) {
         ctx.progress(1, "residuals of the run's own prediction");
-        ResidualReport report = analyse(data, psf, mask, s, run, ctx);
+        // the values the run used (camera values and background found from the data when they were auto)
+        ResidualReport report = analyse(data, psf, mask, run.settings() != null ? run.settings() : s, run, ctx);
         if (v.wants(RESIDUALS)) {
             r.image(RESIDUALS, ImagePlusAdapter.toImagePlus(report.maps().normalised(), title + "-" + RESIDUALS));
         }
