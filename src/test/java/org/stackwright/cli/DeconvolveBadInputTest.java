@@ -260,7 +260,7 @@ class DeconvolveBadInputTest {
         // the run's own residuals (solve.RunResiduals)
         t.add(row("residuals with likelihood gaussian and no read noise", 2, "read-noise = 0.0 is not allowed with"
                 + " likelihood gaussian and residuals", "--method", "total-variation", "--likelihood", "gaussian",
-                "--residuals", out("own-residuals.tif")));
+                "--read-noise", "0", "--residuals", out("own-residuals.tif")));
         t.add(row("residuals with NaN pixels: left out, residual 0", 0, "residuals of the run's own prediction",
                 "--input", input("cells-nan.tif", good.withData(nan)), "--residuals",
                 out("own-residuals-nan.tif")));
