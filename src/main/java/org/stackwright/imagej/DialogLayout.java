@@ -87,7 +87,7 @@ final class DialogLayout {
         LABEL.put("strip", "Strip beside each seam (pixels)");
         LABEL.put("method", "Method");
         LABEL.put("mode", "Mode");
-        LABEL.put("regularization", "Regularization (lambda, empty = default)");
+        LABEL.put("regularization", "Regularization (lambda, or auto)");
         LABEL.put("boundary", "Boundary");
         LABEL.put("acceleration", "Acceleration");
         LABEL.put("replicas", "Noise replicas (0 = off)");

@@ -169,7 +169,8 @@ public class OperationPlugin implements PlugIn {
         if (op.name().equals("deconvolve") && outcome.parts().size() == 1) {
             ChannelRunner.Part part = outcome.parts().get(0);
             SessionMemory.deconvolved(outcome.mainInput(), s.images().get("psf"), outcome.images().get("output"),
-                    part.values().effective(), RunReport.backgroundUsed(part.result().record()));
+                    RunReport.cameraUsed(part.values().effective(), part.result().record()),
+                    RunReport.backgroundUsed(part.result().record()));
         }
         RunReport.table(op.name(), outcome);
         RunReport.rows(op.name(), outcome);

@@ -158,6 +158,23 @@ final class RunReport {
         return v instanceof Number n ? n.doubleValue() : Double.NaN;
     }
 
+    /**
+     * @return the settings a dialog or macro gave, with the camera values the run used in place of "auto" or empty
+     *     ones (gain, read noise, offset from the record's "settings", where they were found from the data)
+     */
+    static Map<String, String> cameraUsed(Map<String, String> given, Map<String, Object> record) {
+        Map<String, String> out = new java.util.LinkedHashMap<>(given);
+        if (record.get("settings") instanceof Map<?, ?> settings) {
+            String[][] keys = {{"gain", "gain"}, {"read-noise", "read_noise_adu"}, {"offset", "offset_adu"}};
+            for (String[] k : keys) {
+                if (settings.get(k[1]) instanceof Number n && Double.isFinite(n.doubleValue())) {
+                    out.put(k[0], org.stackwright.op.Param.fmt(n.doubleValue()));
+                }
+            }
+        }
+        return out;
+    }
+
     /** @return the convergence plot, or null when no part's record has a history */
     static Plot convergence(String title, ChannelRunner.Outcome outcome) {
         Plot plot = null;

@@ -216,6 +216,44 @@ public final class InspectPlots {
         return p;
     }
 
+    /**
+     * The photon-transfer plot of one image: noise variance against mean level over the smooth parts (bins with
+     * their standard errors) and the fitted line variance = gain * level + intercept (Janesick, "Photon Transfer",
+     * SPIE 2007).
+     *
+     * @param levels (level ADU, variance ADU^2, standard error) per bin
+     */
+    public static Plot photonTransfer(double[][] levels, double slope, double intercept) {
+        double[] x = new double[levels.length];
+        double[] y = new double[levels.length];
+        double[] e = new double[levels.length];
+        for (int i = 0; i < levels.length; i++) {
+            x[i] = levels[i][0];
+            y[i] = levels[i][1];
+            e[i] = levels[i][2];
+        }
+        Plot p = new Plot("Photon transfer", "mean level (ADU)", "noise variance (ADU^2)");
+        p.setFrameSize(WIDTH, HEIGHT);
+        double lo = min(x);
+        double hi = max(x);
+        double pad = hi > lo ? 0.05 * (hi - lo) : 1;
+        double yHi = 0;
+        for (int i = 0; i < y.length; i++) {
+            yHi = Math.max(yHi, y[i] + e[i]);
+        }
+        p.setLimits(lo - pad, hi + pad, 0, 1.1 * Math.max(yHi, slope * (hi + pad) + intercept));
+        p.setColor(OBSERVED);
+        p.addPoints(x, y, e, Plot.CIRCLE);
+        p.setColor(MODEL);
+        p.setLineWidth(2);
+        p.add("line", new double[] {lo - pad, hi + pad},
+                new double[] {slope * (lo - pad) + intercept, slope * (hi + pad) + intercept});
+        p.setLineWidth(1);
+        p.setColor(Color.BLACK);
+        p.addLegend("smooth blocks, binned\tfit", "top-left");
+        return p;
+    }
+
     static double max(double[] a) {
         double m = Double.NEGATIVE_INFINITY;
         for (double v : a) {

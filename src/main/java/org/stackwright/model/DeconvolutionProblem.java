@@ -81,6 +81,9 @@ public final class DeconvolutionProblem {
     private final float start;
     /** lower bound of the model H x + b in the ratio and the fit, photo-electrons */
     private final double modelFloor;
+    /** held-out pixels (cross-validation): their index on the image window and their data, photo-electrons */
+    private final int[] heldIndex;
+    private final float[] heldData;
 
     /**
      * @param data camera data (ADU), not modified; non-finite pixels get no likelihood
@@ -93,7 +96,7 @@ public final class DeconvolutionProblem {
      */
     public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
             double backgroundAdu, Workers workers) {
-        this(data, psf, mask, boundary, camera, backgroundAdu, workers, FftEngines.standard(), Float.NaN, null, null);
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, FftEngines.standard(), Float.NaN, null, null, 0, 0);
     }
 
     /**
@@ -103,7 +106,25 @@ public final class DeconvolutionProblem {
      */
     public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
             double backgroundAdu, Workers workers, FftEngine fft) {
-        this(data, psf, mask, boundary, camera, backgroundAdu, workers, fft, Float.NaN, null, null);
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, fft, Float.NaN, null, null, 0, 0);
+    }
+
+    /**
+     * A trial problem for cross-validation: as the constructor, but a random share of the trusted pixels carries
+     * no likelihood and is kept apart, so that {@link #heldOutFit} can tell how well an estimate predicts data it
+     * was not fitted to.
+     *
+     * @param fft the FFT engine of the blur
+     * @param share share of the trusted pixels held out, in (0, 0.5]
+     * @param seed which pixels are held out (the same seed gives the same pixels)
+     */
+    public static DeconvolutionProblem withHeldOut(Volume data, Volume psf, byte[] mask, Boundary boundary,
+            Camera camera, double backgroundAdu, Workers workers, FftEngine fft, double share, long seed) {
+        if (!(share > 0 && share <= 0.5)) {
+            throw new IllegalArgumentException("held-out share = " + share + " is not allowed; give a value in (0, 0.5]");
+        }
+        return new DeconvolutionProblem(data, psf, mask, boundary, camera, backgroundAdu, workers, fft, Float.NaN, null,
+                null, share, seed);
     }
 
     /**
@@ -118,7 +139,7 @@ public final class DeconvolutionProblem {
     public static DeconvolutionProblem depthVariant(Volume data, java.util.List<Volume> psfs, double[] planes,
             byte[] mask, Boundary boundary, Camera camera, double backgroundAdu, Workers workers, FftEngine fft) {
         return new DeconvolutionProblem(data, psfs.get(0), mask, boundary, camera, backgroundAdu, workers, fft,
-                Float.NaN, psfs, planes);
+                Float.NaN, psfs, planes, 0, 0);
     }
 
     /**
@@ -130,12 +151,12 @@ public final class DeconvolutionProblem {
      */
     public DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
             double backgroundAdu, Workers workers, FftEngine fft, float start) {
-        this(data, psf, mask, boundary, camera, backgroundAdu, workers, fft, start, null, null);
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, fft, start, null, null, 0, 0);
     }
 
     private DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
             double backgroundAdu, Workers workers, FftEngine fft, float start, java.util.List<Volume> strata,
-            double[] planes) {
+            double[] planes, double heldShare, long heldSeed) {
         if (!(backgroundAdu >= 0) || !Double.isFinite(backgroundAdu)) {
             throw new IllegalArgumentException("background = " + backgroundAdu + " is not allowed; give 0 or more ADU above the offset");
         }
@@ -174,15 +195,28 @@ public final class DeconvolutionProblem {
         this.background = (float) (backgroundAdu / camera.gain() + s);
         float[] src = data.data();
         int count = 0;
+        java.util.SplittableRandom pick = new java.util.SplittableRandom(heldSeed);
+        int[] hi = new int[heldShare > 0 ? y.length : 0];
+        float[] hd = new float[hi.length];
+        int held = 0;
         for (int i = 0; i < y.length; i++) {
             float v = src[i];
             if ((mask != null && mask[i] != 0) || !Float.isFinite(v)) {
                 y[i] = NO_DATA;
                 continue;
             }
-            y[i] = (float) Math.max(0, (v - camera.offset()) / camera.gain() + s);
+            float yi = (float) Math.max(0, (v - camera.offset()) / camera.gain() + s);
+            if (heldShare > 0 && pick.nextDouble() < heldShare) {
+                hi[held] = i;
+                hd[held++] = yi;
+                y[i] = NO_DATA;
+                continue;
+            }
+            y[i] = yi;
             count++;
         }
+        this.heldIndex = java.util.Arrays.copyOf(hi, held);
+        this.heldData = java.util.Arrays.copyOf(hd, held);
         if (count == 0) {
             throw new IllegalArgumentException("mask covers every pixel of the image " + data.shape()
                     + ": nothing is left to deconvolve");
@@ -233,7 +267,7 @@ public final class DeconvolutionProblem {
      */
     public static DeconvolutionProblem compatible(Volume data, Volume psf, Workers workers) {
         return new DeconvolutionProblem(data, psf, null, Boundary.ZERO_SAME, Camera.photonCounting(), 0, workers,
-                FftEngines.standard(), 0.5f, null, null);
+                FftEngines.standard(), 0.5f, null, null, 0, 0);
     }
 
     private boolean inWindow(int i) {
@@ -452,6 +486,40 @@ public final class DeconvolutionProblem {
         });
     }
 
+    /** @return number of held-out pixels (0 unless made by {@link #withHeldOut}) */
+    public int heldOutPixels() {
+        return heldIndex.length;
+    }
+
+    /**
+     * How well a model predicts the held-out pixels: the mean Kullback-Leibler divergence of their data from
+     * H x + b. Call it before {@link #ratioAndFit} overwrites mu.
+     *
+     * @param mu H x on the grid, not modified
+     * @return mean divergence per held-out pixel, NaN when the problem has none
+     */
+    public double heldOutFit(float[] mu) {
+        int n = heldIndex.length;
+        if (n == 0) {
+            return Double.NaN;
+        }
+        final float b = background;
+        double sum = workers.sum(n, (from, to) -> {
+            double kl = 0;
+            for (int k = from; k < to; k++) {
+                int i = heldIndex[k];
+                int x = i % w;
+                int r = i / w;
+                int g = ((r / h) * ny + r % h) * nx + x;
+                float yi = heldData[k];
+                double m = Math.max(mu[g] + b, TINY);
+                kl += yi > 0 ? yi * Math.log(yi / m) - yi + m : m;
+            }
+            return kl;
+        });
+        return sum / n;
+    }
+
     /**
      * The data fit of an estimate, per trusted pixel (costs one blur).
      *
@@ -493,6 +561,30 @@ public final class DeconvolutionProblem {
             d[i] = (float) (d[i] + backgroundAdu);
         }
         return m;
+    }
+
+    /**
+     * What noise alone leaves in the data fit under a given model: the mean over trusted pixels of the expected
+     * divergence of a Poisson count of mean H x + b ({@link PoissonDeviance}); 1/2 for bright data, more for dim data.
+     *
+     * @param mu H x on the grid, not modified
+     */
+    public double expectedFit(float[] mu) {
+        final float b = background;
+        double sum = workers.sum(d * h, (from, to) -> {
+            double e = 0;
+            for (int r = from; r < to; r++) {
+                int g = ((r / h) * ny + r % h) * nx;
+                int wrow = r * w;
+                for (int x = 0; x < w; x++) {
+                    if (y[wrow + x] >= 0) {
+                        e += PoissonDeviance.expected(mu[g + x] + b);
+                    }
+                }
+            }
+            return e;
+        });
+        return sum / trusted;
     }
 
     /** @return the estimate on the data grid, in ADU above the offset (x * gain), as a new volume */

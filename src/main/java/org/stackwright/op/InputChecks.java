@@ -149,7 +149,7 @@ public final class InputChecks {
      * @throws IllegalArgumentException naming offset when most pixels lie below it
      */
     public static void checkOffset(String key, Volume v, double offset, double readNoise, RunContext ctx) {
-        double given = Math.max(readNoise, 0);
+        double given = readNoise > 0 ? readNoise : 0; // NaN (auto, found later) counts as none given
         double measured = pixelNoise(v);
         double noise = Math.max(given, measured);
         // compared in the pixels' own precision: a pixel of exactly the offset (0 photons, no read noise) stored as

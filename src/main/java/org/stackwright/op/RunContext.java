@@ -54,6 +54,14 @@ public final class RunContext {
         return new RunContext(threads, progress, warningSink, cancelled, warnings, engine);
     }
 
+    /**
+     * @param other where progress goes instead (e.g. a part of a longer run mapped onto its share of the bar)
+     * @return the same context (warnings kept in the same list, same cancel, same engine) with that progress
+     */
+    public RunContext withProgress(Progress other) {
+        return new RunContext(threads, other, warningSink, cancelled, warnings, fft);
+    }
+
     /** @return the FFT engine to use: the one given by {@link #withFft}, else the JVM's standard engine */
     public FftEngine fft() {
         return fft != null ? fft : FftEngines.standard();

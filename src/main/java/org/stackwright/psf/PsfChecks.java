@@ -20,7 +20,9 @@ import org.stackwright.volume.VoxelSize;
  * <li>another voxel size than the image's: resampled to the image's voxel size (sizes kept odd), with a note;
  * never silently reused.</li>
  * <li>an even size: refused (the centre voxel n/2 must be the optical axis).</li>
- * <li>larger than the image in any direction: refused.</li>
+ * <li>larger than the image in any direction: with the extended boundary accepted (the object grid grows to hold
+ * it) and cropped, in those directions, only where its outer part holds at most {@link #LARGE_PSF_DROP} of its
+ * energy ({@link #cropLargerThanImage}); with a periodic boundary refused.</li>
  * <li>peak off the centre voxel: up to one voxel a warning (noise in a measured PSF), further refused.</li>
  * </ol>
  * The PSF passed in is never modified.
@@ -29,6 +31,18 @@ public final class PsfChecks {
 
     /** Largest allowed ratio of the negative to the positive total before a PSF is refused (common practice). */
     public static final double NEGATIVE_TOLERANCE = 0.01;
+    /** Largest share of its energy a PSF larger than the image may lose by cropping (common practice, no source). */
+    public static final double LARGE_PSF_DROP = 0.01;
+
+    /**
+     * A prepared PSF.
+     *
+     * @param psf checked, normalised, at the image's voxel size
+     * @param droppedShare share of the energy cropped away because the PSF was larger than the image (0 when used
+     *     whole)
+     */
+    public record Prepared(Volume psf, double droppedShare) {
+    }
 
     private PsfChecks() {
     }
@@ -42,6 +56,14 @@ public final class PsfChecks {
      * @throws IllegalArgumentException naming the key when the PSF cannot be used
      */
     public static Volume prepare(String key, Volume psf, Volume image, RunContext ctx) {
+        return prepare(key, psf, image, false, ctx).psf();
+    }
+
+    /**
+     * As {@link #prepare(String, Volume, Volume, RunContext)}; with {@code largerThanImage} a PSF larger than the
+     * image is accepted (for the extended boundary) and cropped only where little energy is lost.
+     */
+    public static Prepared prepare(String key, Volume psf, Volume image, boolean largerThanImage, RunContext ctx) {
         float[] d = psf.data();
         requireUsableValues(key, psf);
         int negative = 0;
@@ -94,9 +116,23 @@ public final class PsfChecks {
                         + " stack (check both voxel sizes)");
             }
         }
+        double dropped = 0;
         if (p.width() > image.width() || p.height() > image.height() || p.depth() > image.depth()) {
-            throw new IllegalArgumentException(key + " is " + p.shape() + " at the image's voxel size but the image is"
-                    + " only " + image.shape() + "; allowed: at most the image size in every direction (crop the PSF)");
+            if (!largerThanImage) {
+                throw new IllegalArgumentException(key + " is " + p.shape() + " at the image's voxel size but the image"
+                        + " is only " + image.shape() + "; allowed: at most the image size in every direction (crop the"
+                        + " PSF, or use the extended boundary)");
+            }
+            Volume c = cropLargerThanImage(p, image, LARGE_PSF_DROP);
+            dropped = 1 - c.sum() / p.sum();
+            if (c.size() < p.size()) {
+                ctx.warn(String.format(Locale.ROOT, "%s: %s is larger than the image %s; cropped to %s, which keeps all"
+                        + " but %.2g%% of its energy", key, p.shape(), image.shape(), c.shape(), 100 * dropped));
+            } else {
+                ctx.warn(key + ": " + p.shape() + " is larger than the image " + image.shape() + "; used whole (the"
+                        + " object grid grows to hold it)");
+            }
+            p = c;
         }
         int peak = p.argMax();
         int px = peak % p.width();
@@ -119,7 +155,52 @@ public final class PsfChecks {
         for (int i = 0; i < out.length; i++) {
             out[i] = (float) (out[i] / sum);
         }
-        return p.withData(out);
+        return new Prepared(p.withData(out), dropped);
+    }
+
+    /**
+     * Crops a PSF that is larger than the image, along the axes where it is larger, to the smallest centred odd
+     * size that keeps all but {@code maxDrop} of its energy (never below the image's size along that axis, never
+     * above the PSF's). The extended object grid is image + PSF - 1 per axis, so a large PSF makes every FFT larger;
+     * its far tails, when faint, are not worth that.
+     *
+     * @param psf non-negative, odd sizes, centre at n/2; not modified
+     * @param image only its size is used
+     * @param maxDrop largest share of the energy that may be cropped away
+     * @return the cropped PSF (not normalised), or the PSF itself when nothing can be cropped
+     */
+    public static Volume cropLargerThanImage(Volume psf, Volume image, double maxDrop) {
+        int[] size = {psf.width(), psf.height(), psf.depth()};
+        int[] limit = {image.width(), image.height(), image.depth()};
+        double total = psf.sum();
+        for (int axis = 0; axis < 3; axis++) {
+            if (size[axis] <= limit[axis]) {
+                continue;
+            }
+            int floor = limit[axis] % 2 == 1 ? limit[axis] : limit[axis] + 1;
+            while (size[axis] - 2 >= floor) {
+                int[] trial = size.clone();
+                trial[axis] -= 2;
+                if (centred(psf, trial).sum() < (1 - maxDrop) * total) {
+                    break;
+                }
+                size = trial;
+            }
+        }
+        return size[0] == psf.width() && size[1] == psf.height() && size[2] == psf.depth() ? psf : centred(psf, size);
+    }
+
+    private static Volume centred(Volume psf, int[] size) {
+        int x0 = psf.width() / 2 - size[0] / 2;
+        int y0 = psf.height() / 2 - size[1] / 2;
+        int z0 = psf.depth() / 2 - size[2] / 2;
+        Volume out = Volume.zeros(size[0], size[1], size[2], psf.voxel());
+        for (int z = 0; z < size[2]; z++) {
+            for (int y = 0; y < size[1]; y++) {
+                System.arraycopy(psf.data(), psf.index(x0, y0 + y, z0 + z), out.data(), out.index(0, y, z), size[0]);
+            }
+        }
+        return out;
     }
 
     /**

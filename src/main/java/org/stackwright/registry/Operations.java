@@ -5,6 +5,7 @@ import java.util.Optional;
 
 import org.stackwright.op.Operation;
 
+import org.stackwright.inspect.CameraNoiseOperation;
 import org.stackwright.inspect.CompareOperation;
 import org.stackwright.inspect.IntervalProfileOperation;
 import org.stackwright.inspect.ResidualsOperation;
@@ -40,6 +41,7 @@ public final class Operations {
                 new InpaintOperation(),
                 new ResidualsOperation(),
                 new CompareOperation(),
+                new CameraNoiseOperation(),
                 new IntervalProfileOperation(),
                 new DeconvolveOperation());
     }

@@ -44,13 +44,19 @@ public final class DeconvolveCommand extends OperationCommand {
     private String background;
 
     @Parameter(persist = false, required = false, label = "gain")
-    private Double gain;
+    private String gain;
 
     @Parameter(persist = false, required = false, label = "read-noise")
-    private Double readNoise;
+    private String readNoise;
+
+    @Parameter(persist = false, required = false, label = "dark")
+    private ImagePlus dark;
+
+    @Parameter(persist = false, required = false, label = "flat")
+    private ImagePlus flat;
 
     @Parameter(persist = false, required = false, label = "regularization")
-    private Double regularization;
+    private String regularization;
 
     @Parameter(persist = false, required = false, label = "mask")
     private ImagePlus mask;

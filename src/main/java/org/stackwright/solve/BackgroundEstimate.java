@@ -5,13 +5,18 @@ import java.util.Arrays;
 
 import org.stackwright.blocks.Box;
 import org.stackwright.blocks.PlaneSource;
+import org.stackwright.model.Camera;
 import org.stackwright.volume.Volume;
 
 /**
  * An estimate of the uniform background above the camera offset: the 1st percentile of the data after a 5 x 5
  * (x 3 in z) mean filter, minus the offset, at least 0. The mean filter removes most of the noise, so the
  * percentile finds the darkest regions rather than the darkest noise samples (common practice; a rough estimate:
- * give --background when it is known).
+ * give --background when it is known). What noise is left still pulls the 1st percentile of a flat region
+ * 2.326 standard deviations of the window mean below its level (the 1% point of the normal distribution); when the
+ * camera is known that is added back, with the standard deviation of a whole window's mean from the camera's noise
+ * at that level (windows cut by the image border are a little noisier; the correction is then slightly low, the safe
+ * side: a background set too high leaves the model unable to explain the darkest regions).
  *
  * <p>Two forms give the same number: {@link #estimate(Volume, byte[], double)} on a volume in memory, and
  * {@link #estimate(PlaneSource, PlaneSource, double, PlaneVisitor)} on a stack read three planes at a time, which
@@ -41,6 +46,17 @@ public final class BackgroundEstimate {
      * @return background above the offset, ADU
      */
     public static double estimate(Volume data, byte[] mask, double offset) {
+        return estimate(data, mask, offset, (Camera) null);
+    }
+
+    /** The 1% point of the standard normal distribution (its magnitude). */
+    private static final double Z_ONE_PERCENT = 2.326;
+
+    /**
+     * @param camera the camera, to correct the noise left after the mean filter; null for no correction
+     * @return background above the offset, ADU
+     */
+    public static double estimate(Volume data, byte[] mask, double offset, Camera camera) {
         int w = data.width();
         int h = data.height();
         int d = data.depth();
@@ -69,7 +85,16 @@ public final class BackgroundEstimate {
         }
         float[] v = Arrays.copyOf(vals, n);
         Arrays.sort(v);
-        return Math.max(0, v[rank(n)] - offset);
+        return corrected(v[rank(n)] - offset, camera, w, h, d);
+    }
+
+    /** @return the 1st percentile above the offset with the noise bias added back (camera known), at least 0 */
+    private static double corrected(double p1, Camera camera, int w, int h, int d) {
+        int full = (d > 1 ? 3 : 1) * Math.min(5, h) * Math.min(5, w);
+        if (camera != null && p1 > 0) {
+            p1 += Z_ONE_PERCENT * Math.sqrt(camera.variance(p1) / full);
+        }
+        return Math.max(0, p1);
     }
 
     /** @return the 0-based rank of the 1st percentile among n values */
@@ -88,6 +113,15 @@ public final class BackgroundEstimate {
      * @throws UncheckedIOException when the stack cannot be read
      */
     public static double estimate(PlaneSource data, PlaneSource mask, double offset, PlaneVisitor visitor) {
+        return estimate(data, mask, offset, null, visitor);
+    }
+
+    /**
+     * As above, with the camera to correct the noise left after the mean filter (null for no correction), as
+     * {@link #estimate(Volume, byte[], double, Camera)}.
+     */
+    public static double estimate(PlaneSource data, PlaneSource mask, double offset, Camera camera,
+            PlaneVisitor visitor) {
         int w = data.width();
         int h = data.height();
         int d = data.depth();
@@ -116,7 +150,7 @@ public final class BackgroundEstimate {
             seen += low[b++];
         }
         float value = fromKey((top << 16) | b);
-        return Math.max(0, value - offset);
+        return corrected(value - offset, camera, w, h, d);
     }
 
     private interface ValueSink {

@@ -5,7 +5,6 @@ import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 
-import org.stackwright.model.Camera;
 import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.op.InputChecks;
 import org.stackwright.op.MaskChecks;
@@ -18,8 +17,8 @@ import org.stackwright.volume.Volume;
 /**
  * Runs one deconvolution from camera data, a PSF and settings: checks the pixels ({@link InputChecks}: NaN and
  * infinite pixels are masked with a warning, joined to the caller's mask), prepares the PSF ({@link PsfChecks}),
- * estimates the background when asked, checks memory ({@link MemoryCheck}), builds the
- * {@link DeconvolutionProblem}, runs the solver and writes the run record. Used by the {@code deconvolve}
+ * checks memory ({@link MemoryCheck}), resolves automatic values ({@link AutomaticSettings}: camera, background,
+ * lambda, stop), builds the {@link DeconvolutionProblem}, runs the solver and writes the run record. Used by the {@code deconvolve}
  * operation, the demo and the benchmark; no ImageJ needed.
  */
 public final class Deconvolution {
@@ -31,8 +30,11 @@ public final class Deconvolution {
      * @param model the fitted forward model A x + background on the image, ADU above the offset, or null when not
      *     asked for (see {@link NoiseReplicas}, {@link RunResiduals}; from
      *     {@link DeconvolutionProblem#predictedAboveOffset})
+     * @param settings the settings the run used, nothing automatic left (camera values, background, lambda, a fixed
+     *     iteration count when the stop was auto): repeat the run, or run parts of a volume, with these
      */
-    public record Outcome(Volume result, Solution solution, Map<String, Object> record, Volume model) {
+    public record Outcome(Volume result, Solution solution, Map<String, Object> record, Volume model,
+            DeconvolutionSettings settings) {
     }
 
     private Deconvolution() {
@@ -44,19 +46,25 @@ public final class Deconvolution {
      * @param psfName where the PSF came from, for the record
      * @param mask untrusted pixels (nonzero), one per data voxel, or null (checked by {@link MaskChecks#check}
      *     when it comes from the user)
-     * @param s settings
+     * @param s settings; automatic values are resolved first ({@link AutomaticSettings})
      * @param ctx threads, progress, cancel, warnings
      * @param listener told about each iteration
      */
     public static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
             RunContext ctx, IterationListener listener) {
-        return run(data, psf, psfName, mask, s, ctx, listener, false);
+        return run(data, psf, psfName, mask, s, null, null, ctx, listener, false);
+    }
+
+    /** As above, with dark and/or flat frames for the camera values (each may be null). */
+    public static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
+            Volume dark, Volume flat, RunContext ctx, IterationListener listener) {
+        return run(data, psf, psfName, mask, s, dark, flat, ctx, listener, false);
     }
 
     /** As above; with {@code withModel} the outcome also holds the fitted forward model (one more blur). */
-    static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
-            RunContext ctx, IterationListener listener, boolean withModel) {
-        return run(data, psf, psfName, mask, s, ctx, listener, withModel, null, null);
+    static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s, Volume dark,
+            Volume flat, RunContext ctx, IterationListener listener, boolean withModel) {
+        return run(data, psf, psfName, mask, s, dark, flat, ctx, listener, withModel, null, null);
     }
 
     /**
@@ -68,12 +76,18 @@ public final class Deconvolution {
      */
     public static Outcome runDepthVariant(Volume data, byte[] mask, DeconvolutionSettings s, DepthVariant depthVariant,
             RunContext ctx, IterationListener listener) {
+        return runDepthVariant(data, mask, s, depthVariant, null, null, ctx, listener);
+    }
+
+    /** As above, with dark and/or flat frames for the camera values (each may be null). */
+    public static Outcome runDepthVariant(Volume data, byte[] mask, DeconvolutionSettings s, DepthVariant depthVariant,
+            Volume dark, Volume flat, RunContext ctx, IterationListener listener) {
         if (!s.method().equals("richardson-lucy")) {
             throw new IllegalArgumentException("depth-variant on works with method richardson-lucy only (given "
                     + s.method() + "); choose method richardson-lucy (acceleration on or off)");
         }
-        return run(data, null, "modelled: gibson-lanni at " + depthVariant.strata() + " depths", mask, s, ctx,
-                listener, false, depthVariant, null);
+        return run(data, null, "modelled: gibson-lanni at " + depthVariant.strata() + " depths", mask, s, dark, flat,
+                ctx, listener, false, depthVariant, null);
     }
 
     /**
@@ -95,69 +109,91 @@ public final class Deconvolution {
         void run(DeconvolutionProblem problem, Solution solution);
     }
 
+    /** As {@link #run(Volume, Volume, String, byte[], DeconvolutionSettings, RunContext, IterationListener)}; with
+     * {@code withModel} the outcome also holds the fitted forward model (one more blur). */
+    static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
+            RunContext ctx, IterationListener listener, boolean withModel) {
+        return run(data, psf, psfName, mask, s, null, null, ctx, listener, withModel);
+    }
+
     /** As above; {@code after} (or null) runs on the problem and the solution before the problem's threads stop. */
     static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
             RunContext ctx, IterationListener listener, boolean withModel, AfterSolve after) {
-        return run(data, psf, psfName, mask, s, ctx, listener, withModel, null, after);
+        return run(data, psf, psfName, mask, s, null, null, ctx, listener, withModel, null, after);
     }
 
     private static Outcome run(Volume data, Volume psf, String psfName, byte[] mask, DeconvolutionSettings s,
-            RunContext ctx, IterationListener listener, boolean withModel, DepthVariant dv, AfterSolve after) {
+            Volume dark, Volume flat, RunContext ctx, IterationListener listener, boolean withModel, DepthVariant dv,
+            AfterSolve after) {
         InputChecks.Scan scan = InputChecks.check("input", data, ctx);
         InputChecks.checkOffset("input", data, s.offset(), s.readNoise(), ctx);
         mask = MaskChecks.union(mask, scan.nonFiniteMask());
         data = InputChecks.finiteCopy(data, scan);
+        DeconvolutionProblem.Boundary boundary = AutomaticSettings.boundary(s);
         int warned = ctx.warnings().size();
         // one PSF as given, or (depth-variant) an empty volume of the modelled PSFs' size for the grid
-        Volume p = dv == null ? PsfChecks.prepare("psf", psf, data, ctx) : emptyOfSize(DepthStrata.psfSize(dv.optics(), data), data);
+        PsfChecks.Prepared prepared = dv == null
+                ? PsfChecks.prepare("psf", psf, data, boundary == DeconvolutionProblem.Boundary.EXTENDED, ctx)
+                : new PsfChecks.Prepared(emptyOfSize(DepthStrata.psfSize(dv.optics(), data), data), 0);
+        Volume p = prepared.psf();
         List<String> notes = new ArrayList<>(ctx.warnings().subList(warned, ctx.warnings().size()));
-        double bg = s.background();
-        boolean estimated = Double.isNaN(bg);
-        if (estimated) {
-            bg = BackgroundEstimate.estimate(data, mask, s.offset());
-        }
-        Camera camera = s.camera();
-        DeconvolutionProblem.Boundary boundary = s.boundary().equals("periodic")
-                ? DeconvolutionProblem.Boundary.PERIODIC : DeconvolutionProblem.Boundary.EXTENDED;
-        Solver solver = s.solver();
+        Solver planned = s.solver();
         long grid = gridVoxels(data, p, boundary);
         // a depth-variant blur holds K transfer functions, two spectra and a buffer instead of one blur's two
-        long need = memoryEstimate(grid, solver.gridArrays() + (dv == null ? 0 : dv.strata() + 1), data.size());
+        long need = memoryEstimate(grid, planned.gridArrays() + (dv == null ? 0 : dv.strata() + 1), data.size());
         MemoryCheck.require("deconvolve of " + data.shape() + " (grid " + gridShape(data, p, boundary)
                 + (boundary == DeconvolutionProblem.Boundary.EXTENDED ? "; --boundary periodic needs a smaller grid" : "")
                 + (dv == null ? "" : "; " + dv.strata() + " strata: fewer strata need less") + ")", need);
-        ctx.progress(0, "preparing " + s.method());
+        DepthStrata strata = null;
+        if (dv != null) {
+            ctx.progress(0, "modelling " + dv.strata() + " PSFs across the depth");
+            try (Workers workers = new Workers(ctx.threads())) {
+                strata = DepthStrata.build(dv.optics(), data, dv.strata(), workers);
+            }
+        }
+        // automatic values from the data; a depth-variant run finds its stop with the PSF of the middle stratum
+        Volume trialPsf = strata == null ? p : strata.psfs().get(strata.psfs().size() / 2);
+        AutomaticSettings.Resolved resolved = AutomaticSettings.resolve(data, trialPsf, mask, s, dark, flat, ctx);
+        DeconvolutionSettings used = resolved.settings();
+        double bg = used.background();
+        Solver solver = used.solver();
+        ctx.progress(0, "preparing " + used.method());
         Solution sol;
         DeconvolutionProblem problem;
         Volume model;
-        DepthStrata strata = null;
+        double[] fit;
         try (Workers workers = new Workers(ctx.threads())) {
-            if (dv == null) {
-                problem = new DeconvolutionProblem(data, p, mask, boundary, camera, bg, workers, ctx.fft());
+            if (strata == null) {
+                problem = new DeconvolutionProblem(data, p, mask, boundary, used.camera(), bg, workers, ctx.fft());
             } else {
-                ctx.progress(0, "modelling " + dv.strata() + " PSFs across the depth");
-                strata = DepthStrata.build(dv.optics(), data, dv.strata(), workers);
                 problem = DeconvolutionProblem.depthVariant(data, strata.psfs(), strata.planes(), mask, boundary,
-                        camera, bg, workers, ctx.fft());
+                        used.camera(), bg, workers, ctx.fft());
             }
             sol = solver.solve(problem, ctx, listener);
             NumericalGuard.estimate(s.method(), sol);
+            fit = finalFit(problem, sol.estimate());
             model = withModel ? problem.predictedAboveOffset(sol.estimate()) : null;
             if (after != null) {
                 after.run(problem, sol);
             }
         }
+        boolean early = resolved.stop() != null ? resolved.stop().met() : used.stopping().rule() == StopRule.FIXED;
+        String reason = (resolved.stop() != null ? resolved.stop().reason() : sol.stopReason()) + "; "
+                + FitStatus.describe(fit[0], fit[1], early);
+        sol = new Solution(sol.estimate(), sol.iterations(), reason, sol.objective(), sol.change(), sol.seconds());
         Volume result = problem.toVolume(sol.estimate());
         Map<String, Object> r = new LinkedHashMap<>();
         r.put("operation", "deconvolve");
-        r.put("method", s.method());
+        r.put("method", used.method());
         r.put("iterations", sol.iterations());
         r.put("stop_reason", sol.stopReason());
         r.put("seconds", sol.seconds());
         r.put("objective", solver.objectiveName());
         r.put("history", sol.objective());
         r.put("change_history", sol.change());
-        r.put("settings", settingsRecord(s, bg, estimated, ctx.threads()));
+        r.put("fit_per_pixel", fit[0]);
+        r.put("fit_expected_from_noise", fit[1]);
+        r.put("settings", settingsRecord(s, used, resolved.record(), ctx.threads()));
         Map<String, Object> psfInfo = new LinkedHashMap<>();
         psfInfo.put("source", psfName);
         if (psf != null) {
@@ -166,6 +202,7 @@ public final class Deconvolution {
             psfInfo.put("sum_as_read", psf.sum());
         }
         psfInfo.put("shape_used", p.shape());
+        psfInfo.put("energy_share_dropped", prepared.droppedShare());
         psfInfo.put("changes", notes);
         r.put("psf", psfInfo);
         if (strata != null) {
@@ -179,24 +216,39 @@ public final class Deconvolution {
         r.put("fft_planning", problem.fftPlanning());
         r.put("peak_memory_estimate_bytes", need);
         r.put("result_units", "ADU above the camera offset (background removed)");
-        return new Outcome(result, sol, r, model);
+        return new Outcome(result, sol, r, model, used);
     }
 
-    /** @return the "settings" entry of a run record: the settings that decided the result */
-    static Map<String, Object> settingsRecord(DeconvolutionSettings s, double bg, boolean estimated, int threads) {
+    /** @return {mean fit per trusted pixel, what noise alone leaves} of the final estimate (one more blur) */
+    private static double[] finalFit(DeconvolutionProblem problem, float[] x) {
+        float[] pos = new float[x.length];
+        for (int i = 0; i < x.length; i++) {
+            pos[i] = Math.max(x[i], 0f);
+        }
+        float[] work = new float[x.length];
+        problem.forward().apply(pos, work);
+        return new double[] {problem.fit(work) / problem.trustedPixels(), problem.expectedFit(work)};
+    }
+
+    /**
+     * @return the "settings" entry of a run record: the rule asked for, how the automatic values were found
+     *     ({@link AutomaticSettings.Resolved#record}) and the values used; the same for a whole-stack run and a run
+     *     in blocks
+     * @param asked the settings as given (the stop rule and its limits are recorded as asked)
+     * @param used the settings used, nothing automatic left
+     * @param found how the automatic values were found
+     */
+    static Map<String, Object> settingsRecord(DeconvolutionSettings asked, DeconvolutionSettings used,
+            Map<String, Object> found, int threads) {
         Map<String, Object> set = new LinkedHashMap<>();
-        set.put("stop", s.stopping().rule().word());
-        set.put("max_iterations", s.stopping().maxIterations());
-        set.put("tolerance", s.stopping().tolerance());
-        set.put("offset_adu", s.offset());
-        set.put("background_adu", bg);
-        set.put("background_estimated", estimated);
-        set.put("gain", s.gain());
-        set.put("read_noise_adu", s.readNoise());
-        set.put("regularization", s.method().equals("richardson-lucy") ? 0.0 : s.lambda());
-        set.put("boundary", s.boundary());
-        set.put("acceleration", s.method().equals("richardson-lucy") && s.accelerated());
-        set.put("likelihood", s.likelihood());
+        set.put("stop", asked.stopping().rule().word());
+        set.put("max_iterations", asked.stopping().maxIterations());
+        set.put("tolerance", asked.stopping().tolerance());
+        set.putAll(found);
+        set.put("regularization", used.regularized() ? used.lambda() : 0.0);
+        set.put("boundary", used.boundary());
+        set.put("acceleration", used.method().equals("richardson-lucy") && used.accelerated());
+        set.put("likelihood", used.likelihood());
         set.put("threads", threads);
         return set;
     }

@@ -3,15 +3,17 @@ package org.stackwright.solve;
 import java.util.List;
 
 /**
- * The settings of one deconvolution, validated, defaults in one place.
+ * The settings of one deconvolution, validated, defaults in one place. NaN stands for a value the run finds itself
+ * ("auto"); {@link AutomaticSettings#resolve} turns such settings into concrete ones before a solver runs.
  *
  * @param method richardson-lucy, richardson-lucy-tv, total-variation or wiener
  * @param stopping stopping rule, maximum iterations and tolerance
- * @param offset camera offset, ADU
+ * @param offset camera offset, ADU, or NaN when not given (from dark frames or the image)
  * @param background background above the offset in ADU, or NaN to estimate it ("auto")
- * @param gain ADU per photo-electron
- * @param readNoise read noise, ADU
- * @param regularization lambda, or NaN for the method's default ({@link #defaultRegularization})
+ * @param gain ADU per photo-electron, or NaN to estimate it ("auto")
+ * @param readNoise read noise, ADU, or NaN to estimate it ("auto")
+ * @param regularization lambda, or NaN to choose it from the data ("auto"; a solver built from unresolved settings
+ *     uses {@link #defaultRegularization})
  * @param boundary "extended" or "periodic"
  * @param accelerated vector extrapolation for richardson-lucy
  * @param likelihood data term of total-variation (and of gaussian noise replicas): "poisson" or "gaussian"
@@ -78,8 +80,31 @@ public record DeconvolutionSettings(String method, Stopping stopping, double off
         return new DeconvolutionSettings(method, stopping, off, bg, g, rn, regularization, boundary, accelerated, likelihood);
     }
 
-    /** @return the camera these settings describe (no saturation level; background apart) */
+    /** @return a copy with another lambda */
+    public DeconvolutionSettings withLambda(double lambda) {
+        return new DeconvolutionSettings(method, stopping, offset, background, gain, readNoise, lambda, boundary, accelerated, likelihood);
+    }
+
+    /** @return true when the method takes a regularisation weight */
+    public boolean regularized() {
+        return !method.equals("richardson-lucy");
+    }
+
+    /** @return true when nothing is left for {@link AutomaticSettings} to find */
+    public boolean resolved() {
+        return !Double.isNaN(offset) && !Double.isNaN(background) && !Double.isNaN(gain) && !Double.isNaN(readNoise)
+                && (!regularized() || !Double.isNaN(regularization)) && stopping.rule() != StopRule.AUTO;
+    }
+
+    /**
+     * @return the camera these settings describe (no saturation level; background apart)
+     * @throws IllegalStateException when a camera value is still "auto" (resolve the settings first)
+     */
     public org.stackwright.model.Camera camera() {
+        if (Double.isNaN(gain) || Double.isNaN(offset) || Double.isNaN(readNoise)) {
+            throw new IllegalStateException("camera values not resolved (gain " + gain + ", offset " + offset
+                    + ", read noise " + readNoise + "): resolve the settings with AutomaticSettings first");
+        }
         return org.stackwright.model.Camera.of(gain, offset, readNoise);
     }
 

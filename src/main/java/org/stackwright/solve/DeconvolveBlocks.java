@@ -19,6 +19,8 @@ import org.stackwright.blocks.PlaneSource;
 import org.stackwright.fft.Convolution;
 import org.stackwright.fft.FftEngine;
 import org.stackwright.op.FftChoice;
+import org.stackwright.model.CameraEstimate;
+import org.stackwright.model.CameraEstimate.Given;
 import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.op.InputChecks;
 import org.stackwright.op.Result;
@@ -165,6 +167,14 @@ final class DeconvolveBlocks implements BlockOperation {
                     + " be made in blocks; leave them out and run the residuals operation on the result (or give"
                     + " block-size auto and enough memory for the whole stack)";
         }
+        for (String key : List.of("dark", "flat")) {
+            if (v.images().get(key) != null || v.given(key)) {
+                return key + ": calibration frames are not used in blocks (the camera values are found once for the"
+                        + " whole stack); give gain, offset and read-noise as numbers instead (e.g. from a run of"
+                        + " deconvolve on a smaller stack with " + key + "), or give block-size auto and enough memory"
+                        + " for the whole stack";
+            }
+        }
         if (v.choice("depth-variant").equals("on")) {
             return "depth-variant = on models the PSF over the whole depth and cannot run in blocks; give block-size"
                     + " auto and enough memory for the whole stack";
@@ -201,34 +211,70 @@ final class DeconvolveBlocks implements BlockOperation {
         PlaneSource mask = in.get("mask");
         Volume psf = psf(v, data.width(), data.height(), data.depth(), data.voxel(), ctx);
         DeconvolveOperation.samplingCheck(v, Volume.zeros(1, 1, Math.min(2, data.depth()), data.voxel()), ctx);
+        // automatic values are found once for the whole stack, never per block: the camera values on the block
+        // with the most signal in ADU, then the background over the whole stack, then lambda and the stop's
+        // iteration count on the block with the most signal above the background
+        DeconvolutionSettings asked = s;
+        Given given = new Given(s.gain(), s.offset(), s.readNoise(), null, null);
+        CameraEstimate camera;
+        String cameraFrom = "given";
+        if (given.complete()) {
+            camera = CameraEstimate.of(null, null, given, "dark", "flat");
+        } else {
+            Block rep = plan.blocks().get(brightestInAdu(data, mask, plan, ctx));
+            ctx.progress(0, "global settings: camera values on block " + (rep.index() + 1));
+            Part part = Part.of(data, mask, rep);
+            camera = AutomaticSettings.camera(part.data(), part.mask(), s, null, null, ctx);
+            cameraFrom = "block " + (rep.index() + 1) + " (core " + rep.core() + ", the most signal in ADU)";
+        }
+        s = s.withCamera(camera.offset().value(), s.background(), camera.gain().value(), camera.readNoise().value());
         Scan scan = new Scan(s, plan, data.width(), data.height());
         ctx.progress(0, "global settings: reading the stack");
         double bg = s.background();
         boolean estimated = Double.isNaN(bg);
         if (estimated) {
-            bg = BackgroundEstimate.estimate(data, mask, s.offset(), scan::visit);
+            bg = BackgroundEstimate.estimate(data, mask, s.offset(), s.camera(), scan::visit);
         } else {
             for (int z = 0; z < data.depth(); z++) {
                 ctx.checkCancelled();
                 float[] px = data.read(new Box(0, 0, z, data.width(), data.height(), 1)).data();
-                byte[] m = null;
-                if (mask != null) {
-                    float[] mm = mask.read(new Box(0, 0, mask.depth() == 1 ? 0 : z, data.width(), data.height(), 1)).data();
-                    m = new byte[mm.length];
-                    for (int i = 0; i < mm.length; i++) {
-                        m[i] = (byte) (mm[i] != 0 ? 1 : 0);
-                    }
-                }
-                scan.visit(z, px, m);
+                scan.visit(z, px, maskPlane(mask, z, data));
             }
         }
         scan.warnings(ctx);
+        s = s.withCamera(s.offset(), bg, s.gain(), s.readNoise());
+        Map<String, Object> found = new LinkedHashMap<>(camera.record());
+        found.put("camera_values_from", cameraFrom);
+        found.put("background_adu", bg);
+        found.put("background_estimated", estimated);
+        if (!s.resolved()) {
+            Block rep = plan.blocks().get(scan.brightest());
+            ctx.progress(0, "global settings: automatic lambda and stop on block " + (rep.index() + 1));
+            Part part = Part.of(data, mask, rep);
+            AutomaticSettings.Resolved auto = AutomaticSettings.resolve(part.data(), psf, part.mask(), s, null, null,
+                    ctx);
+            s = auto.settings();
+            Map<String, Object> ar = auto.record();
+            for (String key : List.of("regularization_choice", "stop_trial")) {
+                if (ar.containsKey(key)) {
+                    found.put(key, ar.get(key));
+                }
+            }
+            found.put("lambda_and_stop_from", "block " + (rep.index() + 1) + " (core " + rep.core()
+                    + ", the most signal above the background); every block uses them");
+        }
         double b = bg / s.gain() + s.camera().readNoiseShift();
         double start = Math.max((scan.sumY - scan.trusted * (double) (float) b) / scan.trusted, 1e-3);
         Map<String, String> set = new LinkedHashMap<>();
         Map<String, Double> numbers = new LinkedHashMap<>();
         Map<String, Object> rec = new LinkedHashMap<>();
         set.put("background", Double.toString(bg));
+        set.put("offset", Double.toString(s.offset()));
+        set.put("gain", Double.toString(s.gain()));
+        set.put("read-noise", Double.toString(s.readNoise()));
+        if (s.regularized()) {
+            set.put("regularization", Double.toString(s.lambda()));
+        }
         // one block is the whole volume: it starts as a whole-volume run does, to the last bit
         numbers.put("start", plan.blocks().size() == 1 ? Double.NaN : start);
         numbers.put("width", (double) data.width());
@@ -290,6 +336,7 @@ final class DeconvolveBlocks implements BlockOperation {
         rec.put("iterations", iterations);
         rec.put("iterations_from", how);
         rec.put("regularization", s.method().equals("richardson-lucy") ? 0.0 : s.lambda());
+        rec.put(SETTINGS, Deconvolution.settingsRecord(asked, s, found, ctx.threads()));
         Globals g = new Globals(set, numbers, rec);
         if (repIndex >= 0 && kept != null) {
             keptFor.clear();
@@ -298,6 +345,66 @@ final class DeconvolveBlocks implements BlockOperation {
             kept = null;
         }
         return g;
+    }
+
+    /** Global record entry: the run record's settings (as a whole-stack run records them). */
+    private static final String SETTINGS = "settings";
+
+    /** One block's read box in memory: its pixels (non-finite ones masked) and mask, for the automatic values. */
+    private record Part(Volume data, byte[] mask) {
+        static Part of(PlaneSource data, PlaneSource mask, Block block) {
+            Volume d = data.read(block.read());
+            byte[] m = mask == null ? null : expand(mask.read(block.read()), d);
+            InputChecks.Scan scan = InputChecks.scan(d);
+            return new Part(InputChecks.finiteCopy(d, scan), org.stackwright.op.MaskChecks.union(m, scan.nonFiniteMask()));
+        }
+    }
+
+    /** @return one plane of the mask (1 = untrusted), or null without a mask */
+    private static byte[] maskPlane(PlaneSource mask, int z, PlaneSource data) {
+        if (mask == null) {
+            return null;
+        }
+        float[] mm = mask.read(new Box(0, 0, mask.depth() == 1 ? 0 : z, data.width(), data.height(), 1)).data();
+        byte[] m = new byte[mm.length];
+        for (int i = 0; i < mm.length; i++) {
+            m[i] = (byte) (mm[i] != 0 ? 1 : 0);
+        }
+        return m;
+    }
+
+    /** @return the index of the block whose core has the highest mean of trusted finite pixels in ADU */
+    private static int brightestInAdu(PlaneSource data, PlaneSource mask, BlockPlan plan, RunContext ctx) {
+        double[] sum = new double[plan.blocks().size()];
+        long[] count = new long[sum.length];
+        int w = data.width();
+        for (int z = 0; z < data.depth(); z++) {
+            ctx.checkCancelled();
+            float[] px = data.read(new Box(0, 0, z, w, data.height(), 1)).data();
+            byte[] m = maskPlane(mask, z, data);
+            for (Block b : plan.blocks()) {
+                Box c = b.core();
+                if (!c.holdsPlane(z)) {
+                    continue;
+                }
+                for (int y = c.y(); y < c.y() + c.h(); y++) {
+                    for (int x = c.x(); x < c.x() + c.w(); x++) {
+                        int i = y * w + x;
+                        if (Float.isFinite(px[i]) && (m == null || m[i] == 0)) {
+                            sum[b.index()] += px[i];
+                            count[b.index()]++;
+                        }
+                    }
+                }
+            }
+        }
+        int best = 0;
+        for (int i = 1; i < sum.length; i++) {
+            if (count[i] > 0 && (count[best] == 0 || sum[i] / count[i] > sum[best] / count[best])) {
+                best = i;
+            }
+        }
+        return best;
     }
 
     /** Whole-volume statistics gathered plane by plane in the global step. */
@@ -561,8 +668,7 @@ final class DeconvolveBlocks implements BlockOperation {
         r.record("iterations", iterations);
         r.record("stop_reason", reason);
         r.record("seconds", totals.seconds());
-        r.record("settings", Deconvolution.settingsRecord(s, s.background(),
-                Boolean.TRUE.equals(g.record().get("background_estimated")), ctx.threads()));
+        r.record("settings", g.record().get(SETTINGS));
         Map<String, Object> psfInfo = new LinkedHashMap<>();
         psfInfo.put("source", psfImp == null ? "" : psfImp.getTitle());
         psfInfo.put("shape_used", psf.shape());

@@ -13,6 +13,7 @@ import org.stackwright.blocks.BlockOperation;
 import org.stackwright.blocks.BlockRun;
 import org.stackwright.blocks.BlockSettings;
 import org.stackwright.blocks.Blockwise;
+import org.stackwright.model.CalibrationFrames;
 import org.stackwright.op.Limits;
 import org.stackwright.op.MaskChecks;
 import org.stackwright.op.Operation;
@@ -40,6 +41,14 @@ public final class DeconvolveOperation implements Operation, Blockwise {
         return blocks;
     }
 
+    /** The word for a value the run finds itself. */
+    static final String AUTO = "auto";
+    /**
+     * Default maximum of iterations: the automatic stop ends well before it on the test conditions (bright data
+     * needed up to about 300 in the trial); reaching it is reported as a failure of the rule.
+     */
+    static final int DEFAULT_MAX_ITERATIONS = 500;
+
     @Override
     public String name() {
         return "deconvolve";
@@ -58,17 +67,25 @@ public final class DeconvolveOperation implements Operation, Blockwise {
                         + "required unless depth-variant is on"),
                 Param.outputImage("output", true, "the deconvolved estimate, 32-bit, ADU above the offset"),
                 Param.choice("method", "richardson-lucy", DeconvolutionSettings.METHODS, "deconvolution method"),
-                Limits.iterations("iterations", 50, "maximum number of iterations (wiener: ignored)"),
-                Param.choice("stop", "noise", List.of("fixed", "change", "noise"),
-                        "fixed = all iterations; change = relative change below tolerance; noise = data fit reaches "
-                                + "its expected value (discrepancy principle)"),
+                Limits.iterations("iterations", DEFAULT_MAX_ITERATIONS, "maximum number of iterations: reaching it is"
+                        + " reported as a failure of the stop rule (wiener: ignored)"),
+                Param.choice("stop", StopRule.AUTO.word(), StopRule.words(),
+                        "auto = where the fit to held-out pixels is best (trial on half the pixels, then the full "
+                                + "run); fixed = all iterations; change = relative change below tolerance; noise = "
+                                + "data fit reaches its expected value (discrepancy principle)"),
                 Param.number("tolerance", 1e-3, 1e-12, 1, "", "tolerance of the change rule (total-variation: relative primal-dual gap)"),
-                Param.number("offset", 0.0, -1e9, 1e9, "ADU", "camera offset (bias), part of the forward model"),
+                Param.number("offset", null, -1e9, 1e9, "ADU", "camera offset (bias), part of the forward model; not "
+                        + "given: from the dark frames, or together with the read noise from the image"),
                 Param.text("background", "auto", "background above the offset in ADU, or auto to estimate it"),
-                Param.number("gain", 1.0, 1e-9, 1e9, "ADU/e-", "camera gain"),
-                Param.number("read-noise", 0.0, 0, 1e9, "ADU", "camera read noise (standard deviation)"),
-                Param.number("regularization", null, 0, 1e9, "", "lambda: richardson-lucy-tv default 0.002, "
-                        + "total-variation 0.01, wiener 0.001; ignored by richardson-lucy"),
+                // automatic camera values and regularisation (issue: settle on data it was not made with)
+                Param.text("gain", AUTO, "camera gain in ADU per photo-electron, or auto: from the flat frames or the"
+                        + " image (photon transfer)"),
+                Param.text("read-noise", AUTO, "camera read noise in ADU (standard deviation), or auto: from the dark"
+                        + " frames or the image"),
+                Param.image("dark", false, "dark frames (no light, several planes): offset and read noise"),
+                Param.image("flat", false, "flat frames (even light, runs of 2 or more frames per level): gain"),
+                Param.text("regularization", AUTO, "lambda of richardson-lucy-tv and total-variation, or auto: chosen "
+                        + "from the data; wiener: default 0.001; ignored by richardson-lucy"),
                 Param.image("mask", false, "pixels to exclude from the data fit: nonzero = dead, saturated, seam"),
                 Param.choice("boundary", "extended", List.of("extended", "periodic"),
                         "extended = object larger than the image, no wrap-around; periodic = wraps around (smaller, faster)"),
@@ -159,6 +176,8 @@ public final class DeconvolveOperation implements Operation, Blockwise {
         if (residuals) {
             RunResiduals.check(s, depthVariant, UncertaintyStep.mode(v));
         }
+        Volume dark = frames(v, "dark", data);
+        Volume flat = frames(v, "flat", data);
         Result r = new Result();
         Deconvolution.Outcome out;
         if (depthVariant) {
@@ -168,15 +187,18 @@ public final class DeconvolveOperation implements Operation, Blockwise {
                         + "with depth-variant on");
             }
             UncertaintyStep.check(v, mode);
-            out = Deconvolution.runDepthVariant(data, mask, s, depthVariant(v, data), ctx, IterationListener.NONE);
+            out = Deconvolution.runDepthVariant(data, mask, s, depthVariant(v, data), dark, flat, ctx,
+                    IterationListener.NONE);
             out.record().forEach(r::record);
             r.record("uncertainty", mode);
         } else {
-            out = UncertaintyStep.run(v, data, psf, psfImp.getTitle(), mask, s, in.getTitle(), residuals, ctx, r);
+            out = UncertaintyStep.run(v, data, psf, psfImp.getTitle(), mask, s, dark, flat, in.getTitle(), residuals,
+                    ctx, r);
         }
         r.image("output", ImagePlusAdapter.toImagePlus(out.result(), in.getTitle() + "-deconvolve"));
         FftChoice.note(r, fft);
         double[] hist = out.solution().objective();
+        r.line(valuesUsed(out));
         r.line(String.format(Locale.ROOT, "deconvolved %s with %s: %d iteration(s), %.2f s; stopped by %s",
                 data.shape(), s.method(), out.solution().iterations(), out.solution().seconds(), out.solution().stopReason()));
         Map<?, ?> used = (Map<?, ?>) out.record().get("settings");
@@ -228,13 +250,66 @@ public final class DeconvolveOperation implements Operation, Blockwise {
             }
         }
         String method = v.choice("method");
-        double lambda = v.given("regularization") ? v.number("regularization") : Double.NaN;
+        double lambda = numberOrAuto(v, "regularization", 0, "a number (0 or more)");
         if (!Double.isNaN(lambda) && lambda <= 0 && (method.equals("wiener") || method.equals("total-variation"))) {
-            throw new IllegalArgumentException("regularization = " + lambda + " is not allowed for " + method + "; give a positive number");
+            throw new IllegalArgumentException("regularization = " + lambda + " is not allowed for " + method + "; give a positive number or auto");
         }
         Stopping stopping = new Stopping(StopRule.of(v.choice("stop")), v.integer("iterations"), v.number("tolerance"));
-        return new DeconvolutionSettings(method, stopping, v.number("offset"), bg, v.number("gain"), v.number("read-noise"),
+        double offset = v.given("offset") ? v.number("offset") : Double.NaN;
+        double gain = numberOrAuto(v, "gain", Double.MIN_VALUE, "a positive number of ADU per photo-electron");
+        double readNoise = numberOrAuto(v, "read-noise", 0, "a number of ADU (0 or more)");
+        return new DeconvolutionSettings(method, stopping, offset, bg, gain, readNoise,
                 lambda, v.choice("boundary"), v.choice("acceleration").equals("on"), v.choice("likelihood"));
+    }
+
+    /** @return one line of the camera values and lambda the run used, each with how it was found */
+    @SuppressWarnings("unchecked")
+    static String valuesUsed(Deconvolution.Outcome out) {
+        DeconvolutionSettings u = out.settings();
+        Map<String, Object> set = (Map<String, Object>) out.record().get("settings");
+        Map<String, Object> source = (Map<String, Object>) set.getOrDefault("camera_source", Map.of());
+        Map<String, Object> error = (Map<String, Object>) set.getOrDefault("camera_standard_error", Map.of());
+        StringBuilder b = new StringBuilder("values used: ");
+        b.append(found("gain", u.gain(), "ADU/e-", source.get("gain"), error.get("gain"))).append(", ");
+        b.append(found("read noise", u.readNoise(), "ADU", source.get("read_noise_adu"), error.get("read_noise_adu")));
+        b.append(", ").append(found("offset", u.offset(), "ADU", source.get("offset_adu"), error.get("offset_adu")));
+        if (u.regularized()) {
+            b.append(String.format(Locale.ROOT, ", lambda %.3g (%s)", u.lambda(),
+                    set.containsKey("regularization_choice") ? "chosen from the data" : "given"));
+        }
+        return b.toString();
+    }
+
+    private static String found(String what, double value, String unit, Object source, Object error) {
+        String se = error instanceof Number n ? String.format(Locale.ROOT, " +- %.2g", n.doubleValue()) : "";
+        return String.format(Locale.ROOT, "%s %.4g%s %s (%s)", what, value, se, unit, source == null ? "given" : source);
+    }
+
+    /**
+     * @return the number given for key, or NaN for auto (or nothing given)
+     * @throws IllegalArgumentException naming the key for text that is neither auto nor a number of at least min
+     */
+    static double numberOrAuto(Values v, String key, double min, String what) {
+        String t = v.text(key);
+        if (t == null || t.trim().equalsIgnoreCase(AUTO)) {
+            return Double.NaN;
+        }
+        double d;
+        try {
+            d = Double.parseDouble(t.trim());
+        } catch (NumberFormatException e) {
+            throw new IllegalArgumentException(key + " = '" + t + "' is not allowed; give " + what + " or auto");
+        }
+        if (!(d >= min) || Double.isInfinite(d)) {
+            throw new IllegalArgumentException(key + " = '" + t + "' is not allowed; give " + what + " or auto");
+        }
+        return d;
+    }
+
+    /** Reads calibration frames (the first channel), with the image's plane size. */
+    private static Volume frames(Values v, String key, Volume data) {
+        ImagePlus imp = v.image(key);
+        return imp == null ? null : CalibrationFrames.requireSamePlanes(key, ImagePlusAdapter.toVolume(imp), data);
     }
 
     /**

@@ -14,4 +14,11 @@ public interface IterationListener {
      * @param change relative change or primal-dual gap of this iteration, NaN when not computed
      */
     void iteration(int iteration, int maxIterations, double objective, double change);
+
+    /**
+     * Called after {@link #iteration} with everything the solver knows, the current estimate included (for stop
+     * policies and truth comparisons in tests). Does nothing unless overridden.
+     */
+    default void state(IterationState state) {
+    }
 }

@@ -17,10 +17,12 @@ final class IterationLog {
     private final String method;
     private final double[] objective;
     private final double[] change;
+    private final double[] heldOut;
     private final long t0 = System.nanoTime();
     private int done;
     private double best = Double.POSITIVE_INFINITY;
     private String reason;
+    private int levelOffPixels;
 
     IterationLog(String method, Stopping stopping, RunContext context, IterationListener listener) {
         this.method = method;
@@ -29,6 +31,17 @@ final class IterationLog {
         this.listener = listener;
         this.objective = new double[stopping.maxIterations()];
         this.change = new double[stopping.maxIterations()];
+        this.heldOut = new double[stopping.maxIterations()];
+    }
+
+    /**
+     * For a regularised method under the automatic rule: also stop when the held-out fit levels off
+     * ({@link Stopping#levelledOff}).
+     *
+     * @param heldOutPixels number of held-out pixels of the problem (0 = none)
+     */
+    void stopWhenLevelledOff(int heldOutPixels) {
+        levelOffPixels = stopping.rule() == StopRule.AUTO ? heldOutPixels : 0;
     }
 
     /** Checks for cancel before an iteration. */
@@ -39,19 +52,32 @@ final class IterationLog {
     /**
      * Records one iteration and decides whether to stop.
      *
+     * @param obj the objective
+     * @param meanFit mean data fit per trusted pixel of the estimate that entered the iteration
+     * @param expectedFit its expected value
+     * @param ch relative change or gap
+     * @param held mean fit of the held-out pixels (NaN when none), computed in the same pass as meanFit
+     * @param estimate the estimate after the iteration (read by listeners, not modified)
      * @return true to stop
      */
-    boolean after(double obj, double meanFit, double expectedFit, double ch) {
+    boolean after(double obj, double meanFit, double expectedFit, double ch, double held, float[] estimate) {
         NumericalGuard.iteration(method, done + 1, obj, meanFit, ch);
         NumericalGuard.notDiverged(method, done + 1, obj, best);
         best = Math.min(best, obj);
         objective[done] = obj;
         change[done] = ch;
+        heldOut[done] = held;
         done++;
         listener.iteration(done, stopping.maxIterations(), obj, ch);
+        listener.state(new IterationState(done, stopping.maxIterations(), obj, meanFit, expectedFit, held, ch, estimate));
         context.progress((double) done / stopping.maxIterations(),
                 String.format(Locale.ROOT, "%s iteration %d of at most %d", method, done, stopping.maxIterations()));
-        reason = stopping.check(done, meanFit, expectedFit, ch);
+        double[] history = Arrays.copyOf(heldOut, done);
+        reason = stopping.check(done, meanFit, expectedFit, ch, history);
+        if (levelOffPixels > 0 && (reason == null || reason.startsWith("maximum"))) {
+            String levelled = Stopping.levelledOff(history, levelOffPixels);
+            reason = levelled != null ? levelled : reason;
+        }
         return reason != null;
     }
 

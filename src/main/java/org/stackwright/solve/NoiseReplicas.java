@@ -84,7 +84,7 @@ public final class NoiseReplicas {
      * @param data the data the original run saw (for the mask union with non-finite pixels and the calibration), not modified
      * @param psf the PSF as given to the original run, not modified
      * @param mask the mask given to the original run, or null
-     * @param s the original settings
+     * @param s the settings the original run used, resolved ({@link Deconvolution.Outcome#settings})
      * @param original the original outcome, with its forward model ({@link #deconvolveWithModel})
      * @param replicas R, at least 2 (the door allows up to {@link #MAX_REPLICAS})
      * @param noise how replica data are drawn
@@ -145,7 +145,13 @@ public final class NoiseReplicas {
      */
     public static Deconvolution.Outcome deconvolveWithModel(Volume data, Volume psf, String psfName, byte[] mask,
             DeconvolutionSettings s, RunContext ctx, IterationListener listener) {
-        return Deconvolution.run(data, psf, psfName, mask, s, ctx, listener, true);
+        return deconvolveWithModel(data, psf, psfName, mask, s, null, null, ctx, listener);
+    }
+
+    /** As above, with dark and/or flat frames for the camera values (each may be null). */
+    public static Deconvolution.Outcome deconvolveWithModel(Volume data, Volume psf, String psfName, byte[] mask,
+            DeconvolutionSettings s, Volume dark, Volume flat, RunContext ctx, IterationListener listener) {
+        return Deconvolution.run(data, psf, psfName, mask, s, dark, flat, ctx, listener, true);
     }
 
     /**
@@ -165,8 +171,9 @@ public final class NoiseReplicas {
                 + " (a standard deviation needs at least 2)";
     }
 
+    /** A read noise still to be estimated (NaN) is checked again by {@link #run} with the resolved settings. */
     private static void checkNoise(Noise noise, DeconvolutionSettings s) {
-        if (noise == Noise.GAUSSIAN && !(s.readNoise() > 0)) {
+        if (noise == Noise.GAUSSIAN && !(s.readNoise() > 0) && !Double.isNaN(s.readNoise())) {
             throw new IllegalArgumentException("read-noise = " + s.readNoise() + " is not allowed with likelihood gaussian and "
                     + "replicas: the replicas' Gaussian noise has the read noise as standard deviation; give a positive read-noise");
         }

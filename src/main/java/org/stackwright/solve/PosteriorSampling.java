@@ -122,7 +122,7 @@ public final class PosteriorSampling {
                 + "guarantee, and PSF or camera errors are not included");
         rec.put("sampling", sm);
         rec.put("result_units", "posterior mean, ADU above the camera offset (background removed)");
-        Deconvolution.Outcome mean = new Deconvolution.Outcome(sum.mean(), out.solution(), rec, null);
+        Deconvolution.Outcome mean = new Deconvolution.Outcome(sum.mean(), out.solution(), rec, null, out.settings());
         return new Result(mean, sum, d);
     }
 

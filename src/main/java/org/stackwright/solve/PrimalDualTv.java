@@ -192,6 +192,7 @@ public final class PrimalDualTv implements Solver {
             double dual = dualData - bound * s[0];
             // H x_new; H xbar = 2 H x_new - H x; primal objective at x_new
             h.apply(x, buf);
+            double held = p.heldOutFit(buf);
             double[] f = fitSums.run(workers, n, (from, to, acc) -> {
                 double primal = 0;
                 double kl = 0;
@@ -212,7 +213,7 @@ public final class PrimalDualTv implements Solver {
             });
             double primal = f[0] + lambda * tv.value(x);
             double gap = (primal - dual) / Math.max(Math.abs(primal), 1e-300);
-            if (log.after(primal / trusted, f[1] / trusted, p.expectedFit(), gap)) {
+            if (log.after(primal / trusted, f[1] / trusted, p.expectedFit(), gap, held, x)) {
                 break;
             }
         }

@@ -112,6 +112,7 @@ public final class RichardsonLucy implements Solver {
         while (true) {
             log.before();
             h.apply(x, buf);
+            double held = p.heldOutFit(buf);
             double fit = p.ratioAndFit(buf) / trusted;
             h.applyAdjoint(buf, buf);
             double[] s = sums.run(workers, n, (from, to, acc) -> {
@@ -129,7 +130,7 @@ public final class RichardsonLucy implements Solver {
                 acc[1] += xx;
             });
             double change = Math.sqrt(s[0] / Math.max(s[1], 1e-300));
-            if (log.after(fit, fit, p.expectedFit(), change)) {
+            if (log.after(fit, fit, p.expectedFit(), change, held, x)) {
                 break;
             }
         }
@@ -153,6 +154,7 @@ public final class RichardsonLucy implements Solver {
         while (true) {
             log.before();
             h.apply(y, buf);
+            double held = p.heldOutFit(buf);
             double fit = p.ratioAndFit(buf) / trusted;
             h.applyAdjoint(buf, buf);
             // buf <- psi(y) = x_{k+1}; g = x_{k+1} - y; sums for alpha and for the change x_{k+1} - x_k
@@ -198,7 +200,7 @@ public final class RichardsonLucy implements Solver {
                     xOld[i] = xn;
                 }
             });
-            if (log.after(fit, fit, p.expectedFit(), change)) {
+            if (log.after(fit, fit, p.expectedFit(), change, held, xOld)) {
                 break;
             }
         }

@@ -68,6 +68,9 @@ public final class RichardsonLucyTv implements Solver {
         double eps = 1e-3 * Math.max(Sums.maxAtLeastZero(x), 1e-6);
         Sums sums = new Sums(2);
         IterationLog log = new IterationLog(method(), stopping, context, listener);
+        if (lambda > 0) {
+            log.stopWhenLevelledOff(p.heldOutPixels());
+        }
         double trusted = p.trustedPixels();
         final float lam = (float) lambda;
         while (true) {
@@ -77,6 +80,7 @@ public final class RichardsonLucyTv implements Solver {
                 tv.curvature(x, eps, curv);
             }
             h.apply(x, buf);
+            double held = p.heldOutFit(buf);
             double fit = p.ratioAndFit(buf) / trusted;
             h.applyAdjoint(buf, buf);
             double[] s = sums.run(workers, n, (from, to, acc) -> {
@@ -98,7 +102,7 @@ public final class RichardsonLucyTv implements Solver {
                 acc[1] += xx;
             });
             double change = Math.sqrt(s[0] / Math.max(s[1], 1e-300));
-            if (log.after(fit + lambda * tvValue / trusted, fit, p.expectedFit(), change)) {
+            if (log.after(fit + lambda * tvValue / trusted, fit, p.expectedFit(), change, held, x)) {
                 break;
             }
         }

@@ -78,7 +78,8 @@ public final class RunResiduals {
 
     /** Checks before the run that the residuals can be normalised. */
     static void check(DeconvolutionSettings s) {
-        if (s.likelihood().equals("gaussian") && !(s.readNoise() > 0)) {
+        // NaN = auto: the read noise is found from the data before the run (checked again in analyse)
+        if (s.likelihood().equals("gaussian") && !Double.isNaN(s.readNoise()) && !(s.readNoise() > 0)) {
             throw new IllegalArgumentException("read-noise = " + s.readNoise() + " is not allowed with likelihood"
                     + " gaussian and residuals: the residuals are normalised by the read noise as the noise standard"
                     + " deviation; give a positive read-noise");
@@ -92,7 +93,7 @@ public final class RunResiduals {
     public static Deconvolution.Outcome deconvolve(Volume data, Volume psf, String psfName, byte[] mask,
             DeconvolutionSettings s, RunContext ctx, IterationListener listener) {
         check(s);
-        return Deconvolution.run(data, psf, psfName, mask, s, ctx, listener, true);
+        return Deconvolution.run(data, psf, psfName, mask, s, null, null, ctx, listener, true);
     }
 
     /**
@@ -115,6 +116,10 @@ public final class RunResiduals {
         double gain = number(used, "gain", s.gain());
         double readNoise = number(used, "read_noise_adu", s.readNoise());
         double background = number(used, "background_adu", s.background());
+        if (s.likelihood().equals("gaussian") && !(readNoise > 0)) {
+            throw new IllegalArgumentException("read-noise: the run found no read noise (" + readNoise + " ADU), and"
+                    + " with likelihood gaussian the residuals are normalised by it; give a positive read-noise");
+        }
         NoiseModel noise = s.likelihood().equals("gaussian") ? new GaussianNoise(readNoise)
                 : new PoissonGaussianNoise(gain, readNoise);
         ResidualModel model = new ResidualModel(offset, background, noise);
@@ -139,7 +144,8 @@ public final class RunResiduals {
     static void attach(Result r, Values v, Volume data, Volume psf, byte[] mask, DeconvolutionSettings s,
             Deconvolution.Outcome run, String title, RunContext ctx) {
         ctx.progress(1, "residuals of the run's own prediction");
-        ResidualReport report = analyse(data, psf, mask, s, run, ctx);
+        // the values the run used (camera values and background found from the data when they were auto)
+        ResidualReport report = analyse(data, psf, mask, run.settings() != null ? run.settings() : s, run, ctx);
         if (v.wants(RESIDUALS)) {
             r.image(RESIDUALS, ImagePlusAdapter.toImagePlus(report.maps().normalised(), title + "-" + RESIDUALS));
         }

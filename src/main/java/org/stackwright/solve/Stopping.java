@@ -21,6 +21,65 @@ public record Stopping(StopRule rule, int maxIterations, double tolerance) {
         }
     }
 
+    /**
+     * Iterations the automatic rule waits after the best held-out fit before it stops: 10, or 30% of the iterations
+     * to the best when that is more (the held-out fit is flat near its best and wiggles by a little; common practice,
+     * no source).
+     *
+     * @param best iterations to the best held-out fit
+     */
+    public static int patience(int best) {
+        return Math.max(10, (int) Math.ceil(0.3 * best));
+    }
+
+    /**
+     * @param heldOut held-out fit per iteration (index k = the estimate after k iterations), NaN where not measured
+     * @return the index of the smallest value, -1 when none is measured
+     */
+    public static int bestHeldOut(double[] heldOut) {
+        int best = -1;
+        for (int k = 0; k < heldOut.length; k++) {
+            if (!Double.isNaN(heldOut[k]) && (best < 0 || heldOut[k] < heldOut[best])) {
+                best = k;
+            }
+        }
+        return best;
+    }
+
+    /**
+     * The automatic rule for a regularised method, whose held-out fit levels off at the minimiser of its objective
+     * instead of turning up: stop when the best held-out fit improved, over the last {@link #patience} iterations, by
+     * less than its own statistical fluctuation, the standard error of a mean over the held-out pixels. Smaller gains
+     * cannot be told from noise in a fresh recording (the "improvement below its statistical fluctuation" criterion).
+     * For Poisson counts 2 KL is about chi-square with one degree of freedom, so the divergence per pixel has variance
+     * about 1/2 (Wilks' theorem; McCullagh &amp; Nelder, "Generalized Linear Models", 2nd ed., 1989, sec. 2.3; below
+     * a few counts per pixel an approximation).
+     *
+     * @param heldOut held-out fit per iteration so far (index k = the estimate after k iterations), not modified
+     * @param heldOutPixels number of held-out pixels (0: no held-out fit, never levels off)
+     * @return the stop reason, or null to go on
+     */
+    public static String levelledOff(double[] heldOut, int heldOutPixels) {
+        int k = heldOut.length;
+        int window = patience(k);
+        if (heldOutPixels <= 0 || k <= window) {
+            return null;
+        }
+        int before = bestHeldOut(java.util.Arrays.copyOf(heldOut, k - window));
+        int now = bestHeldOut(heldOut);
+        if (before < 0 || now < 0) {
+            return null;
+        }
+        double gain = heldOut[before] - heldOut[now];
+        double fluctuation = Math.sqrt(0.5 / heldOutPixels);
+        if (gain < fluctuation) {
+            return String.format(Locale.ROOT, "auto: the held-out fit levelled off at %.4f per pixel: it improved by"
+                    + " %.2g in the last %d iterations, less than its statistical fluctuation %.2g", heldOut[now], gain,
+                    window, fluctuation);
+        }
+        return null;
+    }
+
     /** Exactly n iterations. */
     public static Stopping fixed(int n) {
         return new Stopping(StopRule.FIXED, n, 1e-3);
@@ -34,10 +93,27 @@ public record Stopping(StopRule rule, int maxIterations, double tolerance) {
      * @return why the run stops now, or null to go on
      */
     public String check(int iteration, double meanFit, double expectedFit, double change) {
+        return check(iteration, meanFit, expectedFit, change, new double[0]);
+    }
+
+    /**
+     * As {@link #check(int, double, double, double)}, with the history of the held-out fit (cross-validation).
+     *
+     * @param heldOut held-out fit per iteration so far (index 0 = iteration 1), NaN where not measured; not modified
+     */
+    public String check(int iteration, double meanFit, double expectedFit, double change, double[] heldOut) {
+        if (rule == StopRule.AUTO) {
+            int best = bestHeldOut(heldOut);
+            if (best >= 0 && iteration - (best + 1) >= patience(best)) {
+                return String.format(Locale.ROOT, "auto: the held-out fit was best after %d iterations (%.4f per pixel)"
+                        + " and did not improve in the %d after", best, heldOut[best], iteration - 1 - best);
+            }
+        }
+        boolean noise = rule == StopRule.NOISE || (rule == StopRule.AUTO && bestHeldOut(heldOut) < 0);
         if (rule == StopRule.CHANGE && change < tolerance) {
             return String.format(Locale.ROOT, "change: relative change %.3g fell below the tolerance %.3g", change, tolerance);
         }
-        if (rule == StopRule.NOISE && meanFit <= expectedFit) {
+        if (noise && meanFit <= expectedFit) {
             return String.format(Locale.ROOT, "noise: mean data fit %.4f per pixel reached its expected value %.4f "
                     + "(discrepancy principle)", meanFit, expectedFit);
         }

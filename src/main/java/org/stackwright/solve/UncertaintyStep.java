@@ -4,6 +4,7 @@ import java.util.List;
 import java.util.Locale;
 import java.util.Map;
 
+import org.stackwright.model.CameraEstimate;
 import org.stackwright.op.Param;
 import org.stackwright.op.Result;
 import org.stackwright.op.RunContext;
@@ -84,7 +85,8 @@ final class UncertaintyStep {
      * @return the outcome whose result is the main output (the estimate, or the posterior mean)
      */
     static Deconvolution.Outcome run(Values v, Volume data, Volume psf, String psfName, byte[] mask,
-            DeconvolutionSettings s, String title, boolean withModel, RunContext ctx, Result r) {
+            DeconvolutionSettings s, Volume dark, Volume flat, String title, boolean withModel, RunContext ctx,
+            Result r) {
         String mode = mode(v);
         check(v, mode);
         r.record("uncertainty", mode);
@@ -94,11 +96,11 @@ final class UncertaintyStep {
                 NoiseReplicas.Noise noise = s.likelihood().equals("gaussian") ? NoiseReplicas.Noise.GAUSSIAN
                         : NoiseReplicas.Noise.CAMERA;
                 NoiseReplicas.check(replicas, noise, s);
-                Deconvolution.Outcome out = NoiseReplicas.deconvolveWithModel(data, psf, psfName, mask, s, ctx,
-                        IterationListener.NONE);
+                Deconvolution.Outcome out = NoiseReplicas.deconvolveWithModel(data, psf, psfName, mask, s, dark, flat,
+                        ctx, IterationListener.NONE);
                 copy(out.record(), r);
                 r.record("replicas", replicas);
-                NoiseReplicas.Spread sp = NoiseReplicas.run(data, psf, mask, s, out, replicas, noise, SEED, ctx);
+                NoiseReplicas.Spread sp = NoiseReplicas.run(data, psf, mask, out.settings(), out, replicas, noise, SEED, ctx);
                 sp.record(noise, SEED).forEach(r::record);
                 r.image("spread-output", ImagePlusAdapter.toImagePlus(sp.spread(), title + "-spread"));
                 r.image("bias-output", ImagePlusAdapter.toImagePlus(sp.bias(), title + "-bias"));
@@ -111,7 +113,12 @@ final class UncertaintyStep {
                 PosteriorSampler.Settings ps = new PosteriorSampler.Settings(v.integer("samples"), v.integer("chains"),
                         v.integer("burn-in"), v.integer("thinning"), PosteriorSampler.DEFAULT_STAGES,
                         PosteriorSampler.DEFAULT_STEP_SCALE, PosteriorSampler.DEFAULT_PROX_STEPS, SEED);
-                PosteriorSampling.Result res = PosteriorSampling.run(data, psf, psfName, mask, s, ps, v.number("level"), ctx);
+                // the sampler's noise model needs the camera values: found once here when they are auto
+                CameraEstimate camera = AutomaticSettings.camera(data, mask, s, dark, flat, ctx);
+                DeconvolutionSettings known = s.withCamera(camera.offset().value(), s.background(),
+                        camera.gain().value(), camera.readNoise().value());
+                PosteriorSampling.Result res = PosteriorSampling.run(data, psf, psfName, mask, known, ps,
+                        v.number("level"), ctx);
                 PosteriorSummary sum = res.summary();
                 copy(res.outcome().record(), r);
                 r.image("spread-output", ImagePlusAdapter.toImagePlus(sum.spread(), title + "-posterior-sd"));
@@ -131,8 +138,8 @@ final class UncertaintyStep {
                 return res.outcome();
             }
             default -> {
-                Deconvolution.Outcome out = Deconvolution.run(data, psf, psfName, mask, s, ctx, IterationListener.NONE,
-                        withModel);
+                Deconvolution.Outcome out = Deconvolution.run(data, psf, psfName, mask, s, dark, flat, ctx,
+                        IterationListener.NONE, withModel);
                 copy(out.record(), r);
                 return out;
             }

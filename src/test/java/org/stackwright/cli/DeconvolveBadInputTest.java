@@ -97,6 +97,21 @@ class DeconvolveBadInputTest {
         return p.withData(copy);
     }
 
+    private static Volume constant(int w, int h, int d, float value) {
+        Volume v = Volume.zeros(w, h, d, VOXEL);
+        java.util.Arrays.fill(v.data(), value);
+        return v;
+    }
+
+    private static Volume noisy(int w, int h, int d, float mean) {
+        Volume v = Volume.zeros(w, h, d, VOXEL);
+        SplittableRandom r = new SplittableRandom(3);
+        for (int i = 0; i < v.size(); i++) {
+            v.data()[i] = (float) Math.rint(mean + Math.sqrt(mean) * r.nextGaussian());
+        }
+        return v;
+    }
+
     private static String out(String name) {
         return FILES.path(name).toString();
     }
@@ -138,8 +153,22 @@ class DeconvolveBadInputTest {
         t.add(row("iterations negative", 2, "iterations = -3 is out of range; allowed 1 to 10000", "--iterations", "-3"));
         t.add(row("iterations above the cap", 2, "iterations = 10001 is out of range; allowed 1 to 10000",
                 "--iterations", "10001"));
-        t.add(row("regularization negative", 2, "regularization = -0.1 is out of range", "--method",
-                "richardson-lucy-tv", "--regularization", "-0.1"));
+        t.add(row("regularization negative", 2, "regularization = '-0.1' is not allowed; give a number (0 or more) or"
+                + " auto", "--method", "richardson-lucy-tv", "--regularization", "-0.1"));
+        // automatic camera values: a number or auto; calibration frames of the image's plane size
+        t.add(row("gain neither a number nor auto", 2, "gain = 'high' is not allowed; give a positive number of ADU per"
+                + " photo-electron or auto", "--gain", "high"));
+        t.add(row("gain 0", 2, "gain = '0' is not allowed; give a positive number", "--gain", "0"));
+        t.add(row("read noise negative", 2, "read-noise = '-1' is not allowed; give a number of ADU (0 or more) or auto",
+                "--read-noise", "-1"));
+        t.add(row("dark frames of another size", 2, "dark: frames of 16x16 pixels do not match the image's 32x32",
+                "--dark", input("dark-small.tif", Volume.zeros(16, 16, 4, VOXEL))));
+        t.add(row("dark frames without noise", 2, "dark: the dark frames show no noise at all",
+                "--dark", input("dark-flat.tif", constant(32, 32, 4, 100))));
+        t.add(row("flat frames at one level without the read noise", 2, "flat: the flat frames hold one light level only",
+                "--flat", input("flat-one.tif", noisy(32, 32, 3, 500))));
+        t.add(row("dark and flat frames beside given camera values: not used, with a note", 0, "dark, flat: not used",
+                "--gain", "1", "--read-noise", "2", "--dark", input("dark-small2.tif", constant(32, 32, 4, 100))));
         t.add(row("regularization 0 for wiener", 2, "regularization = 0.0 is not allowed for wiener; give a positive number",
                 "--method", "wiener", "--regularization", "0"));
         // depth-variant deconvolution (Gibson-Lanni PSFs modelled at several depths)
@@ -172,8 +201,15 @@ class DeconvolveBadInputTest {
                 "--psf", input("psf-even.tif", psf(8, 9, 7, VOXEL, d -> { }))));
         t.add(row("PSF off-centre", 2, "psf has its peak at voxel (0, 0, 0) but its centre voxel is (4, 4, 3)",
                 "--psf", input("psf-off.tif", psf(9, 9, 7, VOXEL, d -> d[0] = 1))));
-        t.add(row("PSF larger than the image", 2, "psf is 33x9x7 at the image's voxel size but the image is only 32x32x12",
+        t.add(row("PSF larger than the image, periodic boundary", 2, "psf is 33x9x7 at the image's voxel size but the"
+                + " image is only 32x32x12; allowed: at most the image size in every direction (crop the PSF, or use the"
+                + " extended boundary)", "--boundary", "periodic", "--psf", input("psf-large.tif", psf(33, 9, 7, VOXEL, d -> { }))));
+        t.add(row("PSF larger than the image, extended boundary: used whole, with a note", 0,
+                "psf: 33x9x7 is larger than the image 32x32x12; used whole",
                 "--psf", input("psf-large.tif", psf(33, 9, 7, VOXEL, d -> { }))));
+        t.add(row("PSF much larger than the image, extended boundary: cropped where it is faint, with a note", 0,
+                "psf: 41x9x7 is larger than the image 32x32x12; cropped to 33x9x7, which keeps all but",
+                "--psf", input("psf-larger.tif", psf(41, 9, 7, VOXEL, d -> { }))));
         t.add(row("PSF with another voxel size: resampled with a note", 0, "psf: voxel size",
                 "--psf", input("psf-fine.tif", psf(17, 17, 13, new VoxelSize(0.05, 0.05, 0.15), d -> { }))));
         t.add(row("2D PSF for a 3D stack", 2, "psf is 2D (9x9x1) but the image is a 3D stack (32x32x12)",
@@ -224,7 +260,7 @@ class DeconvolveBadInputTest {
         // the run's own residuals (solve.RunResiduals)
         t.add(row("residuals with likelihood gaussian and no read noise", 2, "read-noise = 0.0 is not allowed with"
                 + " likelihood gaussian and residuals", "--method", "total-variation", "--likelihood", "gaussian",
-                "--residuals", out("own-residuals.tif")));
+                "--read-noise", "0", "--residuals", out("own-residuals.tif")));
         t.add(row("residuals with NaN pixels: left out, residual 0", 0, "residuals of the run's own prediction",
                 "--input", input("cells-nan.tif", good.withData(nan)), "--residuals",
                 out("own-residuals-nan.tif")));

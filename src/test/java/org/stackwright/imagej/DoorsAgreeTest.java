@@ -83,6 +83,8 @@ class DoorsAgreeTest {
                         ordered("input", "demo-tiles.tif", "mask", "demo-tiles-damage.tif"), List.of("output")),
                 new Case("find-defects", "Find Defective Pixels...", ordered(), ordered("input", "demo-tiles.tif"),
                         List.of("output")),
+                new Case("camera-noise", "Camera Noise...", ordered("offset", "100"), ordered("input", "demo-cells.tif"),
+                        List.of("plot")),
                 new Case("interval-profile", "Credible Interval Profile...", ordered("line", "5,5,60,40", "plane", "3"),
                         ordered("mean", "demo-cells.tif", "lower", "demo-cells.tif", "upper", "demo-cells.tif"),
                         List.of("output")),

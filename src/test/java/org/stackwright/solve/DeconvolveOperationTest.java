@@ -62,6 +62,22 @@ class DeconvolveOperationTest {
         }
     }
 
+    /** With only the offset given, the output says which values the run found itself and how. */
+    @Test
+    void theDefaultsSayWhatTheyFound() {
+        Path[] f = files();
+        ByteArrayOutputStream out = new ByteArrayOutputStream();
+        ByteArrayOutputStream err = new ByteArrayOutputStream();
+        int code = Main.run(new String[] {"deconvolve", "--input", f[0].toString(), "--psf", f[1].toString(), "--output",
+            dir.resolve("defaults.tif").toString(), "--offset", "100", "--threads", "2"},
+                new PrintStream(out, true, StandardCharsets.UTF_8), new PrintStream(err, true, StandardCharsets.UTF_8));
+        assertEquals(Main.OK, code, err.toString());
+        String text = out.toString(StandardCharsets.UTF_8);
+        assertTrue(text.contains("values used: gain ") && text.contains("ADU/e- (image)")
+                && text.contains("offset 100.0 ADU (given)") && text.contains("(estimated: background auto)"), text);
+        assertTrue(text.contains("stopped by auto: "), text);
+    }
+
     /**
      * {@code --replicas 4 --spread-output sd.tif} writes the spread map with the data's size and calibration, and
      * the record says how many replicas and the median spreads; without replicas a spread output is refused.

@@ -70,21 +70,21 @@ class NumericalSafetyTest {
         IterationLog log = new IterationLog("richardson-lucy", new Stopping(StopRule.FIXED, 10, 1e-3),
                 RunContext.quiet(1), IterationListener.NONE);
         log.before();
-        log.after(1.3, 1.3, 0.5, 0.1);
+        log.after(1.3, 1.3, 0.5, 0.1, Double.NaN, null);
         log.before();
-        RunFailedException e = assertThrows(RunFailedException.class, () -> log.after(Double.NaN, 4e22, 0.5, 0.2));
+        RunFailedException e = assertThrows(RunFailedException.class, () -> log.after(Double.NaN, 4e22, 0.5, 0.2, Double.NaN, null));
         assertTrue(e.getMessage().startsWith("richardson-lucy: the computation left the range of numbers at"
                 + " iteration 2"), e.getMessage());
-        assertThrows(RunFailedException.class, () -> log.after(1, Double.POSITIVE_INFINITY, 0.5, 0.2));
+        assertThrows(RunFailedException.class, () -> log.after(1, Double.POSITIVE_INFINITY, 0.5, 0.2, Double.NaN, null));
     }
 
     @Test
     void aDivergingObjectiveStopsTheRunWhileItsNumbersAreStillFinite() {
         IterationLog log = new IterationLog("richardson-lucy-tv", new Stopping(StopRule.FIXED, 10, 1e-3),
                 RunContext.quiet(1), IterationListener.NONE);
-        log.after(147, 147, 0.5, 0.1);
-        log.after(150, 150, 0.5, 0.1); // a small rise (extrapolation, regularisation) is allowed
-        RunFailedException e = assertThrows(RunFailedException.class, () -> log.after(1.66e8, 1.66e8, 0.5, 0.2));
+        log.after(147, 147, 0.5, 0.1, Double.NaN, null);
+        log.after(150, 150, 0.5, 0.1, Double.NaN, null); // a small rise (extrapolation, regularisation) is allowed
+        RunFailedException e = assertThrows(RunFailedException.class, () -> log.after(1.66e8, 1.66e8, 0.5, 0.2, Double.NaN, null));
         assertTrue(e.getMessage().contains("diverged at iteration 3"), e.getMessage());
     }
 

@@ -119,7 +119,11 @@ class SolverPropertyTest {
             Stopping stop = method.equals("total-variation") ? new Stopping(StopRule.CHANGE, TV_ITERATIONS, 1e-4)
                     : new Stopping(StopRule.FIXED, ITERATIONS, 1e-3);
             DeconvolutionSettings s = new DeconvolutionSettings(method, stop,
-                    c.offset(), c.backgroundPhotons() * c.gain(), c.gain(), c.readNoise(), Double.NaN, "extended",
+                    c.offset(), c.backgroundPhotons() * c.gain(), c.gain(), c.readNoise(),
+                    // each method's fixed starting lambda, not the automatic choice (NaN): the flux bounds below
+                    // are for a weak prior; a stronger one, as the choice may pick on a tiny image, trades flux for
+                    // smoothness by design
+                    DeconvolutionSettings.defaultRegularization(method), "extended",
                     c.accelerated(), "poisson");
             Deconvolution.Outcome o = Deconvolution.run(data, psf, "generated", null, s, RunContext.quiet(2),
                     IterationListener.NONE, true);

@@ -1,0 +1,73 @@
+package org.stackwright.solve;
+
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.util.Map;
+
+import org.junit.jupiter.api.BeforeAll;
+import org.junit.jupiter.params.ParameterizedTest;
+import org.junit.jupiter.params.provider.ValueSource;
+import org.stackwright.volume.Volume;
+
+/**
+ * {@code deconvolve} with its defaults (automatic camera values, background and stop; only the offset given) on
+ * invented widefield stacks made by an independent generator ({@link ConditionStacks}), against the oracle: the
+ * best error over iteration counts of the same method with the true camera values, found with the truth.
+ *
+ * <p>Checks per condition (the project's requirements): the default's error is within 10% of the oracle's, the
+ * stop reason is not the maximum, and the record holds the iterations and the trial of the automatic stop. Sources:
+ * cross-validated choice by held-out likelihood, Stone, J. R. Stat. Soc. B 36, 1974; discrepancy value 1/2 + 1/(12
+ * mu) of the fit, Bertero, Boccacci, Talenti, Zanella &amp; Zanni, Inverse Problems 26, 2010; the camera values,
+ * Janesick, "Photon Transfer", SPIE 2007.
+ *
+ * <p><b>Not met: the PSF cropped to 61% of its energy.</b> There the oracle's best is after 10 iterations (error
+ * 0.554) and the automatic stop takes 64 (0.673, ratio 1.22): the cropped PSF cannot explain the out-of-focus light
+ * the data hold, and every further iteration explains more of it with spurious structure, so the data are predicted
+ * better (held-out fit, discrepancy) while the estimate gets worse; no statistic of the data alone sees that. The test
+ * checks that the run says so (the fit stalled, with the hint to check the PSF) and guards the measured ratio
+ * against getting worse (at most 1.25), which is a regression guard, not the requirement.
+ */
+class DefaultsNearOracleTest {
+
+    private static Volume truth;
+
+    @BeforeAll
+    static void readTruth() {
+        truth = ConditionStacks.read("truth");
+    }
+
+    @ParameterizedTest
+    @ValueSource(strings = {"exact", "wide", "narrow", "read-noise", "gradient", "dim", "bright"})
+    void defaultRunIsWithinTenPercentOfTheOracle(String name) {
+        ConditionStacks.Row row = ConditionStacks.run(condition(name), truth, 2);
+        assertTrue(row.ratio() <= 1.10, row.line());
+        recorded(row);
+    }
+
+    @ParameterizedTest
+    @ValueSource(strings = {"cropped"})
+    void croppedPsfIsReportedAsAStall(String name) {
+        ConditionStacks.Row row = ConditionStacks.run(condition(name), truth, 2);
+        assertTrue(row.reason().contains("the fit stalled") && row.reason().contains("PSF"), row.line());
+        assertTrue(row.ratio() <= 1.25, "regression guard (the requirement of 1.10 is not met here): " + row.line());
+        recorded(row);
+    }
+
+    private static void recorded(ConditionStacks.Row row) {
+        assertFalse(row.reason().startsWith("maximum"), row.line());
+        assertTrue(row.reason().startsWith("auto: " + row.iterations() + " iterations"), row.line());
+        assertTrue(row.iterations() >= 1 && row.record().get("iterations").equals(row.iterations()), row.line());
+        @SuppressWarnings("unchecked")
+        Map<String, Object> settings = (Map<String, Object>) row.record().get("settings");
+        assertTrue(settings.containsKey("stop_trial") && settings.get("stop").equals("auto"), settings.toString());
+        @SuppressWarnings("unchecked")
+        Map<String, Object> source = (Map<String, Object>) settings.get("camera_source");
+        assertTrue(source.get("gain").equals("image") && source.get("read_noise_adu").equals("image")
+                && source.get("offset_adu").equals("given"), source.toString());
+    }
+
+    private static ConditionStacks.Condition condition(String name) {
+        return ConditionStacks.ALL.stream().filter(c -> c.name().equals(name)).findFirst().orElseThrow();
+    }
+}
