@@ -68,7 +68,8 @@ class StreamingCommandLineTest {
         Path blocks = dir.resolve("blocks.tif");
         Path record = dir.resolve("blocks.json");
         String[] common = {"--input", in.toString(), "--psf", psf.toString(), "--iterations", "6", "--stop", "fixed",
-            "--offset", "100", "--background", "5", "--acceleration", "off", "--threads", "2"};
+            "--offset", "100", "--gain", "1", "--read-noise", "2", "--background", "5", "--acceleration", "off",
+            "--threads", "2"};
         run(concat(new String[] {"deconvolve", "--output", whole.toString()}, common));
         String[] o = run(concat(new String[] {"deconvolve", "--output", blocks.toString(), "--memory", "3m", "--record",
             record.toString()}, common));

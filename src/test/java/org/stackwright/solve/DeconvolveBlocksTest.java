@@ -36,7 +36,9 @@ class DeconvolveBlocksTest {
         Map<String, String> raw = new LinkedHashMap<>();
         raw.put("iterations", "20");
         raw.put("stop", "fixed");
+        // the camera of the simulation, given: these tests are about the block mechanism, not the camera estimate
         raw.put("offset", "100");
+        raw.put("gain", "1");
         raw.put("read-noise", "2");
         raw.putAll(extra);
         Values v = Values.parse("deconvolve", OP.params(), raw);
@@ -111,7 +113,9 @@ class DeconvolveBlocksTest {
     void everyMethodAgreesWithTheWholeVolumeWithTheDefaultHalo() {
         Simulation.Outcome sim = sim();
         for (String m : new String[] {"richardson-lucy-tv", "total-variation"}) {
-            Map<String, String> one = Map.of("background", "10", "method", m, "iterations", "10");
+            // a fixed lambda: an automatic one is chosen on the whole stack here and on one block there
+            Map<String, String> one = Map.of("background", "10", "method", m, "iterations", "10", "regularization",
+                    Double.toString(DeconvolutionSettings.defaultRegularization(m)));
             Map<String, String> cut = new LinkedHashMap<>(one);
             cut.put("block-size", "32x30x8");
             double d = relativeMaxDifference(whole(sim, one), blocks(sim, cut, Double.NaN));
@@ -169,5 +173,47 @@ class DeconvolveBlocksTest {
         assertEquals(n, r.record().get("iterations"));
         ImagePlus out = r.images().get("output");
         assertEquals(16, out.getNSlices());
+    }
+
+    /**
+     * Automatic values in blocks are found once for the whole stack, never per block: the camera values on the
+     * brightest block (in ADU), the background over the whole stack, the automatic stop's iteration count on the
+     * representative block; every block then runs that count, and the record says where each value came from.
+     */
+    @Test
+    void automaticValuesAreFoundOnceAndEveryBlockUsesThem() {
+        Simulation.Outcome sim = sim();
+        Map<String, String> raw = new LinkedHashMap<>();
+        raw.put("iterations", "200");
+        raw.put("block-size", "32x30x16");
+        raw.put("acceleration", "off");
+        Values v = Values.parse("deconvolve", OP.params(), raw);
+        v.withImage("input", ImagePlusAdapter.toImagePlus(sim.data(), "cells"));
+        v.withImage("psf", ImagePlusAdapter.toImagePlus(TestSpecimens.psf(), "psf"));
+        Result r = BlockRun.inMemory(OP, new DeconvolveBlocks(), v, RunContext.quiet(2));
+        @SuppressWarnings("unchecked")
+        Map<String, Object> set = (Map<String, Object>) r.record().get("settings");
+        assertEquals("auto", set.get("stop"));
+        assertTrue(set.get("camera_values_from").toString().startsWith("block "), set.toString());
+        assertTrue(set.containsKey("stop_trial"), set.toString());
+        assertEquals(Boolean.TRUE, set.get("background_estimated"));
+        @SuppressWarnings("unchecked")
+        Map<String, Object> g = (Map<String, Object>) r.record().get("global_settings");
+        int n = (Integer) g.get("iterations");
+        assertTrue(n >= 1 && n <= 200, "iterations " + n);
+        assertEquals(n, r.record().get("iterations"));
+        // the simulated camera: gain 1 ADU/e-, offset 100 ADU, read noise 2 ADU (Camera above); the estimate
+        // from one block of an image is rough (photon transfer on the image itself): within a factor of 2 here
+        double gain = ((Number) set.get("gain")).doubleValue();
+        assertTrue(gain > 0.5 && gain < 2, "gain " + gain);
+    }
+
+    @Test
+    void darkFramesAreRefusedInBlocks() {
+        Values v = values(sim(), Map.of("block-size", "32x30x8"));
+        v.withImage("dark", ImagePlusAdapter.toImagePlus(sim().data(), "dark"));
+        IllegalArgumentException e = org.junit.jupiter.api.Assertions.assertThrows(IllegalArgumentException.class,
+                () -> BlockRun.inMemory(OP, new DeconvolveBlocks(), v, RunContext.quiet(1)));
+        assertTrue(e.getMessage().startsWith("dark: calibration frames are not used in blocks"), e.getMessage());
     }
 }
