@@ -288,6 +288,8 @@ class DeconvolveBadInputTest {
                 + " blocks", concatenate(dv, "--sample-index", "1.33", "--block-size", "16x16x12")));
         t.add(row("the run's own residuals in blocks", 2, "residuals and residuals-summary compare the whole stack",
                 "--residuals", out("own-residuals-blocks.tif"), "--block-size", "16x16x12"));
+        t.add(row("dark frames in blocks", 2, "dark: calibration frames are not used in blocks", "--dark",
+                input("dark-blocks.tif", constant(32, 32, 4, 100)), "--block-size", "16x16x12"));
         t.add(row("blocks in an explicit size run", 0, "global settings for 4 blocks (2x2x1)", "--block-size", "16x16x12",
                 "--iterations", "3", "--stop", "fixed"));
         trustRows(t, good);
