@@ -42,7 +42,10 @@ import org.stackwright.volume.VoxelSize;
  * data above the background over all trusted pixels, as a whole-volume run starts), and the iteration count. With
  * the fixed rule that is the given count; with the noise or change rule, the rule is run once on a representative
  * part, the block whose core holds the most signal above the background, and every block then runs that many
- * iterations (recorded as "iterations found on block ..."). Regularisation weights are the given or default ones.
+ * iterations (recorded as "iterations found on block ..."). Automatic values ({@link AutomaticSettings}) are found
+ * once, never per block: camera values on the block with the most signal in ADU, the background over the whole stack
+ * (with the camera's noise correction), lambda and the automatic stop's iteration count on the representative
+ * block; every block gets them as fixed settings. Dark and flat frames are refused in blocks.
  * Uncertainty (noise replicas, posterior sampling) and depth-variant runs need the whole volume in memory: they
  * take the usual path, and are refused when blocks are asked for ({@link #applies}).
  */
