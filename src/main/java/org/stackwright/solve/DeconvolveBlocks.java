@@ -105,7 +105,9 @@ final class DeconvolveBlocks implements BlockOperation {
                 * (int) Math.ceil(Math.max(psf.voxel().x() / voxel.x(), Math.max(psf.voxel().y() / voxel.y(),
                         psf.voxel().z() / voxel.z()))) + 3;
         Volume proxy = Volume.zeros(Math.min(w, reach), Math.min(h, reach), Math.min(d, reach), voxel);
-        Volume p = PsfChecks.prepare("psf", psf, proxy, c);
+        // the extended boundary allows a PSF larger than the image, as on the whole-stack path
+        boolean extended = !DeconvolveOperation.settings(v).boundary().equals("periodic");
+        Volume p = PsfChecks.prepare("psf", psf, proxy, extended, c).psf();
         cachedFor = imp;
         cachedVoxel = voxel;
         cachedPsf = p;
@@ -250,6 +252,7 @@ final class DeconvolveBlocks implements BlockOperation {
         found.put("camera_values_from", cameraFrom);
         found.put("background_adu", bg);
         found.put("background_estimated", estimated);
+        String autoHow = null;
         if (!s.resolved()) {
             Block rep = plan.blocks().get(scan.brightest());
             ctx.progress(0, "global settings: automatic lambda and stop on block " + (rep.index() + 1));
@@ -262,6 +265,10 @@ final class DeconvolveBlocks implements BlockOperation {
                 if (ar.containsKey(key)) {
                     found.put(key, ar.get(key));
                 }
+            }
+            if (auto.stop() != null) {
+                autoHow = "found by the auto rule (a trial on held-out pixels) on block " + (rep.index() + 1)
+                        + " (core " + rep.core() + ", the most signal above the background): " + auto.stop().reason();
             }
             found.put("lambda_and_stop_from", "block " + (rep.index() + 1) + " (core " + rep.core()
                     + ", the most signal above the background); every block uses them");
@@ -292,7 +299,7 @@ final class DeconvolveBlocks implements BlockOperation {
         rec.put("start_photoelectrons", start);
         rec.put("trusted_pixels", scan.trusted);
         int iterations = s.stopping().maxIterations();
-        String how = "given (" + s.stopping().rule().word() + " rule)";
+        String how = autoHow != null ? autoHow : "given (" + s.stopping().rule().word() + " rule)";
         int repIndex = -1;
         kept = null;
         if (s.method().equals("total-variation") && plan.blocks().size() > 1) {
