@@ -25,6 +25,12 @@ final class CancelGuard implements AutoCloseable {
     /** How long the shutdown hook waits for the run to stop and clean up. */
     static final int GRACE_SECONDS = 30;
 
+    /** Exit code of a run stopped by SIGINT (128 + 2, the shell convention). */
+    static final int SIGNALLED_EXIT = 130;
+
+    /** Set once any guard's hook ran: the JVM is shutting down on a signal. */
+    private static final AtomicBoolean SIGNALLED = new AtomicBoolean();
+
     private final AtomicBoolean cancelled = new AtomicBoolean();
     private final CountDownLatch finished = new CountDownLatch(1);
     private final Thread hook;
@@ -39,7 +45,18 @@ final class CancelGuard implements AutoCloseable {
         return cancelled.get();
     }
 
+    /**
+     * @param code the exit code the run returned
+     * @return the code to exit with: {@value #SIGNALLED_EXIT} once a signal started the shutdown. Exiting with
+     *     another nonzero code in the moment between the hooks' end and the JVM's halt would halt at once with that
+     *     code instead of the signal's.
+     */
+    static int exitCode(int code) {
+        return SIGNALLED.get() ? SIGNALLED_EXIT : code;
+    }
+
     private void onShutdown() {
+        SIGNALLED.set(true);
         cancelled.set(true);
         try {
             if (finished.await(GRACE_SECONDS, TimeUnit.SECONDS)) {

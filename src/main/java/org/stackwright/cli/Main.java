@@ -31,7 +31,7 @@ public final class Main {
     public static void main(String[] args) {
         System.setProperty("java.awt.headless", System.getProperty("java.awt.headless", "true"));
         int code = run(args, System.out, System.err);
-        System.exit(code);
+        System.exit(CancelGuard.exitCode(code));
     }
 
     /** Runs the command line and returns the exit code (for tests: no System.exit). */

@@ -60,6 +60,6 @@ final class SlowOperation implements Operation {
     public static void main(String[] args) {
         System.setProperty("java.awt.headless", "true");
         int code = OperationRunner.run(new SlowOperation(), args, System.out, System.err);
-        System.exit(code);
+        System.exit(CancelGuard.exitCode(code)); // as Main does
     }
 }
