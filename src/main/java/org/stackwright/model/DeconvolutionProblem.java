@@ -29,8 +29,11 @@ import org.stackwright.volume.VoxelSize;
  * {@link #compatible} reproduces the textbook variant of a widely used library (zero-padded "same" convolution,
  * object only on the data grid, no normalisation, start 0.5).
  *
- * <p>Internally the data are held on the image window only (not on the padded grid, which saves memory), and a
- * pixel without likelihood is stored as y = -1 (data are never negative after the clamp at 0).
+ * <p>Memory: the data in photo-electrons are not stored. Each pass computes them from the caller's camera data
+ * (which the caller keeps anyway, so the problem holds a reference to it and needs it unchanged for its life), by
+ * the same expression every time, so the values are the same as a stored copy's; pixels without likelihood (mask,
+ * held out, non-finite) are one bit each. A pixel without likelihood reads as y = -1 (data are never negative after
+ * the clamp at 0). This saves an image-sized array during every iteration (half a grid or more).
  */
 public final class DeconvolutionProblem {
 
@@ -69,8 +72,13 @@ public final class DeconvolutionProblem {
     private final Boundary boundary;
     private final Camera camera;
     private final double backgroundAdu;
-    /** data on the image window (w x h x d), photo-electrons, NO_DATA where a pixel carries no likelihood */
-    private final float[] y;
+    /** the caller's camera data on the image window (w x h x d, ADU), not modified; see {@link #datum} */
+    private final float[] adu;
+    /** one bit per image pixel: set where the pixel carries no likelihood (mask, held out, non-finite); or null */
+    private final long[] noData;
+    private final double offset;
+    private final double gain;
+    private final double shift;
     private final float[] norm;
     private final float background;
     private final BlurOperator blur;
@@ -81,9 +89,8 @@ public final class DeconvolutionProblem {
     private final float start;
     /** lower bound of the model H x + b in the ratio and the fit, photo-electrons */
     private final double modelFloor;
-    /** held-out pixels (cross-validation): their index on the image window and their data, photo-electrons */
+    /** held-out pixels (cross-validation): their index on the image window */
     private final int[] heldIndex;
-    private final float[] heldData;
 
     /**
      * @param data camera data (ADU), not modified; non-finite pixels get no likelihood
@@ -190,42 +197,43 @@ public final class DeconvolutionProblem {
             this.blur = null;
             this.forward = new DepthVariantBlur(strata, planes, d, nx, ny, nz, workers, fft);
         }
-        this.y = new float[w * h * d];
+        int pixels = w * h * d;
         double s = camera.readNoiseShift();
+        this.adu = data.data();
+        this.offset = camera.offset();
+        this.gain = camera.gain();
+        this.shift = s;
         this.background = (float) (backgroundAdu / camera.gain() + s);
-        float[] src = data.data();
+        long[] bits = new long[(pixels + 63) / 64];
+        boolean any = false;
         int count = 0;
         java.util.SplittableRandom pick = new java.util.SplittableRandom(heldSeed);
-        int[] hi = new int[heldShare > 0 ? y.length : 0];
-        float[] hd = new float[hi.length];
+        int[] hi = new int[heldShare > 0 ? pixels : 0];
         int held = 0;
-        for (int i = 0; i < y.length; i++) {
-            float v = src[i];
+        float brightest = 0;
+        for (int i = 0; i < pixels; i++) {
+            float v = adu[i];
             if ((mask != null && mask[i] != 0) || !Float.isFinite(v)) {
-                y[i] = NO_DATA;
+                bits[i >>> 6] |= 1L << i;
+                any = true;
                 continue;
             }
-            float yi = (float) Math.max(0, (v - camera.offset()) / camera.gain() + s);
             if (heldShare > 0 && pick.nextDouble() < heldShare) {
-                hi[held] = i;
-                hd[held++] = yi;
-                y[i] = NO_DATA;
+                hi[held++] = i;
+                bits[i >>> 6] |= 1L << i;
+                any = true;
                 continue;
             }
-            y[i] = yi;
+            brightest = Math.max(brightest, toElectrons(v));
             count++;
         }
+        this.noData = any ? bits : null;
         this.heldIndex = java.util.Arrays.copyOf(hi, held);
-        this.heldData = java.util.Arrays.copyOf(hd, held);
         if (count == 0) {
             throw new IllegalArgumentException("mask covers every pixel of the image " + data.shape()
                     + ": nothing is left to deconvolve");
         }
         this.trusted = count;
-        float brightest = 0;
-        for (float v : y) {
-            brightest = Math.max(brightest, v);
-        }
         this.modelFloor = Math.max(TINY, MODEL_FLOOR_RELATIVE * (brightest + background));
         if (boundary == Boundary.ZERO_SAME) {
             this.norm = new float[n];
@@ -241,7 +249,7 @@ public final class DeconvolutionProblem {
                     int row = (z * ny + yy) * nx;
                     int wrow = (z * h + yy) * w;
                     for (int x = 0; x < w; x++) {
-                        t[row + x] = y[wrow + x] >= 0 ? 1f : 0f;
+                        t[row + x] = trusted(wrow + x) ? 1f : 0f;
                     }
                 }
             }
@@ -374,11 +382,30 @@ public final class DeconvolutionProblem {
     }
 
     /**
-     * @return the data on the image window (w x h x d, x fastest) in photo-electrons, -1 where a pixel carries no
-     *     likelihood; shared, do not modify
+     * @return a new array with the data on the image window (w x h x d, x fastest) in photo-electrons, -1 where a
+     *     pixel carries no likelihood
      */
     public float[] dataWindow() {
-        return y;
+        float[] out = new float[w * h * d];
+        for (int i = 0; i < out.length; i++) {
+            out[i] = datum(i);
+        }
+        return out;
+    }
+
+    /** The camera value of a trusted pixel in photo-electrons (shifted-Poisson units), clamped at 0. */
+    private float toElectrons(float v) {
+        return (float) Math.max(0, (v - offset) / gain + shift);
+    }
+
+    /** @return whether pixel i of the image window carries likelihood */
+    private boolean trusted(int i) {
+        return noData == null || (noData[i >>> 6] & (1L << i)) == 0;
+    }
+
+    /** @return the datum of pixel i of the image window in photo-electrons, or -1 where it carries no likelihood */
+    private float datum(int i) {
+        return trusted(i) ? toElectrons(adu[i]) : NO_DATA;
     }
 
     /**
@@ -390,7 +417,11 @@ public final class DeconvolutionProblem {
         java.util.Arrays.fill(g, NO_DATA);
         for (int z = 0; z < d; z++) {
             for (int yy = 0; yy < h; yy++) {
-                System.arraycopy(y, (z * h + yy) * w, g, (z * ny + yy) * nx, w);
+                int row = (z * ny + yy) * nx;
+                int wrow = (z * h + yy) * w;
+                for (int x = 0; x < w; x++) {
+                    g[row + x] = datum(wrow + x);
+                }
             }
         }
         return g;
@@ -416,7 +447,8 @@ public final class DeconvolutionProblem {
         float v = start;
         if (Float.isNaN(v)) {
             double s = 0;
-            for (float yi : y) {
+            for (int i = 0; i < w * h * d; i++) {
+                float yi = datum(i);
                 if (yi >= 0) {
                     s += yi - background;
                 }
@@ -465,7 +497,7 @@ public final class DeconvolutionProblem {
                 }
                 int wrow = (z * h + yy) * w;
                 for (int x = 0; x < w; x++) {
-                    float yi = y[wrow + x];
+                    float yi = datum(wrow + x);
                     if (yi < 0) {
                         if (ratio) {
                             mu[g + x] = 0f;
@@ -511,7 +543,7 @@ public final class DeconvolutionProblem {
                 int x = i % w;
                 int r = i / w;
                 int g = ((r / h) * ny + r % h) * nx + x;
-                float yi = heldData[k];
+                float yi = toElectrons(adu[i]);
                 double m = Math.max(mu[g] + b, TINY);
                 kl += yi > 0 ? yi * Math.log(yi / m) - yi + m : m;
             }
@@ -577,7 +609,7 @@ public final class DeconvolutionProblem {
                 int g = ((r / h) * ny + r % h) * nx;
                 int wrow = r * w;
                 for (int x = 0; x < w; x++) {
-                    if (y[wrow + x] >= 0) {
+                    if (trusted(wrow + x)) {
                         e += PoissonDeviance.expected(mu[g + x] + b);
                     }
                 }
