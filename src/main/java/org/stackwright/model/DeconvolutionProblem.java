@@ -164,6 +164,31 @@ public final class DeconvolutionProblem {
     private DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
             double backgroundAdu, Workers workers, FftEngine fft, float start, java.util.List<Volume> strata,
             double[] planes, double heldShare, long heldSeed) {
+        this(data, psf, mask, boundary, camera, backgroundAdu, workers, fft, start, strata, planes, heldShare, heldSeed,
+                null);
+    }
+
+    /**
+     * An extended-boundary problem on a grid of a given size instead of image + PSF - 1 rounded up to a fast size:
+     * for measuring how much padding a result needs (a grid smaller than that wraps the PSF's faint outer part
+     * around). Not used by runs.
+     *
+     * @param grid nx, ny, nz: each at least the image's size along that axis
+     * @see #DeconvolutionProblem(Volume, Volume, byte[], Boundary, Camera, double, Workers, FftEngine)
+     */
+    public static DeconvolutionProblem onGrid(Volume data, Volume psf, Camera camera, double backgroundAdu,
+            Workers workers, FftEngine fft, int[] grid) {
+        if (grid[0] < data.width() || grid[1] < data.height() || grid[2] < data.depth()) {
+            throw new IllegalArgumentException("grid " + grid[0] + "x" + grid[1] + "x" + grid[2]
+                    + " is smaller than the image " + data.shape() + "; give at least the image size");
+        }
+        return new DeconvolutionProblem(data, psf, null, Boundary.EXTENDED, camera, backgroundAdu, workers, fft,
+                Float.NaN, null, null, 0, 0, grid.clone());
+    }
+
+    private DeconvolutionProblem(Volume data, Volume psf, byte[] mask, Boundary boundary, Camera camera,
+            double backgroundAdu, Workers workers, FftEngine fft, float start, java.util.List<Volume> strata,
+            double[] planes, double heldShare, long heldSeed, int[] grid) {
         if (!(backgroundAdu >= 0) || !Double.isFinite(backgroundAdu)) {
             throw new IllegalArgumentException("background = " + backgroundAdu + " is not allowed; give 0 or more ADU above the offset");
         }
@@ -183,6 +208,10 @@ public final class DeconvolutionProblem {
             nx = w;
             ny = h;
             nz = d;
+        } else if (grid != null) {
+            nx = grid[0];
+            ny = grid[1];
+            nz = grid[2];
         } else {
             nx = Convolution.paddedSize(w, psf.width());
             ny = Convolution.paddedSize(h, psf.height());
