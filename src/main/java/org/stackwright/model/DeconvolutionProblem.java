@@ -93,7 +93,8 @@ public final class DeconvolutionProblem {
     private final int[] heldIndex;
 
     /**
-     * @param data camera data (ADU), not modified; non-finite pixels get no likelihood
+     * @param data camera data (ADU), not modified, kept by reference: leave it unchanged while the problem is used;
+     *     non-finite pixels get no likelihood
      * @param psf the PSF at the data's voxel size (odd sizes, unit sum: see {@code psf.PsfChecks}); not modified
      * @param mask pixels that carry no likelihood (nonzero = untrusted), one per data voxel, or null
      * @param boundary how the edges are treated
