@@ -48,6 +48,8 @@ import org.stackwright.volume.VoxelSize;
  * </ol>
  * Run from the repository root after {@code mvn -q -DskipTests package test-compile}:
  * {@code java -Xmx12g -cp target/stackwright.jar:target/test-classes org.stackwright.solve.DeconvolutionBenchmark [--small-only]}
+ * (or {@code BENCH_JAVA_OPTS=-Xmx14g tools/benchmark.sh org.stackwright.solve.DeconvolutionBenchmark}); {@code
+ * --memory-only} prints only the memory rows, {@code --demo-only} only the demo stack's.
  */
 public final class DeconvolutionBenchmark {
 
@@ -61,6 +63,7 @@ public final class DeconvolutionBenchmark {
     public static void main(String[] args) throws Exception {
         boolean smallOnly = Arrays.asList(args).contains("--small-only");
         boolean demoOnly = Arrays.asList(args).contains("--demo-only");
+        boolean memoryOnly = Arrays.asList(args).contains("--memory-only");
         int threads = Runtime.getRuntime().availableProcessors();
         System.out.printf(Locale.ROOT, "machine: %s %s, %d cores, Java %s, max heap %.1f GiB, threads %d%n",
                 System.getProperty("os.name"), System.getProperty("os.arch"), threads,
@@ -71,6 +74,13 @@ public final class DeconvolutionBenchmark {
         System.setProperty("stackwright.cache", tmp.resolve("cache").toString());
         System.setProperty("stackwright.fft.planning", "estimate");
         System.out.printf(Locale.ROOT, "load average at start: %s%n", loadAverage());
+        if (memoryOnly) {
+            memory(new int[] {256, 256, 64}, 31, threads);
+            if (!smallOnly) {
+                memory(new int[] {512, 512, 128}, 31, threads);
+            }
+            return;
+        }
         if (!demoOnly) {
             iterationCost(new int[] {256, 256, 64}, 31, threads, tmp, python, 3);
             if (python) {
@@ -88,14 +98,9 @@ public final class DeconvolutionBenchmark {
 
     private static void iterationCost(int[] size, int psfSize, int threads, Path tmp, boolean python, int reps)
             throws Exception {
-        VoxelSize voxel = new VoxelSize(0.1, 0.1, 0.2);
-        Volume psf = GaussianPsf.sampled(0.2, 0.5, voxel, psfSize, psfSize, psfSize);
-        Volume data = Volume.zeros(size[0], size[1], size[2], voxel);
-        SplittableRandom r = new SplittableRandom(1);
-        float[] d = data.data();
-        for (int i = 0; i < d.length; i++) {
-            d[i] = (float) (50 + 100 * r.nextDouble());
-        }
+        Volume[] dp = benchData(size, psfSize);
+        Volume data = dp[0];
+        Volume psf = dp[1];
         String label = size[0] + "x" + size[1] + "x" + size[2];
         int nx = org.stackwright.fft.Convolution.paddedSize(size[0], psfSize);
         int ny = org.stackwright.fft.Convolution.paddedSize(size[1], psfSize);
@@ -117,17 +122,7 @@ public final class DeconvolutionBenchmark {
                 }
             }
         }
-        for (FftEngine engine : engines()) {
-            try (Workers w = new Workers(threads)) {
-                for (boolean accelerated : new boolean[] {false, true}) {
-                    long[] mem = liveMemory(data, psf, engine, w, accelerated);
-                    System.out.printf(Locale.ROOT, "  %s engine: during %s RL live heap %.0f MiB = %.2f x the padded float "
-                            + "volume, native memory %.0f MiB, together %.2f x (goal <= 6)%n", engine.name(),
-                            accelerated ? "accelerated" : "plain", mem[0] / 1048576.0, mem[0] / (4.0 * grid),
-                            mem[1] / 1048576.0, (mem[0] + mem[1]) / (4.0 * grid));
-                }
-            }
-        }
+        memoryRows(data, psf, grid, threads);
         if (python) {
             Path img = tmp.resolve("bench-image.raw");
             Path ps = tmp.resolve("bench-psf.raw");
@@ -146,6 +141,43 @@ public final class DeconvolutionBenchmark {
             }
             Files.deleteIfExists(img);
         }
+    }
+
+    /** The memory rows alone for one size (same data and PSF as {@link #iterationCost}). */
+    private static void memory(int[] size, int psfSize, int threads) throws Exception {
+        Volume[] dp = benchData(size, psfSize);
+        long grid = (long) org.stackwright.fft.Convolution.paddedSize(size[0], psfSize)
+                * org.stackwright.fft.Convolution.paddedSize(size[1], psfSize)
+                * org.stackwright.fft.Convolution.paddedSize(size[2], psfSize);
+        System.out.printf(Locale.ROOT, "%dx%dx%d, PSF %d^3, %d grid voxels%n", size[0], size[1], size[2], psfSize, grid);
+        memoryRows(dp[0], dp[1], grid, threads);
+    }
+
+    private static void memoryRows(Volume data, Volume psf, long grid, int threads) throws Exception {
+        for (FftEngine engine : engines()) {
+            try (Workers w = new Workers(threads)) {
+                for (boolean accelerated : new boolean[] {false, true}) {
+                    long[] mem = liveMemory(data, psf, engine, w, accelerated);
+                    System.out.printf(Locale.ROOT, "  %s engine: during %s RL live heap %.0f MiB = %.2f x the padded float "
+                            + "volume, native memory %.0f MiB, together %.2f x (goal <= 6)%n", engine.name(),
+                            accelerated ? "accelerated" : "plain", mem[0] / 1048576.0, mem[0] / (4.0 * grid),
+                            mem[1] / 1048576.0, (mem[0] + mem[1]) / (4.0 * grid));
+                }
+            }
+        }
+    }
+
+    /** @return the benchmark's data (uniform random 50 to 150, seed 1) and Gaussian PSF */
+    private static Volume[] benchData(int[] size, int psfSize) {
+        VoxelSize voxel = new VoxelSize(0.1, 0.1, 0.2);
+        Volume psf = GaussianPsf.sampled(0.2, 0.5, voxel, psfSize, psfSize, psfSize);
+        Volume data = Volume.zeros(size[0], size[1], size[2], voxel);
+        SplittableRandom r = new SplittableRandom(1);
+        float[] d = data.data();
+        for (int i = 0; i < d.length; i++) {
+            d[i] = (float) (50 + 100 * r.nextDouble());
+        }
+        return new Volume[] {data, psf};
     }
 
     /** One forward + inverse transform alone: our native engine against pyFFTW, each planned both ways. */
@@ -213,8 +245,7 @@ public final class DeconvolutionBenchmark {
     /** @return {live heap bytes, native bytes (JavaCPP)} during the second iteration of RL */
     private static long[] liveMemory(Volume data, Volume psf, FftEngine engine, Workers w, boolean accelerated)
             throws Exception {
-        System.gc();
-        System.gc();
+        settle();
         long base = used();
         long nativeBase = nativeBytes();
         long[] live = new long[2];
@@ -223,12 +254,31 @@ public final class DeconvolutionBenchmark {
         new RichardsonLucy(Stopping.fixed(2), accelerated).solve(p, RunContext.quiet(w.threads()).withFft(engine),
                 (k, max, obj, ch) -> {
                     if (k == 2) {
-                        System.gc();
+                        settle();
                         live[0] = used() - base;
                         live[1] = nativeBytes() - nativeBase;
                     }
                 });
         return live;
+    }
+
+    /**
+     * Collects garbage and lets JavaCPP free the native buffers of transforms no longer reachable (it frees them
+     * after a collection, from a queue), so that native memory counts only live buffers.
+     */
+    private static void settle() {
+        for (int i = 0; i < 3; i++) {
+            System.gc();
+            try {
+                Class.forName("org.bytedeco.javacpp.Pointer").getMethod("deallocateReferences").invoke(null);
+                Thread.sleep(100);
+            } catch (ReflectiveOperationException | LinkageError e) {
+                return; // no JavaCPP: nothing native to settle
+            } catch (InterruptedException e) {
+                Thread.currentThread().interrupt();
+                return;
+            }
+        }
     }
 
     /** @return bytes JavaCPP has allocated (the native engine's buffers), 0 without FFTW */
