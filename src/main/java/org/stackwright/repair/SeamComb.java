@@ -99,7 +99,22 @@ final class SeamComb {
         if (best == null) {
             return null;
         }
-        return refine(java.util.List.of(e), new Period[] {best}, toothLimit)[0];
+        return refine(java.util.List.of(e), new Period[] {best}, toothLimit, false)[0];
+    }
+
+    /**
+     * @return the best comb of the one pitch s (its phase searched and refined, the pitch kept), or null when none
+     *     qualifies
+     */
+    static Period atPitch(SeamEvidence e, int s, double toothLimit, double seamLimit) {
+        Period best = null;
+        for (int p = 0; p < s && s < e.length(); p++) {
+            Period c = score(e, s, p, 1, toothLimit, seamLimit);
+            if (c != null && c.better(best)) {
+                best = c;
+            }
+        }
+        return best == null ? null : refine(java.util.List.of(e), new Period[] {best}, toothLimit, true)[0];
     }
 
     /**
@@ -108,8 +123,9 @@ final class SeamComb {
      * summed peak evidence exactly at the teeth.
      *
      * @param best one comb per band (null where a band has none), all of one pitch
+     * @param keepPitch refine the phases only
      */
-    static Period[] refine(java.util.List<SeamEvidence> ex, Period[] best, double tooth) {
+    static Period[] refine(java.util.List<SeamEvidence> ex, Period[] best, double tooth, boolean keepPitch) {
         int pitch = 0;
         for (Period p : best) {
             if (p != null) {
@@ -118,7 +134,8 @@ final class SeamComb {
         }
         Period[] refined = best;
         double top = -1;
-        for (int s = Math.max(MIN_PITCH, pitch - 3); s <= pitch + 3; s++) {
+        int reach = keepPitch ? 0 : 3;
+        for (int s = Math.max(MIN_PITCH, pitch - reach); s <= pitch + reach; s++) {
             Period[] at = new Period[ex.size()];
             double sum = 0;
             for (int i = 0; i < ex.size(); i++) {

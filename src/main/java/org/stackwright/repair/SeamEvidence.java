@@ -39,6 +39,8 @@ final class SeamEvidence {
     static final int KINK_SPAN = 6;
     /** lines per block of the sign test */
     static final int BLOCK = 16;
+    /** lines per block of the second, longer sign test: more power where a tile is much wider than BLOCK */
+    static final int LONG_BLOCK = 64;
 
     /** sign-test z of the step at border b (between pixels b-1 and b), 0 where not defined */
     final double[] step;
@@ -144,6 +146,12 @@ final class SeamEvidence {
         double[] chiKink = new double[n];
         int blocks = 0;
         int inBlock = 0;
+        // the same counts over blocks of LONG_BLOCK lines
+        long[] lsp = new long[n];
+        long[] lsm = new long[n];
+        double[] chiLong = new double[n];
+        int longBlocks = 0;
+        int inLong = 0;
         long[] zero = new long[n];
         float[] f = v.data();
         double[] line = new double[n];
@@ -188,9 +196,13 @@ final class SeamEvidence {
                         bkm[b]++;
                     }
                 }
-                if (++inBlock == BLOCK || (z == v.depth() - 1 && l == to - 1)) {
+                boolean last = z == v.depth() - 1 && l == to - 1;
+                if (++inBlock == BLOCK || last) {
+                    inLong += inBlock;
                     double root = Math.sqrt(inBlock);
                     for (int b = 0; b < n; b++) {
+                        lsp[b] += bsp[b];
+                        lsm[b] += bsm[b];
                         double zs = (bsp[b] - bsm[b]) / root;
                         double zk = (bkp[b] - bkm[b]) / root;
                         chiStep[b] += zs * zs;
@@ -207,13 +219,27 @@ final class SeamEvidence {
                     blocks++;
                     inBlock = 0;
                 }
+                if (inLong == LONG_BLOCK || (last && inLong > 0)) {
+                    double root = Math.sqrt(inLong);
+                    for (int b = 0; b < n; b++) {
+                        double zl = (lsp[b] - lsm[b]) / root;
+                        chiLong[b] += zl * zl;
+                    }
+                    java.util.Arrays.fill(lsp, 0);
+                    java.util.Arrays.fill(lsm, 0);
+                    longBlocks++;
+                    inLong = 0;
+                }
             }
         }
         double[] zs = new double[n];
         double[] zk = new double[n];
         double[] zr = new double[n];
         double nb = Math.max(1, blocks);
+        double nl = Math.max(1, longBlocks);
+        double[] zl = new double[n];
         for (int b = 0; b < n; b++) {
+            zl[b] = Math.copySign(wilsonHilferty(chiLong[b], nl), sp[b] - sm[b] == 0 ? 1 : sp[b] - sm[b]);
             // sum of nb squared block z's: chi-square with nb degrees of freedom under the null, as a z-score
             zs[b] = Math.copySign((chiStep[b] - nb) / Math.sqrt(2 * nb), sp[b] - sm[b] == 0 ? 1 : sp[b] - sm[b]);
             // shading darkens every tile towards its border: its corners have one sign everywhere, so the plain count
@@ -222,6 +248,15 @@ final class SeamEvidence {
             zr[b] = zero[b] / (double) Math.max(1, lines);
         }
         emptyNull(zs, REACH + 1, n - REACH);
+        if (longBlocks > 1) {
+            // a seam whose step keeps its sign over a whole tile width: the long blocks have more power
+            emptyNull(zl, REACH + 1, n - REACH);
+            for (int b = 0; b < n; b++) {
+                if (Math.abs(zl[b]) > Math.abs(zs[b])) {
+                    zs[b] = zl[b];
+                }
+            }
+        }
         emptyNull(zk, FIT + KINK_SPAN, n - FIT - KINK_SPAN + 1);
         // a step inside the fit windows looks like a change of slope: corners next to a stronger step are its echo
         double[] kink = zk.clone();
@@ -251,6 +286,16 @@ final class SeamEvidence {
         for (int b = 0; b < z.length; b++) {
             z[b] = b >= from && b < to ? (z[b] - ms[0]) / scale : 0;
         }
+    }
+
+    /**
+     * @return the chi-square value c with k degrees of freedom as a standard normal deviate (Wilson & Hilferty, "The
+     *     distribution of chi-square", Proc. Natl. Acad. Sci. USA 17:684-688, 1931): with few blocks the chi-square
+     *     is skewed, and the empirical null's median and MAD would misjudge its upper tail
+     */
+    static double wilsonHilferty(double c, double k) {
+        double v = 2 / (9 * k);
+        return (Math.cbrt(Math.max(0, c) / k) - (1 - v)) / Math.sqrt(v);
     }
 
     /** Least-squares slope of line[from .. to) against the position. */
