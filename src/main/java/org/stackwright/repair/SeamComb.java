@@ -119,8 +119,8 @@ final class SeamComb {
 
     /**
      * Refines a common pitch and each band's phase on the exact borders (the one-pixel window of the search lets
-     * neighbouring pitches tie): the pitch within 3 pixels and the phases within 3 pixels that give the largest
-     * summed peak evidence exactly at the teeth.
+     * neighbouring pitches tie): the pitch within 3 pixels and the phases within 3 pixels (of the phase that keeps
+     * the middle tooth in place) that give the largest summed peak evidence exactly at the teeth.
      *
      * @param best one comb per band (null where a band has none), all of one pitch
      * @param keepPitch refine the phases only
@@ -143,7 +143,10 @@ final class SeamComb {
                     continue;
                 }
                 double here = -1;
-                for (int p = best[i].phase() - 3; p <= best[i].phase() + 3; p++) {
+                // the teeth of the comb found, carried to pitch s about its middle tooth, then 3 pixels either way
+                int teeth = best[i].borders(ex.get(i).length()).length;
+                int mid = best[i].phase() + (teeth / 2) * (best[i].pitch() - s);
+                for (int p = mid - 3; p <= mid + 3; p++) {
                     int ph = Math.floorMod(p, s);
                     double e = exactSum(ex.get(i), s, ph, tooth);
                     if (e > here) {

@@ -81,6 +81,20 @@ final class SeamEvidence {
         for (int b = 1; b < n; b++) {
             comb[b] = combStrengthUncached(b, limit);
         }
+        // a gap of zeros has two edges of equal strength: both count for its first border, so that the comb's
+        // teeth cannot move by the width of a gap from one edge to the other
+        for (int b = 2; b < n; b++) {
+            if (zeros[b - 1] >= 0.5 && zeros[b] < 0.5) {
+                int o = b - 1;
+                while (o > 0 && zeros[o - 1] >= 0.5) {
+                    o--;
+                }
+                if (o > 0 && b - o <= SeamDetector.MAX_BAND) {
+                    comb[o] = Math.max(comb[o], comb[b]);
+                    comb[b] = 0;
+                }
+            }
+        }
         double[] pk = new double[n];
         for (int b = 1; b < n; b++) {
             boolean max = true;
