@@ -8,9 +8,10 @@ package org.stackwright.repair;
  * seam limit: the sum of their z-scores over the square root of their number (Stouffer, Suchman, DeVinney, Star &
  * Williams, "The American Soldier", Vol. 1, Princeton University Press 1949; combining independent z-scores).
  * Edges of narrow lines (a defective column, a thin structure: {@link SeamEvidence#combStrength}) are no
- * teeth. Of all such combs the one with the most strong teeth wins (then the one with the fewest teeth without
- * evidence, then one whose tiles start at the image's first pixel, as in an uncropped mosaic, then the smaller
- * pitch, then the largest summed evidence); a multiple of the true pitch has fewer strong teeth, a fraction of it too many weak ones, and a line
+ * teeth. Of all such combs the one with the most strong teeth less teeth without evidence wins (then the most
+ * strong teeth, then the fewest teeth without evidence, then one whose tiles start at the image's first pixel, as
+ * in an uncropped mosaic, then the smaller pitch, then the largest summed evidence); a multiple of the true pitch
+ * has fewer strong teeth, a fraction of it as many empty teeth as it may catch stray evidence, and a line
  * that does not repeat (a defective column, a structure) cannot fill a comb. The pitch and phase are then refined
  * on the exact border positions. This is a comb filter in the sense of harmonic period estimation (a periodic
  * pulse train matched against the signal; e.g. Hermes, "Measurement of pitch by subharmonic summation", J.
@@ -49,8 +50,15 @@ final class SeamComb {
         }
 
         boolean better(Period o) {
-            if (o == null || strong != o.strong) {
-                return o == null || strong > o.strong;
+            if (o == null) {
+                return true;
+            }
+            // strong teeth less empty ones: half the pitch adds as many empty teeth as it may catch stray evidence
+            if (2 * strong - teeth != 2 * o.strong - o.teeth) {
+                return 2 * strong - teeth > 2 * o.strong - o.teeth;
+            }
+            if (strong != o.strong) {
+                return strong > o.strong;
             }
             if (teeth - strong != o.teeth - o.strong) {
                 // as many seams explained, fewer teeth without a seam: a fraction of the pitch has empty teeth

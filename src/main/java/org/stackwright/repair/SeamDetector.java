@@ -245,7 +245,7 @@ public final class SeamDetector {
     }
 
     /**
-     * One pitch for all stripes (the best total of strong teeth), each stripe with its own phase.
+     * One pitch for all stripes (the most strong teeth less empty ones over all stripes), each stripe with its own phase.
      *
      * @param pitch 0 to search all pitches, else the only pitch tried (and kept)
      */
@@ -314,6 +314,9 @@ public final class SeamDetector {
         }
         double[] ta = total(a);
         double[] tb = total(b);
+        if (ta[0] - ta[2] != tb[0] - tb[2]) {
+            return ta[0] - ta[2] > tb[0] - tb[2];
+        }
         if (ta[0] != tb[0]) {
             return ta[0] > tb[0];
         }
