@@ -19,7 +19,8 @@ import org.stackwright.volume.Volume;
  * width centred on it. Strong evidence that does not repeat with the step (a defective column, a structure) is no
  * seam; it is returned as a line for the user to check with find-defects. Without two repeating teeth along an
  * axis (a mosaic of two tiles along it) the seams along that axis are the strong edges that are not narrow lines,
- * and the result is marked not regular.
+ * and the result is marked not regular. An axis without a period of its own is tried once more with the step of
+ * the other axis alone (square tiles), its teeth needing {@link #OTHER_AXIS} of the usual evidence.
  */
 public final class SeamDetector {
 
@@ -245,7 +246,8 @@ public final class SeamDetector {
     }
 
     /**
-     * One pitch for all stripes (the most strong teeth less empty ones over all stripes), each stripe with its own phase.
+     * One pitch for all stripes (the most strong teeth less empty ones over all stripes), each stripe with its own
+     * phase.
      *
      * @param pitch 0 to search all pitches, else the only pitch tried (and kept)
      */

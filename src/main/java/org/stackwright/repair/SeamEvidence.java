@@ -25,7 +25,10 @@ import org.stackwright.volume.Volume;
  * combined as a chi-square, sum z^2 with one degree of freedom per block under the null, and reported as the
  * z-score (chi^2 - nb) / sqrt(2 nb) with the sign of the overall count: a horizontal seam between two tile rows
  * steps up under one tile and down under the next (the gains differ tile by tile), which cancels in a single count
- * over the whole line but not in the blocks. Corners of shading have one sign everywhere and keep the single
+ * over the whole line but not in the blocks. The step test is made twice, over blocks of {@link #BLOCK} and of
+ * {@link #LONG_BLOCK} lines (their chi-square, over few blocks, turned into a normal deviate by Wilson & Hilferty
+ * 1931), each rescaled by the empirical null, and the larger is kept: long blocks have more power where a tile is
+ * much wider. Corners of shading have one sign everywhere and keep the single
  * count over all lines, which has more power for a weak consistent effect. The shares of lines where pixel b is a
  * missing-data zero mark the gaps a stitcher leaves.
  */
