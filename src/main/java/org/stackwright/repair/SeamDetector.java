@@ -84,8 +84,11 @@ public final class SeamDetector {
      * @param overlapX the overlap seen from a snake order (shift of the odd tile rows), -1 when not seen
      * @param blendX width of the blending bands of vertical seams, 0 when none
      * @param blendY width of the blending bands of horizontal seams, 0 when none
+     * @param borrowed "x" or "y" when that axis showed no period of its own and the other axis's step was found to
+     *     fit it (with {@link #OTHER_AXIS} of the usual evidence per seam), else ""
      */
-    public record Tiling(int stepX, int stepY, int[] phaseX, int phaseY, int overlapX, int blendX, int blendY) {
+    public record Tiling(int stepX, int stepY, int[] phaseX, int phaseY, int overlapX, int blendX, int blendY,
+            String borrowed) {
     }
 
     /**
@@ -139,10 +142,12 @@ public final class SeamDetector {
         List<Band> rows = py != null ? seams(ey, py, tooth, threshold, stepWidth, 0, w)
                 : lone(ey, threshold, stepWidth, 0, w);
         Columns c = columns(image, rows, tooth, threshold, stepWidth, 0);
+        String borrowed = "";
         if (py == null && c.step() > 0) {
             // no period of horizontal seams of their own: try the vertical seams' step, the one pitch of square tiles
             SeamComb.Period guided = SeamComb.atPitch(ey, c.step(), OTHER_AXIS * tooth, threshold);
             if (repeats(ey, guided, OTHER_AXIS * tooth) != null) {
+                borrowed = "y";
                 py = guided;
                 rows = seams(ey, py, OTHER_AXIS * tooth, threshold, stepWidth, 0, w);
                 c = columns(image, rows, tooth, threshold, stepWidth, 0);
@@ -151,6 +156,7 @@ public final class SeamDetector {
             // and the other way round
             Columns guided = columns(image, rows, tooth, threshold, stepWidth, py.pitch());
             if (guided.step() > 0) {
+                borrowed = "x";
                 c = guided;
             }
         }
@@ -166,7 +172,7 @@ public final class SeamDetector {
             }
         }
         Tiling tiling = new Tiling(stepX, py == null ? 0 : py.pitch(), phases, py == null ? -1 : py.phase(),
-                snakeShift(phases, stepX), blendX, blendY);
+                snakeShift(phases, stepX), blendX, blendY, borrowed);
         boolean regular = (py != null || rows.isEmpty()) && (stepX > 0 || cols.isEmpty());
         List<Line> colLines = lines(SeamEvidence.of(image, true, 0, h), cols, threshold);
         List<Line> rowLines = lines(ey, rows, threshold);

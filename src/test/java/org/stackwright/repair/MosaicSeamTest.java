@@ -88,9 +88,9 @@ class MosaicSeamTest {
         int stepX = l.tileW() - l.overlap();
         int stepY = l.tileH() - l.overlap();
         System.out.printf(Locale.ROOT, "%-38s step %dx%d (true %dx%d), overlap seen %d, blend %dx%d, worst seam error "
-                + "%d px, lines not seams x=%s y=%s%s%n", c.name(), t.stepX(), t.stepY(), stepX, stepY, t.overlapX(),
-                t.blendX(), t.blendY(), worst, positions(f.columnLines()), positions(f.rowLines()),
-                problems.isEmpty() ? "" : " PROBLEMS " + problems);
+                + "%d px, step from the other axis '%s', lines not seams x=%s y=%s%s%n", c.name(), t.stepX(), t.stepY(),
+                stepX, stepY, t.overlapX(), t.blendX(), t.blendY(), worst, t.borrowed(), positions(f.columnLines()),
+                positions(f.rowLines()), problems.isEmpty() ? "" : " PROBLEMS " + problems);
         if (c.held()) {
             assertTrue(problems.isEmpty(), c.name() + ": " + problems);
             assertEquals(stepX, t.stepX(), "tile step x");
