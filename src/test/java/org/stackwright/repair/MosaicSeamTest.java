@@ -85,8 +85,9 @@ class MosaicSeamTest {
                     tr));
         }
         SeamDetector.Tiling t = f.tiling();
-        int stepX = l.tileW() - l.overlap();
-        int stepY = l.tileH() - l.overlap();
+        // a single tile along an axis has no seam there: no step to find
+        int stepX = l.cols() > 1 ? l.tileW() - l.overlap() : 0;
+        int stepY = l.rows() > 1 ? l.tileH() - l.overlap() : 0;
         System.out.printf(Locale.ROOT, "%-38s step %dx%d (true %dx%d), overlap seen %d, blend %dx%d, worst seam error "
                 + "%d px, step from the other axis '%s', lines not seams x=%s y=%s%s%n", c.name(), t.stepX(), t.stepY(),
                 stepX, stepY, t.overlapX(), t.blendX(), t.blendY(), worst, t.borrowed(), positions(f.columnLines()),
