@@ -8,9 +8,10 @@ package org.stackwright.repair;
  * seam limit: the sum of their z-scores over the square root of their number (Stouffer, Suchman, DeVinney, Star &
  * Williams, "The American Soldier", Vol. 1, Princeton University Press 1949; combining independent z-scores).
  * Edges of narrow lines (a defective column, a thin structure: {@link SeamEvidence#combStrength}) are no
- * teeth. Of all such combs the one with the most strong teeth wins (then the one with the fewest teeth without
- * evidence, then one whose tiles start at the image's first pixel, as in an uncropped mosaic, then the smaller
- * pitch, then the largest summed evidence); a multiple of the true pitch has fewer strong teeth, a fraction of it too many weak ones, and a line
+ * teeth. Of all such combs the one with the most strong teeth less teeth without evidence wins (then the most
+ * strong teeth, then the fewest teeth without evidence, then one whose tiles start at the image's first pixel, as
+ * in an uncropped mosaic, then the smaller pitch, then the largest summed evidence); a multiple of the true pitch
+ * has fewer strong teeth, a fraction of it as many empty teeth as it may catch stray evidence, and a line
  * that does not repeat (a defective column, a structure) cannot fill a comb. The pitch and phase are then refined
  * on the exact border positions. This is a comb filter in the sense of harmonic period estimation (a periodic
  * pulse train matched against the signal; e.g. Hermes, "Measurement of pitch by subharmonic summation", J.
@@ -49,8 +50,15 @@ final class SeamComb {
         }
 
         boolean better(Period o) {
-            if (o == null || strong != o.strong) {
-                return o == null || strong > o.strong;
+            if (o == null) {
+                return true;
+            }
+            // strong teeth less empty ones: half the pitch adds as many empty teeth as it may catch stray evidence
+            if (2 * strong - teeth != 2 * o.strong - o.teeth) {
+                return 2 * strong - teeth > 2 * o.strong - o.teeth;
+            }
+            if (strong != o.strong) {
+                return strong > o.strong;
             }
             if (teeth - strong != o.teeth - o.strong) {
                 // as many seams explained, fewer teeth without a seam: a fraction of the pitch has empty teeth
@@ -99,17 +107,33 @@ final class SeamComb {
         if (best == null) {
             return null;
         }
-        return refine(java.util.List.of(e), new Period[] {best}, toothLimit)[0];
+        return refine(java.util.List.of(e), new Period[] {best}, toothLimit, false)[0];
+    }
+
+    /**
+     * @return the best comb of the one pitch s (its phase searched and refined, the pitch kept), or null when none
+     *     qualifies
+     */
+    static Period atPitch(SeamEvidence e, int s, double toothLimit, double seamLimit) {
+        Period best = null;
+        for (int p = 0; p < s && s < e.length(); p++) {
+            Period c = score(e, s, p, 1, toothLimit, seamLimit);
+            if (c != null && c.better(best)) {
+                best = c;
+            }
+        }
+        return best == null ? null : refine(java.util.List.of(e), new Period[] {best}, toothLimit, true)[0];
     }
 
     /**
      * Refines a common pitch and each band's phase on the exact borders (the one-pixel window of the search lets
-     * neighbouring pitches tie): the pitch within 3 pixels and the phases within 3 pixels that give the largest
-     * summed peak evidence exactly at the teeth.
+     * neighbouring pitches tie): the pitch within 3 pixels and the phases within 3 pixels (of the phase that keeps
+     * the middle tooth in place) that give the largest summed peak evidence exactly at the teeth.
      *
      * @param best one comb per band (null where a band has none), all of one pitch
+     * @param keepPitch refine the phases only
      */
-    static Period[] refine(java.util.List<SeamEvidence> ex, Period[] best, double tooth) {
+    static Period[] refine(java.util.List<SeamEvidence> ex, Period[] best, double tooth, boolean keepPitch) {
         int pitch = 0;
         for (Period p : best) {
             if (p != null) {
@@ -118,7 +142,8 @@ final class SeamComb {
         }
         Period[] refined = best;
         double top = -1;
-        for (int s = Math.max(MIN_PITCH, pitch - 3); s <= pitch + 3; s++) {
+        int reach = keepPitch ? 0 : 3;
+        for (int s = Math.max(MIN_PITCH, pitch - reach); s <= pitch + reach; s++) {
             Period[] at = new Period[ex.size()];
             double sum = 0;
             for (int i = 0; i < ex.size(); i++) {
@@ -126,7 +151,10 @@ final class SeamComb {
                     continue;
                 }
                 double here = -1;
-                for (int p = best[i].phase() - 3; p <= best[i].phase() + 3; p++) {
+                // the teeth of the comb found, carried to pitch s about its middle tooth, then 3 pixels either way
+                int teeth = best[i].borders(ex.get(i).length()).length;
+                int mid = best[i].phase() + (teeth / 2) * (best[i].pitch() - s);
+                for (int p = mid - 3; p <= mid + 3; p++) {
                     int ph = Math.floorMod(p, s);
                     double e = exactSum(ex.get(i), s, ph, tooth);
                     if (e > here) {

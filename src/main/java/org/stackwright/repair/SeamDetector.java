@@ -19,7 +19,8 @@ import org.stackwright.volume.Volume;
  * width centred on it. Strong evidence that does not repeat with the step (a defective column, a structure) is no
  * seam; it is returned as a line for the user to check with find-defects. Without two repeating teeth along an
  * axis (a mosaic of two tiles along it) the seams along that axis are the strong edges that are not narrow lines,
- * and the result is marked not regular.
+ * and the result is marked not regular. An axis without a period of its own is tried once more with the step of
+ * the other axis alone (square tiles), its teeth needing {@link #OTHER_AXIS} of the usual evidence.
  */
 public final class SeamDetector {
 
@@ -34,6 +35,11 @@ public final class SeamDetector {
     static final int NEAR = 6;
     /** a seam that does not repeat must be this many times stronger than the threshold */
     static final double LONE = 2;
+    /**
+     * Tooth limit, as a share of the usual one, when an axis without a period of its own is tried with the step found
+     * along the other axis: one pitch tested instead of all pitches needs a smaller allowance for the search.
+     */
+    static final double OTHER_AXIS = 0.75;
 
     /**
      * A seam band [start, end) along one axis, over the lines [from, to) of the other axis.
@@ -78,8 +84,11 @@ public final class SeamDetector {
      * @param overlapX the overlap seen from a snake order (shift of the odd tile rows), -1 when not seen
      * @param blendX width of the blending bands of vertical seams, 0 when none
      * @param blendY width of the blending bands of horizontal seams, 0 when none
+     * @param borrowed "x" or "y" when that axis showed no period of its own and the other axis's step was found to
+     *     fit it (with {@link #OTHER_AXIS} of the usual evidence per seam), else ""
      */
-    public record Tiling(int stepX, int stepY, int[] phaseX, int phaseY, int overlapX, int blendX, int blendY) {
+    public record Tiling(int stepX, int stepY, int[] phaseX, int phaseY, int overlapX, int blendX, int blendY,
+            String borrowed) {
     }
 
     /**
@@ -132,6 +141,58 @@ public final class SeamDetector {
         SeamComb.Period py = repeats(ey, SeamComb.find(ey, null, tooth, threshold), tooth);
         List<Band> rows = py != null ? seams(ey, py, tooth, threshold, stepWidth, 0, w)
                 : lone(ey, threshold, stepWidth, 0, w);
+        Columns c = columns(image, rows, tooth, threshold, stepWidth, 0);
+        String borrowed = "";
+        if (py == null && c.step() > 0) {
+            // no period of horizontal seams of their own: try the vertical seams' step, the one pitch of square tiles
+            SeamComb.Period guided = SeamComb.atPitch(ey, c.step(), OTHER_AXIS * tooth, threshold);
+            if (repeats(ey, guided, OTHER_AXIS * tooth) != null) {
+                borrowed = "y";
+                py = guided;
+                rows = seams(ey, py, OTHER_AXIS * tooth, threshold, stepWidth, 0, w);
+                c = columns(image, rows, tooth, threshold, stepWidth, 0);
+            }
+        } else if (py != null && c.step() == 0 && !rows.isEmpty()) {
+            // and the other way round
+            Columns guided = columns(image, rows, tooth, threshold, stepWidth, py.pitch());
+            if (guided.step() > 0) {
+                borrowed = "x";
+                c = guided;
+            }
+        }
+        List<Band> cols = c.bands();
+        SeamComb.Period[] px = c.periods();
+        int[] phases = c.phases();
+        int blendX = c.blend();
+        int stepX = c.step();
+        int blendY = 0;
+        for (Band b : rows) {
+            if (b.looks().contains("blend")) {
+                blendY = Math.max(blendY, b.end() - b.start());
+            }
+        }
+        Tiling tiling = new Tiling(stepX, py == null ? 0 : py.pitch(), phases, py == null ? -1 : py.phase(),
+                snakeShift(phases, stepX), blendX, blendY, borrowed);
+        boolean regular = (py != null || rows.isEmpty()) && (stepX > 0 || cols.isEmpty());
+        List<Line> colLines = lines(SeamEvidence.of(image, true, 0, h), cols, threshold);
+        List<Line> rowLines = lines(ey, rows, threshold);
+        return new Found(cols, rows, regular, tiling, colLines, rowLines);
+    }
+
+    /** Vertical seams of each tile row and their common step (0 when none repeats). */
+    private record Columns(List<Band> bands, SeamComb.Period[] periods, int[] phases, int blend, int step) {
+    }
+
+    /**
+     * Vertical seams of each tile row, the rows cut by the horizontal seams found.
+     *
+     * @param pitch 0 to search all pitches; else the one pitch tried, with teeth that need only {@link #OTHER_AXIS}
+     *     of the tooth limit
+     */
+    private static Columns columns(Volume image, List<Band> rows, double toothIn, double threshold, int stepWidth,
+            int pitch) {
+        int h = image.height();
+        double tooth = pitch > 0 ? OTHER_AXIS * toothIn : toothIn;
         // tile rows: the stripes between horizontal seams, each searched on its own
         int[] cut = new int[rows.size() + 2];
         cut[0] = 0;
@@ -146,7 +207,7 @@ public final class SeamDetector {
             int y1 = s == stripes - 1 ? h : rows.get(s).start() - 1;
             ex.add(SeamEvidence.of(image, true, y0, Math.max(y0 + 1, y1)));
         }
-        SeamComb.Period[] px = commonPitch(ex, tooth, threshold);
+        SeamComb.Period[] px = commonPitch(ex, tooth, threshold, pitch);
         boolean anyRepeat = false;
         for (int s = 0; s < stripes; s++) {
             anyRepeat |= repeats(ex.get(s), px[s], tooth) != null;
@@ -158,7 +219,8 @@ public final class SeamDetector {
         int[] phases = new int[stripes];
         int blendX = 0;
         for (int s = 0; s < stripes; s++) {
-            List<Band> found = px[s] != null ? seams(ex.get(s), px[s], tooth, threshold, stepWidth, cut[s], cut[s + 1])
+            List<Band> found = px[s] != null
+                    ? seams(ex.get(s), px[s], tooth, threshold, stepWidth, cut[s], cut[s + 1])
                     : lone(ex.get(s), threshold, stepWidth, cut[s], cut[s + 1]);
             phases[s] = px[s] == null ? -1 : px[s].phase();
             for (Band b : found) {
@@ -168,25 +230,13 @@ public final class SeamDetector {
             }
             cols.addAll(found);
         }
-        cols = mergeAlongRows(cols, h);
-        int blendY = 0;
-        for (Band b : rows) {
-            if (b.looks().contains("blend")) {
-                blendY = Math.max(blendY, b.end() - b.start());
-            }
-        }
         int stepX = 0;
         for (SeamComb.Period p : px) {
             if (p != null) {
                 stepX = p.pitch();
             }
         }
-        Tiling tiling = new Tiling(stepX, py == null ? 0 : py.pitch(), phases, py == null ? -1 : py.phase(),
-                snakeShift(phases, stepX), blendX, blendY);
-        boolean regular = (py != null || rows.isEmpty()) && (stepX > 0 || cols.isEmpty());
-        List<Line> colLines = lines(SeamEvidence.of(image, true, 0, h), cols, threshold);
-        List<Line> rowLines = lines(ey, rows, threshold);
-        return new Found(cols, rows, regular, tiling, colLines, rowLines);
+        return new Columns(mergeAlongRows(cols, h), px, phases, blendX, stepX);
     }
 
     /**
@@ -201,11 +251,16 @@ public final class SeamDetector {
         return repeating(e, e.step, b, tooth).length > 0 || repeating(e, e.kink, b, tooth).length > 0 ? p : null;
     }
 
-    /** One pitch for all stripes (the best total of strong teeth), each stripe with its own phase. */
-    static SeamComb.Period[] commonPitch(List<SeamEvidence> ex, double tooth, double threshold) {
+    /**
+     * One pitch for all stripes (the most strong teeth less empty ones over all stripes), each stripe with its own
+     * phase.
+     *
+     * @param pitch 0 to search all pitches, else the only pitch tried (and kept)
+     */
+    static SeamComb.Period[] commonPitch(List<SeamEvidence> ex, double tooth, double threshold, int pitch) {
         int n = ex.get(0).length();
         SeamComb.Period[] best = null;
-        for (int s = SeamComb.MIN_PITCH; s < n; s++) {
+        for (int s = pitch > 0 ? pitch : SeamComb.MIN_PITCH; s < (pitch > 0 ? Math.min(n, pitch + 1) : n); s++) {
             SeamComb.Period[] at = combs(ex, s, 0, s - 1, 1, tooth, threshold);
             if (total(at) != null && better(at, best)) {
                 best = at;
@@ -214,7 +269,7 @@ public final class SeamDetector {
         if (best == null) {
             return new SeamComb.Period[ex.size()];
         }
-        best = SeamComb.refine(ex, best, tooth);
+        best = SeamComb.refine(ex, best, tooth, pitch > 0);
         // a stripe without a comb of its own takes the phase of the stripe two above or below (same direction)
         for (int i = 0; i < best.length; i++) {
             if (best[i] == null) {
@@ -267,6 +322,9 @@ public final class SeamDetector {
         }
         double[] ta = total(a);
         double[] tb = total(b);
+        if (ta[0] - ta[2] != tb[0] - tb[2]) {
+            return ta[0] - ta[2] > tb[0] - tb[2];
+        }
         if (ta[0] != tb[0]) {
             return ta[0] > tb[0];
         }

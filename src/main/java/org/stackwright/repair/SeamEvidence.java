@@ -25,7 +25,10 @@ import org.stackwright.volume.Volume;
  * combined as a chi-square, sum z^2 with one degree of freedom per block under the null, and reported as the
  * z-score (chi^2 - nb) / sqrt(2 nb) with the sign of the overall count: a horizontal seam between two tile rows
  * steps up under one tile and down under the next (the gains differ tile by tile), which cancels in a single count
- * over the whole line but not in the blocks. Corners of shading have one sign everywhere and keep the single
+ * over the whole line but not in the blocks. The step test is made twice, over blocks of {@link #BLOCK} and of
+ * {@link #LONG_BLOCK} lines (their chi-square, over few blocks, turned into a normal deviate by Wilson & Hilferty
+ * 1931), each rescaled by the empirical null, and the larger is kept: long blocks have more power where a tile is
+ * much wider. Corners of shading have one sign everywhere and keep the single
  * count over all lines, which has more power for a weak consistent effect. The shares of lines where pixel b is a
  * missing-data zero mark the gaps a stitcher leaves.
  */
@@ -39,6 +42,8 @@ final class SeamEvidence {
     static final int KINK_SPAN = 6;
     /** lines per block of the sign test */
     static final int BLOCK = 16;
+    /** lines per block of the second, longer sign test: more power where a tile is much wider than BLOCK */
+    static final int LONG_BLOCK = 64;
 
     /** sign-test z of the step at border b (between pixels b-1 and b), 0 where not defined */
     final double[] step;
@@ -78,6 +83,20 @@ final class SeamEvidence {
         double[] comb = new double[n];
         for (int b = 1; b < n; b++) {
             comb[b] = combStrengthUncached(b, limit);
+        }
+        // a gap of zeros has two edges of equal strength: both count for its first border, so that the comb's
+        // teeth cannot move by the width of a gap from one edge to the other
+        for (int b = 2; b < n; b++) {
+            if (zeros[b - 1] >= 0.5 && zeros[b] < 0.5) {
+                int o = b - 1;
+                while (o > 0 && zeros[o - 1] >= 0.5) {
+                    o--;
+                }
+                if (o > 0 && b - o <= SeamDetector.MAX_BAND) {
+                    comb[o] = Math.max(comb[o], comb[b]);
+                    comb[b] = 0;
+                }
+            }
         }
         double[] pk = new double[n];
         for (int b = 1; b < n; b++) {
@@ -144,6 +163,12 @@ final class SeamEvidence {
         double[] chiKink = new double[n];
         int blocks = 0;
         int inBlock = 0;
+        // the same counts over blocks of LONG_BLOCK lines
+        long[] lsp = new long[n];
+        long[] lsm = new long[n];
+        double[] chiLong = new double[n];
+        int longBlocks = 0;
+        int inLong = 0;
         long[] zero = new long[n];
         float[] f = v.data();
         double[] line = new double[n];
@@ -188,9 +213,13 @@ final class SeamEvidence {
                         bkm[b]++;
                     }
                 }
-                if (++inBlock == BLOCK || (z == v.depth() - 1 && l == to - 1)) {
+                boolean last = z == v.depth() - 1 && l == to - 1;
+                if (++inBlock == BLOCK || last) {
+                    inLong += inBlock;
                     double root = Math.sqrt(inBlock);
                     for (int b = 0; b < n; b++) {
+                        lsp[b] += bsp[b];
+                        lsm[b] += bsm[b];
                         double zs = (bsp[b] - bsm[b]) / root;
                         double zk = (bkp[b] - bkm[b]) / root;
                         chiStep[b] += zs * zs;
@@ -207,13 +236,27 @@ final class SeamEvidence {
                     blocks++;
                     inBlock = 0;
                 }
+                if (inLong == LONG_BLOCK || (last && inLong > 0)) {
+                    double root = Math.sqrt(inLong);
+                    for (int b = 0; b < n; b++) {
+                        double zl = (lsp[b] - lsm[b]) / root;
+                        chiLong[b] += zl * zl;
+                    }
+                    java.util.Arrays.fill(lsp, 0);
+                    java.util.Arrays.fill(lsm, 0);
+                    longBlocks++;
+                    inLong = 0;
+                }
             }
         }
         double[] zs = new double[n];
         double[] zk = new double[n];
         double[] zr = new double[n];
         double nb = Math.max(1, blocks);
+        double nl = Math.max(1, longBlocks);
+        double[] zl = new double[n];
         for (int b = 0; b < n; b++) {
+            zl[b] = Math.copySign(wilsonHilferty(chiLong[b], nl), sp[b] - sm[b] == 0 ? 1 : sp[b] - sm[b]);
             // sum of nb squared block z's: chi-square with nb degrees of freedom under the null, as a z-score
             zs[b] = Math.copySign((chiStep[b] - nb) / Math.sqrt(2 * nb), sp[b] - sm[b] == 0 ? 1 : sp[b] - sm[b]);
             // shading darkens every tile towards its border: its corners have one sign everywhere, so the plain count
@@ -222,6 +265,15 @@ final class SeamEvidence {
             zr[b] = zero[b] / (double) Math.max(1, lines);
         }
         emptyNull(zs, REACH + 1, n - REACH);
+        if (longBlocks > 1) {
+            // a seam whose step keeps its sign over a whole tile width: the long blocks have more power
+            emptyNull(zl, REACH + 1, n - REACH);
+            for (int b = 0; b < n; b++) {
+                if (Math.abs(zl[b]) > Math.abs(zs[b])) {
+                    zs[b] = zl[b];
+                }
+            }
+        }
         emptyNull(zk, FIT + KINK_SPAN, n - FIT - KINK_SPAN + 1);
         // a step inside the fit windows looks like a change of slope: corners next to a stronger step are its echo
         double[] kink = zk.clone();
@@ -251,6 +303,16 @@ final class SeamEvidence {
         for (int b = 0; b < z.length; b++) {
             z[b] = b >= from && b < to ? (z[b] - ms[0]) / scale : 0;
         }
+    }
+
+    /**
+     * @return the chi-square value c with k degrees of freedom as a standard normal deviate (Wilson & Hilferty, "The
+     *     distribution of chi-square", Proc. Natl. Acad. Sci. USA 17:684-688, 1931): with few blocks the chi-square
+     *     is skewed, and the empirical null's median and MAD would misjudge its upper tail
+     */
+    static double wilsonHilferty(double c, double k) {
+        double v = 2 / (9 * k);
+        return (Math.cbrt(Math.max(0, c) / k) - (1 - v)) / Math.sqrt(v);
     }
 
     /** Least-squares slope of line[from .. to) against the position. */

@@ -40,6 +40,7 @@ final class SeamReport {
         tiling.put("overlap", overlap > 0 ? overlap : null);
         tiling.put("tile_width", t.stepX() > 0 && overlap > 0 ? t.stepX() + overlap : t.stepX());
         tiling.put("tile_height", t.stepY() > 0 && overlap > 0 ? t.stepY() + overlap : t.stepY());
+        tiling.put("step_from_other_axis", t.borrowed().isEmpty() ? null : t.borrowed());
         r.record("tiling", tiling);
         r.record("lines_not_seams", Map.of("vertical", lines(f.columnLines()), "horizontal", lines(f.rowLines())));
         int[] cx = SeamDetector.centres(f.columns());
@@ -52,6 +53,12 @@ final class SeamReport {
                     tiling.get("origin_y"), order, overlap > 0 ? String.format(Locale.ROOT, ", overlap %d px: tiles of "
                     + "%s x %s px", overlap, tiling.get("tile_width"), tiling.get("tile_height"))
                     : "; an overlap covered by the later tile is not visible: the tiles may be larger than the step"));
+        }
+        if (!t.borrowed().isEmpty()) {
+            boolean y = t.borrowed().equals("y");
+            r.line(String.format(Locale.ROOT, "the %s seams show no period of their own: the step of the %s seams (%d "
+                    + "px) fits them with weaker evidence per seam (square tiles); check the mask there",
+                    y ? "horizontal" : "vertical", y ? "vertical" : "horizontal", y ? t.stepY() : t.stepX()));
         }
         if (!f.columnLines().isEmpty() || !f.rowLines().isEmpty()) {
             r.line(String.format(Locale.ROOT, "not seams (they do not repeat with the tile step): vertical lines at x = "
