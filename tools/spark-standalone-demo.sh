@@ -122,12 +122,14 @@ java -Xmx1g "${OPENS[@]}" -cp "target/spark-lib/*" org.apache.spark.deploy.Spark
   target/stackwright-spark.jar deconvolve "${OPTS[@]}" --output "$WORK/cluster-submit.tif" \
   --record "$WORK/cluster-submit.json" >"$LOGS/cluster-submit.log" 2>&1 &
 RUN=$!
-# an executor JVM that is working on a block: its log (in its worker's folder) says "Running task"; killed a few
-# seconds into its task
+# an executor JVM of this run that is working on a block: its log (in its worker's folder, under the run's
+# application id) says "Running task"; killed a few seconds into its task
+wait_for "$LOGS/cluster-submit.log" "Connected to Spark cluster with app ID" 300
+APP=$(grep -o "Connected to Spark cluster with app ID app-[0-9-]*" "$LOGS/cluster-submit.log" | awk '{print $NF}')
 VICTIM=""
 for i in $(seq 1 600); do
   for n in 1 2; do
-    if grep -qs "Running task" "$WORK"/work/worker-$n/app-*/*/stderr; then
+    if grep -qs "Running task" "$WORK"/work/worker-$n/"$APP"/*/stderr; then
       VICTIM=$(pgrep -P "${WORKERS[$((n - 1))]}" | head -1 || true)
       [ -n "$VICTIM" ] && break 2
     fi
