@@ -36,7 +36,7 @@ MASTER=spark://127.0.0.1:$PORT
 WORK=$ROOT/target/spark-standalone
 LOGS=$WORK/logs
 rm -rf "$WORK"
-mkdir -p "$WORK/spark-home" "$LOGS" "$WORK/work" "$WORK/local"
+mkdir -p "$WORK/spark-home" "$LOGS" "$WORK/executors" "$WORK/local"
 # A worker starts executors with the jars of SPARK_HOME/jars on their class path: here, target/spark-lib/.
 ln -s "$ROOT/target/spark-lib" "$WORK/spark-home/jars"
 export SPARK_HOME=$WORK/spark-home SPARK_SCALA_VERSION=2.13 SPARK_LOCAL_IP=127.0.0.1 SPARK_LOCAL_DIRS=$WORK/local
@@ -84,7 +84,7 @@ wait_for "$LOGS/master.log" "I have been elected leader" 120
 WORKERS=()
 for n in 1 2; do
   java -Xmx256m "${OPENS[@]}" -cp "target/spark-lib/*" org.apache.spark.deploy.worker.Worker "$MASTER" \
-    --host 127.0.0.1 --cores 1 --memory 1500m --work-dir "$WORK/work/worker-$n" --webui-port $((PORT + 1 + n)) \
+    --host 127.0.0.1 --cores 1 --memory 1500m --work-dir "$WORK/executors/worker-$n" --webui-port $((PORT + 1 + n)) \
     >"$LOGS/worker-$n.log" 2>&1 &
   SERVERS+=($!)
   WORKERS+=($!)
@@ -129,7 +129,7 @@ APP=$(grep -o "Connected to Spark cluster with app ID app-[0-9-]*" "$LOGS/cluste
 VICTIM=""
 for i in $(seq 1 600); do
   for n in 1 2; do
-    if grep -qs "Running task" "$WORK"/work/worker-$n/"$APP"/*/stderr; then
+    if grep -qs "Running task" "$WORK"/executors/worker-$n/"$APP"/*/stderr; then
       VICTIM=$(pgrep -P "${WORKERS[$((n - 1))]}" | head -1 || true)
       [ -n "$VICTIM" ] && break 2
     fi
