@@ -1,7 +1,9 @@
 package org.stackwright.spark;
 
 import java.io.PrintStream;
+import java.util.ArrayList;
 import java.util.Arrays;
+import java.util.List;
 import java.util.Locale;
 import java.util.Optional;
 import java.util.regex.Matcher;
@@ -90,6 +92,28 @@ public final class SparkMain {
         return Math.max(1L << 20, (executor - SPARK_RESERVE) / slots);
     }
 
+    /**
+     * Started with {@code java -jar} against a cluster's master (not through spark-submit, which names the jars
+     * itself), the executors need this runner and the core: their jars are named in {@code spark.jars}, from where
+     * each executor fetches them. In local mode the executors are this JVM and nothing is shipped.
+     */
+    static void shipJars(SparkConf conf) {
+        if (LOCAL_ANY.matcher(conf.get("spark.master", "").trim()).matches() || conf.contains("spark.jars")) {
+            return;
+        }
+        List<String> jars = new ArrayList<>();
+        for (Class<?> c : List.of(SparkMain.class, Operations.class)) {
+            java.security.CodeSource src = c.getProtectionDomain().getCodeSource();
+            if (src != null && src.getLocation() != null && src.getLocation().getPath().endsWith(".jar")
+                    && !jars.contains(src.getLocation().toString())) {
+                jars.add(src.getLocation().toString());
+            }
+        }
+        if (!jars.isEmpty()) {
+            conf.set("spark.jars", String.join(",", jars));
+        }
+    }
+
     static int run(String[] args, PrintStream out, PrintStream err) {
         String master = null;
         int i = 0;
@@ -135,6 +159,7 @@ public final class SparkMain {
                 throw new IllegalArgumentException("no Spark master: give --master URL (e.g. 'local[2]') or run"
                         + " through spark-submit");
             }
+            shipJars(conf);
             int failOnce = conf.getInt(FAIL_ONCE, 0) - 1;
             RunContext ctx = new RunContext(parsed.threads(), (f, s) -> err.printf(Locale.ROOT, "[%3.0f%%] %s%n",
                     100 * f, s), w -> err.println("warning: " + w), null);
