@@ -40,7 +40,7 @@ final class DialogLayout {
         group("Specimen", "specimen", "brightness", "beads", "defects", "seed");
         group("Tiles", "grid", "tile", "overlap", "order", "seam-width");
         group("Detection", "detect", "threshold", "fraction");
-        group("Levelling", "level", "shading", "strip");
+        group("Levelling", "level", "level-tiles", "strip");
         group("Method", "method", "mode", "regularization", "boundary", "acceleration", "replicas", "data-range", "fft");
         group("Stopping", "iterations", "stop", "tolerance");
         group("Camera", "offset", "background", "gain", "read-noise", "likelihood", "bits");
@@ -83,7 +83,7 @@ final class DialogLayout {
         LABEL.put("threshold", "Threshold");
         LABEL.put("fraction", "Fraction of planes");
         LABEL.put("level", "Estimate a gain per tile");
-        LABEL.put("shading", "Take out the shading all tiles share first");
+        LABEL.put("level-tiles", "Correct shading and gain of the tiles");
         LABEL.put("strip", "Strip beside each seam (pixels)");
         LABEL.put("method", "Method");
         LABEL.put("mode", "Mode");
@@ -115,8 +115,8 @@ final class DialogLayout {
         LABEL.put("psf-output", "Make the PSF image");
         LABEL.put("mask-output", "Make the damage mask");
         LABEL.put("filled-output", "Make the mask of filled pixels");
-        LABEL.put("levelled-output", "Make the levelled image (needs the gain per tile)");
-        LABEL.put("flat-field", "Make the shading of one tile (needs the shading)");
+        LABEL.put("levelled-output", "Make the levelled image (needs a gain per tile or the correction)");
+        LABEL.put("flat-field", "Make the shading of one tile (needs shading and gain correction)");
         LABEL.put("spread-output", "Make the spread map (needs replicas)");
         LABEL.put("bias-output", "Make the bias map (needs replicas)");
         LABEL.put(DoorSettings.OVERWRITE, "Replace existing files");

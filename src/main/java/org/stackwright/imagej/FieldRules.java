@@ -45,11 +45,12 @@ final class FieldRules {
             rule("seam-mask", k, s -> !is(s, "detect", "true"));
         }
         rule("seam-mask", "threshold", s -> is(s, "detect", "true"));
-        rule("seam-mask", "input", s -> is(s, "detect", "true") || is(s, "level", "true"));
-        for (String k : List.of("offset", "strip", "levelled-output", "shading")) {
-            rule("seam-mask", k, s -> is(s, "level", "true"));
+        rule("seam-mask", "input", s -> is(s, "detect", "true") || is(s, "level", "true")
+                || is(s, "level-tiles", "true"));
+        for (String k : List.of("offset", "strip", "levelled-output")) {
+            rule("seam-mask", k, s -> is(s, "level", "true") || is(s, "level-tiles", "true"));
         }
-        rule("seam-mask", "flat-field", s -> is(s, "level", "true") && is(s, "shading", "true"));
+        rule("seam-mask", "flat-field", s -> is(s, "level-tiles", "true"));
         // inpaint: the median fill has no solver
         rule("inpaint", "iterations", s -> !is(s, "method", "median"));
         rule("inpaint", "tolerance", s -> !is(s, "method", "median"));

@@ -8,7 +8,9 @@ import java.util.List;
  * Groups the defective pixels of a map into the defects a user looks for: straight runs of at least
  * {@link LineDefectFinder#MIN_LENGTH} pixels along a column or row are lines (a whole column or row when they span
  * at least {@link #WHOLE} of it, else a segment); the other defective pixels form 8-connected groups, a cluster
- * when two or more touch, else a single pixel. A pixel where two lines cross belongs to both.
+ * when two or more touch, else a single pixel. A pixel where two lines cross belongs to both. Pixels without data
+ * (gaps of zeros between mosaic tiles) do not break a line: its length runs from its first to its last defective
+ * pixel across them.
  */
 final class DefectGrouping {
 
@@ -26,10 +28,10 @@ final class DefectGrouping {
         boolean[] inLine = new boolean[k.length];
         List<Defect> lines = new ArrayList<>();
         for (int x = 0; x < w; x++) {
-            runs(k, w, h, x, true, inLine, lines);
+            runs(map, x, true, inLine, lines);
         }
         for (int y = 0; y < h; y++) {
-            runs(k, w, h, y, false, inLine, lines);
+            runs(map, y, false, inLine, lines);
         }
         List<Defect> out = new ArrayList<>(lines);
         boolean[] seen = new boolean[k.length];
@@ -68,31 +70,47 @@ final class DefectGrouping {
         return out;
     }
 
-    private static void runs(PixelDefect[] k, int w, int h, int at, boolean vertical, boolean[] inLine,
-            List<Defect> out) {
-        int n = vertical ? h : w;
+    private static void runs(DefectMap map, int at, boolean vertical, boolean[] inLine, List<Defect> out) {
+        PixelDefect[] k = map.kinds();
+        int w = map.width();
+        int n = vertical ? map.height() : w;
         int start = -1;
+        int last = -1;
         for (int s = 0; s <= n; s++) {
-            boolean bad = s < n && k[vertical ? s * w + at : at * w + s] != null;
-            if (bad && start < 0) {
-                start = s;
-            } else if (!bad && start >= 0) {
-                int len = s - start;
-                if (len >= LineDefectFinder.MIN_LENGTH) {
-                    EnumMap<PixelDefect, Integer> faults = new EnumMap<>(PixelDefect.class);
-                    for (int t = start; t < s; t++) {
-                        int p = vertical ? t * w + at : at * w + t;
-                        inLine[p] = true;
-                        faults.merge(k[p], 1, Integer::sum);
-                    }
-                    Defect.Kind kind = len >= WHOLE * n ? (vertical ? Defect.Kind.COLUMN : Defect.Kind.ROW)
-                            : Defect.Kind.SEGMENT;
-                    out.add(new Defect(kind, majority(faults), vertical ? at : start, vertical ? start : at, len,
-                            vertical ? "vertical" : "horizontal"));
-                }
+            int p = vertical ? s * w + at : at * w + s;
+            boolean bad = s < n && k[p] != null;
+            if (bad) {
+                start = start < 0 ? s : start;
+                last = s;
+            } else if (start >= 0 && (s == n || !map.isNoData(p))) {
+                // a pixel without data does not end a line: it continues past a gap of zeros if defective beyond
+                addLine(map, at, vertical, start, last, inLine, out);
                 start = -1;
             }
         }
+    }
+
+    /** Adds the line [first, last] along line `at` when it is long enough; its length spans any gap of no data. */
+    private static void addLine(DefectMap map, int at, boolean vertical, int first, int last, boolean[] inLine,
+            List<Defect> out) {
+        PixelDefect[] k = map.kinds();
+        int w = map.width();
+        int n = vertical ? map.height() : w;
+        int len = last - first + 1;
+        if (len < LineDefectFinder.MIN_LENGTH) {
+            return;
+        }
+        EnumMap<PixelDefect, Integer> faults = new EnumMap<>(PixelDefect.class);
+        for (int t = first; t <= last; t++) {
+            int p = vertical ? t * w + at : at * w + t;
+            if (k[p] != null) {
+                inLine[p] = true;
+                faults.merge(k[p], 1, Integer::sum);
+            }
+        }
+        Defect.Kind kind = len >= WHOLE * n ? (vertical ? Defect.Kind.COLUMN : Defect.Kind.ROW) : Defect.Kind.SEGMENT;
+        out.add(new Defect(kind, majority(faults), vertical ? at : first, vertical ? first : at, len,
+                vertical ? "vertical" : "horizontal"));
     }
 
     private static PixelDefect majority(EnumMap<PixelDefect, Integer> faults) {

@@ -10,8 +10,20 @@ import java.util.Map;
  * @param height plane height
  * @param kinds one entry per pixel, row-major; null for good pixels
  * @param source how the defects were found (for the record)
+ * @param noData pixels without data (gaps of zeros between mosaic tiles), never defects themselves; a line defect
+ *     interrupted by them is still one line ({@link DefectGrouping}); null when there are none
  */
-public record DefectMap(int width, int height, PixelDefect[] kinds, String source) {
+public record DefectMap(int width, int height, PixelDefect[] kinds, String source, boolean[] noData) {
+
+    /** A map of an image without gaps of missing data. */
+    public DefectMap(int width, int height, PixelDefect[] kinds, String source) {
+        this(width, height, kinds, source, null);
+    }
+
+    /** @return whether pixel p carries no data */
+    boolean isNoData(int p) {
+        return noData != null && noData[p];
+    }
 
     /** @return number of pixels of that kind */
     public int count(PixelDefect kind) {

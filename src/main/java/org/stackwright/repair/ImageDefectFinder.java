@@ -50,27 +50,32 @@ public final class ImageDefectFinder {
         int plane = w * h;
         short[] positive = new short[plane];
         short[] negative = new short[plane];
+        short[] missing = new short[plane];
         float[][] med = new float[workers.threads()][plane];
         float[][] res = new float[workers.threads()][plane];
         Object lock = new Object();
         workers.forSlots(d, (slot, z0, z1) -> {
             short[] pos = new short[plane];
             short[] neg = new short[plane];
+            short[] gap = new short[plane];
             for (int z = z0; z < z1; z++) {
-                scoreSlice(image.data(), z * plane, w, h, k, med[slot], res[slot], pos, neg);
+                scoreSlice(image.data(), z * plane, w, h, k, med[slot], res[slot], pos, neg, gap);
             }
             synchronized (lock) {
                 for (int p = 0; p < plane; p++) {
                     positive[p] += pos[p];
                     negative[p] += neg[p];
+                    missing[p] += gap[p];
                 }
             }
         });
         int need = Math.max(1, (int) Math.ceil(fraction * d - 1e-9));
         PixelDefect[] kinds = new PixelDefect[plane];
         boolean[] flagged = new boolean[plane];
+        boolean[] noData = new boolean[plane];
         for (int p = 0; p < plane; p++) {
             flagged[p] = positive[p] >= need || negative[p] >= need;
+            noData[p] = missing[p] >= need;
         }
         double[] spread = d >= 3 ? temporalSpread(image) : null;
         float brightestGood = Float.NEGATIVE_INFINITY;
@@ -111,7 +116,8 @@ public final class ImageDefectFinder {
                 }
             }
         }
-        return new DefectMap(w, h, kinds, "image (" + d + " slice" + (d == 1 ? "" : "s") + ", line, cluster and pixel tests)");
+        return new DefectMap(w, h, kinds, "image (" + d + " slice" + (d == 1 ? "" : "s") + ", line, cluster and pixel "
+                + "tests)", noData);
     }
 
     private static float minOverSlices(float[] v, int p, int plane, int d) {
@@ -160,9 +166,12 @@ public final class ImageDefectFinder {
         return out;
     }
 
-    /** Scores one slice: counts slices with a high outlier in pos and a low outlier in neg. */
+    /**
+     * Scores one slice: counts slices with a high outlier in pos, a low outlier in neg and no data (a gap of zeros) in
+     * gap. A pixel without data is never an outlier.
+     */
     static void scoreSlice(float[] v, int off, int w, int h, double k, float[] med, float[] res, short[] pos,
-            short[] neg) {
+            short[] neg, short[] gap) {
         int plane = w * h;
         float[] win = new float[9];
         for (int y = 0; y < h; y++) {
@@ -193,7 +202,9 @@ public final class ImageDefectFinder {
         boolean[] dead = new boolean[plane];
         ClusterDefectFinder.scan(v, off, w, h, noise, med, k, excluded, noData, hot, dead);
         for (int p = 0; p < plane; p++) {
-            if (hot[p] || lineHot[p]) {
+            if (noData[p]) {
+                gap[p]++;
+            } else if (hot[p] || lineHot[p]) {
                 pos[p]++;
             } else if (dead[p] || lineDead[p]) {
                 neg[p]++;

@@ -23,6 +23,13 @@ import java.util.Arrays;
  * times the window median of that outer difference (common practice, no source: an optical line spread function
  * sampled at Nyquist drops to about half at one pixel and near zero at two, giving a ratio near 1, while a
  * defect on a flat background gives a ratio of 5 and more).
+ *
+ * <p>Two pieces of one line are joined into one when the line still stands out between them: a structure crossing
+ * a defective column (a cell edge, a bright spot) breaks the edge and ridge tests for as long as it lasts, but not
+ * the line's second difference across it, v(x) - (v(x-1) + v(x+1)) / 2, which is blind to any straight slope of
+ * the specimen. When its median over the pixels between the pieces exceeds the line threshold in noise sigmas,
+ * the pieces are one line, however long the gap. Pixels without data (a gap of zeros between mosaic tiles) count
+ * neither way: they are never marked, and a line that crosses them is one line.
  */
 final class LineDefectFinder {
 
@@ -60,18 +67,20 @@ final class LineDefectFinder {
         double[] score = new double[Math.max(w, h)];
         double[] dev = new double[score.length];
         double[] outer = new double[score.length];
+        double[] curve = new double[score.length];
+        double[] bend = new double[score.length];
         double[] win = new double[WINDOW];
         boolean[] run = new boolean[score.length];
         // columns: lines along y, neighbours along x
         for (int x = 0; x < w; x++) {
             for (int sign = 1; sign >= -1; sign -= 2) {
-                if (!lineScores(v, off, w, h, x, true, sign, noise, noData, score, dev, outer)) {
+                if (!lineScores(v, off, w, h, x, true, sign, noise, noData, score, dev, outer, curve, bend)) {
                     continue;
                 }
-                mark(score, dev, outer, h, limit, win, run);
+                mark(score, dev, outer, curve, bend, h, limit, win, run);
                 boolean[] target = sign > 0 ? hot : dead;
                 for (int y = 0; y < h; y++) {
-                    if (run[y]) {
+                    if (run[y] && !noData[y * w + x]) {
                         target[y * w + x] = true;
                     }
                 }
@@ -80,13 +89,13 @@ final class LineDefectFinder {
         // rows: lines along x, neighbours along y
         for (int y = 0; y < h; y++) {
             for (int sign = 1; sign >= -1; sign -= 2) {
-                if (!lineScores(v, off, w, h, y, false, sign, noise, noData, score, dev, outer)) {
+                if (!lineScores(v, off, w, h, y, false, sign, noise, noData, score, dev, outer, curve, bend)) {
                     continue;
                 }
-                mark(score, dev, outer, w, limit, win, run);
+                mark(score, dev, outer, curve, bend, w, limit, win, run);
                 boolean[] target = sign > 0 ? hot : dead;
                 for (int x = 0; x < w; x++) {
-                    if (run[x]) {
+                    if (run[x] && !noData[y * w + x]) {
                         target[y * w + x] = true;
                     }
                 }
@@ -96,12 +105,15 @@ final class LineDefectFinder {
 
     /**
      * Scores along line `at` (a column when vertical, else a row). One pixel from the border the second neighbour
-     * on the outer side is missing and the first one stands in for it.
+     * on the outer side is missing and the first one stands in for it. curve receives the second difference across
+     * the line in noise sigmas and bend its excess over {@link #RIDGE} times the outer difference (both NaN where
+     * the line or a neighbour has no data).
      *
      * @return false when the plane is too narrow across the line
      */
     private static boolean lineScores(float[] v, int off, int w, int h, int at, boolean vertical, int sign,
-            NoiseLevel noise, boolean[] noData, double[] score, double[] dev, double[] outer) {
+            NoiseLevel noise, boolean[] noData, double[] score, double[] dev, double[] outer, double[] curve,
+            double[] bend) {
         int across = vertical ? w : h;
         int along = vertical ? h : w;
         // the outermost column or row has a neighbour on one side only: a structure along the border cannot be told
@@ -122,6 +134,8 @@ final class LineDefectFinder {
                 dev[s] = 0;
                 outer[s] = 0;
                 score[s] = 0;
+                curve[s] = Double.NaN;
+                bend[s] = Double.NaN;
                 continue;
             }
             double c = v[p];
@@ -130,7 +144,10 @@ final class LineDefectFinder {
             double d = Math.min(sign * (c - l), sign * (c - r));
             dev[s] = d;
             outer[s] = Math.max(Math.abs(l - v[p + l2]), Math.abs(r - v[p + r2]));
-            score[s] = d / noise.sigma(0.5 * (l + r));
+            double sigma = noise.sigma(0.5 * (l + r));
+            score[s] = d / sigma;
+            curve[s] = sign * (c - 0.5 * (l + r)) / sigma;
+            bend[s] = sign * (c - 0.5 * (l + r)) - RIDGE * outer[s];
         }
         return true;
     }
@@ -140,8 +157,8 @@ final class LineDefectFinder {
     }
 
     /** Sets run[s] for positions of runs at least MIN_LENGTH long whose window medians pass both tests. */
-    private static void mark(double[] score, double[] dev, double[] outer, int n, double limit, double[] win,
-            boolean[] run) {
+    private static void mark(double[] score, double[] dev, double[] outer, double[] curve, double[] bend, int n,
+            double limit, double[] win, boolean[] run) {
         Arrays.fill(run, 0, n, false);
         if (n < MIN_LENGTH) {
             return;
@@ -164,18 +181,19 @@ final class LineDefectFinder {
             if (pass && start < 0) {
                 start = s;
             } else if (!pass && start >= 0) {
-                trim(score, start, s, n, limit, run);
+                trim(curve, bend, start, s, n, limit, run);
                 start = -1;
             }
         }
-        bridge(score, n, run, win);
+        bridge(score, curve, bend, n, limit, run);
     }
 
     /**
-     * Bridges short gaps between two runs of one line (a structure crossing the defect interrupts the test, not the
-     * defect), and between a run and the border when the gap's median score is still positive.
+     * Bridges gaps between two runs of one line when they are short or the line still stands out across them
+     * ({@link #standsOut}: a structure crossing the defect interrupts the test, not the defect), and between a run
+     * and the border when the gap's median score is still positive or the line stands out there too.
      */
-    private static void bridge(double[] score, int n, boolean[] run, double[] scratch) {
+    private static void bridge(double[] score, double[] curve, double[] bend, int n, double limit, boolean[] run) {
         int lastEnd = -1;
         for (int s = 0; s < n; s++) {
             if (!run[s]) {
@@ -183,7 +201,8 @@ final class LineDefectFinder {
             }
             boolean between = lastEnd >= 0;
             int gapFrom = between ? lastEnd : 0;
-            if (s > gapFrom && s - gapFrom <= BRIDGE && (between || medianPositive(score, gapFrom, s))) {
+            if (s > gapFrom && (s - gapFrom <= BRIDGE && (between || medianPositive(score, gapFrom, s))
+                    || standsOut(curve, gapFrom, s, limit, true) && (between || notRidge(bend, gapFrom, s)))) {
                 java.util.Arrays.fill(run, gapFrom, s, true);
             }
             while (s < n && run[s]) {
@@ -191,9 +210,33 @@ final class LineDefectFinder {
             }
             lastEnd = s;
         }
-        if (lastEnd >= 0 && lastEnd < n && n - lastEnd <= BRIDGE && medianPositive(score, lastEnd, n)) {
+        if (lastEnd >= 0 && lastEnd < n && (n - lastEnd <= BRIDGE && medianPositive(score, lastEnd, n)
+                || standsOut(curve, lastEnd, n, limit, true) && notRidge(bend, lastEnd, n))) {
             java.util.Arrays.fill(run, lastEnd, n, true);
         }
+    }
+
+    /**
+     * Whether the median second difference over the pixels with data of [from, to) exceeds the line threshold;
+     * emptyPasses: whether a range without any data stands out (a gap of no data is no evidence against a line).
+     */
+    private static boolean standsOut(double[] curve, int from, int to, double limit, boolean emptyPasses) {
+        double[] c = new double[to - from];
+        int m = 0;
+        for (int s = from; s < to; s++) {
+            if (!Double.isNaN(curve[s])) {
+                c[m++] = curve[s];
+            }
+        }
+        return m == 0 ? emptyPasses : RobustStats.median(c, m) > limit;
+    }
+
+    /**
+     * Whether [from, to) is no ridge of the specimen: the median second difference exceeds {@link #RIDGE} times the
+     * neighbours' outward difference (the ridge test of the class comment, on the slope-blind second difference).
+     */
+    private static boolean notRidge(double[] bend, int from, int to) {
+        return standsOut(bend, from, to, 0, false);
     }
 
     private static boolean medianPositive(double[] score, int from, int to) {
@@ -202,22 +245,31 @@ final class LineDefectFinder {
     }
 
     /**
-     * A run of passing window centres [from, to) marks the pixels from the first to the last one, within half a
-     * window beyond the run, whose own score exceeds half the line threshold (the window median blurs the ends).
+     * A run of passing window centres [from, to) marks its pixels, and beyond each end the pixels that continue
+     * it: while the median second difference over the next {@link #WINDOW} pixels still stands out, and then pixel
+     * by pixel while a pixel's own second difference exceeds half the line threshold (a window median passes as soon
+     * as five of its nine pixels are defective, so the run of centres starts and ends near the defect's ends; a
+     * structure along the line's end breaks the edge test there, not the second difference; the ridge test keeps a
+     * filament that continues the line from being taken for it).
      */
-    private static void trim(double[] score, int from, int to, int n, double limit, boolean[] run) {
-        int half = WINDOW / 2;
-        int first = -1;
-        int last = -1;
-        for (int s = Math.max(0, from - half); s < Math.min(n, to + half); s++) {
-            if (score[s] > 0.5 * limit) {
-                if (first < 0) {
-                    first = s;
-                }
-                last = s;
-            }
+    private static void trim(double[] curve, double[] bend, int from, int to, int n, double limit, boolean[] run) {
+        int first = from;
+        int last = to - 1;
+        while (first > 0 && standsOut(curve, Math.max(0, first - WINDOW), first, limit, false)
+                && notRidge(bend, Math.max(0, first - WINDOW), first)) {
+            first--;
         }
-        if (first >= 0 && last - first + 1 >= MIN_LENGTH) {
+        while (first > 0 && curve[first - 1] > 0.5 * limit && bend[first - 1] > 0) {
+            first--;
+        }
+        while (last < n - 1 && standsOut(curve, last + 1, Math.min(n, last + 1 + WINDOW), limit, false)
+                && notRidge(bend, last + 1, Math.min(n, last + 1 + WINDOW))) {
+            last++;
+        }
+        while (last < n - 1 && curve[last + 1] > 0.5 * limit && bend[last + 1] > 0) {
+            last++;
+        }
+        if (last - first + 1 >= MIN_LENGTH) {
             Arrays.fill(run, first, last + 1, true);
         }
     }

@@ -19,9 +19,11 @@ import org.stackwright.volume.VoxelSize;
 /**
  * {@code seam-mask}: a mask of the tile seams of a stitched image, from the tile layout ({@link TileLayout}, checked
  * against the image when one is given) or found in the image from the periodicity of the tiling
- * ({@link SeamDetector}, reported by {@link SeamReport}); optionally reports per-tile gains ({@link TileLevelling}),
- * after taking out the shading all tiles share ({@link TileShading}) when asked, and, only when asked for, writes a
- * levelled copy.
+ * ({@link SeamDetector}, reported by {@link SeamReport}); optionally reports per-tile gains ({@link TileLevelling},
+ * {@code level}), or corrects shading and gains in one step ({@code level-tiles}: first the shading all tiles share,
+ * {@link TileShading}, then the gains on the corrected image), and, only when asked for, writes a levelled copy.
+ * {@code level-tiles} replaces the older {@code shading}, which needed {@code level} beside it; old commands and
+ * macros with {@code level shading} still run (the old key is an alias).
  */
 public final class SeamMaskOperation implements Operation {
 
@@ -52,14 +54,16 @@ public final class SeamMaskOperation implements Operation {
                 Param.number("threshold", 8.0, 2, 1000, "", "detect: sign-test z a seam must exceed (repeating seams "
                         + "need half of it in each tile)"),
                 Param.flag("level", "estimate a gain per tile from the bands beside the seams and report it"),
-                Param.flag("shading", "level: first estimate the shading all tiles share (a flat field from the "
-                        + "mosaic itself) and take it out; gains are then estimated on the corrected image"),
+                Param.flag("level-tiles", "shading and gain correction of the tiles in one step: estimate the "
+                        + "shading all tiles share (a flat field from the mosaic itself), take it out, then estimate "
+                        + "a gain per tile on the corrected image (implies level)").withAlias("shading"),
                 Param.number("offset", 0.0, -1e9, 1e9, "ADU", "level: camera offset (dark level) of the input"),
                 Param.integer("strip", 4, 1, 1000, "level: pixels used on each side of a seam"),
                 Param.outputImage("output", true, "the 8-bit seam mask, 255 = seam (TIFF)"),
                 Param.outputImage("levelled-output", false, "level: the input with each tile divided by its gain "
-                        + "(and by the shading with shading)"),
-                Param.outputImage("flat-field", false, "shading: the estimated shading of one tile, mean 1 (32-bit)"),
+                        + "(and by the shading with level-tiles)"),
+                Param.outputImage("flat-field", false, "level-tiles: the estimated shading of one tile, mean 1 "
+                        + "(32-bit)"),
                 Param.outputFile("record", "run record with seam positions and gains (JSON)"));
     }
 
@@ -68,9 +72,11 @@ public final class SeamMaskOperation implements Operation {
         ImagePlus input = v.image("input");
         boolean detect = v.flag("detect");
         int sw = v.integer("seam-width");
-        if ((detect || v.flag("level")) && input == null) {
-            throw new IllegalArgumentException("input is required with " + (detect ? "detect" : "level")
-                    + ": give the stitched image");
+        boolean levelTiles = v.flag("level-tiles");
+        boolean level = v.flag("level") || levelTiles;
+        if ((detect || level) && input == null) {
+            throw new IllegalArgumentException("input is required with " + (detect ? "detect" : levelTiles
+                    ? "level-tiles" : "level") + ": give the stitched image");
         }
         Volume img = input == null ? null : InputChecks.oneVolume("input", input);
         Result r = new Result();
@@ -120,21 +126,18 @@ public final class SeamMaskOperation implements Operation {
                 ctx.progress(0.3, "checking the layout against the image");
                 SeamReport.checkLayout(img, layout, v.number("threshold"), sw, r, ctx);
             }
-            if (layout.snake() && layout.overlapX() > 0 && layout.columns() > 1 && v.flag("level")) {
+            if (layout.snake() && layout.overlapX() > 0 && layout.columns() > 1 && level) {
                 ctx.warn("level uses the seam positions of the first tile row; in snake order with overlap the "
                         + "odd rows are shifted by the overlap, so their gains are approximate");
             }
         }
-        if (v.flag("shading") && !v.flag("level")) {
-            throw new IllegalArgumentException("shading needs level: add --level");
+        if (v.given("flat-field") && !levelTiles) {
+            throw new IllegalArgumentException("flat-field needs level-tiles: add --level-tiles");
         }
-        if (v.given("flat-field") && !v.flag("shading")) {
-            throw new IllegalArgumentException("flat-field needs shading: add --level --shading");
-        }
-        if (v.flag("level")) {
+        if (level) {
             InputChecks.checkOffset("input", img, v.number("offset"), 0, ctx);
             Volume base = img;
-            if (v.flag("shading")) {
+            if (levelTiles) {
                 ctx.progress(0.5, "estimating the shading of the tiles");
                 TileShading.Flat flat = TileShading.estimate(img, colBands, rowBands, v.number("offset"));
                 ShadingReport.report(flat, r);
@@ -154,7 +157,7 @@ public final class SeamMaskOperation implements Operation {
                 }
                 r.line(sb.toString());
             }
-            r.line("gains are relative to the average tile" + (v.flag("shading") ? ", measured after the shading "
+            r.line("gains are relative to the average tile" + (levelTiles ? ", measured after the shading "
                     + "correction" : "") + "; not applied unless levelled-output is given");
             if (g.rmsLogResidual() > MISFIT_WARNING) {
                 ctx.warn(String.format(Locale.ROOT, "the tile gains disagree around the grid (rms misfit %.1f %%): a "
@@ -164,10 +167,11 @@ public final class SeamMaskOperation implements Operation {
             // made whenever level is on; the doors keep it only when levelled-output is asked for
             Volume lev = TileLevelling.apply(base, colBands, rowBands, g, v.number("offset"));
             r.image("levelled-output", ImagePlusAdapter.toImagePlus(lev, input.getTitle() + "-levelled"));
-            r.line("levelled-output (when asked for): estimates, not measurements; seam bands are left as they were "
-                    + "(fill them with inpaint)");
+            r.line("levelled-output (when asked for): estimates, not measurements; the seam bands are corrected with "
+                    + "the tile on their side of the seam, but fill them with inpaint all the same");
         } else if (v.given("levelled-output")) {
-            throw new IllegalArgumentException("levelled-output needs level: add --level");
+            throw new IllegalArgumentException("levelled-output needs level-tiles (or level for the gains alone): "
+                    + "add --level-tiles");
         }
         VoxelSize voxel = img == null ? VoxelSize.UNIT : img.voxel();
         r.image("output", MaskImages.toImage(mask, w, h, 1, voxel,

@@ -287,8 +287,9 @@ public final class TileShading {
     }
 
     /**
-     * Divides each tile's signal above the offset by the shading at its own pixel position; seam bands and gaps
-     * (pixels exactly 0) are left as they are. Only on explicit request.
+     * Divides each tile's signal above the offset by the shading at its own pixel position; a seam band's pixels are
+     * corrected with the tile on their side of the seam ({@link TileLevelling#cells}), so that the gains can be
+     * measured right beside the seam; gaps (pixels exactly 0) are left as they are. Only on explicit request.
      *
      * @return a corrected copy; the input is not modified
      */
@@ -302,12 +303,15 @@ public final class TileShading {
                 table[v * sx + u] = flat.value(u, v);
             }
         }
+        int[][] xs = TileLevelling.cells(columnBands, image.width());
+        int[][] ys = TileLevelling.cells(rowBands, image.height());
         Volume out = image.copy();
         for (int r = 0; r < t.rows(); r++) {
             for (int c = 0; c < t.columns(); c++) {
-                for (int y = t.y0()[r]; y < t.y1()[r]; y++) {
-                    for (int x = t.x0()[c]; x < t.x1()[c]; x++) {
-                        double s = table[(y - t.originY()[r]) * sx + x - t.originX()[c]];
+                for (int y = ys[0][r]; y < ys[1][r]; y++) {
+                    int v0 = Math.min(sy - 1, Math.max(0, y - t.originY()[r]));
+                    for (int x = xs[0][c]; x < xs[1][c]; x++) {
+                        double s = table[v0 * sx + Math.min(sx - 1, Math.max(0, x - t.originX()[c]))];
                         for (int z = 0; z < image.depth(); z++) {
                             float v = image.get(x, y, z);
                             if (v != 0) {

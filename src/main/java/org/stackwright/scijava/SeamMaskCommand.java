@@ -43,8 +43,8 @@ public final class SeamMaskCommand extends OperationCommand {
     @Parameter(persist = false, required = false, label = "level")
     private Boolean level;
 
-    @Parameter(persist = false, required = false, label = "shading")
-    private Boolean shading;
+    @Parameter(persist = false, required = false, label = "level-tiles")
+    private Boolean levelTiles;
 
     @Parameter(persist = false, required = false, label = "offset")
     private Double offset;

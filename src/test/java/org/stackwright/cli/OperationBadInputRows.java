@@ -169,11 +169,12 @@ final class OperationBadInputRows {
                 "seam-mask", "--grid", "2x2", "--tile", "8x8", "--overlap", "8", "--output", out));
         t.add(cli("seam-mask grid with a 0", 2, "grid = '0x2': each size must be from 1 to 100000", "seam-mask", "--grid", "0x2", "--tile", "8x8", "--output", out));
         t.add(cli("seam-mask detect without input", 2, "input is required with detect", "seam-mask", "--detect", "--output", out));
-        t.add(cli("seam-mask shading without level", 2, "shading needs level: add --level", "seam-mask", "--grid",
-                "2x2", "--tile", "4x4", "--input", small, "--shading", "--output", out));
-        t.add(cli("seam-mask flat-field without shading", 2, "flat-field needs shading: add --level --shading",
+        t.add(cli("seam-mask flat-field without level-tiles", 2, "flat-field needs level-tiles: add --level-tiles",
                 "seam-mask", "--grid", "2x2", "--tile", "4x4", "--input", small, "--level", "--flat-field", x.path("op-flat.tif").toString(),
                 "--output", out));
+        t.add(cli("seam-mask levelled-output without levelling", 2, "levelled-output needs level-tiles",
+                "seam-mask", "--grid", "2x2", "--tile", "4x4", "--input", small, "--levelled-output",
+                x.path("op-levelled.tif").toString(), "--output", out));
 
         // --- psf ---
         String[] optics = {"psf", "--model", "widefield", "--pixel", "0.1", "--step", "0.3", "--output", out};

@@ -88,8 +88,8 @@ class DoorsAgreeTest {
                 new Case("interval-profile", "Credible Interval Profile...", ordered("line", "5,5,60,40", "plane", "3"),
                         ordered("mean", "demo-cells.tif", "lower", "demo-cells.tif", "upper", "demo-cells.tif"),
                         List.of("output")),
-                new Case("seam-mask", "Tile Seam Mask...", ordered("grid", "3x4", "tile", "128x128", "level", "true",
-                        "shading", "true", "offset", "100"), ordered("input", "demo-tiles.tif"),
+                new Case("seam-mask", "Tile Seam Mask...", ordered("grid", "3x4", "tile", "128x128", "level-tiles",
+                        "true", "offset", "100"), ordered("input", "demo-tiles.tif"),
                         List.of("output", "levelled-output", "flat-field")));
     }
 

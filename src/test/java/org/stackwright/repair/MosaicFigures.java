@@ -19,7 +19,7 @@ import org.stackwright.volume.Volume;
  * a user runs it:
  * <pre>
  * java -cp CLASSPATH org.stackwright.repair.MosaicFigures mosaic DIR      # writes DIR/mosaic.tif
- * stackwright seam-mask --detect --input DIR/mosaic.tif --level --shading --strip 12 --offset 100 \
+ * stackwright seam-mask --grid 3x4 --tile 200x200 --input DIR/mosaic.tif --level-tiles --offset 100 \
  *     --output DIR/seams.tif --levelled-output DIR/levelled.tif --flat-field DIR/flat.tif
  * java -cp CLASSPATH org.stackwright.repair.MosaicFigures pictures DIR    # writes DIR/mosaic-before-after.png
  *                                                                          # and DIR/mosaic-profile.png

@@ -57,9 +57,9 @@ class MosaicShadingTest {
     void shadingUnderASpecimenIsFoundNearTheTruth() {
         InventedMosaic.Layout l = new InventedMosaic.Layout(3, 4, 200, 200, 0, false, false, 2, 0.25, 0.15, 300);
         InventedMosaic m = InventedMosaic.make(l, new InventedMosaic.Defects(1, 1, 1, 80, 500, 40), false, 41);
-        // the seam bands cover the gaps of zeros (gap 2 at the seam start: a 4 px band centred 1 px in)
-        List<int[]> cols = bands(m.columnSeams[0], 1);
-        List<int[]> rows = bands(m.rowSeams, 1);
+        // 4 px bands centred on the seams; the gaps of zeros (2 px at the seam start) lie inside them
+        List<int[]> cols = bands(m.columnSeams[0]);
+        List<int[]> rows = bands(m.rowSeams);
         TileShading.Flat flat = TileShading.estimate(m.image, cols, rows, InventedMosaic.OFFSET);
         double worst = 0;
         double sum = 0;
@@ -86,16 +86,54 @@ class MosaicShadingTest {
         System.out.printf(Locale.ROOT, "specimen mosaic %s: estimated shading vs the true vignetting: mean error "
                 + "%.2f %%, 95th percentile %.2f %%, worst %.2f %% (at a corner; true darkening 25 %%)%n", l,
                 100 * sum / n, 100 * errors[(int) (0.95 * n)], 100 * worst);
-        Volume shaded = TileShading.apply(m.image, cols, rows, flat, InventedMosaic.OFFSET);
-        for (int strip : new int[] {4, 12}) {
-            System.out.printf(Locale.ROOT, "specimen mosaic, strip %d: gains vs the truth worst %.2f %% after the "
-                    + "shading correction, %.2f %% without it%n", strip, 100 * gainError(TileLevelling.estimate(
-                    shaded, cols, rows, strip, InventedMosaic.OFFSET), m.gains), 100 * gainError(
-                    TileLevelling.estimate(m.image, cols, rows, strip, InventedMosaic.OFFSET), m.gains));
-        }
-        // gains under a specimen are measured and reported only (README: known limits)
         // goal of the 2 % carried over to a specimen, on average; the corners are measured and reported only
         assertTrue(sum / n < 0.02, "shading under a specimen within 2 % on average, was " + sum / n);
+    }
+
+    /**
+     * Tile gains under a specimen (cells, puncta, fibres crossing the seams), several seeds, default strip 4: with the
+     * true vignetting divided out (the oracle: what the gain estimate alone can do) and with the estimated shading
+     * (what --level-tiles does). Method: for each line across a seam, one straight line with a step at the seam is
+     * fitted to the pixels right beside it on both sides (gaps of zeros skipped; or just outside the band when that
+     * agrees better around the tile loops), the log ratio of the two sides is
+     * taken per line, and Tukey's biweight over the lines gives the pair's log gain ratio; the log gains of all tiles
+     * follow by least squares over the tile graph with their mean fixed (common practice for mosaic gain
+     * compensation, no single source; the biweight: Mosteller &amp; Tukey, "Data Analysis and Regression", 1977).
+     * Measured before this method (ratio of the two sides' medians, strips beside the 4 px mask band): worst 4.0 %,
+     * 18.8 % and 4.9 % with the true vignetting on seeds 41, 31, 51. The issue's aim of about 1 % is not reached
+     * under a specimen: with no overlap the two sides see different pixels of the specimen, and the shading
+     * estimate is least sure at the tile borders where the gains are measured; the bounds below guard what is
+     * reached (measured 1.3-2.8 % with the true vignetting, 3.2-4.5 % with the estimated shading).
+     */
+    @Test
+    void gainsUnderASpecimen() {
+        InventedMosaic.Layout l = new InventedMosaic.Layout(3, 4, 200, 200, 0, false, false, 2, 0.25, 0.15, 300);
+        for (long seed : new long[] {31, 41, 51}) {
+            InventedMosaic m = InventedMosaic.make(l, new InventedMosaic.Defects(1, 1, 1, 80, 500, 40), false, seed);
+            List<int[]> cols = bands(m.columnSeams[0]);
+            List<int[]> rows = bands(m.rowSeams);
+            Volume truth = m.image.copy();
+            for (int y = 0; y < truth.height(); y++) {
+                for (int x = 0; x < truth.width(); x++) {
+                    float v = m.image.get(x, y, 0);
+                    if (v != 0) {
+                        double s = InventedMosaic.shading(l, x % l.tileW(), y % l.tileH());
+                        truth.set(x, y, 0, (float) (InventedMosaic.OFFSET + (v - InventedMosaic.OFFSET) / s));
+                    }
+                }
+            }
+            double oracle = gainError(TileLevelling.estimate(truth, cols, rows, 4, InventedMosaic.OFFSET), m.gains);
+            TileShading.Flat flat = TileShading.estimate(m.image, cols, rows, InventedMosaic.OFFSET);
+            Volume shaded = TileShading.apply(m.image, cols, rows, flat, InventedMosaic.OFFSET);
+            double estimated = gainError(TileLevelling.estimate(shaded, cols, rows, 4, InventedMosaic.OFFSET),
+                    m.gains);
+            System.out.printf(Locale.ROOT, "specimen mosaic seed %d: gains vs the truth, worst tile: %.2f %% with the "
+                    + "true vignetting divided out, %.2f %% with the estimated shading%n", seed, 100 * oracle,
+                    100 * estimated);
+            assertTrue(oracle <= 0.03, "seed " + seed + ": gains with the true vignetting within 3 %, was " + oracle);
+            assertTrue(estimated <= 0.05, "seed " + seed + ": gains with the estimated shading within 5 %, was "
+                    + estimated);
+        }
     }
 
     /** Largest relative error of estimated gains against the true ones, both scaled to geometric mean 1. */
