@@ -50,6 +50,7 @@ public final class AutomaticSettings {
                 t.put("held_out_share", AutoStop.HELD_OUT_SHARE);
                 t.put("trial_iterations", stop.heldOut().length);
                 t.put("trial_seconds", stop.trialSeconds());
+                t.put("model_error_stop", stop.modelErrorStop());
                 t.put("held_out_history", stop.heldOut());
                 m.put("stop_trial", t);
             }
