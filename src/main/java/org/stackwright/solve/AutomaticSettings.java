@@ -16,7 +16,8 @@ import org.stackwright.volume.Volume;
  * <li>background: the darkest regions of the data ({@link BackgroundEstimate});</li>
  * <li>regularisation weight of richardson-lucy-tv and total-variation ({@link RegularizationChoice});</li>
  * <li>iteration count: {@code --stop auto} becomes a fixed count found by a trial on half of the pixels
- * ({@link AutoStop}); total-variation, which solves its problem to convergence, stops on its primal-dual gap.</li>
+ * ({@link AutoStop}); total-variation, which solves its problem to convergence, keeps the automatic rule and stops
+ * when its objective has settled within its statistical fluctuation ({@link Stopping#settled}).</li>
  * </ol>
  * The resolved settings hold no automatic value any more, so a caller that processes a large volume in parts can
  * resolve once (on the whole volume, or a representative part) and run every part with the same camera values,
@@ -49,6 +50,7 @@ public final class AutomaticSettings {
                 t.put("held_out_share", AutoStop.HELD_OUT_SHARE);
                 t.put("trial_iterations", stop.heldOut().length);
                 t.put("trial_seconds", stop.trialSeconds());
+                t.put("model_error_stop", stop.modelErrorStop());
                 t.put("held_out_history", stop.heldOut());
                 m.put("stop_trial", t);
             }
@@ -86,7 +88,7 @@ public final class AutomaticSettings {
         if (r.stopping().rule() == StopRule.AUTO) {
             Stopping st = r.stopping();
             if (r.method().equals("total-variation")) {
-                r = r.withStopping(new Stopping(StopRule.CHANGE, st.maxIterations(), st.tolerance()));
+                // solved to convergence: its own automatic rule (Stopping.settled) needs no trial
             } else if (r.method().equals("wiener")) {
                 r = r.withStopping(Stopping.fixed(1));
             } else {

@@ -177,7 +177,8 @@ public final class Deconvolution {
                 after.run(problem, sol);
             }
         }
-        boolean early = resolved.stop() != null ? resolved.stop().met() : used.stopping().rule() == StopRule.FIXED;
+        boolean early = (resolved.stop() != null ? resolved.stop().met() : used.stopping().rule() == StopRule.FIXED)
+                || used.regularized();
         String reason = (resolved.stop() != null ? resolved.stop().reason() : sol.stopReason()) + "; "
                 + FitStatus.describe(fit[0], fit[1], early);
         sol = new Solution(sol.estimate(), sol.iterations(), reason, sol.objective(), sol.change(), sol.seconds());

@@ -93,7 +93,8 @@ public record DeconvolutionSettings(String method, Stopping stopping, double off
     /** @return true when nothing is left for {@link AutomaticSettings} to find */
     public boolean resolved() {
         return !Double.isNaN(offset) && !Double.isNaN(background) && !Double.isNaN(gain) && !Double.isNaN(readNoise)
-                && (!regularized() || !Double.isNaN(regularization)) && stopping.rule() != StopRule.AUTO;
+                && (!regularized() || !Double.isNaN(regularization))
+                && (stopping.rule() != StopRule.AUTO || method.equals("total-variation"));
     }
 
     /**

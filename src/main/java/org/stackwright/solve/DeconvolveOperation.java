@@ -47,7 +47,7 @@ public final class DeconvolveOperation implements Operation, Blockwise {
      * Default maximum of iterations: the automatic stop ends well before it on the test conditions (bright data
      * needed up to about 300 in the trial); reaching it is reported as a failure of the rule.
      */
-    static final int DEFAULT_MAX_ITERATIONS = 500;
+    static final int DEFAULT_MAX_ITERATIONS = 2000;
 
     @Override
     public String name() {

@@ -9,8 +9,9 @@ import java.util.Locale;
  * data; Bertero, Boccacci, Talenti, Zanella &amp; Zanni, Inverse Problems 26, 2010). A fit clearly above it means the
  * model cannot explain all of the light: a PSF that is cropped or of the wrong width, a background that is not flat,
  * wrong camera values. A run stopped early on purpose (the automatic rule, a fixed count) has not fitted all of the
- * real structure yet, so its fit is a few percent above even when the model is right; only a larger excess is
- * called a stall there.
+ * real structure yet, so its fit is a few percent above even when the model is right, and so is a regularised one
+ * (the regularisation trades fit for smoothness on purpose: total-variation at its automatic lambda left 2% on the
+ * invented exact-model stack); only a larger excess is called a stall there.
  */
 final class FitStatus {
 

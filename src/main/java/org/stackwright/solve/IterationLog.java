@@ -23,6 +23,8 @@ final class IterationLog {
     private double best = Double.POSITIVE_INFINITY;
     private String reason;
     private int levelOffPixels;
+    private boolean settle;
+    private double fluctuation;
 
     IterationLog(String method, Stopping stopping, RunContext context, IterationListener listener) {
         this.method = method;
@@ -42,6 +44,20 @@ final class IterationLog {
      */
     void stopWhenLevelledOff(int heldOutPixels) {
         levelOffPixels = stopping.rule() == StopRule.AUTO ? heldOutPixels : 0;
+    }
+
+    /**
+     * For the primal-dual method under the automatic rule: stop when the objective has settled within its statistical
+     * fluctuation ({@link Stopping#settled}), given before each {@link #after} by {@link #fluctuation}. Replaces the
+     * rule's other checks (held-out fit, noise), which do not apply to a method solved to convergence.
+     */
+    void stopWhenSettled() {
+        settle = stopping.rule() == StopRule.AUTO;
+    }
+
+    /** @param perPixel the objective's statistical fluctuation per pixel at the current iterate */
+    void fluctuation(double perPixel) {
+        fluctuation = perPixel;
     }
 
     /** Checks for cancel before an iteration. */
@@ -73,6 +89,14 @@ final class IterationLog {
         context.progress((double) done / stopping.maxIterations(),
                 String.format(Locale.ROOT, "%s iteration %d of at most %d", method, done, stopping.maxIterations()));
         double[] history = Arrays.copyOf(heldOut, done);
+        if (settle) {
+            reason = Stopping.settled(Arrays.copyOf(objective, done), fluctuation);
+            if (reason == null && done >= stopping.maxIterations()) {
+                reason = "maximum: " + done + " iterations reached before the objective settled within its statistical"
+                        + " fluctuation (the auto rule); give a larger --iterations";
+            }
+            return reason != null;
+        }
         reason = stopping.check(done, meanFit, expectedFit, ch, history);
         if (levelOffPixels > 0 && (reason == null || reason.startsWith("maximum"))) {
             String levelled = Stopping.levelledOff(history, levelOffPixels);

@@ -34,7 +34,10 @@ import org.stackwright.parallel.Workers;
  * computed each iteration (two FFT convolutions per iteration) and H xbar = 2 H x_new - H x follows by linearity.
  *
  * <p>Objective per iteration: P(x) per trusted pixel. The "change" reported per iteration is the relative gap
- * (P - D) / |P|, which the {@link StopRule#CHANGE} rule compares with its tolerance.
+ * (P - D) / |P|, which the {@link StopRule#CHANGE} rule compares with its tolerance. The automatic rule stops when
+ * the objective has settled within its statistical fluctuation ({@link Stopping#settled}); the gap, bounded with the
+ * box U, stays large long after the estimate has stopped changing (relative gap 0.03 after 1500 iterations on the
+ * invented test stacks, where the error had settled after about 1000).
  */
 public final class PrimalDualTv implements Solver {
 
@@ -43,7 +46,12 @@ public final class PrimalDualTv implements Solver {
 
     /** Safety bound on x, in units of the brightest data value; never reached by a sensible estimate. */
     private static final double BOX = 1000;
-    /** Primal / dual step balance in units of the mean signal (chosen by trial on invented specimens). */
+    /**
+     * Primal / dual step balance in units of the mean signal, chosen by trial (common practice, no source) on the
+     * invented exact-model stack of tools/reference/make_deconvolution_conditions.py, lambda 0.0012, error after 600
+     * iterations: 0.387 with 1, 0.202 with 10, 0.185 with 30, 0.186 with 100 (which oscillates early on); but with 30
+     * the gap of a small bright specimen (PrimalDualTvTest) no longer reached 1e-5 in 3000 iterations, so 10 stays.
+     */
     private static final double STEP_BALANCE = 10;
 
     private final Stopping stopping;
@@ -133,6 +141,7 @@ public final class PrimalDualTv implements Solver {
         Sums primalSums = new Sums(3);
         Sums fitSums = new Sums(2);
         IterationLog log = new IterationLog(method(), stopping, context, listener);
+        log.stopWhenSettled();
         while (true) {
             log.before();
             // dual step for the data term; buf holds H xbar
@@ -213,6 +222,7 @@ public final class PrimalDualTv implements Solver {
             });
             double primal = f[0] + lambda * tv.value(x);
             double gap = (primal - dual) / Math.max(Math.abs(primal), 1e-300);
+            log.fluctuation(Math.sqrt(2 / trusted) * f[0] / trusted);
             if (log.after(primal / trusted, f[1] / trusted, p.expectedFit(), gap, held, x)) {
                 break;
             }

@@ -16,7 +16,7 @@ import org.stackwright.volume.Volume;
  * the held-out likelihood: for a candidate lambda the method runs on half of the pixels (the trial problem of
  * {@link AutoStop}) and the score is how well its estimate predicts the other half, the mean Kullback-Leibler
  * divergence of the held-out data (cross-validation: Stone, J. R. Stat. Soc. B 36, 1974). total-variation is solved
- * to its gap tolerance; richardson-lucy-tv scores the best iteration of its trial, which also gives its iteration
+ * until its objective settles ({@link Stopping#settled}); richardson-lucy-tv scores the best iteration of its trial, which also gives its iteration
  * count. The search starts at the method's default, walks by factors of sqrt(10) downhill until the score rises,
  * then puts a parabola through the best three points in log lambda (one more trial at its vertex).
  *
@@ -120,7 +120,7 @@ public final class RegularizationChoice {
         Stopping st = s.stopping();
         double[] r;
         if (s.method().equals("total-variation")) {
-            Stopping conv = new Stopping(StopRule.CHANGE, st.maxIterations(), st.tolerance());
+            Stopping conv = new Stopping(StopRule.AUTO, st.maxIterations(), st.tolerance());
             Solution sol = s.withLambda(lambda).withStopping(conv).solver().solve(half, trial, IterationListener.NONE);
             float[] work = new float[half.gridLength()];
             float[] x = sol.estimate();

@@ -15,7 +15,9 @@ import java.util.Locale;
  * more closely than the noise allows only fits the noise.</li>
  * <li>{@link #AUTO}: on a problem with held-out pixels, when the fit to the held-out pixels has not improved for
  * {@link Stopping#patience} iterations after its best (cross-validation; {@link AutoStop} runs that trial and then the
- * full problem for the best number of iterations); on a problem without, as {@link #NOISE}.</li>
+ * full problem for the best number of iterations); on a problem without, as {@link #NOISE}. total-variation, solved
+ * to convergence, stops instead when its objective has settled within its statistical fluctuation
+ * ({@link Stopping#settled}).</li>
  * </ul>
  */
 public enum StopRule {

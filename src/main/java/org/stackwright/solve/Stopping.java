@@ -80,6 +80,50 @@ public record Stopping(StopRule rule, int maxIterations, double tolerance) {
         return null;
     }
 
+    /**
+     * Fewest iterations over which {@link #settled} judges the objective: early on the primal-dual iterates can pause
+     * on a plateau far from the minimum (seen on a dim 2D specimen: flat over 20 iterations at 70 iterations, error
+     * 0.9; common practice, no source).
+     */
+    static final int SETTLE_WINDOW = 100;
+
+    /**
+     * The automatic rule of the primal-dual method, which solves its regularised problem to convergence: stop when
+     * the objective has settled within what the data can tell apart. Over the last w iterations ({@link #patience}, at least {@link #SETTLE_WINDOW})
+     * the objective moved by at most r (its range in that window); at the method's O(1/k) rate (Chambolle &amp; Pock,
+     * J Math Imaging Vis 40, 2011, Theorem 1) the distance left to the minimum is about r (k - w) / w. The run stops
+     * when that is below the objective's own statistical fluctuation: the data term per pixel is a scaled chi-square
+     * with one degree of freedom for each pixel (2 KL for Poisson counts, Wilks' theorem; McCullagh &amp; Nelder,
+     * "Generalized Linear Models", 2nd ed., 1989, sec. 2.3), so its mean m over N pixels has standard deviation
+     * about m sqrt(2 / N). A minimiser closer than that to the minimum cannot be told apart from it by the data: a
+     * fresh recording of the same specimen moves the minimum by as much. Taking the range, not the decrease, also
+     * waits out the oscillation of the primal-dual iterates.
+     *
+     * @param objective objective per pixel per iteration so far (index k = after k + 1 iterations), not modified
+     * @param fluctuation the statistical fluctuation of the objective per pixel (positive), or 0 to never stop
+     * @return the stop reason, or null to go on
+     */
+    public static String settled(double[] objective, double fluctuation) {
+        int k = objective.length;
+        int window = Math.max(SETTLE_WINDOW, patience(k));
+        if (!(fluctuation > 0) || k <= window) {
+            return null;
+        }
+        double lo = Double.POSITIVE_INFINITY;
+        double hi = Double.NEGATIVE_INFINITY;
+        for (int i = k - window - 1; i < k; i++) {
+            lo = Math.min(lo, objective[i]);
+            hi = Math.max(hi, objective[i]);
+        }
+        double left = (hi - lo) * (k - window) / window;
+        if (left < fluctuation) {
+            return String.format(Locale.ROOT, "auto: the objective settled at %.5f per pixel: it moved by %.2g in the"
+                    + " last %d iterations, which at the method's 1/k rate leaves about %.2g to its minimum, less than its"
+                    + " statistical fluctuation %.2g", objective[k - 1], hi - lo, window, left, fluctuation);
+        }
+        return null;
+    }
+
     /** Exactly n iterations. */
     public static Stopping fixed(int n) {
         return new Stopping(StopRule.FIXED, n, 1e-3);

@@ -59,6 +59,7 @@ class RegularizationChoiceTest {
         }
         String what = String.format(Locale.ROOT, "%s: automatic lambda %.4g error %.4f; best of the grid %.4g error %.4f;"
                 + " grid%s", method, auto.settings().lambda(), autoError, bestLambda, best, grid);
+        System.out.println("regularization: " + what);
         assertTrue(autoError <= 1.10 * best, what);
         // the automatic stop ends for its own reason (richardson-lucy-tv: where the held-out fit levels off)
         assertFalse(auto.solution().stopReason().startsWith("maximum"), auto.solution().stopReason());

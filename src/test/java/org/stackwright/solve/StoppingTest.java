@@ -63,4 +63,32 @@ class StoppingTest {
         assertNull(Stopping.levelledOff(h, 0));
         assertNull(Stopping.levelledOff(java.util.Arrays.copyOf(h, 20), pixels));
     }
+
+    /**
+     * The settled rule of total-variation on an objective that falls exactly at the O(1/k) rate of the primal-dual
+     * method (Chambolle &amp; Pock, J Math Imaging Vis 40, 2011, Theorem 1): P_k = P* + C / k. Its estimate of the
+     * distance left, range (k - w) / w, is then exactly C / k, so it stops at the first k with C / k below the
+     * fluctuation: k = 1000 for C = 1 and fluctuation 0.001. A plateau early on never stops it before the
+     * 100-iteration window.
+     */
+    @Test
+    void settledStopsWhereTheOneOverKRemainderFallsBelowTheFluctuation() {
+        double[] p = new double[3000];
+        int stop = -1;
+        for (int k = 1; k <= p.length && stop < 0; k++) {
+            p[k - 1] = 0.5 + 1.0 / k;
+            if (Stopping.settled(java.util.Arrays.copyOf(p, k), 0.001) != null) {
+                stop = k;
+            }
+        }
+        assertTrue(Math.abs(stop - 1000) <= 10, "stopped at " + stop);
+        assertTrue(Stopping.settled(java.util.Arrays.copyOf(p, stop), 0.001).startsWith("auto: the objective settled"));
+        double[] flat = new double[99];
+        java.util.Arrays.fill(flat, 0.7);
+        assertNull(Stopping.settled(flat, 0.001));
+        double[] settledFlat = new double[101];
+        java.util.Arrays.fill(settledFlat, 0.7);
+        assertNotNull(Stopping.settled(settledFlat, 0.001));
+        assertNull(Stopping.settled(p, 0));
+    }
 }
