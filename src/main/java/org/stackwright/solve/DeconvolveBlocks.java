@@ -187,13 +187,20 @@ final class DeconvolveBlocks implements BlockOperation {
         return null;
     }
 
+    /** The work of a block is the voxels of its FFT grid: its read box, the PSF's padding, a fast size. */
+    @Override
+    public long blockWork(Values v, PlaneSource main, int w, int h, int d) {
+        DeconvolutionSettings s = DeconvolveOperation.settings(v);
+        int[] p = psfSize(v, main);
+        return s.boundary().equals("periodic") ? (long) w * h * d
+                : (long) Convolution.paddedSize(w, Math.min(p[0], w)) * Convolution.paddedSize(h, Math.min(p[1], h))
+                        * Convolution.paddedSize(d, Math.min(p[2], d));
+    }
+
     @Override
     public long blockBytes(Values v, PlaneSource main, int w, int h, int d) {
         DeconvolutionSettings s = DeconvolveOperation.settings(v);
-        int[] p = psfSize(v, main);
-        long grid = s.boundary().equals("periodic") ? (long) w * h * d
-                : (long) Convolution.paddedSize(w, Math.min(p[0], w)) * Convolution.paddedSize(h, Math.min(p[1], h))
-                        * Convolution.paddedSize(d, Math.min(p[2], d));
+        long grid = blockWork(v, main, w, h, d);
         long voxels = (long) w * h * d;
         // the mask (one byte per voxel) and the input as read, besides the problem and the solver
         return Deconvolution.memoryEstimate(grid, s.solver().gridArrays(), voxels) + 5 * voxels;
