@@ -113,8 +113,8 @@ public final class BlockRun {
             if (p == null) {
                 return null;
             }
-            return folders.contains(key) || isFolder(p) ? new PlaneFolderSink(p, w, h, d, bits, voxel)
-                    : new TiffStackSink(p, w, h, d, bits, voxel, overwrite, false);
+            return folders.contains(key) || isFolder(p) ? new PlaneFolderSink("--" + key, p, w, h, d, bits, voxel)
+                    : new TiffStackSink("--" + key, p, w, h, d, bits, voxel, overwrite, false);
         }, ctx);
     }
 
@@ -199,18 +199,22 @@ public final class BlockRun {
 
     private static Result execute(Operation op, BlockOperation b, Values v, Map<String, PlaneSource> inputs,
             Sinks factory, RunContext ctx) {
-        Prepared p = prepare(op, b, v, inputs, ctx);
         PlaneSource main = inputs.get(b.streamedInputs().get(0));
+        if (main == null) {
+            throw new IllegalArgumentException(b.streamedInputs().get(0) + " is required for " + op.name());
+        }
         Map<String, StackSink> sinks = new LinkedHashMap<>();
         List<StackSink> all = new ArrayList<>();
         try {
-            for (Map.Entry<String, Integer> e : b.streamedOutputs(p.resolved()).entrySet()) {
+            // the sinks first: each claims its output's name before any work, so a second run is refused at once
+            for (Map.Entry<String, Integer> e : b.streamedOutputs(v).entrySet()) {
                 StackSink s = factory.make(e.getKey(), e.getValue(), main.width(), main.height(), main.depth(), main.voxel());
                 if (s != null) {
                     sinks.put(e.getKey(), s);
                     all.add(s);
                 }
             }
+            Prepared p = prepare(op, b, v, inputs, ctx);
             BlockTotals totals;
             try (BlockProcessor proc = b.processor(p.resolved(), p.globals(), ctx)) {
                 totals = BlockRunner.run(p.plan(), b.firstBlock(p.globals()), proc, inputs, sinks, ctx);

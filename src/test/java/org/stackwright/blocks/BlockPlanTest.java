@@ -84,9 +84,9 @@ class BlockPlanTest {
             assertTrue(bytes.of(r[0], r[1], r[2]) <= budget, auto.describe());
             assertEquals(1, auto.counts()[2], auto.describe());
             double best = Double.POSITIVE_INFINITY;
-            for (int cx = 64; cx <= 1024; cx += 24) {
-                for (int cy = 64; cy <= 1024; cy += 24) {
-                    for (int cz : new int[] {16, 32, 64}) {
+            for (int cx = 128; cx <= 1024; cx += 32) {
+                for (int cy = 128; cy <= 1024; cy += 32) {
+                    for (int cz : new int[] {32, 64}) {
                         BlockPlan p = new BlockPlan(dims[0], dims[1], dims[2], new int[] {cx, cy, cz}, halo);
                         int[] pr = p.largestRead();
                         if (bytes.of(pr[0], pr[1], pr[2]) <= budget) {
