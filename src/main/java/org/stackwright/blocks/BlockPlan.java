@@ -144,22 +144,21 @@ public final class BlockPlan implements Serializable {
 
     /** @return the largest read box (core plus halo) of the plan, as its size w, h, d */
     public int[] largestRead() {
-        int[] m = new int[3];
-        for (Block b : blocks) {
-            m[0] = Math.max(m[0], b.read().w());
-            m[1] = Math.max(m[1], b.read().h());
-            m[2] = Math.max(m[2], b.read().d());
-        }
-        return m;
+        return largest(Block::read);
     }
 
     /** @return the largest core of the plan, as its size w, h, d */
     public int[] largestCore() {
+        return largest(Block::core);
+    }
+
+    private int[] largest(java.util.function.Function<Block, Box> box) {
         int[] m = new int[3];
         for (Block b : blocks) {
-            m[0] = Math.max(m[0], b.core().w());
-            m[1] = Math.max(m[1], b.core().h());
-            m[2] = Math.max(m[2], b.core().d());
+            Box x = box.apply(b);
+            m[0] = Math.max(m[0], x.w());
+            m[1] = Math.max(m[1], x.h());
+            m[2] = Math.max(m[2], x.d());
         }
         return m;
     }
