@@ -383,11 +383,12 @@ class DeconvolveBadInputTest {
 
     /**
      * A stack larger than the memory a run may use ({@link MemoryCheck#LIMIT_PROPERTY} lowers it to 2 MB, below the
-     * estimate of this 64x64x16 run, about 5 MB) no longer fails: it runs in blocks that fit (blocks.BlockSizing).
+     * estimate of this 64x64x16 run, about 5 MB) no longer fails: it runs in the blocks of least work that fit
+     * (blocks.BlockSizing: 8 blocks; the earlier rule of the largest cores made 60).
      */
     private static BadInputTable.Case memoryRow() {
-        BadInputTable.Case inner = row("stack larger than the memory: runs in blocks", 0, "global settings for 60 blocks",
-                "--input", input("cells-64.tif", cells(64, 64, 16, 6)));
+        BadInputTable.Case inner = row("stack larger than the memory: runs in blocks", 0,
+                "global settings for 8 blocks (4x2x1)", "--input", input("cells-64.tif", cells(64, 64, 16, 6)));
         return new BadInputTable.Case(inner.name(), () -> {
             System.setProperty(MemoryCheck.LIMIT_PROPERTY, "2");
             try {
