@@ -17,9 +17,10 @@ import org.stackwright.op.Values;
 import org.stackwright.volume.VoxelSize;
 
 /**
- * A whole block run of an operation, as the doors start it: checks the streamed inputs agree in size, sizes the
- * blocks (given, or the largest that fit the memory budget), runs the global step once, processes every block,
- * finishes, and only then puts the outputs in place; on any failure or cancel every output is removed.
+ * A whole block run of an operation, as the doors start it: claims the outputs, checks the streamed inputs agree in
+ * size, sizes the blocks (given, or the cut of least work that fits the memory budget: {@link BlockSizing}), runs
+ * the global step once, processes every block, finishes, and only then puts the outputs in place; on any failure
+ * or cancel every output is removed.
  *
  * <p>Doors: {@link #inMemory} for images already open (ImageJ, SciJava, library calls; a virtual stack is read plane
  * by plane), {@link #toFiles} for the command line, which streams from and to disk. A cluster runner uses

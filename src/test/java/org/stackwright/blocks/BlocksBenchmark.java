@@ -30,7 +30,8 @@ import org.stackwright.volume.VoxelSize;
  * then: (1) the block run of the whole stack in --heap (block-size auto: the blocks of least FFT work that fit; a
  * comma list runs it once per heap, and prints the expected overhead the plan stated); (2) the same
  * deconvolution in memory of a --memory-size stack cut from the same data (in a heap large enough), to compare the
- * time per voxel; (3) with --spark, the Spark runner in local mode with the blocks of (1), in --spark-heap (default
+ * time per voxel; (3) with --spark, the Spark runner in local mode with --block-size the largest core of the last
+ * run of (1) (evened-out cores: close to (1)'s plan, whose cores at the faces are one halo wider), in --spark-heap (default
  * --heap; local[N] runs N blocks at once, one thread each, so it needs N times a block's memory). All
  * runs use accelerated Richardson-Lucy, the fixed rule and the same iterations. Prints time, peak heap and the
  * ratios.
