@@ -58,6 +58,16 @@ public interface BlockOperation {
     long blockBytes(Values v, PlaneSource main, int w, int h, int d);
 
     /**
+     * The work of one block, to compare ways of cutting the volume ({@link BlockSizing}) and to state the expected
+     * cost of the blocks against the whole volume in one piece. Default: the voxels of the read box.
+     *
+     * @return work of one block with a read box of w x h x d voxels, in any unit
+     */
+    default long blockWork(Values v, PlaneSource main, int w, int h, int d) {
+        return (long) w * h * d;
+    }
+
+    /**
      * The global step, run once before any block: whole-volume choices fixed as settings.
      *
      * @param v the settings as given

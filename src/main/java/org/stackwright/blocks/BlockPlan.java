@@ -11,7 +11,9 @@ import java.util.List;
  * the planes of one slab are finished before the next slab starts.
  *
  * <p>Core sizes are evened out: a volume of 1000 columns cut at most 400 wide gets three cores of 333, 333 and 334
- * columns rather than 400, 400 and 200, so no block is a sliver whose halo costs more than its core.
+ * columns rather than 400, 400 and 200, so no block is a sliver whose halo costs more than its core. Automatic
+ * plans ({@link BlockSizing}) give their cores by {@link #ofStarts}: the cores at the volume's faces are one halo
+ * wider than the others, so every block reads a box of the same size (a face needs no halo).
  */
 public final class BlockPlan implements Serializable {
 
@@ -30,31 +32,43 @@ public final class BlockPlan implements Serializable {
      * @param halo halo per axis (x, y, z), 0 or more
      */
     public BlockPlan(int width, int height, int depth, int[] core, int[] halo) {
+        this(width, height, depth, evenStarts(new int[] {width, height, depth}, core), halo);
+    }
+
+    /**
+     * A plan whose cores start where given.
+     *
+     * @param starts per axis (x, y, z), the first voxel of each core and, last, the axis length: 0 = s0 < s1 < ... < n
+     * @param halo halo per axis (x, y, z), 0 or more
+     */
+    public static BlockPlan ofStarts(int width, int height, int depth, int[][] starts, int[] halo) {
+        return new BlockPlan(width, height, depth, starts, halo);
+    }
+
+    private BlockPlan(int width, int height, int depth, int[][] starts, int[] halo) {
         if (width < 1 || height < 1 || depth < 1) {
             throw new IllegalArgumentException("volume size must be at least 1x1x1 (given " + width + "x" + height + "x" + depth + ")");
         }
+        int[] n = {width, height, depth};
         for (int a = 0; a < 3; a++) {
-            if (core[a] < 1) {
-                throw new IllegalArgumentException("block-size: each size must be at least 1 (given " + core[a] + ")");
-            }
             if (halo[a] < 0) {
                 throw new IllegalArgumentException("halo must be 0 or more (given " + halo[a] + ")");
+            }
+            int[] s = starts[a];
+            if (s.length < 2 || s[0] != 0 || s[s.length - 1] != n[a]) {
+                throw new IllegalArgumentException("core starts must run from 0 to " + n[a]);
+            }
+            for (int i = 1; i < s.length; i++) {
+                if (s[i] <= s[i - 1]) {
+                    throw new IllegalArgumentException("core starts must increase (axis " + a + ")");
+                }
             }
         }
         this.width = width;
         this.height = height;
         this.depth = depth;
         this.halo = halo.clone();
-        int[] n = {width, height, depth};
-        this.counts = new int[3];
-        int[][] starts = new int[3][];
-        for (int a = 0; a < 3; a++) {
-            counts[a] = (n[a] + Math.min(core[a], n[a]) - 1) / Math.min(core[a], n[a]);
-            starts[a] = new int[counts[a] + 1];
-            for (int i = 0; i <= counts[a]; i++) {
-                starts[a][i] = (int) ((long) n[a] * i / counts[a]);
-            }
-        }
+        this.counts = new int[] {starts[0].length - 1, starts[1].length - 1, starts[2].length - 1};
         List<Block> list = new ArrayList<>();
         for (int k = 0; k < counts[2]; k++) {
             for (int j = 0; j < counts[1]; j++) {
@@ -68,6 +82,22 @@ public final class BlockPlan implements Serializable {
             }
         }
         this.blocks = Collections.unmodifiableList(list);
+    }
+
+    /** @return per axis, the starts of cores of at most {@code core} voxels, evened out */
+    private static int[][] evenStarts(int[] n, int[] core) {
+        int[][] starts = new int[3][];
+        for (int a = 0; a < 3; a++) {
+            if (core[a] < 1) {
+                throw new IllegalArgumentException("block-size: each size must be at least 1 (given " + core[a] + ")");
+            }
+            int count = (n[a] + Math.min(core[a], n[a]) - 1) / Math.min(core[a], n[a]);
+            starts[a] = new int[count + 1];
+            for (int i = 0; i <= count; i++) {
+                starts[a][i] = (int) ((long) n[a] * i / count);
+            }
+        }
+        return starts;
     }
 
     /** A plan of one block: the whole volume. */
@@ -114,13 +144,36 @@ public final class BlockPlan implements Serializable {
 
     /** @return the largest read box (core plus halo) of the plan, as its size w, h, d */
     public int[] largestRead() {
+        return largest(Block::read);
+    }
+
+    /** @return the largest core of the plan, as its size w, h, d */
+    public int[] largestCore() {
+        return largest(Block::core);
+    }
+
+    private int[] largest(java.util.function.Function<Block, Box> box) {
         int[] m = new int[3];
         for (Block b : blocks) {
-            m[0] = Math.max(m[0], b.read().w());
-            m[1] = Math.max(m[1], b.read().h());
-            m[2] = Math.max(m[2], b.read().d());
+            Box x = box.apply(b);
+            m[0] = Math.max(m[0], x.w());
+            m[1] = Math.max(m[1], x.h());
+            m[2] = Math.max(m[2], x.d());
         }
         return m;
+    }
+
+    /**
+     * @param work the work of one block for the size of its read box (for deconvolution, the voxels of its FFT grid)
+     * @return the work of all blocks divided by the work of the whole volume as one block: the expected cost of
+     *     running in blocks (1 for one block)
+     */
+    public double workFactor(BlockSizing.BlockBytes work) {
+        double sum = 0;
+        for (Block b : blocks) {
+            sum += work.of(b.read().w(), b.read().h(), b.read().d());
+        }
+        return sum / work.of(width, height, depth);
     }
 
     /** @return voxels read over all blocks divided by the voxels of the volume: the cost of the halos */
@@ -145,12 +198,7 @@ public final class BlockPlan implements Serializable {
 
     /** @return "WxHxD blocks of at most ... with halo ..." for records and messages */
     public String describe() {
-        int[] c = new int[3];
-        for (Block b : blocks) {
-            c[0] = Math.max(c[0], b.core().w());
-            c[1] = Math.max(c[1], b.core().h());
-            c[2] = Math.max(c[2], b.core().d());
-        }
+        int[] c = largestCore();
         return blocks.size() + " block" + (blocks.size() == 1 ? "" : "s") + " (" + counts[0] + "x" + counts[1] + "x"
                 + counts[2] + "), cores up to " + c[0] + "x" + c[1] + "x" + c[2] + ", halo " + halo[0] + "x" + halo[1]
                 + "x" + halo[2];

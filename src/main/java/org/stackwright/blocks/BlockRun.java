@@ -17,9 +17,10 @@ import org.stackwright.op.Values;
 import org.stackwright.volume.VoxelSize;
 
 /**
- * A whole block run of an operation, as the doors start it: checks the streamed inputs agree in size, sizes the
- * blocks (given, or the largest that fit the memory budget), runs the global step once, processes every block,
- * finishes, and only then puts the outputs in place; on any failure or cancel every output is removed.
+ * A whole block run of an operation, as the doors start it: claims the outputs, checks the streamed inputs agree in
+ * size, sizes the blocks (given, or the cut of least work that fits the memory budget: {@link BlockSizing}), runs
+ * the global step once, processes every block, finishes, and only then puts the outputs in place; on any failure
+ * or cancel every output is removed.
  *
  * <p>Doors: {@link #inMemory} for images already open (ImageJ, SciJava, library calls; a virtual stack is read plane
  * by plane), {@link #toFiles} for the command line, which streams from and to disk. A cluster runner uses
@@ -33,8 +34,14 @@ public final class BlockRun {
         StackSink make(String key, int bits, int width, int height, int depth, VoxelSize voxel);
     }
 
-    /** What is fixed before the first block: the plan, the global choices and the settings every block uses. */
-    public record Prepared(BlockPlan plan, Globals globals, Values resolved, long budget, long blockBytes) {
+    /**
+     * What is fixed before the first block: the plan, the global choices and the settings every block uses.
+     *
+     * @param workFactor the expected cost of the blocks: their work summed (for deconvolution, FFT grid voxels)
+     *     over the work of the whole stack in one piece ({@link BlockPlan#workFactor})
+     */
+    public record Prepared(BlockPlan plan, Globals globals, Values resolved, long budget, long blockBytes,
+            double workFactor) {
     }
 
     private BlockRun() {
@@ -107,8 +114,8 @@ public final class BlockRun {
             if (p == null) {
                 return null;
             }
-            return folders.contains(key) || isFolder(p) ? new PlaneFolderSink(p, w, h, d, bits, voxel)
-                    : new TiffStackSink(p, w, h, d, bits, voxel, overwrite, false);
+            return folders.contains(key) || isFolder(p) ? new PlaneFolderSink("--" + key, p, w, h, d, bits, voxel)
+                    : new TiffStackSink("--" + key, p, w, h, d, bits, voxel, overwrite, false);
         }, ctx);
     }
 
@@ -167,13 +174,16 @@ public final class BlockRun {
         long budget = blockBudget < 0 ? BlockSettings.budget(v) : blockBudget;
         int[] core = BlockSettings.coreSize(v);
         boolean whole = b.wholeDepth(v);
+        BlockSizing.BlockBytes work = (w, h, d) -> b.blockWork(v, main, w, h, d);
+        BlockPlan plan;
         if (core == null) {
-            core = BlockSizing.auto(dims, halo, budget, (w, h, d) -> b.blockBytes(v, main, w, h, d), whole);
+            plan = BlockSizing.auto(dims, halo, budget, (w, h, d) -> b.blockBytes(v, main, w, h, d), work, whole);
         } else if (whole && core[2] < dims[2]) {
             throw new IllegalArgumentException(BlockSettings.BLOCK_SIZE + " = '" + v.text(BlockSettings.BLOCK_SIZE) + "': "
                     + op.name() + " needs every plane in a block; give a depth of " + dims[2] + " or more, or auto");
+        } else {
+            plan = new BlockPlan(dims[0], dims[1], dims[2], core, halo);
         }
-        BlockPlan plan = new BlockPlan(dims[0], dims[1], dims[2], core, halo);
         int[] largest = plan.largestRead();
         long need = b.blockBytes(v, main, largest[0], largest[1], largest[2]);
         if (need > budget) {
@@ -181,25 +191,31 @@ public final class BlockRun {
                     + " but %.0f MB are free; it may run out of memory (give a smaller block-size or auto)",
                     largest[0], largest[1], largest[2], need / 1048576.0, budget / 1048576.0));
         }
-        ctx.progress(0, "global settings for " + plan.describe());
+        double factor = plan.workFactor(work);
+        ctx.progress(0, String.format(Locale.ROOT, "global settings for %s; expected work %.3f x the whole stack in"
+                + " one piece", plan.describe(), factor));
         Globals g = b.resolve(v, inputs, plan, ctx);
-        return new Prepared(plan, g, resolved(op, v, g), budget, need);
+        return new Prepared(plan, g, resolved(op, v, g), budget, need, factor);
     }
 
     private static Result execute(Operation op, BlockOperation b, Values v, Map<String, PlaneSource> inputs,
             Sinks factory, RunContext ctx) {
-        Prepared p = prepare(op, b, v, inputs, ctx);
         PlaneSource main = inputs.get(b.streamedInputs().get(0));
+        if (main == null) {
+            throw new IllegalArgumentException(b.streamedInputs().get(0) + " is required for " + op.name());
+        }
         Map<String, StackSink> sinks = new LinkedHashMap<>();
         List<StackSink> all = new ArrayList<>();
         try {
-            for (Map.Entry<String, Integer> e : b.streamedOutputs(p.resolved()).entrySet()) {
+            // the sinks first: each claims its output's name before any work, so a second run is refused at once
+            for (Map.Entry<String, Integer> e : b.streamedOutputs(v).entrySet()) {
                 StackSink s = factory.make(e.getKey(), e.getValue(), main.width(), main.height(), main.depth(), main.voxel());
                 if (s != null) {
                     sinks.put(e.getKey(), s);
                     all.add(s);
                 }
             }
+            Prepared p = prepare(op, b, v, inputs, ctx);
             BlockTotals totals;
             try (BlockProcessor proc = b.processor(p.resolved(), p.globals(), ctx)) {
                 totals = BlockRunner.run(p.plan(), b.firstBlock(p.globals()), proc, inputs, sinks, ctx);
@@ -226,6 +242,8 @@ public final class BlockRun {
         m.put("blocks", p.plan().blocks().size());
         m.put("halo", List.of(p.plan().halo()[0], p.plan().halo()[1], p.plan().halo()[2]));
         m.put("read_factor", p.plan().readFactor());
+        // for deconvolution: FFT grid voxels of all blocks over those of the whole stack in one piece
+        m.put("expected_overhead", p.workFactor());
         m.put("memory_budget_bytes", p.budget());
         m.put("block_memory_estimate_bytes", p.blockBytes());
         m.put("block_seconds", totals.seconds());

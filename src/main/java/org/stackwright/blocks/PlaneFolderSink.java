@@ -7,6 +7,7 @@ import java.nio.file.Path;
 import java.util.Locale;
 import java.util.stream.Stream;
 
+import org.stackwright.volume.OutputClaim;
 import org.stackwright.volume.OutputFiles;
 import org.stackwright.volume.OutputPaths;
 import org.stackwright.volume.TiffFiles;
@@ -17,7 +18,8 @@ import org.stackwright.volume.VoxelSize;
  * A folder of one TIFF per plane ({@code plane-00000.tif}, ... in name order), the output form that many writers can
  * make at once. The planes are written into a hidden temporary folder beside the target; each plane's file is
  * closed as soon as every block covering it is done, and {@link #commit()} renames the whole folder into place, so
- * a failed run leaves no folder and no plane. The target must not exist or be an empty folder.
+ * a failed run leaves no folder and no plane. The target must not exist or be an empty folder. The folder's name is
+ * claimed ({@link OutputClaim}) from the start until the commit or abort, as {@link TiffStackSink} claims its file.
  */
 public final class PlaneFolderSink implements StackSink {
 
@@ -29,6 +31,7 @@ public final class PlaneFolderSink implements StackSink {
     private final int bits;
     private final VoxelSize voxel;
     private final TiffStackFile[] planes;
+    private final OutputClaim claim;
     private boolean open = true;
 
     /**
@@ -36,8 +39,17 @@ public final class PlaneFolderSink implements StackSink {
      *     folder
      */
     public PlaneFolderSink(Path target, int width, int height, int depth, int bits, VoxelSize voxel) {
+        this("output", target, width, height, depth, bits, voxel);
+    }
+
+    /**
+     * @param key the setting the output came from, named when another run holds the name (e.g. --output)
+     * @throws IllegalArgumentException naming the key when another run is writing the same folder
+     */
+    public PlaneFolderSink(String key, Path target, int width, int height, int depth, int bits, VoxelSize voxel) {
         this.target = OutputPaths.real(target);
         checkTarget(this.target);
+        this.claim = OutputClaim.take(key, this.target);
         this.tmp = TiffFiles.temporaryFor(this.target);
         this.width = width;
         this.height = height;
@@ -48,6 +60,7 @@ public final class PlaneFolderSink implements StackSink {
         try {
             Files.createDirectories(tmp);
         } catch (IOException e) {
+            claim.close();
             throw new UncheckedIOException("could not create " + tmp + ": " + e.getMessage(), e);
         }
     }
@@ -129,6 +142,7 @@ public final class PlaneFolderSink implements StackSink {
                 Files.delete(target); // empty, checked at the start
             }
             OutputFiles.moveIntoPlace(tmp, target, false);
+            claim.close();
         } catch (IOException e) {
             abort();
             throw new UncheckedIOException("could not write " + target + ": " + e.getMessage(), e);
@@ -150,6 +164,7 @@ public final class PlaneFolderSink implements StackSink {
             open = false;
         }
         deleteTree(tmp);
+        claim.close();
     }
 
     static void deleteTree(Path dir) {

@@ -5,6 +5,7 @@ import java.io.UncheckedIOException;
 import java.nio.file.Files;
 import java.nio.file.Path;
 
+import org.stackwright.volume.OutputClaim;
 import org.stackwright.volume.OutputFiles;
 import org.stackwright.volume.OutputPaths;
 import org.stackwright.volume.TiffFiles;
@@ -17,6 +18,10 @@ import org.stackwright.volume.VoxelSize;
  * {@link TiffFiles#write} (the real path, links followed; without overwrite a file that appeared meanwhile is
  * kept). The cores are written where they belong as soon as they are done, so memory holds no
  * more than one block's output.
+ *
+ * <p>The output's name is claimed ({@link OutputClaim}) from the start until the commit or abort, as every other
+ * output of a run is: a second run (process or thread) writing the same file meanwhile is refused at once, and a run
+ * that crashes leaves nothing under the output's name (its claim is released by the system with the process).
  */
 public final class TiffStackSink implements StackSink {
 
@@ -24,6 +29,7 @@ public final class TiffStackSink implements StackSink {
     private final Path tmp;
     private final boolean overwrite;
     private final TiffStackFile file;
+    private final OutputClaim claim;
     private boolean open = true;
 
     /**
@@ -35,15 +41,30 @@ public final class TiffStackSink implements StackSink {
      */
     public TiffStackSink(Path target, int width, int height, int depth, int bits, VoxelSize voxel, boolean overwrite,
             boolean forceBig) {
+        this("output", target, width, height, depth, bits, voxel, overwrite, forceBig);
+    }
+
+    /**
+     * @param key the setting the output came from, named when another run holds the name (e.g. --output)
+     * @throws IllegalArgumentException naming the key when another run is writing the same file
+     */
+    public TiffStackSink(String key, Path target, int width, int height, int depth, int bits, VoxelSize voxel,
+            boolean overwrite, boolean forceBig) {
         this.target = OutputPaths.real(target);
         this.overwrite = overwrite;
         TiffFiles.checkWritable(this.target, overwrite);
+        this.claim = OutputClaim.take(key, this.target);
         this.tmp = TiffFiles.temporaryFor(this.target);
         try {
             this.file = TiffStackFile.create(tmp, width, height, depth, bits, voxel, forceBig);
         } catch (IOException e) {
             deleteQuietly(tmp);
+            claim.close();
             throw new UncheckedIOException("could not create " + tmp + ": " + e.getMessage(), e);
+        } catch (RuntimeException e) {
+            deleteQuietly(tmp);
+            claim.close();
+            throw e;
         }
     }
 
@@ -68,6 +89,7 @@ public final class TiffStackSink implements StackSink {
             file.close();
             open = false;
             OutputFiles.moveIntoPlace(tmp, target, overwrite);
+            claim.close();
         } catch (IOException e) {
             abort();
             throw new UncheckedIOException("could not write " + target + ": " + e.getMessage(), e);
@@ -85,6 +107,7 @@ public final class TiffStackSink implements StackSink {
             open = false;
         }
         deleteQuietly(tmp);
+        claim.close();
     }
 
     static void deleteQuietly(Path p) {

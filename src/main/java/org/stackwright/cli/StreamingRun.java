@@ -19,6 +19,7 @@ import org.stackwright.op.Param;
 import org.stackwright.op.Result;
 import org.stackwright.op.RunContext;
 import org.stackwright.op.Values;
+import org.stackwright.volume.OutputClaim;
 import org.stackwright.volume.OutputPaths;
 import org.stackwright.volume.TiffFiles;
 
@@ -27,7 +28,9 @@ import org.stackwright.volume.TiffFiles;
  * output names a folder of planes, or the whole stack would not fit the memory budget, its stacks are never
  * loaded. Inputs are read from the TIFF (or folder of planes) by random access as blocks need them; streamed
  * outputs are written block by block into a temporary file renamed at the end (a folder output gets one TIFF per
- * plane). Small inputs (a PSF) are read as usual, and the record and small outputs are written afterwards.
+ * plane). Small inputs (a PSF) are read as usual, and the record and small outputs are written afterwards. Every
+ * output's name is claimed before any work ({@link OutputClaim}; the streamed ones by their sinks), so two runs
+ * cannot write the same file.
  */
 public final class StreamingRun {
 
@@ -188,7 +191,12 @@ public final class StreamingRun {
             }
         }
         BlockFiles f = open(op, values, raw, overwrite);
+        // the record and the small outputs are claimed as on the usual path; the streamed ones by their sinks
+        java.util.List<OutputClaim> claims = new java.util.ArrayList<>();
         try {
+            for (Map.Entry<String, Path> e : f.others().entrySet()) {
+                claims.add(OutputClaim.take("--" + e.getKey(), OutputPaths.real(e.getValue())));
+            }
             if (f.inputs().get(mainKey) instanceof FolderPlaneSource folder) {
                 folder.checkAll();
                 if (!folder.zStepKnown() && folder.depth() > 1) {
@@ -211,6 +219,7 @@ public final class StreamingRun {
             }
             return true;
         } finally {
+            claims.forEach(OutputClaim::close);
             f.close();
         }
     }

@@ -22,14 +22,16 @@ import org.stackwright.volume.VoxelSize;
  *
  * <pre>
  * tools/benchmark.sh org.stackwright.blocks.BlocksBenchmark [--size 2048x2048x200] [--iterations 20]
- *     [--heap 2g] [--memory-size 1024x1024x200] [--memory-heap 10g] [--spark] [--spark-heap 4g] [--dir DIR]
+ *     [--heap 2g[,700m,...]] [--memory-size 1024x1024x200] [--memory-heap 10g] [--spark] [--spark-heap 4g] [--dir DIR]
  *     [--only-blocks]
  * </pre>
  *
  * Makes (once, in DIR) a 16-bit stack of the size with Poisson-like noise over blobs and a 21x21x15 Gaussian PSF;
- * then: (1) the block run of the whole stack in --heap (block-size auto: the largest blocks that fit); (2) the same
+ * then: (1) the block run of the whole stack in --heap (block-size auto: the blocks of least FFT work that fit; a
+ * comma list runs it once per heap, and prints the expected overhead the plan stated); (2) the same
  * deconvolution in memory of a --memory-size stack cut from the same data (in a heap large enough), to compare the
- * time per voxel; (3) with --spark, the Spark runner in local mode with the blocks of (1), in --spark-heap (default
+ * time per voxel; (3) with --spark, the Spark runner in local mode with --block-size the largest core of the last
+ * run of (1) (evened-out cores: close to (1)'s plan, whose cores at the faces are one halo wider), in --spark-heap (default
  * --heap; local[N] runs N blocks at once, one thread each, so it needs N times a block's memory). All
  * runs use accelerated Richardson-Lucy, the fixed rule and the same iterations. Prints time, peak heap and the
  * ratios.
@@ -77,11 +79,18 @@ public final class BlocksBenchmark {
         List<String> common = List.of("--psf", psf.toString(), "--iterations", Integer.toString(iterations), "--stop",
                 "fixed", "--offset", "100", "--background", "10", "--threads", Integer.toString(
                         Runtime.getRuntime().availableProcessors()), "--overwrite");
-        double[] b = run(heap, false, concat(List.of("deconvolve", "--input", big.toString(), "--output",
-                dir.resolve("blocks.tif").toString(), "--record", dir.resolve("blocks.json").toString()), common));
         long bigVoxels = (long) n[0] * n[1] * n[2];
-        System.out.printf(Locale.ROOT, "blocks %s in %s: %.1f s, peak heap %.0f MB, %.3g us per voxel%n", size, heap,
-                b[0], b[1], b[0] / bigVoxels * 1e6);
+        List<double[]> blockRuns = new ArrayList<>();
+        String[] heaps = heap.split(",");
+        for (String hp : heaps) {
+            double[] b = run(hp, false, concat(List.of("deconvolve", "--input", big.toString(), "--output",
+                    dir.resolve("blocks.tif").toString(), "--record", dir.resolve("blocks.json").toString()), common));
+            String json = Files.readString(dir.resolve("blocks.json"));
+            System.out.printf(Locale.ROOT, "blocks %s in %s: %.1f s, peak heap %.0f MB, %.3g us per voxel; plan %s,"
+                    + " expected overhead %s%n", size, hp, b[0], b[1], b[0] / bigVoxels * 1e6,
+                    field(json, "\"plan\"\\s*:\\s*\"([^\"]*)\""), field(json, "\"expected_overhead\"\\s*:\\s*([0-9.eE+-]+)"));
+            blockRuns.add(b);
+        }
         if (onlyBlocks) {
             return;
         }
@@ -90,8 +99,12 @@ public final class BlocksBenchmark {
         long smallVoxels = (long) m[0] * m[1] * m[2];
         System.out.printf(Locale.ROOT, "in memory %s in %s: %.1f s, peak heap %.0f MB, %.3g us per voxel%n", memSize,
                 memHeap, w[0], w[1], w[0] / smallVoxels * 1e6);
-        System.out.printf(Locale.ROOT, "blocks and streaming cost %.2f x the in-memory time per voxel%n",
-                (b[0] / bigVoxels) / (w[0] / smallVoxels));
+        for (int i = 0; i < heaps.length; i++) {
+            double[] b = blockRuns.get(i);
+            System.out.printf(Locale.ROOT, "blocks and streaming in %s cost %.2f x the in-memory time per voxel,"
+                    + " %.2f x its peak heap%n", heaps[i], (b[0] / bigVoxels) / (w[0] / smallVoxels), b[1] / w[1]);
+        }
+        double[] b = blockRuns.get(blockRuns.size() - 1);
         if (spark) {
             String blockSize = blockSize(dir.resolve("blocks.json"));
             double[] s = run(sparkHeap == null ? heap : sparkHeap, true, concat(List.of("--master", "local[" + Runtime.getRuntime().availableProcessors()
@@ -102,6 +115,12 @@ public final class BlocksBenchmark {
                     s[0] / b[0]);
         }
         System.out.printf(Locale.ROOT, "load average at end: %s", Files.readString(Path.of("/proc/loadavg")));
+    }
+
+    /** @return the first group of a pattern in a record, or "?" */
+    private static String field(String json, String regex) {
+        java.util.regex.Matcher mm = java.util.regex.Pattern.compile(regex).matcher(json);
+        return mm.find() ? mm.group(1) : "?";
     }
 
     /** @return the core size the block run chose, from its record ("cores up to WxHxD") */

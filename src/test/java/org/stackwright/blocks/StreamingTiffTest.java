@@ -215,6 +215,71 @@ class StreamingTiffTest {
     }
 
     /**
+     * Two writers of one streamed output: the second is refused at once, naming the option, whether the output is a
+     * file or a folder of planes (volume.OutputClaim, as every other output of a run); after a commit or abort the
+     * name is free again and no claim file is left.
+     */
+    @Test
+    void aSecondWriterOfTheSameOutputIsRefused() throws IOException {
+        Path f = dir.resolve("busy.tif");
+        TiffStackSink first = new TiffStackSink("--output", f, 10, 10, 2, 32, VoxelSize.UNIT, false, false);
+        IllegalArgumentException e = assertThrows(IllegalArgumentException.class,
+                () -> new TiffStackSink("--output", f, 10, 10, 2, 32, VoxelSize.UNIT, true, false));
+        assertTrue(e.getMessage().startsWith("--output: another run is writing"), e.getMessage());
+        fill(first, 10, 10, 2, true, new int[] {10, 10, 2});
+        first.commit();
+        Path folder = dir.resolve("busy-planes");
+        PlaneFolderSink planes = new PlaneFolderSink("--output", folder, 8, 8, 2, 32, VoxelSize.UNIT);
+        e = assertThrows(IllegalArgumentException.class,
+                () -> new PlaneFolderSink("--output", folder, 8, 8, 2, 32, VoxelSize.UNIT));
+        assertTrue(e.getMessage().startsWith("--output: another run is writing"), e.getMessage());
+        planes.abort();
+        TiffStackSink again = new TiffStackSink("--output", f, 10, 10, 2, 32, VoxelSize.UNIT, true, false);
+        again.abort();
+        try (var list = Files.list(dir)) {
+            assertEquals(List.of("busy.tif"), list.map(p -> p.getFileName().toString()).toList(),
+                    "no claim, temporary or folder left");
+        }
+    }
+
+    /**
+     * A run that dies while writing (the process halts, no clean-up runs) leaves nothing under the output's name,
+     * and its claim dies with it: the next run writes the output.
+     */
+    @Test
+    void aCrashedWriterLeavesNothingUnderTheName() throws Exception {
+        Path f = dir.resolve("crashed.tif");
+        Process p = new ProcessBuilder(Path.of(System.getProperty("java.home"), "bin", "java").toString(), "-cp",
+                System.getProperty("java.class.path"), CrashingWriter.class.getName(), f.toString())
+                .redirectErrorStream(true).start();
+        String said = new String(p.getInputStream().readAllBytes(), java.nio.charset.StandardCharsets.UTF_8);
+        assertTrue(p.waitFor(120, java.util.concurrent.TimeUnit.SECONDS));
+        assertEquals(CrashingWriter.HALT, p.exitValue(), said);
+        assertTrue(said.contains("half written"), said);
+        assertFalse(Files.exists(f), "nothing under the output's name");
+        TiffStackSink next = new TiffStackSink("--output", f, 10, 10, 2, 32, VoxelSize.UNIT, false, false);
+        fill(next, 10, 10, 2, true, new int[] {10, 10, 2});
+        next.commit();
+        try (TiffPlaneSource s = TiffPlaneSource.open(f, "out")) {
+            readEverywhere(s, true);
+        }
+    }
+
+    /** Starts writing a stack, then halts the JVM as a crash would (no shutdown hooks, no abort). */
+    static final class CrashingWriter {
+        static final int HALT = 37;
+
+        public static void main(String[] args) {
+            TiffStackSink s = new TiffStackSink("--output", Path.of(args[0]), 10, 10, 2, 32, VoxelSize.UNIT, false,
+                    false);
+            fill(s, 10, 10, 1, true, new int[] {10, 10, 1});
+            System.out.println("half written");
+            System.out.flush();
+            Runtime.getRuntime().halt(HALT);
+        }
+    }
+
+    /**
      * A stack over 4 GB written as BigTIFF and read back (2048 x 2048 x 260 float, 4.36 GB of pixels; takes a few
      * minutes and needs 4.4 GB of disk): {@code mvn test -Dtest=StreamingTiffTest -Dstackwright.big=DIR}.
      */

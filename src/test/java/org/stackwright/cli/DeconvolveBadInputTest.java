@@ -32,6 +32,8 @@ import org.stackwright.psf.GaussianPsf;
 import org.stackwright.model.Camera;
 import org.stackwright.simulate.Simulation;
 import org.stackwright.simulate.Specimen;
+import org.stackwright.volume.OutputClaim;
+import org.stackwright.volume.OutputPaths;
 import org.stackwright.volume.TiffFiles;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
@@ -118,6 +120,16 @@ class DeconvolveBadInputTest {
 
     /** A deconvolve row: 4 fixed iterations on the good stack; the extra options replace or add to those. */
     private static BadInputTable.Case row(String name, int exit, String fragment, String... extra) {
+        return BadInputTable.cli(name, exit, fragment, args(name, extra));
+    }
+
+    /** A deconvolve row run while another run holds the claim on {@code busy} (volume.OutputClaim). */
+    private static BadInputTable.Case rowWhile(String name, Path busy, String fragment, String... extra) {
+        return BadInputTable.cliWhile(name, 2, fragment, () -> OutputClaim.take("--output", OutputPaths.real(busy)),
+                args(name, extra));
+    }
+
+    private static String[] args(String name, String... extra) {
         Map<String, String> o = new LinkedHashMap<>();
         o.put("--input", input("cells.tif", GOOD));
         o.put("--psf", input("psf.tif", psfVolume()));
@@ -136,7 +148,7 @@ class DeconvolveBadInputTest {
                 a.add(v);
             }
         });
-        return BadInputTable.cli(name, exit, fragment, a.toArray(String[]::new));
+        return a.toArray(String[]::new);
     }
 
     private static String[] concatenate(String[] a, String... b) {
@@ -292,6 +304,18 @@ class DeconvolveBadInputTest {
                 input("dark-blocks.tif", constant(32, 32, 4, 100)), "--block-size", "16x16x12"));
         t.add(row("blocks in an explicit size run", 0, "global settings for 4 blocks (2x2x1)", "--block-size", "16x16x12",
                 "--iterations", "3", "--stop", "fixed"));
+        // a streamed output is claimed by its sink, the record beside it by the block path (blocks.TiffStackSink,
+        // blocks.PlaneFolderSink, cli.StreamingRun): a second run is refused before any work
+        Path busy = FILES.path("busy-blocks.tif");
+        t.add(rowWhile("two runs writing one streamed output at once", busy, "--output: another run is writing "
+                + OutputPaths.real(busy), "--block-size", "16x16x12", "--output", busy.toString(), "--overwrite"));
+        Path busyPlanes = FILES.path("busy-planes");
+        t.add(rowWhile("two runs writing one folder of planes at once", busyPlanes, "--output: another run is writing "
+                + OutputPaths.real(busyPlanes), "--block-size", "16x16x12", "--output", busyPlanes + "/"));
+        Path busyRecord = FILES.path("busy-blocks.json");
+        t.add(rowWhile("two runs writing one record of a block run at once", busyRecord, "--record: another run is"
+                + " writing " + OutputPaths.real(busyRecord), "--block-size", "16x16x12", "--record",
+                busyRecord.toString()));
         trustRows(t, good);
         return t.stream();
     }
@@ -359,11 +383,12 @@ class DeconvolveBadInputTest {
 
     /**
      * A stack larger than the memory a run may use ({@link MemoryCheck#LIMIT_PROPERTY} lowers it to 2 MB, below the
-     * estimate of this 64x64x16 run, about 5 MB) no longer fails: it runs in blocks that fit (blocks.BlockSizing).
+     * estimate of this 64x64x16 run, about 5 MB) no longer fails: it runs in the blocks of least work that fit
+     * (blocks.BlockSizing: 8 blocks; the earlier rule of the largest cores made 60).
      */
     private static BadInputTable.Case memoryRow() {
-        BadInputTable.Case inner = row("stack larger than the memory: runs in blocks", 0, "global settings for 60 blocks",
-                "--input", input("cells-64.tif", cells(64, 64, 16, 6)));
+        BadInputTable.Case inner = row("stack larger than the memory: runs in blocks", 0,
+                "global settings for 8 blocks (4x2x1)", "--input", input("cells-64.tif", cells(64, 64, 16, 6)));
         return new BadInputTable.Case(inner.name(), () -> {
             System.setProperty(MemoryCheck.LIMIT_PROPERTY, "2");
             try {
