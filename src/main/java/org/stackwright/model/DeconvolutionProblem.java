@@ -626,6 +626,22 @@ public final class DeconvolutionProblem {
     }
 
     /**
+     * The fit of an estimate, as a stop rule or the run record reads it: the estimate clipped at zero, blurred once.
+     *
+     * @param x grid-sized estimate, not modified
+     * @return {mean data fit per trusted pixel, what noise alone leaves in it ({@link #expectedFit(float[])})}
+     */
+    public double[] fitOfEstimate(float[] x) {
+        float[] pos = new float[x.length];
+        for (int i = 0; i < x.length; i++) {
+            pos[i] = Math.max(x[i], 0f);
+        }
+        float[] mu = new float[x.length];
+        forward.apply(pos, mu);
+        return new double[] {fit(mu) / trustedPixels(), expectedFit(mu)};
+    }
+
+    /**
      * What noise alone leaves in the data fit under a given model: the mean over trusted pixels of the expected
      * divergence of a Poisson count of mean H x + b ({@link PoissonDeviance}); 1/2 for bright data, more for dim data.
      *

@@ -94,20 +94,9 @@ public final class AutoStop {
             DeconvolutionProblem p = DeconvolutionProblem.withHeldOut(data, psf, mask, boundary, camera, backgroundAdu,
                     workers, ctx.fft(), HELD_OUT_SHARE, SEED);
             sol = trial.solver().solve(p, trialContext, recorder);
-            expected = expectedFit(p, sol.estimate());
+            expected = p.fitOfEstimate(sol.estimate())[1];
         }
         return choice(sol, recorder.history(), max, s.regularized() ? null : recorder.fits(), expected);
-    }
-
-    /** @return what noise alone leaves in the fit of the trial's estimate (1/2 for bright data, more for dim) */
-    private static double expectedFit(DeconvolutionProblem p, float[] x) {
-        float[] pos = new float[x.length];
-        for (int i = 0; i < x.length; i++) {
-            pos[i] = Math.max(x[i], 0f);
-        }
-        float[] mu = new float[x.length];
-        p.forward().apply(pos, mu);
-        return p.expectedFit(mu);
     }
 
     /**

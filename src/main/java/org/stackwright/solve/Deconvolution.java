@@ -171,7 +171,7 @@ public final class Deconvolution {
             }
             sol = solver.solve(problem, ctx, listener);
             NumericalGuard.estimate(s.method(), sol);
-            fit = finalFit(problem, sol.estimate());
+            fit = problem.fitOfEstimate(sol.estimate());
             model = withModel ? problem.predictedAboveOffset(sol.estimate()) : null;
             if (after != null) {
                 after.run(problem, sol);
@@ -218,17 +218,6 @@ public final class Deconvolution {
         r.put("peak_memory_estimate_bytes", need);
         r.put("result_units", "ADU above the camera offset (background removed)");
         return new Outcome(result, sol, r, model, used);
-    }
-
-    /** @return {mean fit per trusted pixel, what noise alone leaves} of the final estimate (one more blur) */
-    private static double[] finalFit(DeconvolutionProblem problem, float[] x) {
-        float[] pos = new float[x.length];
-        for (int i = 0; i < x.length; i++) {
-            pos[i] = Math.max(x[i], 0f);
-        }
-        float[] work = new float[x.length];
-        problem.forward().apply(pos, work);
-        return new double[] {problem.fit(work) / problem.trustedPixels(), problem.expectedFit(work)};
     }
 
     /**
