@@ -86,9 +86,12 @@ public final class SeamDetector {
      * @param blendY width of the blending bands of horizontal seams, 0 when none
      * @param borrowed "x" or "y" when that axis showed no period of its own and the other axis's step was found to
      *     fit it (with {@link #OTHER_AXIS} of the usual evidence per seam), else ""
+     * @param folded the axes ("x", "y", "yx") whose step came from the shading every tile shares
+     *     ({@link SeamTemplate}), because their seams are too faint at each border, and ("x=2", "y=2") those with two
+     *     tiles, whose step is the one seam that cuts the axis into two whole tiles; else ""
      */
     public record Tiling(int stepX, int stepY, int[] phaseX, int phaseY, int overlapX, int blendX, int blendY,
-            String borrowed) {
+            String borrowed, String folded) {
     }
 
     /**
@@ -160,6 +163,37 @@ public final class SeamDetector {
                 c = guided;
             }
         }
+        // an axis still without a period: the shading every tile shares may show the step (SeamTemplate)
+        String folded = "";
+        if (py == null) {
+            SeamTemplate.Fold fy = SeamTemplate.find(SeamTemplate.profiles(image, false), anchors(rows));
+            if (fy != null && fy.found()) {
+                folded = "y";
+                py = new SeamComb.Period(fy.pitch(), fy.phase(), 0, 0, 0);
+                rows = withTeeth(rows, fy, h, stepWidth, 0, w);
+                c = columns(image, rows, tooth, threshold, stepWidth, 0);
+            }
+        }
+        if (c.step() == 0) {
+            SeamTemplate.Fold fx = SeamTemplate.find(SeamTemplate.profiles(image, true), anchors(c.bands()));
+            if (fx != null && fx.found()) {
+                folded += "x";
+                int[] ph = new int[c.phases().length];
+                Arrays.fill(ph, fx.phase());
+                c = new Columns(withTeeth(c.bands(), fx, w, stepWidth, 0, h), c.periods(), ph, c.blend(), fx.pitch());
+            }
+        }
+        // two tiles along an axis: one seam that cuts it into two whole tiles (give or take an overlap) is the step
+        if (py == null && rows.size() == 1 && halves(rows.get(0), h)) {
+            py = new SeamComb.Period(anchors(rows)[0], 0, 0, 0, 0);
+            folded += "y=2";
+        }
+        List<Band> colsSoFar = c.bands();
+        if (c.step() == 0 && colsSoFar.size() == c.phases().length && colsSoFar.stream().allMatch(b -> halves(b, w)
+                && b.start() == colsSoFar.get(0).start())) {
+            c = new Columns(c.bands(), c.periods(), c.phases(), c.blend(), anchors(c.bands())[0]);
+            folded += "x=2";
+        }
         List<Band> cols = c.bands();
         SeamComb.Period[] px = c.periods();
         int[] phases = c.phases();
@@ -172,7 +206,7 @@ public final class SeamDetector {
             }
         }
         Tiling tiling = new Tiling(stepX, py == null ? 0 : py.pitch(), phases, py == null ? -1 : py.phase(),
-                snakeShift(phases, stepX), blendX, blendY, borrowed);
+                snakeShift(phases, stepX), blendX, blendY, borrowed, folded);
         boolean regular = (py != null || rows.isEmpty()) && (stepX > 0 || cols.isEmpty());
         List<Line> colLines = lines(SeamEvidence.of(image, true, 0, h), cols, threshold);
         List<Line> rowLines = lines(ey, rows, threshold);
@@ -505,6 +539,43 @@ public final class SeamDetector {
                     strength, from, to, looks);
         }
         return new Band(first, last, strength, from, to, looks);
+    }
+
+    /** @return whether the band's border cuts an axis of length n into two tiles of its step plus an overlap */
+    private static boolean halves(Band b, int n) {
+        int at = b.looks().contains("gap") ? b.start() : b.centre();
+        return at >= SeamComb.MIN_PITCH && n - 2 * at >= 0 && n - 2 * at <= MAX_BAND;
+    }
+
+    /** @return the border of each band found so far (a gap's first zero, else its centre), ascending: anchors for a fold */
+    private static int[] anchors(List<Band> bands) {
+        return bands.stream().mapToInt(b -> b.looks().contains("gap") ? b.start() : b.centre()).distinct().sorted()
+                .toArray();
+    }
+
+    /**
+     * The bands found so far plus a band of the requested width at every seam of the fold that none of them covers
+     * (within 2 px); the first and last tiles are whole, at least one step wide.
+     */
+    private static List<Band> withTeeth(List<Band> found, SeamTemplate.Fold f, int n, int stepWidth, int from,
+            int to) {
+        List<Band> out = new ArrayList<>(found);
+        for (int b = f.phase(); b < n; b += f.pitch()) {
+            if (b < f.pitch() - SeamComb.END_SLACK || n - b < f.pitch() - SeamComb.END_SLACK) {
+                continue;
+            }
+            boolean covered = false;
+            for (Band o : found) {
+                covered |= b >= o.start() - 2 && b <= o.end() + 2;
+            }
+            if (!covered) {
+                out.add(new Band(Math.max(0, b - stepWidth / 2), Math.min(n, b - stepWidth / 2 + stepWidth),
+                        f.corner(), from, to, List.of("shading")));
+            }
+        }
+        out.sort((x, y) -> x.start() != y.start() ? Integer.compare(x.start(), y.start()) : Integer.compare(x.from(),
+                y.from()));
+        return out;
     }
 
     /**

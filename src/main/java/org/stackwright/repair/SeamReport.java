@@ -41,6 +41,10 @@ final class SeamReport {
         tiling.put("tile_width", t.stepX() > 0 && overlap > 0 ? t.stepX() + overlap : t.stepX());
         tiling.put("tile_height", t.stepY() > 0 && overlap > 0 ? t.stepY() + overlap : t.stepY());
         tiling.put("step_from_other_axis", t.borrowed().isEmpty() ? null : t.borrowed());
+        String shaded = t.folded().replace("x=2", "").replace("y=2", "");
+        String halved = (t.folded().contains("x=2") ? "x" : "") + (t.folded().contains("y=2") ? "y" : "");
+        tiling.put("step_from_shading", shaded.isEmpty() ? null : shaded);
+        tiling.put("step_from_one_seam", halved.isEmpty() ? null : halved);
         r.record("tiling", tiling);
         r.record("lines_not_seams", Map.of("vertical", lines(f.columnLines()), "horizontal", lines(f.rowLines())));
         int[] cx = SeamDetector.centres(f.columns());
@@ -59,6 +63,17 @@ final class SeamReport {
             r.line(String.format(Locale.ROOT, "the %s seams show no period of their own: the step of the %s seams (%d "
                     + "px) fits them with weaker evidence per seam (square tiles); check the mask there",
                     y ? "horizontal" : "vertical", y ? "vertical" : "horizontal", y ? t.stepY() : t.stepX()));
+        }
+        if (!shaded.isEmpty()) {
+            r.line(String.format(Locale.ROOT, "the seams along %s are too faint at each border: their step comes from "
+                    + "the shading every tile shares, and the seams from where that shading is darkest; check the mask "
+                    + "there", shaded.length() == 2 ? "x and y" : shaded));
+        }
+        for (String axis : new String[] {"x", "y"}) {
+            if (t.folded().contains(axis + "=2")) {
+                r.line(String.format(Locale.ROOT, "two tiles along %s: the one seam cuts the image into two whole "
+                        + "tiles, so its position is taken as the step (an uncropped mosaic)", axis));
+            }
         }
         if (!f.columnLines().isEmpty() || !f.rowLines().isEmpty()) {
             r.line(String.format(Locale.ROOT, "not seams (they do not repeat with the tile step): vertical lines at x = "

@@ -1,0 +1,436 @@
+package org.stackwright.repair;
+
+import java.util.Arrays;
+
+import org.stackwright.volume.Volume;
+
+/**
+ * The tile step along one axis from the shading every tile shares, for seams too faint to show at a single border
+ * (tiles of equal gain whose vignetting makes a step of 2-3 % and a gentle corner; blended overlaps). Each block of
+ * {@link #BLOCK} lines gives a profile along the axis: the log of the median of its lines at every position (the
+ * median drops most of the specimen), cleaned of narrow lines by a running median of 5. At a candidate step P and
+ * phase the profile is cut into tiles and fitted by a level per tile and block plus one template over the tile, common
+ * to all tiles and blocks, both by medians in turn (a robust two-way fit: Tukey, "Exploratory Data Analysis",
+ * Addison-Wesley 1977, ch. 11, median polish). The score is the share of the absolute residual the template removes.
+ * The specimen does not repeat with the tiles and a template at a wrong step averages it away; the shading does, so
+ * the true step stands out of the scores of all steps (their median is the empirical null).
+ *
+ * <p>Where the seam lies in the tile is read from the template itself: vignetting darkens every tile towards its
+ * borders, so the template, repeated, has its sharpest valley (a convex corner: the slope jumps up) at the seam. A
+ * smooth trend over the whole image folded at a wrong step makes a peak there instead. The exact step is the one
+ * whose template has the sharpest corner (a step a pixel off smears it over the tiles); a seam already found (a gap
+ * of zeros) fixes the phase.
+ */
+final class SeamTemplate {
+
+    /** lines per block of the profiles */
+    static final int BLOCK = 16;
+    /**
+     * the cross-validated score a tiling needs; on invented mosaics without seams along the axis the best of all steps
+     * scored at most 0.0063, with seams of shading only 0.027 to 0.070 (our measurement, {@code MosaicSeamTest})
+     */
+    static final double SCORE = 0.015;
+    /** the template's corner at the seam must exceed the spread of its corners elsewhere this many times */
+    static final double CORNER = 3;
+    /** pixels of each straight-line fit of the template's corner test */
+    static final int FIT = 8;
+    /** phases tried per step in the search (the fit is nearly blind to the phase; the corner fixes it later) */
+    static final int PHASES = 4;
+    /** a tiling needs this many tiles along the axis: two tiles fold a smooth trend as readily as a shading */
+    static final int MIN_TILES = 3;
+
+    /**
+     * @param pitch the tile step
+     * @param phase the first seam border (in [0, pitch))
+     * @param score the cross-validated share of the absolute residual the template removes
+     * @param corner the template's corner at the seam over the spread of its corners elsewhere
+     */
+    record Fold(int pitch, int phase, double score, double corner) {
+
+        /** @return whether the evidence passes both limits */
+        boolean found() {
+            return score >= SCORE && corner >= CORNER;
+        }
+    }
+
+    /** Block profiles along one axis: log medians, running median 5; positions with missing data are not valid. */
+    static final class Profiles {
+        final double[][] m;
+        final boolean[] valid;
+
+        private Profiles(double[][] m, boolean[] valid) {
+            this.m = m;
+            this.valid = valid;
+        }
+
+        int length() {
+            return valid.length;
+        }
+    }
+
+    private SeamTemplate() {
+    }
+
+    /** @return the block profiles of the image along x (alongX) or y */
+    static Profiles profiles(Volume v, boolean alongX) {
+        int w = v.width();
+        int h = v.height();
+        int n = alongX ? w : h;
+        int lines = alongX ? h : w;
+        int step = alongX ? 1 : w;
+        int lineStep = alongX ? w : 1;
+        float[] f = v.data();
+        int perSlice = Math.max(1, lines / BLOCK);
+        double[][] m = new double[perSlice * v.depth()][n];
+        long[] zeros = new long[n];
+        double[] col = new double[lines];
+        double[] win = new double[5];
+        for (int z = 0; z < v.depth(); z++) {
+            for (int j = 0; j < perSlice; j++) {
+                int l0 = j * BLOCK;
+                int l1 = j == perSlice - 1 ? lines : l0 + BLOCK;
+                double[] raw = new double[n];
+                for (int i = 0; i < n; i++) {
+                    int c = 0;
+                    for (int l = l0; l < l1; l++) {
+                        float val = f[z * w * h + l * lineStep + i * step];
+                        if (val == 0) {
+                            zeros[i]++;
+                        }
+                        col[c++] = val;
+                    }
+                    raw[i] = Math.log(Math.max(1, RobustStats.medianInPlace(col, c)));
+                }
+                double[] row = m[z * perSlice + j];
+                for (int i = 0; i < n; i++) {
+                    int c = 0;
+                    for (int d = -2; d <= 2; d++) {
+                        win[c++] = raw[Math.min(n - 1, Math.max(0, i + d))];
+                    }
+                    row[i] = RobustStats.medianInPlace(win, c);
+                }
+            }
+        }
+        boolean[] valid = new boolean[n];
+        long all = (long) lines * v.depth();
+        for (int i = 0; i < n; i++) {
+            valid[i] = true;
+            for (int d = -2; d <= 2; d++) {
+                int q = Math.min(n - 1, Math.max(0, i + d));
+                valid[i] &= zeros[q] < 0.5 * all;
+            }
+        }
+        return new Profiles(m, valid);
+    }
+
+    /**
+     * Searches all steps with at least {@link #MIN_TILES} tiles (every second step, then the neighbours of the best),
+     * then refines the best one by the template's corner.
+     *
+     * @param anchors seams already found along the axis (borders), may be empty
+     * @return the fold found (check {@link Fold#found()}), or null when the axis is too short or no tiling near the
+     *     best step starts at the image's first pixel with its darkest corner there and passes through the anchors
+     */
+    static Fold find(Profiles p, int[] anchors) {
+        int n = p.length();
+        int hi = n / MIN_TILES;
+        if (hi < SeamComb.MIN_PITCH) {
+            return null;
+        }
+        double[] score = new double[hi + 2];
+        Arrays.fill(score, Double.NEGATIVE_INFINITY);
+        int best = SeamComb.MIN_PITCH;
+        for (int s = SeamComb.MIN_PITCH; s <= hi; s += 2) {
+            scoreAt(p, s, score);
+            best = score[s] > score[best] ? s : best;
+        }
+        for (int s = Math.max(SeamComb.MIN_PITCH, best - 1); s <= Math.min(hi, best + 1); s++) {
+            scoreAt(p, s, score);
+            best = score[s] > score[best] ? s : best;
+        }
+        // a multiple of the step fits as well: take the smallest step that explains nearly as much
+        for (int div = MIN_TILES; div >= 2; div--) {
+            int q = Math.round(best / (float) div);
+            for (int s = Math.max(SeamComb.MIN_PITCH, q - 2); s <= Math.min(hi, q + 2); s++) {
+                scoreAt(p, s, score);
+                if (score[s] >= 0.9 * score[best]) {
+                    best = s;
+                }
+            }
+        }
+        double top = score[best];
+        // the exact step: the sharpest corner of the template near the best score, among the tilings whose first tile
+        // starts at the image's first pixel and whose last tile ends at the last one, give or take an overlap (an
+        // uncropped mosaic), and whose seams pass through every seam already found
+        int reach = Math.max(3, best / 20);
+        Fold pick = null;
+        for (int s = Math.max(SeamComb.MIN_PITCH, best - reach); s <= Math.min(hi, best + reach); s++) {
+            if (!onTeeth(anchors, s, 0) || n % s > SeamDetector.MAX_BAND) {
+                continue;
+            }
+            double[] t = template(p, s, 0);
+            int u = sharpest(t);
+            if (Math.min(u, s - u) > 2) {
+                continue;
+            }
+            double c = cornerAtZero(u == 0 ? t : template(p, s, u));
+            if (pick == null || c > pick.corner()) {
+                pick = new Fold(s, 0, top, c);
+            }
+        }
+        return pick;
+    }
+
+    /** @return whether every anchor lies within 1 px of a seam of step s, phase ph */
+    private static boolean onTeeth(int[] anchors, int s, int ph) {
+        for (int a : anchors) {
+            int d = Math.floorMod(a - ph, s);
+            if (Math.min(d, s - d) > 1) {
+                return false;
+            }
+        }
+        return true;
+    }
+
+    /** The best cross-validated score of step s over {@link #PHASES} phases, kept in score[s] (computed once). */
+    private static void scoreAt(Profiles p, int s, double[] score) {
+        if (score[s] != Double.NEGATIVE_INFINITY) {
+            return;
+        }
+        for (int k = 0; k < PHASES; k++) {
+            score[s] = Math.max(score[s], score(p, s, k * s / PHASES));
+        }
+    }
+
+    /**
+     * @return the share of the absolute residual (tile levels only) that the template at step s, phase ph removes,
+     *     cross-validated: the template fitted to the even tiles is scored on the odd ones and the other way round, so
+     *     that a template fitted to noise or to a smooth trend that differs from tile to tile scores nothing or less
+     */
+    static double score(Profiles p, int s, int ph) {
+        Fit even = fit(p, s, ph, 0);
+        Fit odd = fit(p, s, ph, 1);
+        double crossed = even.residualOn(p, odd.template, 0) + odd.residualOn(p, even.template, 1);
+        return even.base > 0 ? 1 - crossed / even.base : 0;
+    }
+
+    /** @return the template over one tile at step s, phase ph (index 0 = the border at ph), fitted to all tiles */
+    static double[] template(Profiles p, int s, int ph) {
+        return fit(p, s, ph, -1).template;
+    }
+
+    /**
+     * A template and the tiling it was fitted on.
+     *
+     * @param base absolute residual of all tiles about their levels alone
+     */
+    private record Fit(double[] template, double base, int[] pos, int[] tile, int[] u, int cnt) {
+
+        /**
+         * @return the absolute residual of the tiles of the given parity (0 even, 1 odd) about their levels plus the
+         *     template t (fitted elsewhere), the levels fitted again for t
+         */
+        double residualOn(Profiles p, double[] t, int parity) {
+            double[][] level = new double[p.m.length][cnt == 0 ? 0 : tile[cnt - 1] + 1];
+            levels(p, pos, tile, cnt, t, u, level, new double[Math.max(1, p.length())]);
+            double sum = 0;
+            for (int j = 0; j < p.m.length; j++) {
+                for (int c = 0; c < cnt; c++) {
+                    if (tile[c] % 2 == parity) {
+                        sum += Math.abs(p.m[j][pos[c]] - level[j][tile[c]] - t[u[c]]);
+                    }
+                }
+            }
+            return sum;
+        }
+    }
+
+    /**
+     * Median polish of the profiles into a level per tile and block plus a template over the tile.
+     *
+     * @param parity the template from the even tiles (0), the odd ones (1) or all (-1)
+     */
+    private static Fit fit(Profiles p, int s, int ph, int parity) {
+        int n = p.length();
+        int blocks = p.m.length;
+        // tile index and position in the tile of every valid position
+        int[] pos = new int[n];
+        int[] tile = new int[n];
+        int[] u = new int[n];
+        int cnt = 0;
+        int firstTile = Math.floorDiv(-ph, s);
+        for (int i = 0; i < n; i++) {
+            if (p.valid[i]) {
+                pos[cnt] = i;
+                tile[cnt] = Math.floorDiv(i - ph, s) - firstTile;
+                u[cnt] = Math.floorMod(i - ph, s);
+                cnt++;
+            }
+        }
+        int tiles = cnt == 0 ? 0 : tile[cnt - 1] + 1;
+        double[][] level = new double[blocks][tiles];
+        double[] t = new double[s];
+        double[] buf = new double[Math.max(n, blocks * (tiles + 1))];
+        levels(p, pos, tile, cnt, t, u, level, buf);
+        double base = absResidual(p, pos, tile, u, cnt, null, level);
+        // the valid positions grouped by their position in the tile (a counting sort)
+        int[] start = new int[s + 1];
+        for (int c = 0; c < cnt; c++) {
+            start[u[c] + 1]++;
+        }
+        for (int q = 0; q < s; q++) {
+            start[q + 1] += start[q];
+        }
+        int[] byU = new int[cnt];
+        int[] fill = Arrays.copyOf(start, s);
+        for (int c = 0; c < cnt; c++) {
+            byU[fill[u[c]]++] = c;
+        }
+        for (int it = 0; it < 2; it++) {
+            // the template: median over blocks and tiles at each position in the tile
+            for (int q = 0; q < s; q++) {
+                int m = 0;
+                for (int j = 0; j < blocks; j++) {
+                    for (int i = start[q]; i < start[q + 1]; i++) {
+                        int c = byU[i];
+                        if (parity >= 0 && tile[c] % 2 != parity) {
+                            continue;
+                        }
+                        buf[m++] = p.m[j][pos[c]] - level[j][tile[c]];
+                    }
+                }
+                t[q] = m == 0 ? 0 : select(buf, m);
+            }
+            levels(p, pos, tile, cnt, t, u, level, buf);
+        }
+        return new Fit(t, base, pos, tile, u, cnt);
+    }
+
+    /** The level of each tile in each block: the median of the profile less the template over the tile. */
+    private static void levels(Profiles p, int[] pos, int[] tile, int cnt, double[] t, int[] u, double[][] level,
+            double[] buf) {
+        for (int j = 0; j < p.m.length; j++) {
+            int c = 0;
+            while (c < cnt) {
+                int k = tile[c];
+                int m = 0;
+                while (c < cnt && tile[c] == k) {
+                    buf[m++] = p.m[j][pos[c]] - t[u[c]];
+                    c++;
+                }
+                level[j][k] = select(buf, m);
+            }
+        }
+    }
+
+    private static double absResidual(Profiles p, int[] pos, int[] tile, int[] u, int cnt, double[] t,
+            double[][] level) {
+        double sum = 0;
+        for (int j = 0; j < p.m.length; j++) {
+            for (int c = 0; c < cnt; c++) {
+                sum += Math.abs(p.m[j][pos[c]] - level[j][tile[c]] - (t == null ? 0 : t[u[c]]));
+            }
+        }
+        return sum;
+    }
+
+    /** @return the position of the largest convex corner of the template repeated with its period */
+    static int sharpest(double[] t) {
+        double[] k = corners(t);
+        int best = 0;
+        for (int q = 1; q < t.length; q++) {
+            if (k[q] > k[best]) {
+                best = q;
+            }
+        }
+        return best;
+    }
+
+    /**
+     * @return the corner at position 0 over the robust spread (1.4826 MAD about the median) of the corners more than
+     *     {@link #FIT} positions away: how much sharper the valley at the seam is than the template's curvature
+     *     elsewhere
+     */
+    static double cornerAtZero(double[] t) {
+        double[] k = corners(t);
+        int s = t.length;
+        double[] rest = new double[s];
+        int m = 0;
+        for (int q = FIT + 1; q < s - FIT; q++) {
+            rest[m++] = k[q];
+        }
+        if (m < 8) {
+            return 0;
+        }
+        double[] ms = RobustStats.medianSigma(rest, m);
+        return ms[1] > 0 ? (k[0] - ms[0]) / ms[1] : 0;
+    }
+
+    /** Slope of a straight line over the FIT positions after q minus that over the FIT before, t repeated. */
+    private static double[] corners(double[] t) {
+        int s = t.length;
+        double[] k = new double[s];
+        double mt = 0.5 * (FIT - 1);
+        double den = 0;
+        for (int d = 0; d < FIT; d++) {
+            den += (d - mt) * (d - mt);
+        }
+        for (int q = 0; q < s; q++) {
+            double right = 0;
+            double left = 0;
+            for (int d = 0; d < FIT; d++) {
+                right += (d - mt) * t[Math.floorMod(q + d, s)];
+                left += (d - mt) * t[Math.floorMod(q - FIT + d, s)];
+            }
+            k[q] = (right - left) / den;
+        }
+        return k;
+    }
+
+    /** Median of the first m values of a (reordered): Hoare's selection, average of the two middle ones when even. */
+    static double select(double[] a, int m) {
+        if (m == 0) {
+            return 0;
+        }
+        double hiMid = kth(a, 0, m - 1, m / 2);
+        if (m % 2 == 1) {
+            return hiMid;
+        }
+        double loMid = a[0];
+        for (int i = 1; i < m / 2; i++) {
+            loMid = Math.max(loMid, a[i]);
+        }
+        return 0.5 * (loMid + hiMid);
+    }
+
+    private static double kth(double[] a, int lo, int hi, int k) {
+        while (lo < hi) {
+            double pivot = a[(lo + hi) >>> 1];
+            int i = lo;
+            int j = hi;
+            while (i <= j) {
+                while (a[i] < pivot) {
+                    i++;
+                }
+                while (a[j] > pivot) {
+                    j--;
+                }
+                if (i <= j) {
+                    double x = a[i];
+                    a[i] = a[j];
+                    a[j] = x;
+                    i++;
+                    j--;
+                }
+            }
+            if (k <= j) {
+                hi = j;
+            } else if (k >= i) {
+                lo = i;
+            } else {
+                return a[k];
+            }
+        }
+        return a[k];
+    }
+}
