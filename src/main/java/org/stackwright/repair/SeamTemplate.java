@@ -11,30 +11,34 @@ import org.stackwright.volume.Volume;
  * median drops most of the specimen), cleaned of narrow lines by a running median of 5. At a candidate step P and
  * phase the profile is cut into tiles and fitted by a level per tile and block plus one template over the tile, common
  * to all tiles and blocks, both by medians in turn (a robust two-way fit: Tukey, "Exploratory Data Analysis",
- * Addison-Wesley 1977, ch. 11, median polish). The score is the share of the absolute residual the template removes.
- * The specimen does not repeat with the tiles and a template at a wrong step averages it away; the shading does, so
- * the true step stands out of the scores of all steps (their median is the empirical null).
+ * Addison-Wesley 1977, ch. 11, median polish). The score is cross-validated: the template fitted to the even tiles
+ * is scored on the odd ones and the other way round, as the share of the absolute residual (about the tile levels
+ * alone) it removes. The specimen does not repeat with the tiles, and a smooth trend over the whole image differs
+ * from tile to tile: a template fitted to either predicts the other tiles no better than nothing (score near 0); the
+ * shading repeats, so the true step scores well above that.
  *
  * <p>Where the seam lies in the tile is read from the template itself: vignetting darkens every tile towards its
- * borders, so the template, repeated, has its sharpest valley (a convex corner: the slope jumps up) at the seam. A
- * smooth trend over the whole image folded at a wrong step makes a peak there instead. The exact step is the one
- * whose template has the sharpest corner (a step a pixel off smears it over the tiles); a seam already found (a gap
- * of zeros) fixes the phase.
+ * borders, so the template, repeated, has its sharpest valley (a convex corner: the slope jumps up) at the seam. The
+ * score is nearly blind to the exact step and phase, so only tilings of an uncropped mosaic are accepted: the first
+ * tile starts at the image's first pixel with the template's valley there, the last tile ends at the image's last
+ * pixel (give or take an overlap of up to {@link SeamDetector#MAX_BAND}), and the seams pass through every seam
+ * already found (a gap of zeros); of those near the best step, the one with the sharpest valley wins.
  */
 final class SeamTemplate {
 
     /** lines per block of the profiles */
     static final int BLOCK = 16;
     /**
-     * the cross-validated score a tiling needs; on invented mosaics without seams along the axis the best of all steps
-     * scored at most 0.0063, with seams of shading only 0.027 to 0.070 (our measurement, {@code MosaicSeamTest})
+     * the cross-validated score a tiling needs; on invented mosaics ({@code InventedMosaic}) without seams along the
+     * axis the best of all steps scored at most 0.0063, with seams of shading only 0.023 to 0.070 (our measurement,
+     * no published value)
      */
     static final double SCORE = 0.015;
     /** the template's corner at the seam must exceed the spread of its corners elsewhere this many times */
     static final double CORNER = 3;
     /** pixels of each straight-line fit of the template's corner test */
     static final int FIT = 8;
-    /** phases tried per step in the search (the fit is nearly blind to the phase; the corner fixes it later) */
+    /** phases tried per step in the search (the fit is nearly blind to the phase; the valley fixes it later) */
     static final int PHASES = 4;
     /** a tiling needs this many tiles along the axis: two tiles fold a smooth trend as readily as a shading */
     static final int MIN_TILES = 3;
