@@ -60,31 +60,28 @@ final class ConditionStacks {
 
         /** The trial's own fit at the held-out best over what noise explains, minus 1 (NaN when not recorded). */
         double fitExcess() {
-            @SuppressWarnings("unchecked")
-            Map<String, Object> settings = (Map<String, Object>) record.get("settings");
-            @SuppressWarnings("unchecked")
-            Map<String, Object> trial = (Map<String, Object>) settings.get("stop_trial");
-            Object e = trial == null ? null : trial.get("fit_excess_at_best");
-            return e instanceof Number n ? n.doubleValue() : Double.NaN;
+            return trialValue("fit_excess_at_best");
         }
 
         /** The spatially structured part of the trial's misfit ({@link ResidualStructure}; NaN when not recorded). */
         double structuredExcess() {
-            @SuppressWarnings("unchecked")
-            Map<String, Object> settings = (Map<String, Object>) record.get("settings");
-            @SuppressWarnings("unchecked")
-            Map<String, Object> trial = (Map<String, Object>) settings.get("stop_trial");
-            Object e = trial == null ? null : trial.get("structured_excess");
+            return trialValue("structured_excess");
+        }
+
+        /** @return a number of the record's stop trial, NaN when it is not there */
+        private double trialValue(String key) {
+            Object e = trial() == null ? null : trial().get(key);
             return e instanceof Number n ? n.doubleValue() : Double.NaN;
+        }
+
+        @SuppressWarnings("unchecked")
+        private Map<String, Object> trial() {
+            return (Map<String, Object>) ((Map<String, Object>) record.get("settings")).get("stop_trial");
         }
 
         /** True when the automatic stop took the fit's excess as model error. */
         boolean modelErrorStop() {
-            @SuppressWarnings("unchecked")
-            Map<String, Object> settings = (Map<String, Object>) record.get("settings");
-            @SuppressWarnings("unchecked")
-            Map<String, Object> trial = (Map<String, Object>) settings.get("stop_trial");
-            return Boolean.TRUE.equals(trial.get("model_error_stop"));
+            return Boolean.TRUE.equals(trial().get("model_error_stop"));
         }
     }
 
