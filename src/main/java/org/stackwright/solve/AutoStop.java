@@ -36,12 +36,12 @@ import org.stackwright.volume.Volume;
  * blur leaves blurred, smooth misfit, whereas a wrong noise model (camera values found a little off on dim data, the
  * pixel-to-pixel gain differences of an sCMOS camera on bright data) raises the fit just as much with misfit that
  * is each pixel's own, and is no error of the blur (on the second generator's stacks the rule fired there without
- * this condition and stopped 14-15% above the best error). For plain Richardson-Lucy the trial then takes the excess
- * of its fit at the held-out best as the model error's share mu and stops at the first iteration whose fit is within
- * noise plus model
- * error, the generalized discrepancy principle ||H x - y|| &lt;= delta + eta (Tikhonov, Goncharsky, Stepanov &amp;
- * Yagola, "Numerical Methods for the Solution of Ill-Posed Problems", Kluwer 1995, ch. 1; the residual norm of
- * noise alone delta, of the model error eta): with the mean divergence per pixel about half the squared residual per
+ * this condition and stopped 14-15% above the best error). The structure is measured on the trial's last estimate
+ * (the held-out best plus the patience), on the pixels it was fitted to. For plain Richardson-Lucy the trial then
+ * takes the excess of its fit at the held-out best as the model error's share mu and stops at the first iteration
+ * whose fit is within noise plus model error, the generalized discrepancy principle ||H x - y|| &lt;= delta + eta
+ * (Tikhonov, Goncharsky, Stepanov &amp; Yagola, "Numerical Methods for the Solution of Ill-Posed Problems", Kluwer
+ * 1995, ch. 1; the residual norm of noise alone delta, of the model error eta): with the mean divergence per pixel about half the squared residual per
  * pixel, e (expected) = delta^2 / 2N and mu = eta^2 / 2N, so the fit must reach e + mu + 2 sqrt(e mu). Regularised
  * methods are left out: their fit sits above the noise on purpose.
  */
