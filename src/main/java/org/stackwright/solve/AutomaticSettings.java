@@ -51,6 +51,12 @@ public final class AutomaticSettings {
                 t.put("trial_iterations", stop.heldOut().length);
                 t.put("trial_seconds", stop.trialSeconds());
                 t.put("model_error_stop", stop.modelErrorStop());
+                if (!Double.isNaN(stop.fitExcess())) {
+                    t.put("fit_excess_at_best", stop.fitExcess());
+                }
+                if (!Double.isNaN(stop.structuredExcess())) {
+                    t.put("structured_excess", stop.structuredExcess());
+                }
                 t.put("held_out_history", stop.heldOut());
                 m.put("stop_trial", t);
             }
