@@ -90,6 +90,84 @@ final class RobustStats {
         return m;
     }
 
+    /** tuning constant of {@link #background}, in units of the lower half's median deviation */
+    static final double BACKGROUND_C = 4;
+
+    /**
+     * The level of the background under a specimen that only adds to it (cells, spots and fibres brighter than the
+     * background): Tukey's biweight centred on the half-sample mode, its scale taken from the values below the
+     * centre only (the background's own spread: a bright specimen widens the upper side alone), recentred three
+     * times. Where the median and a plain biweight move with the amount of specimen (by several per cent between
+     * tiles of one mosaic), this stays on the background. Half-sample mode: Bickel &amp; Fruehwirth, "On a fast,
+     * robust estimator of the mode", Comput. Stat. Data Anal. 50:3500-3530, 2006; the lower-half scale is common
+     * practice for backgrounds, no single source.
+     *
+     * @return the background level of the first n values (not modified); NaN when n is 0
+     */
+    static double background(double[] v, int n) {
+        if (n < 3) {
+            return median(v, n);
+        }
+        double m = halfSampleMode(v, n);
+        double[] d = new double[n];
+        for (int round = 0; round < 3; round++) {
+            int k = 0;
+            for (int i = 0; i < n; i++) {
+                if (v[i] < m) {
+                    d[k++] = m - v[i];
+                }
+            }
+            double scale = BACKGROUND_C * median(d, k);
+            if (!(scale > 0)) {
+                return m;
+            }
+            double sw = 0;
+            double swx = 0;
+            for (int i = 0; i < n; i++) {
+                double u = (v[i] - m) / scale;
+                if (Math.abs(u) < 1) {
+                    double wgt = (1 - u * u) * (1 - u * u);
+                    sw += wgt;
+                    swx += wgt * v[i];
+                }
+            }
+            m = swx / sw;
+        }
+        return m;
+    }
+
+    /**
+     * Half-sample mode (Bickel &amp; Fruehwirth 2006, section 2): of the sorted values keep the shortest run holding
+     * half of them, repeatedly, until at most three are left; their middle (the mean of the closer two of three).
+     *
+     * @return the mode of the first n values (not modified)
+     */
+    static double halfSampleMode(double[] v, int n) {
+        double[] a = Arrays.copyOf(v, n);
+        Arrays.sort(a);
+        int lo = 0;
+        int len = n;
+        while (len > 3) {
+            int h = (len + 1) / 2;
+            int best = lo;
+            double width = Double.POSITIVE_INFINITY;
+            for (int i = lo; i + h <= lo + len; i++) {
+                if (a[i + h - 1] - a[i] < width) {
+                    width = a[i + h - 1] - a[i];
+                    best = i;
+                }
+            }
+            lo = best;
+            len = h;
+        }
+        if (len == 3) {
+            double left = a[lo + 1] - a[lo];
+            double right = a[lo + 2] - a[lo + 1];
+            return left < right ? 0.5 * (a[lo] + a[lo + 1]) : right < left ? 0.5 * (a[lo + 1] + a[lo + 2]) : a[lo + 1];
+        }
+        return len == 2 ? 0.5 * (a[lo] + a[lo + 1]) : a[lo];
+    }
+
     /** Median of 9 values (sorted in place; the array is modified). */
     static float median9(float[] a) {
         // partial selection: the 5 smallest in order, the 5th is the median

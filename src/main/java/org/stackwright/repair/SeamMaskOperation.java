@@ -20,8 +20,9 @@ import org.stackwright.volume.VoxelSize;
  * {@code seam-mask}: a mask of the tile seams of a stitched image, from the tile layout ({@link TileLayout}, checked
  * against the image when one is given) or found in the image from the periodicity of the tiling
  * ({@link SeamDetector}, reported by {@link SeamReport}); optionally reports per-tile gains ({@link TileLevelling},
- * {@code level}), or corrects shading and gains in one step ({@code level-tiles}: first the shading all tiles share,
- * {@link TileShading}, then the gains on the corrected image), and, only when asked for, writes a levelled copy.
+ * {@code level}), or corrects shading and gains in one step ({@code level-tiles}: the shading all tiles share and each
+ * tile's background level, {@link TileShading}, then the gains: the background levels where they agree with the
+ * seams, else the seam gains on the corrected image, {@link BackgroundGains}), and, only when asked for, writes a levelled copy.
  * {@code level-tiles} replaces the older {@code shading}, which needed {@code level} beside it; old commands and
  * macros with {@code level shading} still run (the old key is an alias).
  */
@@ -137,17 +138,21 @@ public final class SeamMaskOperation implements Operation {
         if (level) {
             InputChecks.checkOffset("input", img, v.number("offset"), 0, ctx);
             Volume base = img;
+            TileLevelling.Gains g;
             if (levelTiles) {
-                ctx.progress(0.5, "estimating the shading of the tiles");
-                TileShading.Flat flat = TileShading.estimate(img, colBands, rowBands, v.number("offset"));
-                ShadingReport.report(flat, r);
-                base = TileShading.apply(img, colBands, rowBands, flat, v.number("offset"));
-                r.image("flat-field", ImagePlusAdapter.toImagePlus(ShadingReport.picture(flat, img.voxel()),
+                ctx.progress(0.5, "estimating the shading and the gains of the tiles");
+                BackgroundGains.Choice choice = BackgroundGains.estimate(img, colBands, rowBands, v.integer("strip"),
+                        v.number("offset"));
+                ShadingReport.report(choice.flat(), r);
+                ShadingReport.gainSource(choice, r, ctx);
+                r.image("flat-field", ImagePlusAdapter.toImagePlus(ShadingReport.picture(choice.flat(), img.voxel()),
                         input.getTitle() + "-flat-field"));
+                base = choice.corrected();
+                g = choice.gains();
+            } else {
+                ctx.progress(0.7, "estimating the gains of the tiles");
+                g = TileLevelling.estimate(base, colBands, rowBands, v.integer("strip"), v.number("offset"));
             }
-            ctx.progress(0.7, "estimating the gains of the tiles");
-            TileLevelling.Gains g = TileLevelling.estimate(base, colBands, rowBands, v.integer("strip"),
-                    v.number("offset"));
             r.record("tile_gains", g.gains());
             r.record("tile_gain_rms_log_misfit", g.rmsLogResidual());
             for (int row = 0; row < g.rows(); row++) {
