@@ -56,8 +56,9 @@ public final class SeamMaskOperation implements Operation {
                         + "need half of it in each tile)"),
                 Param.flag("level", "estimate a gain per tile from the bands beside the seams and report it"),
                 Param.flag("level-tiles", "shading and gain correction of the tiles in one step: estimate the "
-                        + "shading all tiles share (a flat field from the mosaic itself), take it out, then estimate "
-                        + "a gain per tile on the corrected image (implies level)").withAlias("shading"),
+                        + "shading all tiles share (a flat field from the mosaic itself) with each tile's background "
+                        + "level, take it out, then a gain per tile: the background levels where they agree with the "
+                        + "seams, else from the seams (implies level)").withAlias("shading"),
                 Param.number("offset", 0.0, -1e9, 1e9, "ADU", "level: camera offset (dark level) of the input"),
                 Param.integer("strip", 4, 1, 1000, "level: pixels used on each side of a seam"),
                 Param.outputImage("output", true, "the 8-bit seam mask, 255 = seam (TIFF)"),
