@@ -23,9 +23,9 @@ final class BackgroundGains {
     /**
      * rms misfit (log units) of the seam ratios against the background levels above which the levels are not used.
      * Measured with MosaicShadingTest's generator (10 seeds each): 0.5-2.7 % where all tiles share a background of
-     * 1000 photons, 1.1-4.9 % at 300, 2.5-7.7 % at 60; where tissue brighter than the rest covers part of the mosaic,
-     * 3.7-8.8 % at 1.1 times (the levels are then still no worse than the seams), 7.3-10.4 % at 1.2 times (the levels
-     * are worse), 27-35 % at 2 times. Our choice between those, no published value.
+     * 1000 photons, 1.0-5.0 % at 300, 2.5-7.8 % at 60; where tissue brighter than the rest covers part of the mosaic,
+     * 3.7-8.8 % at 1.1 times (the levels are then still no worse than the seams), 7.2-10.2 % at 1.2 times (the levels
+     * are worse), 27-34 % at 2 times. Our choice between those, no published value.
      */
     static final double AGREEMENT = 0.06;
 

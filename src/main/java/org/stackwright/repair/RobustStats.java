@@ -96,8 +96,8 @@ final class RobustStats {
     /**
      * The level of the background under a specimen that only adds to it (cells, spots and fibres brighter than the
      * background): Tukey's biweight centred on the half-sample mode, its scale taken from the values below the
-     * centre only (the background's own spread: a bright specimen widens the upper side alone), recentred three
-     * times. Where the median and a plain biweight move with the amount of specimen (by several per cent between
+     * centre only (the background's own spread: a bright specimen widens the upper side alone), recentred until it
+     * settles. Where the median and a plain biweight move with the amount of specimen (by several per cent between
      * tiles of one mosaic), this stays on the background. Half-sample mode: Bickel &amp; Fruehwirth, "On a fast,
      * robust estimator of the mode", Comput. Stat. Data Anal. 50:3500-3530, 2006; the lower-half scale is common
      * practice for backgrounds, no single source.
@@ -110,7 +110,7 @@ final class RobustStats {
         }
         double m = halfSampleMode(v, n);
         double[] d = new double[n];
-        for (int round = 0; round < 3; round++) {
+        for (int round = 0; round < 50; round++) {
             int k = 0;
             for (int i = 0; i < n; i++) {
                 if (v[i] < m) {
@@ -131,7 +131,11 @@ final class RobustStats {
                     swx += wgt * v[i];
                 }
             }
-            m = swx / sw;
+            double next = swx / sw;
+            if (Math.abs(next - m) < 1e-9 * scale) {
+                return next;
+            }
+            m = next;
         }
         return m;
     }
