@@ -67,10 +67,21 @@ final class RobustStats {
             dev[i] = Math.abs(v[i] - m);
         }
         double scale = BIWEIGHT_C * median(dev, n);
-        if (!(scale > 0)) {
-            return m;
-        }
+        return recentred(v, n, m, centre -> scale);
+    }
+
+    /**
+     * Tukey's biweight iterated from the centre m until it settles (at most 50 steps): each step the weighted mean
+     * with weights (1 - u^2)^2, u = (x - m) / scale, scale given by scaleAt(m).
+     *
+     * @return the settled centre; m itself when the scale is not positive
+     */
+    private static double recentred(double[] v, int n, double m, java.util.function.DoubleUnaryOperator scaleAt) {
         for (int it = 0; it < 50; it++) {
+            double scale = scaleAt.applyAsDouble(m);
+            if (!(scale > 0)) {
+                return m;
+            }
             double sw = 0;
             double swx = 0;
             for (int i = 0; i < n; i++) {
@@ -108,36 +119,16 @@ final class RobustStats {
         if (n < 3) {
             return median(v, n);
         }
-        double m = halfSampleMode(v, n);
         double[] d = new double[n];
-        for (int round = 0; round < 50; round++) {
+        return recentred(v, n, halfSampleMode(v, n), centre -> {
             int k = 0;
             for (int i = 0; i < n; i++) {
-                if (v[i] < m) {
-                    d[k++] = m - v[i];
+                if (v[i] < centre) {
+                    d[k++] = centre - v[i];
                 }
             }
-            double scale = BACKGROUND_C * median(d, k);
-            if (!(scale > 0)) {
-                return m;
-            }
-            double sw = 0;
-            double swx = 0;
-            for (int i = 0; i < n; i++) {
-                double u = (v[i] - m) / scale;
-                if (Math.abs(u) < 1) {
-                    double wgt = (1 - u * u) * (1 - u * u);
-                    sw += wgt;
-                    swx += wgt * v[i];
-                }
-            }
-            double next = swx / sw;
-            if (Math.abs(next - m) < 1e-9 * scale) {
-                return next;
-            }
-            m = next;
-        }
-        return m;
+            return BACKGROUND_C * median(d, k);
+        });
     }
 
     /**
