@@ -67,10 +67,21 @@ final class RobustStats {
             dev[i] = Math.abs(v[i] - m);
         }
         double scale = BIWEIGHT_C * median(dev, n);
-        if (!(scale > 0)) {
-            return m;
-        }
+        return recentred(v, n, m, centre -> scale);
+    }
+
+    /**
+     * Tukey's biweight iterated from the centre m until it settles (at most 50 steps): each step the weighted mean
+     * with weights (1 - u^2)^2, u = (x - m) / scale, scale given by scaleAt(m).
+     *
+     * @return the settled centre; m itself when the scale is not positive
+     */
+    private static double recentred(double[] v, int n, double m, java.util.function.DoubleUnaryOperator scaleAt) {
         for (int it = 0; it < 50; it++) {
+            double scale = scaleAt.applyAsDouble(m);
+            if (!(scale > 0)) {
+                return m;
+            }
             double sw = 0;
             double swx = 0;
             for (int i = 0; i < n; i++) {
@@ -88,6 +99,68 @@ final class RobustStats {
             m = next;
         }
         return m;
+    }
+
+    /** tuning constant of {@link #background}, in units of the lower half's median deviation */
+    static final double BACKGROUND_C = 4;
+
+    /**
+     * The level of the background under a specimen that only adds to it (cells, spots and fibres brighter than the
+     * background): Tukey's biweight centred on the half-sample mode, its scale taken from the values below the
+     * centre only (the background's own spread: a bright specimen widens the upper side alone), recentred until it
+     * settles. Where the median and a plain biweight move with the amount of specimen (by several per cent between
+     * tiles of one mosaic), this stays on the background. Half-sample mode: Bickel &amp; Fruehwirth, "On a fast,
+     * robust estimator of the mode", Comput. Stat. Data Anal. 50:3500-3530, 2006; the lower-half scale is common
+     * practice for backgrounds, no single source.
+     *
+     * @return the background level of the first n values (not modified); NaN when n is 0
+     */
+    static double background(double[] v, int n) {
+        if (n < 3) {
+            return median(v, n);
+        }
+        double[] d = new double[n];
+        return recentred(v, n, halfSampleMode(v, n), centre -> {
+            int k = 0;
+            for (int i = 0; i < n; i++) {
+                if (v[i] < centre) {
+                    d[k++] = centre - v[i];
+                }
+            }
+            return BACKGROUND_C * median(d, k);
+        });
+    }
+
+    /**
+     * Half-sample mode (Bickel &amp; Fruehwirth 2006, section 2): of the sorted values keep the shortest run holding
+     * half of them, repeatedly, until at most three are left; their middle (the mean of the closer two of three).
+     *
+     * @return the mode of the first n values (not modified)
+     */
+    static double halfSampleMode(double[] v, int n) {
+        double[] a = Arrays.copyOf(v, n);
+        Arrays.sort(a);
+        int lo = 0;
+        int len = n;
+        while (len > 3) {
+            int h = (len + 1) / 2;
+            int best = lo;
+            double width = Double.POSITIVE_INFINITY;
+            for (int i = lo; i + h <= lo + len; i++) {
+                if (a[i + h - 1] - a[i] < width) {
+                    width = a[i + h - 1] - a[i];
+                    best = i;
+                }
+            }
+            lo = best;
+            len = h;
+        }
+        if (len == 3) {
+            double left = a[lo + 1] - a[lo];
+            double right = a[lo + 2] - a[lo + 1];
+            return left < right ? 0.5 * (a[lo] + a[lo + 1]) : right < left ? 0.5 * (a[lo + 1] + a[lo + 2]) : a[lo + 1];
+        }
+        return len == 2 ? 0.5 * (a[lo] + a[lo + 1]) : a[lo];
     }
 
     /** Median of 9 values (sorted in place; the array is modified). */

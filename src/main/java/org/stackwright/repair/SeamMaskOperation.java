@@ -20,8 +20,9 @@ import org.stackwright.volume.VoxelSize;
  * {@code seam-mask}: a mask of the tile seams of a stitched image, from the tile layout ({@link TileLayout}, checked
  * against the image when one is given) or found in the image from the periodicity of the tiling
  * ({@link SeamDetector}, reported by {@link SeamReport}); optionally reports per-tile gains ({@link TileLevelling},
- * {@code level}), or corrects shading and gains in one step ({@code level-tiles}: first the shading all tiles share,
- * {@link TileShading}, then the gains on the corrected image), and, only when asked for, writes a levelled copy.
+ * {@code level}), or corrects shading and gains in one step ({@code level-tiles}: the shading all tiles share and each
+ * tile's background level, {@link TileShading}, then the gains: the background levels where they agree with the
+ * seams, else the seam gains on the corrected image, {@link BackgroundGains}), and, only when asked for, writes a levelled copy.
  * {@code level-tiles} replaces the older {@code shading}, which needed {@code level} beside it; old commands and
  * macros with {@code level shading} still run (the old key is an alias).
  */
@@ -55,8 +56,9 @@ public final class SeamMaskOperation implements Operation {
                         + "need half of it in each tile)"),
                 Param.flag("level", "estimate a gain per tile from the bands beside the seams and report it"),
                 Param.flag("level-tiles", "shading and gain correction of the tiles in one step: estimate the "
-                        + "shading all tiles share (a flat field from the mosaic itself), take it out, then estimate "
-                        + "a gain per tile on the corrected image (implies level)").withAlias("shading"),
+                        + "shading all tiles share (a flat field from the mosaic itself) with each tile's background "
+                        + "level, take it out, then a gain per tile: the background levels where they agree with the "
+                        + "seams, else from the seams (implies level)").withAlias("shading"),
                 Param.number("offset", 0.0, -1e9, 1e9, "ADU", "level: camera offset (dark level) of the input"),
                 Param.integer("strip", 4, 1, 1000, "level: pixels used on each side of a seam"),
                 Param.outputImage("output", true, "the 8-bit seam mask, 255 = seam (TIFF)"),
@@ -137,17 +139,21 @@ public final class SeamMaskOperation implements Operation {
         if (level) {
             InputChecks.checkOffset("input", img, v.number("offset"), 0, ctx);
             Volume base = img;
+            TileLevelling.Gains g;
             if (levelTiles) {
-                ctx.progress(0.5, "estimating the shading of the tiles");
-                TileShading.Flat flat = TileShading.estimate(img, colBands, rowBands, v.number("offset"));
-                ShadingReport.report(flat, r);
-                base = TileShading.apply(img, colBands, rowBands, flat, v.number("offset"));
-                r.image("flat-field", ImagePlusAdapter.toImagePlus(ShadingReport.picture(flat, img.voxel()),
+                ctx.progress(0.5, "estimating the shading and the gains of the tiles");
+                BackgroundGains.Choice choice = BackgroundGains.estimate(img, colBands, rowBands, v.integer("strip"),
+                        v.number("offset"));
+                ShadingReport.report(choice.flat(), r);
+                ShadingReport.gainSource(choice, r, ctx);
+                r.image("flat-field", ImagePlusAdapter.toImagePlus(ShadingReport.picture(choice.flat(), img.voxel()),
                         input.getTitle() + "-flat-field"));
+                base = choice.corrected();
+                g = choice.gains();
+            } else {
+                ctx.progress(0.7, "estimating the gains of the tiles");
+                g = TileLevelling.estimate(base, colBands, rowBands, v.integer("strip"), v.number("offset"));
             }
-            ctx.progress(0.7, "estimating the gains of the tiles");
-            TileLevelling.Gains g = TileLevelling.estimate(base, colBands, rowBands, v.integer("strip"),
-                    v.number("offset"));
             r.record("tile_gains", g.gains());
             r.record("tile_gain_rms_log_misfit", g.rmsLogResidual());
             for (int row = 0; row < g.rows(); row++) {

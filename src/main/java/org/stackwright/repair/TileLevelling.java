@@ -6,7 +6,6 @@ import java.util.List;
 import org.apache.commons.math3.linear.Array2DRowRealMatrix;
 import org.apache.commons.math3.linear.ArrayRealVector;
 import org.apache.commons.math3.linear.QRDecomposition;
-import org.apache.commons.math3.linear.RealVector;
 import org.stackwright.volume.Volume;
 
 /**
@@ -31,8 +30,9 @@ public final class TileLevelling {
      * @param gains per tile, row-major (rows x columns), geometric mean 1
      * @param pairs number of neighbouring tile pairs used
      * @param rmsLogResidual root mean square misfit of the pair ratios in log units (consistency of the estimate)
+     * @param ratios the pair equations {tile a, tile b, log(g_b / g_a)} measured at the seams
      */
-    public record Gains(int rows, int columns, double[] gains, int pairs, double rmsLogResidual) {
+    public record Gains(int rows, int columns, double[] gains, int pairs, double rmsLogResidual, List<double[]> ratios) {
     }
 
     /** most exact zeros (no data) skipped at the start of a strip: a gap a stitcher left between the tiles */
@@ -85,7 +85,7 @@ public final class TileLevelling {
         }
         int n = rows * cols;
         if (n == 1) {
-            return new Gains(rows, cols, new double[] {1}, 0, 0);
+            return new Gains(rows, cols, new double[] {1}, 0, 0, eq);
         }
         if (eq.isEmpty()) {
             // every pair had no signal above the offset beside its seam (the data lie below the offset)
@@ -93,6 +93,37 @@ public final class TileLevelling {
                     + " the offset beside its seam, so no tile gain can be estimated; allowed: an offset below the"
                     + " image's dark level (check --offset)");
         }
+        double[] x;
+        try {
+            x = solve(n, eq);
+        } catch (org.apache.commons.math3.linear.SingularMatrixException e) {
+            throw new IllegalArgumentException("offset = " + offset + ": some tiles have no neighbour with signal above"
+                    + " the offset beside a seam, so their gains cannot be estimated (check --offset)", e);
+        }
+        double[] g = new double[n];
+        for (int t = 0; t < n; t++) {
+            g[t] = Math.exp(x[t]);
+        }
+        return new Gains(rows, cols, g, eq.size(), misfit(eq, x), eq);
+    }
+
+    /** @return root mean square misfit of the pair equations {a, b, log(g_b / g_a)} for the log gains x */
+    static double misfit(List<double[]> eq, double[] x) {
+        double ss = 0;
+        for (double[] e : eq) {
+            double res = x[(int) e[1]] - x[(int) e[0]] - e[2];
+            ss += res * res;
+        }
+        return eq.isEmpty() ? 0 : Math.sqrt(ss / eq.size());
+    }
+
+    /**
+     * Least squares for the log gains of n tiles from every pair equation {a, b, log(g_b / g_a)}, with the mean of
+     * the log gains fixed at 0.
+     *
+     * @return the log gains
+     */
+    private static double[] solve(int n, List<double[]> eq) {
         Array2DRowRealMatrix a = new Array2DRowRealMatrix(eq.size() + 1, n);
         ArrayRealVector b = new ArrayRealVector(eq.size() + 1);
         for (int k = 0; k < eq.size(); k++) {
@@ -104,24 +135,7 @@ public final class TileLevelling {
         for (int t = 0; t < n; t++) {
             a.setEntry(eq.size(), t, 1);
         }
-        RealVector x;
-        try {
-            x = new QRDecomposition(a).getSolver().solve(b);
-        } catch (org.apache.commons.math3.linear.SingularMatrixException e) {
-            throw new IllegalArgumentException("offset = " + offset + ": some tiles have no neighbour with signal above"
-                    + " the offset beside a seam, so their gains cannot be estimated (check --offset)", e);
-        }
-        double ss = 0;
-        for (int k = 0; k < eq.size(); k++) {
-            double[] e = eq.get(k);
-            double res = x.getEntry((int) e[1]) - x.getEntry((int) e[0]) - e[2];
-            ss += res * res;
-        }
-        double[] g = new double[n];
-        for (int t = 0; t < n; t++) {
-            g[t] = Math.exp(x.getEntry(t));
-        }
-        return new Gains(rows, cols, g, eq.size(), Math.sqrt(ss / eq.size()));
+        return new QRDecomposition(a).getSolver().solve(b).toArray();
     }
 
     private static void addPair(List<double[]> eq, int ta, int tb, double[] logRatios) {

@@ -11,16 +11,18 @@ import org.stackwright.volume.Volume;
 
 /**
  * The shading every tile of a stitched mosaic shares (vignetting, uneven illumination), estimated from the mosaic
- * itself: a retrospective flat field. Each tile is cut into blocks; the log of each block's median above the dark
- * level, minus the tile's median, is one sample of log shading + log specimen; the median over all tiles at each
- * block position keeps the shading and drops most of the specimen, and a low-order polynomial surface fitted to
- * those medians (robustly: blocks far off the surface are dropped and the fit repeated) smooths what is left. This
- * is the "mean tile profile" approach of retrospective shading correction (Likar, Maintz, Viergever &amp; Pernus,
- * "Retrospective shading correction based on entropy minimization", J. Microsc. 197:285-295, 2000, model of
- * multiplicative shading; Peng et al., "A BaSiC tool for background and shading correction of optical microscopy
- * images", Nat. Commun. 8:14836, 2017, shading shared by all tiles) with a polynomial surface instead of their
- * optimisers. Tile-by-tile gains are not part of it: {@link TileLevelling} estimates them on the shading-corrected
- * image. Nothing is changed unless {@link #apply} is called on request.
+ * itself: a retrospective flat field. Each tile is cut into blocks ({@link TileBlocks}); the log of each block's
+ * median above the dark level, minus the tile's level, is one sample of log shading + log specimen; a robust average
+ * over all tiles at each block position keeps the shading and drops most of the specimen, and a low-order polynomial
+ * surface fitted to those averages (robustly: blocks far off the surface are dropped and the fit repeated) smooths
+ * what is left. This is the "mean tile profile" approach of retrospective shading correction (Likar, Maintz,
+ * Viergever &amp; Pernus, "Retrospective shading correction based on entropy minimization", J. Microsc.
+ * 197:285-295, 2000, model of multiplicative shading; Peng et al., "A BaSiC tool for background and shading
+ * correction of optical microscopy images", Nat. Commun. 8:14836, 2017, shading shared by all tiles, with a
+ * baseline per tile) with a polynomial surface instead of their optimisers. The tiles' levels are estimated with the
+ * shading, by alternation ({@link #estimateWithLevels}); each tile's background level is a candidate for its gain,
+ * which {@link BackgroundGains} checks against the seams. Nothing is changed unless {@link #apply} is called on
+ * request.
  */
 public final class TileShading {
 
@@ -128,82 +130,107 @@ public final class TileShading {
      * @param offset camera offset (dark level) subtracted before logs
      */
     public static Flat estimate(Volume image, List<int[]> columnBands, List<int[]> rowBands, double offset) {
+        return estimateWithLevels(image, columnBands, rowBands, offset).flat();
+    }
+
+    /**
+     * The shading and each tile's background level, estimated together by alternation. Each tile's level is first
+     * the median of its blocks; then, three times: the shading is the surface fitted to the biweight over the tiles,
+     * at each block position, of the block's log minus its tile's level; each tile's level is the background
+     * ({@link RobustStats#background}) of its blocks' logs minus the shading. A level taken as the median moves with
+     * the amount of specimen in the tile and passes that on to the shading; the background level does not.
+     *
+     * @return the shading and the log background level of every tile (mean 0 over the tiles, averaged over the
+     *     slices; all NaN when a tile has no usable block in some slice)
+     */
+    static Estimate estimateWithLevels(Volume image, List<int[]> columnBands, List<int[]> rowBands, double offset) {
         Tiles t = Tiles.of(columnBands, rowBands, image.width(), image.height());
-        int spanX = t.spanX();
-        int spanY = t.spanY();
-        int b = Math.max(1, Math.min(t.stepX(), t.stepY()) / 24);
-        int nbx = (spanX + b - 1) / b;
-        int nby = (spanY + b - 1) / b;
-        int samples = t.columns() * t.rows() * image.depth();
-        double[][] logs = new double[nbx * nby][samples];
-        int[] count = new int[nbx * nby];
-        double[] block = new double[b * b];
-        double[] tileLogs = new double[nbx * nby];
-        int[] where = new int[nbx * nby];
-        // mean position of the pixels each block position was measured at (blocks cut by a border differ)
-        double[] centreU = new double[nbx * nby];
-        double[] centreV = new double[nbx * nby];
-        for (int z = 0; z < image.depth(); z++) {
-            for (int r = 0; r < t.rows(); r++) {
-                for (int c = 0; c < t.columns(); c++) {
-                    int m = 0;
-                    for (int by = 0; by < nby; by++) {
-                        for (int bx = 0; bx < nbx; bx++) {
-                            // blocks cut by the tile's border keep the part inside it (at least half a block)
-                            int xa = Math.max(t.x0()[c], t.originX()[c] + bx * b);
-                            int ya = Math.max(t.y0()[r], t.originY()[r] + by * b);
-                            int xb = Math.min(t.x1()[c], t.originX()[c] + (bx + 1) * b);
-                            int yb = Math.min(t.y1()[r], t.originY()[r] + (by + 1) * b);
-                            int n = 0;
-                            double su = 0;
-                            double sv = 0;
-                            for (int y = ya; y < yb; y++) {
-                                for (int x = xa; x < xb; x++) {
-                                    float v = image.get(x, y, z);
-                                    if (v != 0 && Float.isFinite(v)) {
-                                        block[n++] = v - offset;
-                                        su += x - t.originX()[c];
-                                        sv += y - t.originY()[r];
-                                    }
-                                }
-                            }
-                            double med = 2 * n >= b * b ? RobustStats.medianInPlace(block, n) : Double.NaN;
-                            if (med > 0) {
-                                tileLogs[m] = Math.log(med);
-                                centreU[by * nbx + bx] += su / n;
-                                centreV[by * nbx + bx] += sv / n;
-                                where[m++] = by * nbx + bx;
-                            }
-                        }
-                    }
-                    if (m == 0) {
-                        continue;
-                    }
-                    double level = RobustStats.median(tileLogs, m);
-                    for (int k = 0; k < m; k++) {
-                        logs[where[k]][count[where[k]]++] = tileLogs[k] - level;
+        TileBlocks tb = TileBlocks.of(image, t, offset);
+        int ns = tb.samples();
+        int np = tb.positions();
+        int need = Math.max(1, Math.min(3, ns / 2));
+        double[] level = new double[ns];
+        double[] logShading = new double[np];
+        double[] buf = new double[Math.max(ns, np)];
+        levels(tb, logShading, level, buf, false);
+        double[] ua = new double[np];
+        double[] va = new double[np];
+        double[] ya = new double[np];
+        double[] coef = null;
+        int n = 0;
+        Flat first = null;
+        for (int round = 0; round < ROUNDS; round++) {
+            n = 0;
+            for (int p = 0; p < np; p++) {
+                int m = 0;
+                for (int s = 0; s < ns; s++) {
+                    if (!Double.isNaN(tb.logs[s][p]) && !Double.isNaN(level[s])) {
+                        buf[m++] = tb.logs[s][p] - level[s];
                     }
                 }
+                if (m >= need) {
+                    ua[n] = tb.u[p];
+                    va[n] = tb.v[p];
+                    ya[n++] = RobustStats.biweight(buf, m);
+                }
+            }
+            if (n < 2 * terms(0, 0).length) {
+                throw new IllegalArgumentException("shading: too few tile blocks to estimate the shading (" + n
+                        + "); the tiles are too small or mostly gaps");
+            }
+            coef = fit(ua, va, ya, n, t.spanX(), t.spanY());
+            if (round == 0) {
+                first = normalised(coef, t.spanX(), t.spanY(), t.stepX(), t.stepY(), n);
+            }
+            Flat surface = new Flat(coef, t.spanX(), t.spanY(), 0, 0, n);
+            for (int p = 0; p < np; p++) {
+                logShading[p] = Math.log(surface.value(tb.u[p], tb.v[p]));
+            }
+            levels(tb, logShading, level, buf, true);
+        }
+        return new Estimate(normalised(coef, t.spanX(), t.spanY(), t.stepX(), t.stepY(), n), first,
+                tileLevels(level, t.rows() * t.columns()));
+    }
+
+    /**
+     * @param flat the shading estimated with the tiles' background levels
+     * @param medianFlat the shading of the first round, with each tile's median as its level: the one to use when the
+     *     tiles do not share one background ({@link BackgroundGains})
+     * @param logLevels the tiles' log background levels, row-major, mean 0 (all NaN when a tile had no usable block)
+     */
+    record Estimate(Flat flat, Flat medianFlat, double[] logLevels) {
+    }
+
+    /** rounds of the alternation between shading and tile levels */
+    private static final int ROUNDS = 3;
+
+    /** Each sample's level: the median (first round) or the background of its block logs minus the shading. */
+    private static void levels(TileBlocks tb, double[] logShading, double[] level, double[] buf, boolean background) {
+        for (int s = 0; s < tb.samples(); s++) {
+            int m = 0;
+            for (int p = 0; p < tb.positions(); p++) {
+                if (!Double.isNaN(tb.logs[s][p])) {
+                    buf[m++] = tb.logs[s][p] - logShading[p];
+                }
+            }
+            level[s] = m == 0 ? Double.NaN : background ? RobustStats.background(buf, m) : RobustStats.median(buf, m);
+        }
+    }
+
+    /** Per tile: the mean over the slices of its level minus the mean level of all tiles in that slice. */
+    private static double[] tileLevels(double[] level, int tiles) {
+        double[] out = new double[tiles];
+        int depth = level.length / tiles;
+        for (int z = 0; z < depth; z++) {
+            double mean = 0;
+            for (int k = 0; k < tiles; k++) {
+                mean += level[z * tiles + k] / tiles;
+            }
+            for (int k = 0; k < tiles; k++) {
+                out[k] += (level[z * tiles + k] - mean) / depth;
             }
         }
-        int need = Math.max(1, Math.min(3, samples / 2));
-        double[] ua = new double[nbx * nby];
-        double[] va = new double[nbx * nby];
-        double[] ya = new double[nbx * nby];
-        int n = 0;
-        for (int k = 0; k < nbx * nby; k++) {
-            if (count[k] >= need) {
-                ua[n] = centreU[k] / count[k];
-                va[n] = centreV[k] / count[k];
-                ya[n++] = RobustStats.median(logs[k], count[k]);
-            }
-        }
-        if (n < 2 * terms(0, 0).length) {
-            throw new IllegalArgumentException("shading: too few tile blocks to estimate the shading (" + n
-                    + "); the tiles are too small or mostly gaps");
-        }
-        double[] coef = fit(ua, va, ya, n, spanX, spanY);
-        return normalised(coef, spanX, spanY, t.stepX(), t.stepY(), n);
+        return out;
     }
 
     /** Robust least squares: fit, drop the blocks beyond 3 robust sigmas, fit again (twice). */

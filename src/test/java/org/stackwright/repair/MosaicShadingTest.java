@@ -29,10 +29,14 @@ class MosaicShadingTest {
             InventedMosaic m = InventedMosaic.make(l, InventedMosaic.Defects.NONE, true, 61);
             List<int[]> cols = bands(m.columnSeams[0]);
             List<int[]> rows = bands(m.rowSeams);
-            TileShading.Flat flat = TileShading.estimate(m.image, cols, rows, InventedMosaic.OFFSET);
-            Volume shaded = TileShading.apply(m.image, cols, rows, flat, InventedMosaic.OFFSET);
-            TileLevelling.Gains g = TileLevelling.estimate(shaded, cols, rows, 12, InventedMosaic.OFFSET);
+            // what --level-tiles does (default strip 4), and the seam gains alone with strips of 12 and 4 px
+            BackgroundGains.Choice choice = BackgroundGains.estimate(m.image, cols, rows, 4, InventedMosaic.OFFSET);
+            TileShading.Flat flat = choice.flat();
+            Volume shaded = choice.corrected();
+            TileLevelling.Gains g = choice.gains();
             double gainError = gainError(g, m.gains);
+            double gainError12 = gainError(TileLevelling.estimate(shaded, cols, rows, 12, InventedMosaic.OFFSET),
+                    m.gains);
             double gainError4 = gainError(TileLevelling.estimate(shaded, cols, rows, 4, InventedMosaic.OFFSET),
                     m.gains);
             Volume done = TileLevelling.apply(shaded, cols, rows, g, InventedMosaic.OFFSET);
@@ -43,12 +47,16 @@ class MosaicShadingTest {
             double oracle = profileSpread(oracle(m, cols, rows), cols, rows);
             System.out.printf(Locale.ROOT, "flat field, %s: per-tile mean profile max deviation %.2f %% before, "
                     + "%.2f %% after (oracle with the true vignetting %.2f %%); tile medians spread %.2f %% before, "
-                    + "%.2f %% after; gains vs the truth: worst %.2f %% (strip 12), %.2f %% (strip 4); surface range "
-                    + "%.3f-%.3f%n", l, 100 * before, 100 * after, 100 * oracle, 100 * tilesBefore, 100 * tilesAfter,
-                    100 * gainError, 100 * gainError4, flat.min(), flat.max());
+                    + "%.2f %% after; gains vs the truth, worst: %.2f %% (%s, levels vs seams misfit %.2f %%), seams "
+                    + "alone %.2f %% (strip 12), %.2f %% (strip 4); surface range %.3f-%.3f%n", l, 100 * before,
+                    100 * after, 100 * oracle, 100 * tilesBefore, 100 * tilesAfter, 100 * gainError,
+                    choice.fromLevels() ? "background levels" : "seams", 100 * choice.levelMisfit(),
+                    100 * gainError12, 100 * gainError4, flat.min(), flat.max());
             assertTrue(before > 0.1, "the invented field is shaded: " + before);
             assertTrue(after <= 0.02, l + ": profile flat within 2 % after correction, was " + after);
-            // the same 2 % for the tile levels (gains from 12-px strips; the default 4-px strips are noisier)
+            // the same 2 % for the tile gains of --level-tiles with the default strip (background levels, measured
+            // 0.15-0.19 %; the seams alone: 0.7-1.5 %)
+            assertTrue(choice.fromLevels(), l + ": a flat field has one background: its levels agree with the seams");
             assertTrue(gainError <= 0.02, l + ": gains within 2 % of the truth, was " + gainError);
         }
     }
@@ -91,49 +99,179 @@ class MosaicShadingTest {
     }
 
     /**
-     * Tile gains under a specimen (cells, puncta, fibres crossing the seams), several seeds, default strip 4: with the
-     * true vignetting divided out (the oracle: what the gain estimate alone can do) and with the estimated shading
-     * (what --level-tiles does). Method: for each line across a seam, one straight line with a step at the seam is
-     * fitted to the pixels right beside it on both sides (gaps of zeros skipped; or just outside the band when that
-     * agrees better around the tile loops), the log ratio of the two sides is
-     * taken per line, and Tukey's biweight over the lines gives the pair's log gain ratio; the log gains of all tiles
-     * follow by least squares over the tile graph with their mean fixed (common practice for mosaic gain
-     * compensation, no single source; the biweight: Mosteller &amp; Tukey, "Data Analysis and Regression", 1977).
-     * Measured before this method (ratio of the two sides' medians, strips beside the 4 px mask band): worst 4.0 %,
-     * 18.8 % and 4.9 % with the true vignetting on seeds 41, 31, 51. The issue's aim of about 1 % is not reached
-     * under a specimen: with no overlap the two sides see different pixels of the specimen, and the shading
-     * estimate is least sure at the tile borders where the gains are measured; the bounds below guard what is
-     * reached (measured 1.3-2.8 % with the true vignetting, 3.2-4.5 % with the estimated shading).
+     * Tile gains under a specimen (cells, puncta, fibres crossing the seams, gaps, defects), four seeds, as
+     * --level-tiles gives them (default strip 4): each tile's background level after the shading is divided out
+     * ({@link RobustStats#background} of its block logs; the shading and the levels estimated by alternation), used
+     * because it agrees with the seam ratios ({@link BackgroundGains}). Beside it, for comparison: the seam gains alone
+     * (for each line across a seam a straight line with a step at the seam fitted to the pixels beside it, Tukey's
+     * biweight over the lines, least squares over the tile graph: common practice for mosaic gain compensation, no
+     * single source; the biweight: Mosteller &amp; Tukey, "Data Analysis and Regression", 1977), with the estimated
+     * shading and with the true vignetting divided out (the oracle of that method). Measured before the background
+     * levels (seam gains on the shading of the block medians alone): worst 3.2-6.0 % on these seeds and 51, 71;
+     * 1.2-4.5 % with the true vignetting. Goal of the issue's user: about 1 % (ours, no published benchmark).
      */
     @Test
     void gainsUnderASpecimen() {
         InventedMosaic.Layout l = new InventedMosaic.Layout(3, 4, 200, 200, 0, false, false, 2, 0.25, 0.15, 300);
-        for (long seed : new long[] {31, 41, 51}) {
+        for (long seed : new long[] {31, 41, 61, 81}) {
             InventedMosaic m = InventedMosaic.make(l, new InventedMosaic.Defects(1, 1, 1, 80, 500, 40), false, seed);
             List<int[]> cols = bands(m.columnSeams[0]);
             List<int[]> rows = bands(m.rowSeams);
-            Volume truth = m.image.copy();
-            for (int y = 0; y < truth.height(); y++) {
-                for (int x = 0; x < truth.width(); x++) {
-                    float v = m.image.get(x, y, 0);
-                    if (v != 0) {
-                        double s = InventedMosaic.shading(l, x % l.tileW(), y % l.tileH());
-                        truth.set(x, y, 0, (float) (InventedMosaic.OFFSET + (v - InventedMosaic.OFFSET) / s));
+            BackgroundGains.Choice choice = BackgroundGains.estimate(m.image, cols, rows, 4, InventedMosaic.OFFSET);
+            double error = gainError(choice.gains(), m.gains);
+            double seams = gainError(TileLevelling.estimate(choice.corrected(), cols, rows, 4, InventedMosaic.OFFSET),
+                    m.gains);
+            double oracle = gainError(TileLevelling.estimate(trueVignettingOut(m), cols, rows, 4,
+                    InventedMosaic.OFFSET), m.gains);
+            System.out.printf(Locale.ROOT, "specimen mosaic seed %d: gains vs the truth, worst tile: %.2f %% (%s, "
+                    + "levels vs seams misfit %.2f %%); seams alone %.2f %% with the estimated shading, %.2f %% with "
+                    + "the true vignetting divided out%n", seed, 100 * error, choice.fromLevels() ? "background levels"
+                    : "seams", 100 * choice.levelMisfit(), 100 * seams, 100 * oracle);
+            assertTrue(choice.fromLevels(), "seed " + seed + ": the tiles share one background: levels used");
+            // the aim of about 1 %; measured 0.23-0.39 %
+            assertTrue(error <= 0.01, "seed " + seed + ": gains within 1 %, was " + error);
+        }
+    }
+
+    /**
+     * Where tissue 1.2 or 2 times brighter than the rest (its background too) covers part of the mosaic, the tiles
+     * do not share one background: their levels are off by up to the tissue's contrast, and the check against the
+     * seams must reject them (measured misfit 7.2-10.2 % at 1.2, 27-34 % at 2, against 1.0-5.0 % for a shared
+     * background of 300 photons; the sweep below). The seam gains that are kept instead are not good either here (the
+     * shading estimate is disturbed by the tissue's edge inside the tiles: 9-47 % worst), which README's limits say;
+     * this test guards the choice.
+     */
+    @Test
+    void levelsGiveWayToTheSeamsWhereTissueCoversPartOfTheMosaic() {
+        InventedMosaic.Layout l = new InventedMosaic.Layout(3, 4, 200, 200, 0, false, false, 2, 0.25, 0.15, 300);
+        InventedMosaic m = InventedMosaic.make(l, new InventedMosaic.Defects(1, 1, 1, 80, 500, 40), false, 31);
+        List<int[]> cols = bands(m.columnSeams[0]);
+        List<int[]> rows = bands(m.rowSeams);
+        for (double contrast : new double[] {1.2, 2}) {
+            Volume img = withTissue(m.image, contrast);
+            TileShading.Estimate est = TileShading.estimateWithLevels(img, cols, rows, InventedMosaic.OFFSET);
+            BackgroundGains.Choice choice = BackgroundGains.estimate(img, cols, rows, 4, InventedMosaic.OFFSET);
+            double error = gainError(choice.gains(), m.gains);
+            double[] lg = new double[est.logLevels().length];
+            for (int k = 0; k < lg.length; k++) {
+                lg[k] = Math.exp(est.logLevels()[k]);
+            }
+            double levels = gainError(new TileLevelling.Gains(3, 4, lg, 0, 0, List.of()), m.gains);
+            System.out.printf(Locale.ROOT, "tissue %.1f times brighter over part of the mosaic: levels vs seams misfit "
+                    + "%.2f %%, gains from %s, worst %.2f %% (the levels would be %.2f %% off)%n", contrast,
+                    100 * choice.levelMisfit(), choice.fromLevels() ? "background levels" : "seams", 100 * error,
+                    100 * levels);
+            assertTrue(!choice.fromLevels(), contrast + ": levels rejected, misfit " + choice.levelMisfit());
+            assertTrue(error < levels, contrast + ": the seams do better than the rejected levels");
+        }
+    }
+
+    /**
+     * Gains over many seeds, backgrounds (60, 300, 1000 photons) and tissue contrasts (1: a shared background; 1.1,
+     * 1.2, 2: tissue that much brighter over part of the mosaic), against the seam gains on the shading of the tiles'
+     * medians (what --level-tiles did before the background levels, and still does when it rejects them). A
+     * measurement for README, off by default ({@code -Dstackwright.gainsweep=N}, N seeds; about 4 s per seed).
+     */
+    @Test
+    void gainsOverSeedsBackgroundsAndTissue() {
+        int seeds = Integer.getInteger("stackwright.gainsweep", 0);
+        org.junit.jupiter.api.Assumptions.assumeTrue(seeds > 0, "sweep off; -Dstackwright.gainsweep=N to run it");
+        for (double contrast : new double[] {1, 1.1, 1.2, 2}) {
+            for (double background : new double[] {60, 300, 1000}) {
+                InventedMosaic.Layout l = new InventedMosaic.Layout(3, 4, 200, 200, 0, false, false, 2, 0.25, 0.15,
+                        background);
+                double worst = 0;
+                double worstBefore = 0;
+                double minMisfit = Double.POSITIVE_INFINITY;
+                double maxMisfit = 0;
+                int fromLevels = 0;
+                for (long seed = 200; seed < 200 + seeds; seed++) {
+                    InventedMosaic m = InventedMosaic.make(l, new InventedMosaic.Defects(1, 1, 1, 80, 500, 40), false,
+                            seed);
+                    List<int[]> cols = bands(m.columnSeams[0]);
+                    List<int[]> rows = bands(m.rowSeams);
+                    Volume img = contrast == 1 ? m.image : withTissue(m.image, contrast);
+                    BackgroundGains.Choice c = BackgroundGains.estimate(img, cols, rows, 4, InventedMosaic.OFFSET);
+                    TileShading.Flat byMedian = TileShading.estimateWithLevels(img, cols, rows, InventedMosaic.OFFSET)
+                            .medianFlat();
+                    double before = gainError(TileLevelling.estimate(TileShading.apply(img, cols, rows, byMedian,
+                            InventedMosaic.OFFSET), cols, rows, 4, InventedMosaic.OFFSET), m.gains);
+                    double error = gainError(c.gains(), m.gains);
+                    worst = Math.max(worst, error);
+                    worstBefore = Math.max(worstBefore, before);
+                    minMisfit = Math.min(minMisfit, c.levelMisfit());
+                    maxMisfit = Math.max(maxMisfit, c.levelMisfit());
+                    fromLevels += c.fromLevels() ? 1 : 0;
+                    if (contrast == 1 && background >= 300) {
+                        // the aim of about 1 % where the tiles share a background of enough photons
+                        assertTrue(c.fromLevels() && error <= 0.01, "seed " + seed + ", background " + background
+                                + ": gains within 1 %, was " + error + " (levels used: " + c.fromLevels() + ")");
                     }
                 }
+                System.out.printf(Locale.ROOT, "tissue contrast %.1f, background %4.0f photons, %d seeds: levels used "
+                        + "%d times (misfit %.1f-%.1f %%), gains worst %.2f %%; seams on the median shading %.2f %%%n",
+                        contrast, background, seeds, fromLevels, 100 * minMisfit, 100 * maxMisfit, 100 * worst,
+                        100 * worstBefore);
             }
-            double oracle = gainError(TileLevelling.estimate(truth, cols, rows, 4, InventedMosaic.OFFSET), m.gains);
-            TileShading.Flat flat = TileShading.estimate(m.image, cols, rows, InventedMosaic.OFFSET);
-            Volume shaded = TileShading.apply(m.image, cols, rows, flat, InventedMosaic.OFFSET);
-            double estimated = gainError(TileLevelling.estimate(shaded, cols, rows, 4, InventedMosaic.OFFSET),
-                    m.gains);
-            System.out.printf(Locale.ROOT, "specimen mosaic seed %d: gains vs the truth, worst tile: %.2f %% with the "
-                    + "true vignetting divided out, %.2f %% with the estimated shading%n", seed, 100 * oracle,
-                    100 * estimated);
-            assertTrue(oracle <= 0.03, "seed " + seed + ": gains with the true vignetting within 3 %, was " + oracle);
-            assertTrue(estimated <= 0.05, "seed " + seed + ": gains with the estimated shading within 5 %, was "
-                    + estimated);
         }
+    }
+
+    /**
+     * The operation says where the gains came from: background levels on a small mosaic of the issue's kind; on it with
+     * tissue twice as bright over part of it, a warning that the levels disagree with the seams, and the record
+     * names the seams.
+     */
+    @Test
+    void levelTilesSaysWhereTheGainsCameFrom() {
+        InventedMosaic.Layout l = new InventedMosaic.Layout(2, 3, 128, 128, 0, false, false, 2, 0.25, 0.15, 300);
+        InventedMosaic m = InventedMosaic.make(l, new InventedMosaic.Defects(1, 1, 1, 40, 100, 10), false, 41);
+        for (boolean tissue : new boolean[] {false, true}) {
+            Volume img = tissue ? withTissue(m.image, 2) : m.image;
+            SeamMaskOperation op = new SeamMaskOperation();
+            org.stackwright.op.Values v = org.stackwright.op.Values.parse(op.name(), op.params(), java.util.Map.of(
+                    "grid", "2x3", "tile", "128x128", "level-tiles", "true", "offset", "100"));
+            v.withImage("input", org.stackwright.volume.ImagePlusAdapter.toImagePlus(img, "mosaic"));
+            org.stackwright.op.RunContext ctx = org.stackwright.op.RunContext.quiet(1);
+            org.stackwright.op.Result r = op.run(v, ctx);
+            assertTrue(r.record().get("tile_gain_source").equals(tissue ? "seams" : "background levels"),
+                    "gain source " + r.record().get("tile_gain_source"));
+            boolean warned = ctx.warnings().stream().anyMatch(w -> w.contains("background levels disagree"));
+            assertTrue(warned == tissue, "warning " + ctx.warnings());
+        }
+    }
+
+    /** The specimen part multiplied by a soft-edged ellipse of tissue over the left part of the mosaic. */
+    private static Volume withTissue(Volume img, double contrast) {
+        Volume out = img.copy();
+        int w = img.width();
+        int h = img.height();
+        for (int y = 0; y < h; y++) {
+            for (int x = 0; x < w; x++) {
+                float v = img.get(x, y, 0);
+                if (v != 0) {
+                    double dx = (x - 0.3 * w) / (0.3 * w);
+                    double dy = (y - 0.4 * h) / (0.35 * h);
+                    double k = 1 + (contrast - 1) / (1 + Math.exp(12 * (Math.sqrt(dx * dx + dy * dy) - 1)));
+                    out.set(x, y, 0, (float) (InventedMosaic.OFFSET + (v - InventedMosaic.OFFSET) * k));
+                }
+            }
+        }
+        return out;
+    }
+
+    /** The mosaic with the true vignetting divided out of every tile, gains left in. */
+    private static Volume trueVignettingOut(InventedMosaic m) {
+        Volume truth = m.image.copy();
+        for (int y = 0; y < truth.height(); y++) {
+            for (int x = 0; x < truth.width(); x++) {
+                float v = m.image.get(x, y, 0);
+                if (v != 0) {
+                    double s = InventedMosaic.shading(m.layout, x % m.layout.tileW(), y % m.layout.tileH());
+                    truth.set(x, y, 0, (float) (InventedMosaic.OFFSET + (v - InventedMosaic.OFFSET) / s));
+                }
+            }
+        }
+        return truth;
     }
 
     /** Largest relative error of estimated gains against the true ones, both scaled to geometric mean 1. */
