@@ -1,7 +1,8 @@
 package org.stackwright.solve;
 
-import org.stackwright.model.LinearOperator;
+import org.stackwright.fft.WorkGrid;
 import org.stackwright.model.DeconvolutionProblem;
+import org.stackwright.model.OperatorWork;
 import org.stackwright.op.RunContext;
 import org.stackwright.parallel.Workers;
 
@@ -102,33 +103,41 @@ public final class RichardsonLucy implements Solver {
 
     private Solution plain(DeconvolutionProblem p, float[] x, RunContext context, IterationListener listener) {
         int n = p.gridLength();
-        LinearOperator h = p.forward();
         Workers workers = p.workers();
         float[] norm = p.normalisation();
-        float[] buf = h.newWorkArray(); // grid in its first n floats; the FFTs run in place in it
+        OperatorWork h = p.forwardWork(); // H x, the ratio and H^T of it stay in the work grid
+        WorkGrid buf = h.grid();
         Sums sums = new Sums(2);
         IterationLog log = new IterationLog(method(), stopping, context, listener);
         double trusted = p.trustedPixels();
+        long holds = -1; // the work grid's generation when it was left holding x
         while (true) {
             log.before();
-            h.apply(x, buf);
+            if (buf.generation() != holds) {
+                workers.forRange(n, (from, to) -> buf.load(x, from, to));
+            }
+            h.apply();
             double held = p.heldOutFit(buf);
             double fit = p.ratioAndFit(buf) / trusted;
-            h.applyAdjoint(buf, buf);
-            double[] s = sums.run(workers, n, (from, to, acc) -> {
-                double dd = 0;
-                double xx = 0;
-                for (int i = from; i < to; i++) {
+            h.applyAdjoint();
+            // x <- x H^T(ratio) / H^T w, also left in the work grid as the next iteration's input
+            double[] s = sums.run(workers, n, (from, to, acc) -> buf.update(from, to, (a, at, index, count) -> {
+                double dd = acc[0];
+                double xx = acc[1];
+                for (int j = 0; j < count; j++) {
+                    int i = index + j;
                     float old = x[i];
-                    float nv = norm[i] > 0 ? old * Math.max(buf[i], 0f) / norm[i] : 0f;
+                    float nv = norm[i] > 0 ? old * Math.max(a[at + j], 0f) / norm[i] : 0f;
                     x[i] = nv;
+                    a[at + j] = nv;
                     double diff = nv - old;
                     dd += diff * diff;
                     xx += (double) old * old;
                 }
-                acc[0] += dd;
-                acc[1] += xx;
-            });
+                acc[0] = dd;
+                acc[1] = xx;
+            }));
+            holds = buf.generation();
             double change = Math.sqrt(s[0] / Math.max(s[1], 1e-300));
             if (log.after(fit, fit, p.expectedFit(), change, held, x)) {
                 break;
@@ -139,48 +148,56 @@ public final class RichardsonLucy implements Solver {
 
     private Solution accelerated(DeconvolutionProblem p, float[] y, RunContext context, IterationListener listener) {
         int n = p.gridLength();
-        LinearOperator h = p.forward();
         Workers workers = p.workers();
         float[] norm = p.normalisation();
-        float[] buf = h.newWorkArray(); // grid in its first n floats; the FFTs run in place in it
+        OperatorWork h = p.forwardWork(); // H y, the ratio and H^T of it stay in the work grid
+        WorkGrid buf = h.grid();
         float[] xOld = y.clone();
-        float[] gPrev = new float[n];
+        // the last RL step, for the extrapolation's alpha; not needed when the steps are given
+        float[] gPrev = fixedSteps == null ? new float[n] : null;
         Sums sums = new Sums(4);
         IterationLog log = new IterationLog(method(), stopping, context, listener);
         double trusted = p.trustedPixels();
         double lastFit = Double.POSITIVE_INFINITY;
         int k = 0;
+        long holds = -1; // the work grid's generation when it was left holding y
         java.util.List<Double> steps = new java.util.ArrayList<>();
         while (true) {
             log.before();
-            h.apply(y, buf);
+            if (buf.generation() != holds) {
+                workers.forRange(n, (from, to) -> buf.load(y, from, to));
+            }
+            h.apply();
             double held = p.heldOutFit(buf);
             double fit = p.ratioAndFit(buf) / trusted;
-            h.applyAdjoint(buf, buf);
+            h.applyAdjoint();
             // buf <- psi(y) = x_{k+1}; g = x_{k+1} - y; sums for alpha and for the change x_{k+1} - x_k
-            double[] s = sums.run(workers, n, (from, to, acc) -> {
-                double gg = 0;
-                double pp = 0;
-                double dd = 0;
-                double xx = 0;
-                for (int i = from; i < to; i++) {
+            double[] s = sums.run(workers, n, (from, to, acc) -> buf.update(from, to, (a, at, index, count) -> {
+                double gg = acc[0];
+                double pp = acc[1];
+                double dd = acc[2];
+                double xx = acc[3];
+                for (int j = 0; j < count; j++) {
+                    int i = index + j;
                     float yi = y[i];
-                    float xn = norm[i] > 0 ? yi * Math.max(buf[i], 0f) / norm[i] : 0f;
-                    buf[i] = xn;
-                    float g = xn - yi;
-                    float gp = gPrev[i];
-                    gg += (double) g * gp;
-                    pp += (double) gp * gp;
-                    gPrev[i] = g;
+                    float xn = norm[i] > 0 ? yi * Math.max(a[at + j], 0f) / norm[i] : 0f;
+                    a[at + j] = xn;
+                    if (gPrev != null) {
+                        float g = xn - yi;
+                        float gp = gPrev[i];
+                        gg += (double) g * gp;
+                        pp += (double) gp * gp;
+                        gPrev[i] = g;
+                    }
                     double diff = xn - xOld[i];
                     dd += diff * diff;
                     xx += (double) xOld[i] * xOld[i];
                 }
-                acc[0] += gg;
-                acc[1] += pp;
-                acc[2] += dd;
-                acc[3] += xx;
-            });
+                acc[0] = gg;
+                acc[1] = pp;
+                acc[2] = dd;
+                acc[3] = xx;
+            }));
             k++;
             double alpha = 0;
             if (fixedSteps != null) {
@@ -192,14 +209,19 @@ public final class RichardsonLucy implements Solver {
             lastFit = fit;
             double change = Math.sqrt(s[2] / Math.max(s[3], 1e-300));
             final float a = (float) alpha;
-            workers.forRange(n, (from, to) -> {
-                for (int i = from; i < to; i++) {
-                    float xn = buf[i];
+            // y <- the extrapolated point, also left in the work grid as the next iteration's input; xOld <- x_{k+1}
+            workers.forRange(n, (from, to) -> buf.update(from, to, (w, at, index, count) -> {
+                for (int j = 0; j < count; j++) {
+                    int i = index + j;
+                    float xn = w[at + j];
                     float next = xn + a * (xn - xOld[i]);
-                    y[i] = next >= 0 ? next : xn;
+                    float yn = next >= 0 ? next : xn;
+                    y[i] = yn;
+                    w[at + j] = yn;
                     xOld[i] = xn;
                 }
-            });
+            }));
+            holds = buf.generation();
             if (log.after(fit, fit, p.expectedFit(), change, held, xOld)) {
                 break;
             }
