@@ -16,8 +16,11 @@ import org.stackwright.parallel.Workers;
  * </pre>
  *
  * with w = 0 outside the data and on masked pixels and H^T w as normalisation (Bertero &amp; Boccacci 2005; see
- * {@link DeconvolutionProblem}). Each iteration costs one blur and one correlation (4 FFTs) and three fused
- * element-wise passes; nothing is allocated inside the loop.
+ * {@link DeconvolutionProblem}). Each iteration costs one blur and one correlation (4 FFTs) and two fused
+ * element-wise passes (three when accelerated): the ratio with the data fit, and the update. They run on the
+ * operator's work grid ({@link OperatorWork}), where the transforms leave their result (FFTW's native buffer or the
+ * Java engine's in-place array): the update writes the next input of the blur there too, so no grid is copied
+ * between a Java array and the transforms' buffer. Nothing is allocated inside the loop.
  *
  * <p><b>Acceleration</b> (optional): vector extrapolation of Biggs &amp; Andrews, "Acceleration of iterative image
  * restoration algorithms", Applied Optics 36(8), 1997: with g_k = psi(y_k) - y_k the last RL step,
