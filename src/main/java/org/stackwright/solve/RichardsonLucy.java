@@ -156,8 +156,9 @@ public final class RichardsonLucy implements Solver {
         OperatorWork h = p.forwardWork(); // H y, the ratio and H^T of it stay in the work grid
         WorkGrid buf = h.grid();
         float[] xOld = y.clone();
-        // the last RL step, for the extrapolation's alpha; not needed when the steps are given
-        float[] gPrev = fixedSteps == null ? new float[n] : null;
+        // the last RL step, for the extrapolation's alpha only, kept in 16 bits ({@link #toHalf}); not needed when the
+        // steps are given
+        short[] gPrev = fixedSteps == null ? new short[n] : null;
         Sums sums = new Sums(4);
         IterationLog log = new IterationLog(method(), stopping, context, listener);
         double trusted = p.trustedPixels();
@@ -187,10 +188,10 @@ public final class RichardsonLucy implements Solver {
                     a[at + j] = xn;
                     if (gPrev != null) {
                         float g = xn - yi;
-                        float gp = gPrev[i];
+                        float gp = fromHalf(gPrev[i]);
                         gg += (double) g * gp;
                         pp += (double) gp * gp;
-                        gPrev[i] = g;
+                        gPrev[i] = toHalf(g);
                     }
                     double diff = xn - xOld[i];
                     dd += diff * diff;
@@ -231,5 +232,22 @@ public final class RichardsonLucy implements Solver {
         }
         usedSteps = steps.stream().mapToDouble(Double::doubleValue).toArray();
         return log.finish(xOld);
+    }
+
+    /**
+     * A float rounded to its upper 16 bits (sign, the float's 8-bit exponent and 7 stored mantissa bits, the
+     * "bfloat16" format; round to nearest, ties to even): half the memory of a float, with a relative rounding
+     * error of at most 2^-8. The previous RL step serves only the extrapolation's step alpha, a ratio of two sums
+     * over the whole grid clamped to [0, 0.95], where these errors average out; keeping it in 16 bits brings
+     * accelerated RL to 5.5 grids of floats plus the transfer function (README, Deconvolution).
+     */
+    static short toHalf(float f) {
+        int b = Float.floatToRawIntBits(f);
+        return (short) ((b + 0x7FFF + ((b >>> 16) & 1)) >>> 16);
+    }
+
+    /** @return the float a {@link #toHalf} value stands for */
+    static float fromHalf(short h) {
+        return Float.intBitsToFloat(h << 16);
     }
 }
