@@ -14,7 +14,8 @@ import java.util.concurrent.ConcurrentLinkedDeque;
  * overlap. Sums over pieces in a fixed order stay deterministic (see {@code solve.Sums}).
  *
  * <p>{@link #generation()} tells a solver whether the grid still holds what it left there: the transform counts up
- * whenever it uses the space for something else (a one-off {@link RealTransform#filter}, forward or inverse).
+ * whenever it uses the space for something else (a one-off {@link RealTransform#filter}, forward or inverse), and
+ * another user of the grid {@link #claim}s it before filling it.
  */
 public abstract class WorkGrid {
 
@@ -72,6 +73,14 @@ public abstract class WorkGrid {
     /** @return a count that changes whenever the space was used for something other than this grid */
     public final synchronized long generation() {
         return generation;
+    }
+
+    /**
+     * Announces a new user of the grid, who is about to fill it: counts up {@link #generation()}, so that a solver
+     * that left its iterate here loads it again.
+     */
+    public final void claim() {
+        disturb();
     }
 
     /** Called by the owner when it uses the space for something else: the grid's values are gone. */

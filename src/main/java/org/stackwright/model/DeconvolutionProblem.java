@@ -277,6 +277,7 @@ public final class DeconvolutionProblem {
             // uses afterwards), then copied out
             OperatorWork t = OperatorWork.of(forward, nx, ny, nz);
             WorkGrid g = t.grid();
+            g.claim();
             workers.forRange(nz * ny, (from, to) -> g.update(from * nx, to * nx, (a, at, index, length) -> {
                 int r = index / nx;
                 int x0 = index - r * nx;
@@ -675,13 +676,18 @@ public final class DeconvolutionProblem {
      * @return {mean data fit per trusted pixel, what noise alone leaves in it ({@link #expectedFit(float[])})}
      */
     public double[] fitOfEstimate(float[] x) {
-        float[] pos = new float[x.length];
-        for (int i = 0; i < x.length; i++) {
-            pos[i] = Math.max(x[i], 0f);
-        }
-        float[] mu = new float[x.length];
-        forward.apply(pos, mu);
-        return new double[] {fit(mu) / trustedPixels(), expectedFit(mu)};
+        // blurred in the operator's work grid (no grid-sized arrays of its own); a solver that left its iterate there
+        // sees the claim and loads it again
+        OperatorWork hw = forwardWork();
+        WorkGrid g = hw.grid();
+        g.claim();
+        workers.forRange(x.length, (from, to) -> g.update(from, to, (a, at, index, count) -> {
+            for (int j = 0; j < count; j++) {
+                a[at + j] = Math.max(x[index + j], 0f);
+            }
+        }));
+        hw.apply();
+        return new double[] {pass(g, false) / trustedPixels(), expectedFit(g)};
     }
 
     /**
@@ -691,19 +697,29 @@ public final class DeconvolutionProblem {
      * @param mu H x on the grid, not modified
      */
     public double expectedFit(float[] mu) {
+        return expectedFit(WorkGrid.of(mu, nx, ny, nz, nx));
+    }
+
+    /** {@link #expectedFit(float[])} on a work grid; one running total per block, rows in order. */
+    private double expectedFit(WorkGrid mu) {
         final float b = background;
         double sum = workers.sum(d * h, (from, to) -> {
-            double e = 0;
+            double[] total = new double[1];
             for (int r = from; r < to; r++) {
                 int g = ((r / h) * ny + r % h) * nx;
                 int wrow = r * w;
-                for (int x = 0; x < w; x++) {
-                    if (trusted(wrow + x)) {
-                        e += PoissonDeviance.expected(mu[g + x] + b);
+                mu.read(g, g + w, (a, at, index, count) -> {
+                    int x0 = index - g;
+                    double e = total[0];
+                    for (int j = 0; j < count; j++) {
+                        if (trusted(wrow + x0 + j)) {
+                            e += PoissonDeviance.expected(a[at + j] + b);
+                        }
                     }
-                }
+                    total[0] = e;
+                });
             }
-            return e;
+            return total[0];
         });
         return sum / trusted;
     }
