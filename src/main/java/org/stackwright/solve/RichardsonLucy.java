@@ -2,7 +2,6 @@ package org.stackwright.solve;
 
 import org.stackwright.fft.WorkGrid;
 import org.stackwright.model.DeconvolutionProblem;
-import org.stackwright.model.OperatorWork;
 import org.stackwright.op.RunContext;
 import org.stackwright.parallel.Workers;
 
@@ -18,7 +17,7 @@ import org.stackwright.parallel.Workers;
  * with w = 0 outside the data and on masked pixels and H^T w as normalisation (Bertero &amp; Boccacci 2005; see
  * {@link DeconvolutionProblem}). Each iteration costs one blur and one correlation (4 FFTs) and two fused
  * element-wise passes (three when accelerated): the ratio with the data fit, and the update. They run on the
- * operator's work grid ({@link OperatorWork}), where the transforms leave their result (FFTW's native buffer or the
+ * operator's work grid ({@link org.stackwright.model.OperatorWork}, through {@link CorrectionStep}), where the transforms leave their result (FFTW's native buffer or the
  * Java engine's in-place array): the update writes the next input of the blur there too, so no grid is copied
  * between a Java array and the transforms' buffer. Nothing is allocated inside the loop.
  *
@@ -108,21 +107,14 @@ public final class RichardsonLucy implements Solver {
         int n = p.gridLength();
         Workers workers = p.workers();
         float[] norm = p.normalisation();
-        OperatorWork h = p.forwardWork(); // H x, the ratio and H^T of it stay in the work grid
-        WorkGrid buf = h.grid();
+        CorrectionStep step = new CorrectionStep(p);
+        WorkGrid buf = step.grid();
         Sums sums = new Sums(2);
         IterationLog log = new IterationLog(method(), stopping, context, listener);
-        double trusted = p.trustedPixels();
-        long holds = -1; // the work grid's generation when it was left holding x
         while (true) {
             log.before();
-            if (buf.generation() != holds) {
-                workers.forRange(n, (from, to) -> buf.load(x, from, to));
-            }
-            h.apply();
-            double held = p.heldOutFit(buf);
-            double fit = p.ratioAndFit(buf) / trusted;
-            h.applyAdjoint();
+            step.run(x);
+            double fit = step.fit();
             // x <- x H^T(ratio) / H^T w, also left in the work grid as the next iteration's input
             double[] s = sums.run(workers, n, (from, to, acc) -> buf.update(from, to, (a, at, index, count) -> {
                 double dd = acc[0];
@@ -140,9 +132,9 @@ public final class RichardsonLucy implements Solver {
                 acc[0] = dd;
                 acc[1] = xx;
             }));
-            holds = buf.generation();
+            step.holdsNext();
             double change = Math.sqrt(s[0] / Math.max(s[1], 1e-300));
-            if (log.after(fit, fit, p.expectedFit(), change, held, x)) {
+            if (log.after(fit, fit, p.expectedFit(), change, step.held(), x)) {
                 break;
             }
         }
@@ -153,28 +145,21 @@ public final class RichardsonLucy implements Solver {
         int n = p.gridLength();
         Workers workers = p.workers();
         float[] norm = p.normalisation();
-        OperatorWork h = p.forwardWork(); // H y, the ratio and H^T of it stay in the work grid
-        WorkGrid buf = h.grid();
+        CorrectionStep step = new CorrectionStep(p);
+        WorkGrid buf = step.grid();
         float[] xOld = y.clone();
         // the last RL step, for the extrapolation's alpha only, kept in 16 bits ({@link #toHalf}); not needed when the
         // steps are given
         short[] gPrev = fixedSteps == null ? new short[n] : null;
         Sums sums = new Sums(4);
         IterationLog log = new IterationLog(method(), stopping, context, listener);
-        double trusted = p.trustedPixels();
         double lastFit = Double.POSITIVE_INFINITY;
         int k = 0;
-        long holds = -1; // the work grid's generation when it was left holding y
         java.util.List<Double> steps = new java.util.ArrayList<>();
         while (true) {
             log.before();
-            if (buf.generation() != holds) {
-                workers.forRange(n, (from, to) -> buf.load(y, from, to));
-            }
-            h.apply();
-            double held = p.heldOutFit(buf);
-            double fit = p.ratioAndFit(buf) / trusted;
-            h.applyAdjoint();
+            step.run(y);
+            double fit = step.fit();
             // buf <- psi(y) = x_{k+1}; g = x_{k+1} - y; sums for alpha and for the change x_{k+1} - x_k
             double[] s = sums.run(workers, n, (from, to, acc) -> buf.update(from, to, (a, at, index, count) -> {
                 double gg = acc[0];
@@ -225,8 +210,8 @@ public final class RichardsonLucy implements Solver {
                     xOld[i] = xn;
                 }
             }));
-            holds = buf.generation();
-            if (log.after(fit, fit, p.expectedFit(), change, held, xOld)) {
+            step.holdsNext();
+            if (log.after(fit, fit, p.expectedFit(), change, step.held(), xOld)) {
                 break;
             }
         }

@@ -2,7 +2,6 @@ package org.stackwright.solve;
 
 import org.stackwright.fft.WorkGrid;
 import org.stackwright.model.DeconvolutionProblem;
-import org.stackwright.model.OperatorWork;
 import org.stackwright.model.TotalVariation;
 import org.stackwright.op.RunContext;
 import org.stackwright.parallel.Workers;
@@ -59,8 +58,8 @@ public final class RichardsonLucyTv implements Solver {
     public Solution solve(DeconvolutionProblem p, RunContext context, IterationListener listener) {
         int n = p.gridLength();
         p.blur(); // throws for a depth-variant problem: this solver needs one PSF
-        OperatorWork h = p.forwardWork(); // H x, the ratio and H^T of it stay in the work grid
-        WorkGrid buf = h.grid();
+        CorrectionStep step = new CorrectionStep(p);
+        WorkGrid buf = step.grid();
         Workers workers = p.workers();
         float[] norm = p.normalisation();
         float[] x = new float[n];
@@ -75,20 +74,14 @@ public final class RichardsonLucyTv implements Solver {
         }
         double trusted = p.trustedPixels();
         final float lam = (float) lambda;
-        long holds = -1; // the work grid's generation when it was left holding x
         while (true) {
             log.before();
             double tvValue = lambda > 0 ? tv.value(x) : 0;
             if (lambda > 0) {
                 tv.curvature(x, eps, curv);
             }
-            if (buf.generation() != holds) {
-                workers.forRange(n, (from, to) -> buf.load(x, from, to));
-            }
-            h.apply();
-            double held = p.heldOutFit(buf);
-            double fit = p.ratioAndFit(buf) / trusted;
-            h.applyAdjoint();
+            step.run(x);
+            double fit = step.fit();
             double[] s = sums.run(workers, n, (from, to, acc) -> buf.update(from, to, (a, at, index, count) -> {
                 double dd = acc[0];
                 double xx = acc[1];
@@ -109,9 +102,9 @@ public final class RichardsonLucyTv implements Solver {
                 acc[0] = dd;
                 acc[1] = xx;
             }));
-            holds = buf.generation();
+            step.holdsNext();
             double change = Math.sqrt(s[0] / Math.max(s[1], 1e-300));
-            if (log.after(fit + lambda * tvValue / trusted, fit, p.expectedFit(), change, held, x)) {
+            if (log.after(fit + lambda * tvValue / trusted, fit, p.expectedFit(), change, step.held(), x)) {
                 break;
             }
         }
