@@ -31,7 +31,7 @@ public final class PoissonDeviance {
         if (mu <= LOW) {
             return TABLE[0] * mu / LOW;
         }
-        double t = Math.log(mu / LOW) / LOG_SPAN * STEPS;
+        double t = FastLog.log(mu / LOW) / LOG_SPAN * STEPS; // once per pixel: the table-driven logarithm
         int i = Math.min((int) t, STEPS - 1);
         double f = t - i;
         return TABLE[i] * (1 - f) + TABLE[i + 1] * f;
