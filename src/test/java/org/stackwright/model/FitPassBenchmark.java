@@ -74,32 +74,18 @@ public final class FitPassBenchmark {
         System.out.println("load average: " + Files.readString(Paths.get("/proc/loadavg")).trim());
     }
 
+    /**
+     * The pass's loop body on plain arrays (background 10, ratio written back), with {@link FastLog} or
+     * {@link Math#log}; the choice is loop-invariant, so the compiler moves it out of the loop.
+     */
     private static double kernel(float[] y, float[] mu, boolean table) {
-        return table ? kernelTable(y, mu) : kernelMath(y, mu);
-    }
-
-    /** the pass's loop body on plain arrays (background 10, ratio written back), with {@link Math#log} */
-    private static double kernelMath(float[] y, float[] mu) {
         double kl = 0;
         for (int i = 0; i < y.length; i++) {
             float yi = y[i];
             double m = Math.max(mu[i] + 10f, 1e-12);
             double q = yi / m;
             mu[i] = (float) q;
-            kl += yi > 0 ? yi * Math.log(q) - yi + m : m;
-        }
-        return kl;
-    }
-
-    /** the same with {@link FastLog} */
-    private static double kernelTable(float[] y, float[] mu) {
-        double kl = 0;
-        for (int i = 0; i < y.length; i++) {
-            float yi = y[i];
-            double m = Math.max(mu[i] + 10f, 1e-12);
-            double q = yi / m;
-            mu[i] = (float) q;
-            kl += yi > 0 ? yi * FastLog.log(q) - yi + m : m;
+            kl += yi > 0 ? yi * (table ? FastLog.log(q) : Math.log(q)) - yi + m : m;
         }
         return kl;
     }
