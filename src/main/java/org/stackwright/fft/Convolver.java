@@ -131,6 +131,24 @@ public final class Convolver {
         fft.filter(in, out, otf, SpectrumProduct.CONJUGATE);
     }
 
+    /**
+     * @return the grid in the engine's own work space ({@link RealTransform#work()}): load it, filter it in place with
+     *     {@link #convolveWork} and {@link #correlateWork}, and run element-wise passes on it without a Java copy
+     */
+    public WorkGrid work() {
+        return fft.work();
+    }
+
+    /** work = kernel (*) work: {@link #convolve} on the grid in {@link #work()}. */
+    public void convolveWork() {
+        fft.filterWork(otf, SpectrumProduct.MULTIPLY);
+    }
+
+    /** work = kernel (x) work: {@link #correlate} on the grid in {@link #work()}. */
+    public void correlateWork() {
+        fft.filterWork(otf, SpectrumProduct.CONJUGATE);
+    }
+
     /** @return the transfer function's value at frequency 0: the kernel's sum */
     public double kernelSum() {
         return otf[0];

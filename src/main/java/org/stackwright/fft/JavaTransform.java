@@ -15,8 +15,9 @@ final class JavaTransform implements RealTransform {
     private final int rowIn;
     private final int rowOut;
     private final int rows;
-    /** work spectrum for out-of-place filtering, allocated on first use */
+    /** work spectrum for out-of-place filtering and the work grid, allocated on first use */
     private float[] work;
+    private WorkGrid grid;
 
     JavaTransform(int nx, int ny, int nz, Workers workers) {
         this.fft = new RealFft3D(nx, ny, nz, workers);
@@ -74,20 +75,48 @@ final class JavaTransform implements RealTransform {
             fft.forwardInPlace(out);
             w = out;
         } else {
-            if (work == null) {
-                work = fft.newSpectrum();
+            workSpace();
+            if (grid != null) {
+                grid.disturb();
             }
             fft.forward(in, rowIn, work);
             w = work;
         }
-        final float[] ws = w;
-        workers.forRange(spectrumLength() / 2, (from, to) -> product.apply(ws, 2 * from, kernel, 2 * from, to - from, 1f));
+        multiply(w, kernel, product);
         if (w == out) {
             fft.inverseInPlace(out);
             joinRows(out);
         } else {
             fft.inverse(work, out, rowIn);
         }
+    }
+
+    @Override
+    public WorkGrid work() {
+        if (grid == null) {
+            grid = WorkGrid.of(workSpace(), nx(), ny(), nz(), rowOut);
+        }
+        return grid;
+    }
+
+    @Override
+    public void filterWork(float[] kernel, SpectrumProduct product) {
+        check(kernel, spectrumLength(), "kernel spectrum");
+        float[] w = workSpace();
+        fft.forwardInPlace(w);
+        multiply(w, kernel, product);
+        fft.inverseInPlace(w);
+    }
+
+    private float[] workSpace() {
+        if (work == null) {
+            work = fft.newSpectrum();
+        }
+        return work;
+    }
+
+    private void multiply(float[] w, float[] kernel, SpectrumProduct product) {
+        workers.forRange(spectrumLength() / 2, (from, to) -> product.apply(w, 2 * from, kernel, 2 * from, to - from, 1f));
     }
 
     /** Moves row r from float r nx to float r (2 (nx/2+1)); last row first, so no row overwrites an unmoved one. */

@@ -62,6 +62,23 @@ public interface RealTransform {
     void filter(float[] in, float[] out, float[] kernel, SpectrumProduct product);
 
     /**
+     * @return the grid held in this transform's own work space (made on first call, then the same object): load a
+     *     grid into it, filter it there with {@link #filterWork} and run element-wise passes on it, without a copy in
+     *     a Java array. {@link #forward}, {@link #inverse} and {@link #filter} may use the same space; they then count
+     *     up its {@link WorkGrid#generation()}.
+     */
+    WorkGrid work();
+
+    /**
+     * work = F^-1[ product(F(work), kernel) ]: the grid in {@link #work()} filtered in place, the same arithmetic
+     * as {@link #filter}.
+     *
+     * @param kernel a spectrum made by {@link #forward} of this transform, not modified
+     * @param product how each spectrum value is combined with the kernel's
+     */
+    void filterWork(float[] kernel, SpectrumProduct product);
+
+    /**
      * Checks a grid size for any engine: at least 1 along each axis, and a spectrum that fits one Java array.
      *
      * @throws IllegalArgumentException naming the size

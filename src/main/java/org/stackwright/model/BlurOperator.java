@@ -3,6 +3,7 @@ package org.stackwright.model;
 import org.stackwright.fft.Convolver;
 import org.stackwright.fft.FftEngine;
 import org.stackwright.fft.FftEngines;
+import org.stackwright.fft.WorkGrid;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
 
@@ -75,6 +76,21 @@ public final class BlurOperator implements LinearOperator {
      */
     public float[] newWorkArray() {
         return convolver.newWorkArray();
+    }
+
+    /** @return the grid in the FFT engine's own work space, for {@link #applyInWork} and {@link #applyAdjointInWork} */
+    public WorkGrid work() {
+        return convolver.work();
+    }
+
+    /** work = H work, on the grid of {@link #work()} (no copy in or out). */
+    public void applyInWork() {
+        convolver.convolveWork();
+    }
+
+    /** work = H^T work, on the grid of {@link #work()}. */
+    public void applyAdjointInWork() {
+        convolver.correlateWork();
     }
 
     /** @return the FFT engine of the blur ({@code java} or {@code native}), for the run record */

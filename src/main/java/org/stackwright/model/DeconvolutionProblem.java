@@ -3,6 +3,7 @@ package org.stackwright.model;
 import org.stackwright.fft.Convolution;
 import org.stackwright.fft.FftEngine;
 import org.stackwright.fft.FftEngines;
+import org.stackwright.fft.WorkGrid;
 import org.stackwright.parallel.Workers;
 import org.stackwright.volume.Volume;
 import org.stackwright.volume.VoxelSize;
@@ -272,19 +273,25 @@ public final class DeconvolutionProblem {
             }
             this.start = start;
         } else {
-            // H^T w computed in the blur's in-place work array (no FFT work buffer kept for the run), then trimmed
-            float[] t = forward.newWorkArray();
-            for (int z = 0; z < d; z++) {
-                for (int yy = 0; yy < h; yy++) {
-                    int row = (z * ny + yy) * nx;
-                    int wrow = (z * h + yy) * w;
-                    for (int x = 0; x < w; x++) {
-                        t[row + x] = trusted(wrow + x) ? 1f : 0f;
-                    }
+            // H^T w computed in the operator's work grid (the FFT engine's own buffer for a blur, which the solver
+            // uses afterwards), then copied out
+            OperatorWork t = OperatorWork.of(forward, nx, ny, nz);
+            WorkGrid g = t.grid();
+            g.claim();
+            workers.forRange(nz * ny, (from, to) -> g.update(from * nx, to * nx, (a, at, index, length) -> {
+                int r = index / nx;
+                int x0 = index - r * nx;
+                boolean inside = r / ny < d && r % ny < h;
+                int wrow = ((r / ny) * h + r % ny) * w;
+                for (int j = 0; j < length; j++) {
+                    int x = x0 + j;
+                    a[at + j] = inside && x < w && trusted(wrow + x) ? 1f : 0f;
                 }
-            }
-            forward.applyAdjoint(t, t);
-            this.norm = t.length == n ? t : java.util.Arrays.copyOf(t, n);
+            }));
+            t.applyAdjoint();
+            float[] hw = new float[n];
+            workers.forRange(nz * ny, (from, to) -> g.store(hw, from * nx, to * nx));
+            this.norm = hw;
             float max = 0;
             for (float v : norm) {
                 max = Math.max(max, v);
@@ -498,7 +505,21 @@ public final class DeconvolutionProblem {
      * @return sum over trusted pixels of the Kullback-Leibler divergence y ln(y / m) - y + m with m = H x + b
      */
     public double ratioAndFit(float[] mu) {
+        return pass(WorkGrid.of(mu, nx, ny, nz, nx), true);
+    }
+
+    /**
+     * {@link #ratioAndFit(float[])} on a work grid (H x where the transforms left it, see {@link OperatorWork}).
+     *
+     * @param mu the grid, modified
+     */
+    public double ratioAndFit(WorkGrid mu) {
         return pass(mu, true);
+    }
+
+    /** @return the operator H with a work grid for its products ({@link OperatorWork}) */
+    public OperatorWork forwardWork() {
+        return OperatorWork.of(forward, nx, ny, nz);
     }
 
     /**
@@ -506,45 +527,62 @@ public final class DeconvolutionProblem {
      * @return the sum over trusted pixels of the Kullback-Leibler divergence of y from H x + b
      */
     public double fit(float[] mu) {
-        return pass(mu, false);
+        return pass(WorkGrid.of(mu, nx, ny, nz, nx), false);
     }
 
-    /** One parallel pass over the grid rows; rows and columns outside the image window carry no likelihood. */
-    private double pass(float[] mu, boolean ratio) {
+    /**
+     * One parallel pass over the grid rows; rows and columns outside the image window carry no likelihood. The sum
+     * runs through the pieces of a block in index order, one running total per block (deterministic). The logarithm
+     * is {@link FastLog}: {@link Math#log} made most of this pass's time (one call per pixel per iteration); its
+     * argument y / m is positive here (y &gt; 0, m at least the model floor).
+     */
+    private double pass(WorkGrid mu, boolean ratio) {
         final float b = background;
         final double floor = modelFloor;
         return workers.sum(nz * ny, (from, to) -> {
-            double kl = 0;
-            for (int r = from; r < to; r++) {
+            double[] total = new double[1];
+            WorkGrid.Piece piece = (a, at, index, count) -> {
+                int r = index / nx;
+                int x0 = index - r * nx;
                 int z = r / ny;
                 int yy = r % ny;
-                int g = r * nx;
+                int g = at - x0; // where x = 0 of this row sits in a
                 if (z >= d || yy >= h) {
                     if (ratio) {
-                        java.util.Arrays.fill(mu, g, g + nx, 0f);
+                        java.util.Arrays.fill(a, at, at + count, 0f);
                     }
-                    continue;
+                    return;
                 }
                 int wrow = (z * h + yy) * w;
-                for (int x = 0; x < w; x++) {
+                int x1 = x0 + count;
+                int xw = Math.min(x1, w);
+                double kl = total[0];
+                for (int x = x0; x < xw; x++) {
                     float yi = datum(wrow + x);
                     if (yi < 0) {
                         if (ratio) {
-                            mu[g + x] = 0f;
+                            a[g + x] = 0f;
                         }
                         continue;
                     }
-                    double m = Math.max(mu[g + x] + b, floor);
+                    double m = Math.max(a[g + x] + b, floor);
+                    double q = yi / m;
                     if (ratio) {
-                        mu[g + x] = (float) (yi / m);
+                        a[g + x] = (float) q;
                     }
-                    kl += yi > 0 ? yi * Math.log(yi / m) - yi + m : m;
+                    kl += yi > 0 ? yi * FastLog.log(q) - yi + m : m;
                 }
-                if (ratio && w < nx) {
-                    java.util.Arrays.fill(mu, g + w, g + nx, 0f);
+                total[0] = kl;
+                if (ratio && x1 > w) {
+                    java.util.Arrays.fill(a, g + Math.max(w, x0), g + x1, 0f);
                 }
+            };
+            if (ratio) {
+                mu.update(from * nx, to * nx, piece);
+            } else {
+                mu.read(from * nx, to * nx, piece);
             }
-            return kl;
+            return total[0];
         });
     }
 
@@ -561,6 +599,15 @@ public final class DeconvolutionProblem {
      * @return mean divergence per held-out pixel, NaN when the problem has none
      */
     public double heldOutFit(float[] mu) {
+        return heldOutFit(WorkGrid.of(mu, nx, ny, nz, nx));
+    }
+
+    /**
+     * {@link #heldOutFit(float[])} on a work grid.
+     *
+     * @param mu H x, not modified
+     */
+    public double heldOutFit(WorkGrid mu) {
         int n = heldIndex.length;
         if (n == 0) {
             return Double.NaN;
@@ -574,8 +621,8 @@ public final class DeconvolutionProblem {
                 int r = i / w;
                 int g = ((r / h) * ny + r % h) * nx + x;
                 float yi = toElectrons(adu[i]);
-                double m = Math.max(mu[g] + b, TINY);
-                kl += yi > 0 ? yi * Math.log(yi / m) - yi + m : m;
+                double m = Math.max(mu.get(g) + b, TINY);
+                kl += yi > 0 ? yi * FastLog.log(yi / m) - yi + m : m;
             }
             return kl;
         });
@@ -632,13 +679,18 @@ public final class DeconvolutionProblem {
      * @return {mean data fit per trusted pixel, what noise alone leaves in it ({@link #expectedFit(float[])})}
      */
     public double[] fitOfEstimate(float[] x) {
-        float[] pos = new float[x.length];
-        for (int i = 0; i < x.length; i++) {
-            pos[i] = Math.max(x[i], 0f);
-        }
-        float[] mu = new float[x.length];
-        forward.apply(pos, mu);
-        return new double[] {fit(mu) / trustedPixels(), expectedFit(mu)};
+        // blurred in the operator's work grid (no grid-sized arrays of its own); a solver that left its iterate there
+        // sees the claim and loads it again
+        OperatorWork hw = forwardWork();
+        WorkGrid g = hw.grid();
+        g.claim();
+        workers.forRange(x.length, (from, to) -> g.update(from, to, (a, at, index, count) -> {
+            for (int j = 0; j < count; j++) {
+                a[at + j] = Math.max(x[index + j], 0f);
+            }
+        }));
+        hw.apply();
+        return new double[] {pass(g, false) / trustedPixels(), expectedFit(g)};
     }
 
     /**
@@ -648,19 +700,29 @@ public final class DeconvolutionProblem {
      * @param mu H x on the grid, not modified
      */
     public double expectedFit(float[] mu) {
+        return expectedFit(WorkGrid.of(mu, nx, ny, nz, nx));
+    }
+
+    /** {@link #expectedFit(float[])} on a work grid; one running total per block, rows in order. */
+    private double expectedFit(WorkGrid mu) {
         final float b = background;
         double sum = workers.sum(d * h, (from, to) -> {
-            double e = 0;
+            double[] total = new double[1];
             for (int r = from; r < to; r++) {
                 int g = ((r / h) * ny + r % h) * nx;
                 int wrow = r * w;
-                for (int x = 0; x < w; x++) {
-                    if (trusted(wrow + x)) {
-                        e += PoissonDeviance.expected(mu[g + x] + b);
+                mu.read(g, g + w, (a, at, index, count) -> {
+                    int x0 = index - g;
+                    double e = total[0];
+                    for (int j = 0; j < count; j++) {
+                        if (trusted(wrow + x0 + j)) {
+                            e += PoissonDeviance.expected(a[at + j] + b);
+                        }
                     }
-                }
+                    total[0] = e;
+                });
             }
-            return e;
+            return total[0];
         });
         return sum / trusted;
     }

@@ -10,6 +10,7 @@ import org.bytedeco.javacpp.FloatPointer;
 import org.stackwright.fft.FftEngines;
 import org.stackwright.fft.RealTransform;
 import org.stackwright.fft.SpectrumProduct;
+import org.stackwright.fft.WorkGrid;
 import org.stackwright.parallel.Workers;
 
 /**
@@ -39,6 +40,7 @@ final class FftwTransform implements RealTransform {
     private final FloatBuffer view;
     private final FftwPlanner.Plans plans;
     private final float[][] blocks;
+    private NativeGrid grid;
 
     FftwTransform(int nx, int ny, int nz, Workers workers) {
         RealTransform.checkSize(nx, ny, nz);
@@ -81,6 +83,7 @@ final class FftwTransform implements RealTransform {
     public void forward(float[] real, float[] spectrum) {
         check(real, realLength(), "real");
         check(spectrum, spectrumLength(), "spectrum");
+        lost();
         try {
             copyIn(real);
             fftwf_execute_dft_r2c(plans.forward(), buffer, buffer);
@@ -99,6 +102,7 @@ final class FftwTransform implements RealTransform {
     public void inverse(float[] spectrum, float[] real) {
         check(spectrum, spectrumLength(), "spectrum");
         check(real, realLength(), "real");
+        lost();
         try {
             int complex = spectrumLength() / 2;
             workers.forRange(blocks(complex), (from, to) -> {
@@ -118,9 +122,34 @@ final class FftwTransform implements RealTransform {
         check(in, realLength(), "input");
         check(out, realLength(), "output");
         check(kernel, spectrumLength(), "kernel spectrum");
-        long t0 = System.nanoTime();
+        lost();
         try {
             copyIn(in);
+            filterInBuffer(kernel, product);
+            copyOut(out, 1f);
+        } finally {
+            Reference.reachabilityFence(buffer);
+        }
+    }
+
+    @Override
+    public WorkGrid work() {
+        if (grid == null) {
+            grid = new NativeGrid(buffer, view, nx, ny, nz, row);
+        }
+        return grid;
+    }
+
+    @Override
+    public void filterWork(float[] kernel, SpectrumProduct product) {
+        check(kernel, spectrumLength(), "kernel spectrum");
+        filterInBuffer(kernel, product);
+    }
+
+    /** The buffer's grid filtered in place: forward, product (with the inverse's 1/N), inverse; timed for planning. */
+    private void filterInBuffer(float[] kernel, SpectrumProduct product) {
+        long t0 = System.nanoTime();
+        try {
             fftwf_execute_dft_r2c(plans.forward(), buffer, buffer);
             float scale = 1f / realLength();
             int complex = spectrumLength() / 2;
@@ -135,11 +164,17 @@ final class FftwTransform implements RealTransform {
                 }
             });
             fftwf_execute_dft_c2r(plans.inverse(), buffer, buffer);
-            copyOut(out, 1f);
         } finally {
             Reference.reachabilityFence(buffer);
         }
         plans.ran(System.nanoTime() - t0);
+    }
+
+    /** The buffer is about to be used for something other than the work grid. */
+    private void lost() {
+        if (grid != null) {
+            grid.lost();
+        }
     }
 
     /**
@@ -147,6 +182,7 @@ final class FftwTransform implements RealTransform {
      * or product (for the benchmark's comparison with other FFTW front ends).
      */
     void roundTripInPlace() {
+        lost();
         try {
             fftwf_execute_dft_r2c(plans.forward(), buffer, buffer);
             fftwf_execute_dft_c2r(plans.inverse(), buffer, buffer);
