@@ -58,7 +58,7 @@ public final class MosaicFigures {
         pic.insert(gray(before, lo, hi, scale), 0, 0);
         pic.insert(gray(after, lo, hi, scale), pw + 10, 0);
         new FileSaver(new ImagePlus("before-after", pic)).saveAsPng(dir.resolve("mosaic-before-after.png").toString());
-        Plot plot = new Plot("Column profile", "x (px)", "median of the column above the offset");
+        Plot plot = new Plot("Column profile", "x (px)", "column median - offset");
         plot.setLineWidth(1);
         plot.setColor(Color.GRAY);
         plot.addPoints(xs(w), columnMeans(before), Plot.LINE);
