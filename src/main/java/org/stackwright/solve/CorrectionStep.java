@@ -19,6 +19,7 @@ final class CorrectionStep {
     private long holds = -1;
     private double held;
     private double fit;
+    private final Sums sums = new Sums(2);
 
     CorrectionStep(DeconvolutionProblem p) {
         this.p = p;
@@ -54,6 +55,42 @@ final class CorrectionStep {
     /** @return the mean fit of the held-out pixels for that x, NaN when the problem has none */
     double held() {
         return held;
+    }
+
+    /**
+     * The multiplicative update x &lt;- x max(correction, 0) / d with d = H^T w, or, with a curvature, the
+     * Richardson-Lucy-TV denominator max(H^T w - lambda curv, H^T w / 2) (Dey et al. 2006); where H^T w is 0, x = 0.
+     * The new x is also left in the grid as the next step's input ({@link #holdsNext()}).
+     *
+     * @param x the iterate, overwritten
+     * @param curv the total variation's curvature at x, or null for plain Richardson-Lucy
+     * @param lam the regularisation weight (unused without curvature)
+     * @return the relative change ||x_new - x|| / ||x||
+     */
+    double update(float[] x, float[] curv, float lam) {
+        float[] norm = p.normalisation();
+        double[] s = sums.run(p.workers(), x.length, (from, to, acc) -> grid.update(from, to, (a, at, index, count) -> {
+            double dd = acc[0];
+            double xx = acc[1];
+            for (int j = 0; j < count; j++) {
+                int i = index + j;
+                float old = x[i];
+                float nv = 0f;
+                if (norm[i] > 0) {
+                    float den = curv == null ? norm[i] : Math.max(norm[i] - lam * curv[i], 0.5f * norm[i]);
+                    nv = old * Math.max(a[at + j], 0f) / den;
+                }
+                x[i] = nv;
+                a[at + j] = nv;
+                double diff = nv - old;
+                dd += diff * diff;
+                xx += (double) old * old;
+            }
+            acc[0] = dd;
+            acc[1] = xx;
+        }));
+        holdsNext();
+        return Math.sqrt(s[0] / Math.max(s[1], 1e-300));
     }
 
     /** The caller has left its next iterate in the grid. */

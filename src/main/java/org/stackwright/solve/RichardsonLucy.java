@@ -104,36 +104,14 @@ public final class RichardsonLucy implements Solver {
     }
 
     private Solution plain(DeconvolutionProblem p, float[] x, RunContext context, IterationListener listener) {
-        int n = p.gridLength();
-        Workers workers = p.workers();
-        float[] norm = p.normalisation();
         CorrectionStep step = new CorrectionStep(p);
-        WorkGrid buf = step.grid();
-        Sums sums = new Sums(2);
         IterationLog log = new IterationLog(method(), stopping, context, listener);
         while (true) {
             log.before();
             step.run(x);
             double fit = step.fit();
             // x <- x H^T(ratio) / H^T w, also left in the work grid as the next iteration's input
-            double[] s = sums.run(workers, n, (from, to, acc) -> buf.update(from, to, (a, at, index, count) -> {
-                double dd = acc[0];
-                double xx = acc[1];
-                for (int j = 0; j < count; j++) {
-                    int i = index + j;
-                    float old = x[i];
-                    float nv = norm[i] > 0 ? old * Math.max(a[at + j], 0f) / norm[i] : 0f;
-                    x[i] = nv;
-                    a[at + j] = nv;
-                    double diff = nv - old;
-                    dd += diff * diff;
-                    xx += (double) old * old;
-                }
-                acc[0] = dd;
-                acc[1] = xx;
-            }));
-            step.holdsNext();
-            double change = Math.sqrt(s[0] / Math.max(s[1], 1e-300));
+            double change = step.update(x, null, 0f);
             if (log.after(fit, fit, p.expectedFit(), change, step.held(), x)) {
                 break;
             }

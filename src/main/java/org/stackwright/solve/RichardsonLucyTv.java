@@ -1,6 +1,5 @@
 package org.stackwright.solve;
 
-import org.stackwright.fft.WorkGrid;
 import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.model.TotalVariation;
 import org.stackwright.op.RunContext;
@@ -59,15 +58,12 @@ public final class RichardsonLucyTv implements Solver {
         int n = p.gridLength();
         p.blur(); // throws for a depth-variant problem: this solver needs one PSF
         CorrectionStep step = new CorrectionStep(p);
-        WorkGrid buf = step.grid();
         Workers workers = p.workers();
-        float[] norm = p.normalisation();
         float[] x = new float[n];
         p.initialEstimate(x);
         float[] curv = new float[n];
         TotalVariation tv = new TotalVariation(p.gridWidth(), p.gridHeight(), p.gridDepth(), p.zWeight(), workers);
         double eps = 1e-3 * Math.max(Sums.maxAtLeastZero(x), 1e-6);
-        Sums sums = new Sums(2);
         IterationLog log = new IterationLog(method(), stopping, context, listener);
         if (lambda > 0) {
             log.stopWhenLevelledOff(p.heldOutPixels());
@@ -82,28 +78,7 @@ public final class RichardsonLucyTv implements Solver {
             }
             step.run(x);
             double fit = step.fit();
-            double[] s = sums.run(workers, n, (from, to, acc) -> buf.update(from, to, (a, at, index, count) -> {
-                double dd = acc[0];
-                double xx = acc[1];
-                for (int j = 0; j < count; j++) {
-                    int i = index + j;
-                    float old = x[i];
-                    float nv = 0f;
-                    if (norm[i] > 0) {
-                        float den = Math.max(norm[i] - lam * curv[i], 0.5f * norm[i]);
-                        nv = old * Math.max(a[at + j], 0f) / den;
-                    }
-                    x[i] = nv;
-                    a[at + j] = nv;
-                    double diff = nv - old;
-                    dd += diff * diff;
-                    xx += (double) old * old;
-                }
-                acc[0] = dd;
-                acc[1] = xx;
-            }));
-            step.holdsNext();
-            double change = Math.sqrt(s[0] / Math.max(s[1], 1e-300));
+            double change = step.update(x, curv, lam);
             if (log.after(fit + lambda * tvValue / trusted, fit, p.expectedFit(), change, step.held(), x)) {
                 break;
             }
