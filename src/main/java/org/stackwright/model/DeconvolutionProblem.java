@@ -557,18 +557,22 @@ public final class DeconvolutionProblem {
                 int x1 = x0 + count;
                 int xw = Math.min(x1, w);
                 double kl = total[0];
+                // the casts of the formula y ln(y / m) - y + m, with y = (float) electrons, are done by
+                // BitConversions: the same values, but compiled without a wait on the previous pixel (its Javadoc)
                 for (int x = x0; x < xw; x++) {
-                    float yi = datum(wrow + x);
-                    if (yi < 0) {
+                    int i = wrow + x;
+                    if (!trusted(i)) {
                         if (ratio) {
                             a[g + x] = 0f;
                         }
                         continue;
                     }
-                    double m = Math.max(a[g + x] + b, floor);
+                    double yi = BitConversions.roundToFloat(
+                            Math.max(0, (BitConversions.widen(adu[i]) - offset) / gain + shift));
+                    double m = Math.max(BitConversions.widen(a[g + x] + b), floor);
                     double q = yi / m;
                     if (ratio) {
-                        a[g + x] = (float) q;
+                        a[g + x] = BitConversions.narrow(q);
                     }
                     kl += yi > 0 ? yi * FastLog.log(q) - yi + m : m;
                 }

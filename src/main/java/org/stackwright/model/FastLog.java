@@ -68,8 +68,9 @@ public final class FastLog {
         int k = 2 * (j - FIRST);
         double invc = TABLE[k];
         double logc = TABLE[k + 1];
-        double r = (z - j * (1.0 / SCALE)) * invc; // z - c exact
-        double ef = e + shift;
+        // the integer-to-double casts by bits (BitConversions: same values, no wait on the previous call's registers)
+        double r = (z - BitConversions.toDouble(j) * (1.0 / SCALE)) * invc; // z - c exact
+        double ef = BitConversions.toDouble(e + shift);
         // log1p(r) = r - r^2/2 + r^3/3 - ... - r^6/6 + r^7/7, Horner on the terms after r
         double q = -0.5 + r * (1.0 / 3 + r * (-0.25 + r * (0.2 + r * (-1.0 / 6 + r * (1.0 / 7)))));
         return (ef * LN2_HI + logc) + (ef * LN2_LO + (r + r * r * q));
