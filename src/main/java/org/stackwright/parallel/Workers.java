@@ -35,6 +35,12 @@ public final class Workers implements AutoCloseable {
         void run(int slot, int from, int to);
     }
 
+    /** A loop body for one block of a fixed cut (see {@link #forEachBlock}). */
+    @FunctionalInterface
+    public interface BlockBody {
+        void run(int block);
+    }
+
     /** Number of blocks a reduction is split into, whatever the thread count (keeps sums deterministic). */
     public static final int REDUCTION_BLOCKS = 64;
 
@@ -104,6 +110,34 @@ public final class Workers implements AutoCloseable {
     }
 
     /**
+     * Runs body for blocks 0 to blocks-1, each exactly once, and waits for all. The threads take the next block as
+     * they become free, so blocks that cost more than others (the image's rows in a pass over a padded grid) do not
+     * leave a thread idle; a result kept per block and combined in block order is the same for any thread count.
+     */
+    public void forEachBlock(int blocks, BlockBody body) {
+        if (blocks <= 0) {
+            return;
+        }
+        int parts = Math.min(threads, blocks);
+        if (parts == 1 || pool == null) {
+            for (int b = 0; b < blocks; b++) {
+                body.run(b);
+            }
+            return;
+        }
+        AtomicInteger next = new AtomicInteger();
+        List<Future<?>> futures = new ArrayList<>(parts);
+        for (int p = 0; p < parts; p++) {
+            futures.add(pool.submit(() -> {
+                for (int b = next.getAndIncrement(); b < blocks; b = next.getAndIncrement()) {
+                    body.run(b);
+                }
+            }));
+        }
+        waitAll(futures);
+    }
+
+    /**
      * Sums body over [0, n): the range is cut into {@link #REDUCTION_BLOCKS} blocks independent of the thread
      * count, and the block sums are added in order, so the result does not depend on the number of threads.
      */
@@ -113,12 +147,10 @@ public final class Workers implements AutoCloseable {
         }
         int blocks = Math.min(REDUCTION_BLOCKS, n);
         double[] partial = new double[blocks];
-        forRange(blocks, (b0, b1) -> {
-            for (int b = b0; b < b1; b++) {
-                int from = (int) ((long) n * b / blocks);
-                int to = (int) ((long) n * (b + 1) / blocks);
-                partial[b] = body.sum(from, to);
-            }
+        forEachBlock(blocks, b -> {
+            int from = (int) ((long) n * b / blocks);
+            int to = (int) ((long) n * (b + 1) / blocks);
+            partial[b] = body.sum(from, to);
         });
         double s = 0;
         for (double v : partial) {

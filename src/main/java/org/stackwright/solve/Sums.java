@@ -31,11 +31,9 @@ final class Sums {
      */
     double[] run(Workers workers, int n, Body body) {
         int blocks = Math.min(Workers.REDUCTION_BLOCKS, Math.max(n, 1));
-        workers.forRange(blocks, (b0, b1) -> {
-            for (int b = b0; b < b1; b++) {
-                Arrays.fill(partial[b], 0);
-                body.run((int) ((long) n * b / blocks), (int) ((long) n * (b + 1) / blocks), partial[b]);
-            }
+        workers.forEachBlock(blocks, b -> {
+            Arrays.fill(partial[b], 0);
+            body.run((int) ((long) n * b / blocks), (int) ((long) n * (b + 1) / blocks), partial[b]);
         });
         Arrays.fill(total, 0);
         for (int b = 0; b < blocks; b++) {
