@@ -108,6 +108,16 @@ public final class DeconvolutionBenchmark {
         long grid = (long) nx * ny * nz;
         System.out.printf(Locale.ROOT, "%s, PSF %d^3, grid %dx%dx%d%n", label, psfSize, nx, ny, nz);
         Map<String, Double> rlTwoThreads = new LinkedHashMap<>();
+        double passBytes = passBytesPerVoxel(nx, ny, nz, size);
+        for (int t : threadCounts(threads)) {
+            try (Workers w = new Workers(t)) {
+                double bw = triadBandwidth((int) grid, w, 5);
+                System.out.printf(Locale.ROOT, "  memory bandwidth, %d thread(s): %.1f GB/s (STREAM-like triad a = b + s c "
+                        + "over 3 arrays of %d floats, 12 bytes per element, best of 5); the element-wise passes of one "
+                        + "plain RL iteration move about %.0f bytes per grid voxel outside the FFTs: %.3f s at this "
+                        + "bandwidth%n", t, bw / 1e9, grid, passBytes, passBytes * grid / bw);
+            }
+        }
         for (FftEngine engine : engines()) {
             for (int t : threadCounts(threads)) {
                 try (Workers w = new Workers(t)) {
@@ -140,6 +150,55 @@ public final class DeconvolutionBenchmark {
                 }
             }
             Files.deleteIfExists(img);
+        }
+    }
+
+    /**
+     * The bytes per grid voxel that the element-wise passes of one plain Richardson-Lucy iteration read and write in
+     * main memory, outside the four transforms (native engine; the Java engine's are the same less the padding),
+     * counted from the code: the spectrum product of each of the two filterings reads and writes the spectrum and
+     * reads the transfer function (3 x 4 bytes per padded voxel, twice); the ratio pass reads and writes the grid
+     * (2 x 4, padded) and reads the data (4 per image voxel); the update reads and writes the grid (2 x 4, padded),
+     * reads and writes the estimate and reads H^T w (3 x 4). Not counted: write-allocate reads of written lines.
+     */
+    static double passBytesPerVoxel(int nx, int ny, int nz, int[] image) {
+        double padded = 2.0 * (nx / 2 + 1) / nx;
+        double dataShare = (double) image[0] * image[1] * image[2] / ((double) nx * ny * nz);
+        return 2 * 12 * padded + 8 * padded + 4 * dataShare + 8 * padded + 12;
+    }
+
+    /**
+     * STREAM-like triad (McCalpin, "Memory bandwidth and machine balance in current high performance computers",
+     * IEEE TCCA Newsletter, 1995): a = b + s c over three float arrays of n values, split over the threads.
+     *
+     * @return the best rate in bytes per second, counting 12 bytes per element as STREAM does
+     */
+    static double triadBandwidth(int n, Workers w, int reps) {
+        float[] a = new float[n];
+        float[] b = new float[n];
+        float[] c = new float[n];
+        w.forRange(n, (from, to) -> {
+            for (int i = from; i < to; i++) {
+                b[i] = i % 13;
+                c[i] = i % 7;
+            }
+        });
+        double best = Double.POSITIVE_INFINITY;
+        for (int k = 0; k < reps + 1; k++) {
+            float s = 0.5f + k;
+            long t0 = System.nanoTime();
+            w.forRange(n, (from, to) -> triad(a, b, c, s, from, to));
+            double t = (System.nanoTime() - t0) * 1e-9;
+            if (k > 0) {
+                best = Math.min(best, t);
+            }
+        }
+        return 12.0 * n / best;
+    }
+
+    private static void triad(float[] a, float[] b, float[] c, float s, int from, int to) {
+        for (int i = from; i < to; i++) {
+            a[i] = b[i] + s * c[i];
         }
     }
 
