@@ -12,7 +12,8 @@ package org.stackwright.model;
  * Richardson-Lucy ratio pass then ran at 39 ns per pixel instead of 12 in about half of the JVMs (measured
  * 2026-12-05, README, "FFT engines"). These helpers use only integer operations and bit moves
  * ({@link Double#longBitsToDouble}), which write their whole register, so no pixel waits for the previous one
- * whatever registers the compiler picks. Rare values (zero where noted, subnormal, infinite, NaN) take the cast.
+ * whatever registers the compiler picks. Rare values (subnormal, infinite, NaN; for {@link #narrow} and
+ * {@link #roundToFloat} also negative values) take the cast.
  */
 public final class BitConversions {
 
@@ -30,7 +31,10 @@ public final class BitConversions {
         int b = Float.floatToRawIntBits(f);
         int e = (b >>> 23) & 0xff;
         if (e == 0 || e == 0xff) {
-            return (double) f; // zero, subnormal, infinite, NaN
+            if ((b & 0x7fffffff) == 0) {
+                return b == 0 ? 0.0 : -0.0; // zeros are common in camera data: no cast for them either
+            }
+            return (double) f; // subnormal, infinite, NaN
         }
         long bits = ((long) (b & 0x80000000) << 32) | ((e + REBIAS) << 52) | ((long) (b & 0x7fffff) << 29);
         return Double.longBitsToDouble(bits);
