@@ -45,6 +45,9 @@ final class SeamReport {
         String halved = (t.folded().contains("x=2") ? "x" : "") + (t.folded().contains("y=2") ? "y" : "");
         tiling.put("step_from_shading", shaded.isEmpty() ? null : shaded);
         tiling.put("step_from_one_seam", halved.isEmpty() ? null : halved);
+        String noise = (f.columns().stream().anyMatch(b -> b.looks().contains("noise")) ? "x" : "")
+                + (f.rows().stream().anyMatch(b -> b.looks().contains("noise")) ? "y" : "");
+        tiling.put("blend_from_noise", noise.isEmpty() ? null : noise);
         r.record("tiling", tiling);
         r.record("lines_not_seams", Map.of("vertical", lines(f.columnLines()), "horizontal", lines(f.rowLines())));
         int[] cx = SeamDetector.centres(f.columns());
@@ -63,6 +66,11 @@ final class SeamReport {
             r.line(String.format(Locale.ROOT, "the %s seams show no period of their own: the step of the %s seams (%d "
                     + "px) fits them with weaker evidence per seam (square tiles); check the mask there",
                     y ? "horizontal" : "vertical", y ? "vertical" : "horizontal", y ? t.stepY() : t.stepX()));
+        }
+        if (!noise.isEmpty()) {
+            r.line(String.format(Locale.ROOT, "the seams along %s are blend bands, found from the noise: inside a band "
+                    + "the tiles' independent exposures are averaged, so the noise drops (to half its variance in the "
+                    + "middle) with the tile step", noise.length() == 2 ? "x and y" : noise));
         }
         if (!shaded.isEmpty()) {
             r.line(String.format(Locale.ROOT, "the seams along %s are too faint at each border: their step comes from "
