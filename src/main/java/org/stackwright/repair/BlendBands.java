@@ -29,7 +29,7 @@ import org.stackwright.volume.Volume;
  */
 final class BlendBands {
 
-    /** narrowest and widest blend band searched, pixels */
+    /** narrowest and widest blend band searched, pixels (a best comb at the widest is taken for a trend: none) */
     static final int MIN_WIDTH = 6;
     static final int MAX_WIDTH = SeamDetector.MAX_BAND;
     /** each band of the comb needs a matched-filter z of at least this */
@@ -111,7 +111,8 @@ final class BlendBands {
                 }
             }
         }
-        return best == null ? null : refine(ratio, best);
+        // a best dip at the widest width searched is a slower trend of the noise ratio, not a band of blending
+        return best == null || best.width() == MAX_WIDTH ? null : refine(ratio, best);
     }
 
     /**

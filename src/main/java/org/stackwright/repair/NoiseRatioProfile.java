@@ -9,9 +9,9 @@ import org.stackwright.volume.Volume;
  * <p>Every pixel whose four neighbours are measured (no zero of a gap among the five) gives a residual d = pixel
  * minus the mean of its four neighbours (a discrete Laplacian: smooth signal cancels, white noise of variance s^2
  * leaves 1.25 s^2; residuals across one line only were tried and placed the bands less well) and a level, that
- * mean. The noise expected at each level is fitted over the whole image
- * ({@link NoiseLevel}: variance = a + b level, robust per level class), so photon noise that grows with the signal
- * and the tile shading are divided out: z = |d| / sigma(level). The ratio of a column is a trimmed mean of its z^2
+ * mean. The noise expected at each level is measured over the whole image (a curve of the residual variance
+ * against the level, {@link LevelCurve}), so photon noise that grows with the signal and the tile shading are
+ * divided out: z = |d| / sigma(level). The ratio of a column is a trimmed mean of its z^2
  * (the smallest {@link #KEPT}), which ignores the minority of pixels on the specimen's edges, whose residual is
  * structure, not noise. The profile is divided by its median, so 1 is the noise of one exposure and 0.5 about the
  * noise of the mean of two.
@@ -27,7 +27,7 @@ final class NoiseRatioProfile {
     /** pixels used for the fit of the noise against the level */
     static final int FIT_SAMPLES = 200_000;
     /** level classes of that fit */
-    static final int FIT_CLASSES = 16;
+    static final int FIT_CLASSES = 32;
 
     /** the ratio of each column (x) and of each row (y); NaN where no pixel was measured */
     final double[] columns;
@@ -111,17 +111,70 @@ final class NoiseRatioProfile {
             System.arraycopy(residual, line * along * d, fitResidual, k, count[line]);
             k += count[line];
         }
-        NoiseLevel noise = NoiseLevel.fit(fitLevel, fitResidual, n, FIT_SAMPLES, FIT_CLASSES);
+        LevelCurve noise = LevelCurve.of(fitLevel, fitResidual, n);
         double[] out = new double[lines];
         double[] buf = new double[along * d];
         for (int line = 0; line < lines; line++) {
             int base = line * along * d;
             for (int i = 0; i < count[line]; i++) {
-                buf[i] = Math.abs(residual[base + i]) / noise.sigma(level[base + i]);
+                buf[i] = Math.abs(residual[base + i]) / Math.sqrt(noise.variance(level[base + i]));
             }
             out[line] = ratio(buf, count[line]);
         }
         return out;
+    }
+
+    /**
+     * The residual variance expected at each level, measured rather than modelled: the measured pixels are put into
+     * {@link #FIT_CLASSES} classes of equal count by level, each class gets the same trimmed mean of squares as a line
+     * (so a line of ordinary noise has ratio 1 whatever its level), and the variance between the classes' mean levels
+     * is interpolated linearly (held at the ends). No model of the camera is assumed: a straight line of variance
+     * against level (Poisson-Gaussian) misses the darkest and brightest levels by enough to make bright or dark rows
+     * look like bands.
+     */
+    private record LevelCurve(double[] levels, double[] variances) {
+
+        static LevelCurve of(float[] level, float[] residual, int n) {
+            int stride = Math.max(1, n / FIT_SAMPLES);
+            int ns = (n + stride - 1) / stride;
+            long[] order = new long[ns];
+            for (int s = 0; s < ns; s++) {
+                // sort by level, keeping the index: the level's bits are ordered for positive and negative floats alike
+                int bits = Float.floatToIntBits(level[s * stride]);
+                int key = bits >= 0 ? bits : bits ^ 0x7fffffff;
+                order[s] = ((long) key << 32) | (s * stride & 0xffffffffL);
+            }
+            java.util.Arrays.sort(order);
+            double[] lv = new double[FIT_CLASSES];
+            double[] var = new double[FIT_CLASSES];
+            double[] buf = new double[ns / FIT_CLASSES + 1];
+            for (int c = 0; c < FIT_CLASSES; c++) {
+                int a = (int) ((long) c * ns / FIT_CLASSES);
+                int b = (int) ((long) (c + 1) * ns / FIT_CLASSES);
+                double sum = 0;
+                for (int i = a; i < b; i++) {
+                    int p = (int) order[i];
+                    sum += level[p];
+                    buf[i - a] = Math.abs(residual[p]);
+                }
+                lv[c] = sum / Math.max(1, b - a);
+                var[c] = Math.max(1e-12, ratio(buf, b - a));
+            }
+            return new LevelCurve(lv, var);
+        }
+
+        double variance(double l) {
+            if (l <= levels[0]) {
+                return variances[0];
+            }
+            for (int c = 1; c < levels.length; c++) {
+                if (l <= levels[c]) {
+                    double t = levels[c] > levels[c - 1] ? (l - levels[c - 1]) / (levels[c] - levels[c - 1]) : 1;
+                    return variances[c - 1] + t * (variances[c] - variances[c - 1]);
+                }
+            }
+            return variances[levels.length - 1];
+        }
     }
 
     /**

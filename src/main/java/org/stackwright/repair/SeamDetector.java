@@ -20,9 +20,9 @@ import org.stackwright.volume.Volume;
  * seam; it is returned as a line for the user to check with find-defects. Without two repeating teeth along an
  * axis (a mosaic of two tiles along it) the seams along that axis are the strong edges that are not narrow lines,
  * and the result is marked not regular. An axis without a period of its own is tried once more with the step of
- * the other axis alone (square tiles), its teeth needing {@link #OTHER_AXIS} of the usual evidence. Blend bands
- * found from the noise ({@link BlendBands}: inside a blend the noise of two exposures is averaged) replace the
- * seams of their axis; their looks say "blend" and "noise".
+ * the other axis alone (square tiles), its teeth needing {@link #OTHER_AXIS} of the usual evidence. An axis still
+ * without a period of its own takes the blend bands found from the noise ({@link BlendBands}: inside a blend the
+ * noise of two exposures is averaged) as its seams; their looks say "blend" and "noise".
  */
 public final class SeamDetector {
 
@@ -165,15 +165,17 @@ public final class SeamDetector {
                 c = guided;
             }
         }
-        // blend bands found from the noise (two exposures averaged) are the seams of their axis: no structure fakes them
-        BlendBands.Found blends = BlendBands.find(image);
-        if (blends.y() != null) {
+        // an axis without a period of its own from steps: blend bands found from the noise (two exposures averaged)
+        // are its seams (a seam band dimmed after acquisition also lowers the noise, but its steps find it first)
+        BlendBands.Found blends = py == null || c.step() == 0 || !borrowed.isEmpty() ? BlendBands.find(image)
+                : BlendBands.Found.NONE;
+        if (blends.y() != null && (py == null || borrowed.equals("y"))) {
             py = new SeamComb.Period(blends.y().step(), blends.y().phase(), 0, 0, 0);
             rows = blendBands(blends.y(), 0, w);
             c = columns(image, rows, tooth, threshold, stepWidth, 0);
             borrowed = "";
         }
-        if (blends.x() != null) {
+        if (blends.x() != null && (c.step() == 0 || borrowed.equals("x"))) {
             int[] ph = new int[c.phases().length];
             Arrays.fill(ph, blends.x().phase());
             c = new Columns(blendBands(blends.x(), 0, h), c.periods(), ph, blends.x().width(), blends.x().step());
