@@ -34,7 +34,8 @@ final class SeamReport {
         tiling.put("origin_x", t.stepX() > 0 && t.phaseX().length > 0 && t.phaseX()[0] >= 0
                 ? Math.floorMod(t.phaseX()[0], t.stepX()) : 0);
         tiling.put("origin_y", t.stepY() > 0 ? Math.floorMod(t.phaseY(), t.stepY()) : 0);
-        String order = t.overlapX() > 0 ? "snake" : "row-by-row or snake without overlap";
+        String order = t.overlapX() > 0 ? "snake" : t.blendX() > 0 || t.blendY() > 0
+                ? "row-by-row or snake (blending looks the same in both)" : "row-by-row or snake without overlap";
         tiling.put("order", order);
         int overlap = t.overlapX() > 0 ? t.overlapX() : Math.max(t.blendX(), t.blendY());
         tiling.put("overlap", overlap > 0 ? overlap : null);
