@@ -20,7 +20,9 @@ import org.stackwright.volume.Volume;
  * seam; it is returned as a line for the user to check with find-defects. Without two repeating teeth along an
  * axis (a mosaic of two tiles along it) the seams along that axis are the strong edges that are not narrow lines,
  * and the result is marked not regular. An axis without a period of its own is tried once more with the step of
- * the other axis alone (square tiles), its teeth needing {@link #OTHER_AXIS} of the usual evidence.
+ * the other axis alone (square tiles), its teeth needing {@link #OTHER_AXIS} of the usual evidence. An axis still
+ * without a period of its own takes the blend bands found from the noise ({@link BlendBands}: inside a blend the
+ * noise of two exposures is averaged) as its seams; their looks say "blend" and "noise".
  */
 public final class SeamDetector {
 
@@ -162,6 +164,22 @@ public final class SeamDetector {
                 borrowed = "x";
                 c = guided;
             }
+        }
+        // an axis without a period of its own from steps: blend bands found from the noise (two exposures averaged)
+        // are its seams (a seam band dimmed after acquisition also lowers the noise, but its steps find it first)
+        BlendBands.Found blends = py == null || c.step() == 0 || !borrowed.isEmpty() ? BlendBands.find(image)
+                : BlendBands.Found.NONE;
+        if (blends.y() != null && (py == null || borrowed.equals("y"))) {
+            py = new SeamComb.Period(blends.y().step(), blends.y().phase(), 0, 0, 0);
+            rows = blendBands(blends.y(), 0, w);
+            c = columns(image, rows, tooth, threshold, stepWidth, 0);
+            borrowed = "";
+        }
+        if (blends.x() != null && (c.step() == 0 || borrowed.equals("x"))) {
+            int[] ph = new int[c.phases().length];
+            Arrays.fill(ph, blends.x().phase());
+            c = new Columns(blendBands(blends.x(), 0, h), c.periods(), ph, blends.x().width(), blends.x().step());
+            borrowed = borrowed.replace("x", "");
         }
         // an axis still without a period: the shading every tile shares may show the step (SeamTemplate)
         String folded = "";
@@ -539,6 +557,15 @@ public final class SeamDetector {
                     strength, from, to, looks);
         }
         return new Band(first, last, strength, from, to, looks);
+    }
+
+    /** The blend bands of one axis as seams over the lines [from, to), marked "blend" and "noise" (their evidence). */
+    private static List<Band> blendBands(BlendBands.Axis a, int from, int to) {
+        List<Band> out = new ArrayList<>();
+        for (int i = 0; i < a.starts().length; i++) {
+            out.add(new Band(a.starts()[i], a.starts()[i] + a.width(), a.z()[i], from, to, List.of("blend", "noise")));
+        }
+        return out;
     }
 
     /** @return whether the band's border cuts an axis of length n into two tiles of its step plus an overlap */

@@ -34,7 +34,8 @@ final class SeamReport {
         tiling.put("origin_x", t.stepX() > 0 && t.phaseX().length > 0 && t.phaseX()[0] >= 0
                 ? Math.floorMod(t.phaseX()[0], t.stepX()) : 0);
         tiling.put("origin_y", t.stepY() > 0 ? Math.floorMod(t.phaseY(), t.stepY()) : 0);
-        String order = t.overlapX() > 0 ? "snake" : "row-by-row or snake without overlap";
+        String order = t.overlapX() > 0 ? "snake" : t.blendX() > 0 || t.blendY() > 0
+                ? "row-by-row or snake (blending looks the same in both)" : "row-by-row or snake without overlap";
         tiling.put("order", order);
         int overlap = t.overlapX() > 0 ? t.overlapX() : Math.max(t.blendX(), t.blendY());
         tiling.put("overlap", overlap > 0 ? overlap : null);
@@ -45,6 +46,9 @@ final class SeamReport {
         String halved = (t.folded().contains("x=2") ? "x" : "") + (t.folded().contains("y=2") ? "y" : "");
         tiling.put("step_from_shading", shaded.isEmpty() ? null : shaded);
         tiling.put("step_from_one_seam", halved.isEmpty() ? null : halved);
+        String noise = (f.columns().stream().anyMatch(b -> b.looks().contains("noise")) ? "x" : "")
+                + (f.rows().stream().anyMatch(b -> b.looks().contains("noise")) ? "y" : "");
+        tiling.put("blend_from_noise", noise.isEmpty() ? null : noise);
         r.record("tiling", tiling);
         r.record("lines_not_seams", Map.of("vertical", lines(f.columnLines()), "horizontal", lines(f.rowLines())));
         int[] cx = SeamDetector.centres(f.columns());
@@ -63,6 +67,11 @@ final class SeamReport {
             r.line(String.format(Locale.ROOT, "the %s seams show no period of their own: the step of the %s seams (%d "
                     + "px) fits them with weaker evidence per seam (square tiles); check the mask there",
                     y ? "horizontal" : "vertical", y ? "vertical" : "horizontal", y ? t.stepY() : t.stepX()));
+        }
+        if (!noise.isEmpty()) {
+            r.line(String.format(Locale.ROOT, "the seams along %s are blend bands, found from the noise: inside a band "
+                    + "the tiles' independent exposures are averaged, so the noise drops (to half its variance in the "
+                    + "middle) with the tile step", noise.length() == 2 ? "x and y" : noise));
         }
         if (!shaded.isEmpty()) {
             r.line(String.format(Locale.ROOT, "the seams along %s are too faint at each border: their step comes from "

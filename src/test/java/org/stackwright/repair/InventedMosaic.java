@@ -14,6 +14,14 @@ import org.stackwright.volume.VoxelSize;
  * later tile covering the overlap, or a linear blend across it, gaps of zeros) and its own camera (photon noise as a
  * Gaussian of variance equal to the mean, read noise, offset) and defects placed on the mosaic (whole columns, row
  * segments, clusters of 2-3 pixels and single pixels). Test helper only.
+ *
+ * <p>The noise follows the acquisition: every tile is an exposure of its own, so a blended mosaic is made the way a
+ * stitcher makes it, from noisy tiles (each tile's photon and read noise drawn for each of its pixels) whose overlaps
+ * are then averaged with the ramp weights. Inside a blend band the noise of two (at corners four) independent
+ * exposures is averaged, so its variance drops to w^2 + (1 - w)^2 of a single exposure's (0.5 in the middle of the
+ * band). Without blending the later tile's pixels are the mosaic's, one exposure per pixel, and the noise is drawn
+ * once per mosaic pixel after stitching (the same numbers as a draw per tile, and the same draws as before blending
+ * was modelled per tile, so the other tests keep their numbers).
  */
 final class InventedMosaic {
 
@@ -169,10 +177,9 @@ final class InventedMosaic {
         }
         int sx = l.tileW() - l.overlap();
         int sy = l.tileH() - l.overlap();
-        // expected photons of every tile's view of each mosaic pixel, stitched
+        // expected photons of every tile's view of each mosaic pixel, stitched (the later tile covers the overlap)
         double[] mean = new double[w * h];
-        double[] weight = new double[w * h];
-        for (int tr = 0; tr < l.rows(); tr++) {
+        for (int tr = 0; tr < (l.blend() ? 0 : l.rows()); tr++) {
             for (int k = 0; k < l.cols(); k++) {
                 int tc = l.snake() && tr % 2 == 1 ? l.cols() - 1 - k : k;
                 int left = tc * sx;
@@ -181,26 +188,21 @@ final class InventedMosaic {
                 for (int v = 0; v < l.tileH(); v++) {
                     for (int u = 0; u < l.tileW(); u++) {
                         int p = (top + v) * w + left + u;
-                        double val = spec[p] * g * shading(l, u, v);
-                        if (l.blend()) {
-                            double wu = ramp(u, l.overlap(), l.tileW(), tc > 0, tc < l.cols() - 1);
-                            double wv = ramp(v, l.overlap(), l.tileH(), tr > 0, tr < l.rows() - 1);
-                            mean[p] += wu * wv * val;
-                            weight[p] += wu * wv;
-                        } else {
-                            mean[p] = val;
-                            weight[p] = 1;
-                        }
+                        mean[p] = spec[p] * g * shading(l, u, v);
                     }
                 }
             }
         }
         float[] img = new float[w * h];
         double[] signal = new double[w * h];
-        for (int p = 0; p < img.length; p++) {
-            double mu = mean[p] / weight[p];
-            signal[p] = mu;
-            img[p] = (float) (OFFSET + mu + Math.sqrt(mu) * r.nextGaussian() + READ_NOISE * r.nextGaussian());
+        if (l.blend()) {
+            blendNoisyTiles(l, spec, gains, r, img, signal);
+        } else {
+            for (int p = 0; p < img.length; p++) {
+                double mu = mean[p];
+                signal[p] = mu;
+                img[p] = (float) (OFFSET + mu + Math.sqrt(mu) * r.nextGaussian() + READ_NOISE * r.nextGaussian());
+            }
         }
         int[] rowSeams = new int[l.rows() - 1];
         for (int i = 1; i < l.rows(); i++) {
@@ -238,6 +240,45 @@ final class InventedMosaic {
                 gains, truth);
         m.plant(d, r);
         return m;
+    }
+
+    /**
+     * A blended mosaic from noisy tiles: each tile is exposed on its own (photon noise of its expected photons, read
+     * noise, offset), then the stitcher averages the tiles over each overlap with the ramp weights.
+     *
+     * @param img the mosaic, written
+     * @param signal the noise-free blended photons, written
+     */
+    private static void blendNoisyTiles(Layout l, double[] spec, double[] gains, SplittableRandom r, float[] img,
+            double[] signal) {
+        int w = l.width();
+        int sx = l.tileW() - l.overlap();
+        int sy = l.tileH() - l.overlap();
+        double[] sum = new double[img.length];
+        double[] weight = new double[img.length];
+        for (int tr = 0; tr < l.rows(); tr++) {
+            for (int k = 0; k < l.cols(); k++) {
+                int tc = l.snake() && tr % 2 == 1 ? l.cols() - 1 - k : k;
+                double g = gains[tr * l.cols() + tc];
+                for (int v = 0; v < l.tileH(); v++) {
+                    for (int u = 0; u < l.tileW(); u++) {
+                        int p = (tr * sy + v) * w + tc * sx + u;
+                        double mu = spec[p] * g * shading(l, u, v);
+                        double exposed = OFFSET + mu + Math.sqrt(mu) * r.nextGaussian() + READ_NOISE
+                                * r.nextGaussian();
+                        double wgt = ramp(u, l.overlap(), l.tileW(), tc > 0, tc < l.cols() - 1)
+                                * ramp(v, l.overlap(), l.tileH(), tr > 0, tr < l.rows() - 1);
+                        sum[p] += wgt * exposed;
+                        signal[p] += wgt * mu;
+                        weight[p] += wgt;
+                    }
+                }
+            }
+        }
+        for (int p = 0; p < img.length; p++) {
+            img[p] = (float) (sum[p] / weight[p]);
+            signal[p] /= weight[p];
+        }
     }
 
     /** Blending weight along one axis: a linear ramp over the overlap at a side shared with another tile. */

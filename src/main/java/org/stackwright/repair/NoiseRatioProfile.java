@@ -1,0 +1,215 @@
+package org.stackwright.repair;
+
+import org.stackwright.volume.Volume;
+
+/**
+ * How noisy each column and each row of an image is, relative to the noise expected for its signal: the profiles
+ * in which the blend bands of a stitched mosaic show as dips ({@link BlendBands}).
+ *
+ * <p>Every pixel whose four neighbours are measured (no zero of a gap among the five) gives a residual d = pixel
+ * minus the mean of its four neighbours (a discrete Laplacian: smooth signal cancels, white noise of variance s^2
+ * leaves 1.25 s^2; residuals across one line only were tried and placed the bands less well) and a level, that
+ * mean. The noise expected at each level is measured over the whole image (a curve of the residual variance
+ * against the level, {@link LevelCurve}), so photon noise that grows with the signal and the tile shading are
+ * divided out: z = |d| / sigma(level). The ratio of a column is a trimmed mean of its z^2
+ * (the smallest {@link #KEPT}), which ignores the minority of pixels on the specimen's edges, whose residual is
+ * structure, not noise. The profile is divided by its median, so 1 is the noise of one exposure and 0.5 about the
+ * noise of the mean of two.
+ */
+final class NoiseRatioProfile {
+
+    /**
+     * share of the smallest z^2 of a line whose mean is its ratio: a trimmed mean, proportional to the noise variance
+     * like the plain mean, that leaves out the specimen's edges (their residual is structure) and uses more of the
+     * pixels than a median
+     */
+    static final double KEPT = 0.85;
+    /** pixels used for the fit of the noise against the level */
+    static final int FIT_SAMPLES = 200_000;
+    /** level classes of that fit */
+    static final int FIT_CLASSES = 32;
+
+    /** the ratio of each column (x) and of each row (y); NaN where no pixel was measured */
+    final double[] columns;
+    final double[] rows;
+
+    private NoiseRatioProfile(double[] columns, double[] rows) {
+        this.columns = columns;
+        this.rows = rows;
+    }
+
+    /**
+     * @param image the image or stack (all planes pooled), not modified
+     * @return the profiles, or null when the image is too small or shows no noise
+     */
+    static NoiseRatioProfile of(Volume image) {
+        if (image.width() < 3 || image.height() < 3) {
+            return null;
+        }
+        double[] cols = along(image, true);
+        double[] rws = along(image, false);
+        if (cols == null || rws == null || !normalise(cols) || !normalise(rws)) {
+            return null;
+        }
+        return new NoiseRatioProfile(cols, rws);
+    }
+
+    /**
+     * @param columns true for the ratio of each column, false for each row
+     * @return the ratio per line, not yet normalised; null when too few pixels were measured
+     */
+    private static double[] along(Volume image, boolean columns) {
+        int w = image.width();
+        int h = image.height();
+        int d = image.depth();
+        float[] v = image.data();
+        int plane = w * h;
+        // residual and level of every measured pixel, line by line (the line's pixels contiguous)
+        int lines = columns ? w : h;
+        int along = columns ? h : w;
+        float[] level = new float[lines * along * d];
+        float[] residual = new float[level.length];
+        int[] count = new int[lines];
+        int n = 0;
+        for (int line = 0; line < lines; line++) {
+            int base = line * along * d;
+            int m = 0;
+            for (int z = 0; z < d; z++) {
+                for (int t = 1; t < along - 1; t++) {
+                    int p = z * plane + (columns ? t * w + line : line * w + t);
+                    int q = columns ? line : t;
+                    int r = columns ? t : line;
+                    if (q == 0 || q == w - 1 || r == 0 || r == h - 1) {
+                        continue;
+                    }
+                    float c = v[p];
+                    float a = v[p - 1];
+                    float b = v[p + 1];
+                    float e = v[p - w];
+                    float f = v[p + w];
+                    if (c == 0 || a == 0 || b == 0 || e == 0 || f == 0) {
+                        continue;
+                    }
+                    float mean = 0.25f * (a + b + e + f);
+                    level[base + m] = mean;
+                    residual[base + m] = c - mean;
+                    m++;
+                }
+            }
+            count[line] = m;
+            n += m;
+        }
+        if (n < 100) {
+            return null;
+        }
+        // the fit samples every line's measured pixels: pack them
+        float[] fitLevel = new float[n];
+        float[] fitResidual = new float[n];
+        int k = 0;
+        for (int line = 0; line < lines; line++) {
+            System.arraycopy(level, line * along * d, fitLevel, k, count[line]);
+            System.arraycopy(residual, line * along * d, fitResidual, k, count[line]);
+            k += count[line];
+        }
+        LevelCurve noise = LevelCurve.of(fitLevel, fitResidual, n);
+        double[] out = new double[lines];
+        double[] buf = new double[along * d];
+        for (int line = 0; line < lines; line++) {
+            int base = line * along * d;
+            for (int i = 0; i < count[line]; i++) {
+                buf[i] = Math.abs(residual[base + i]) / Math.sqrt(noise.variance(level[base + i]));
+            }
+            out[line] = ratio(buf, count[line]);
+        }
+        return out;
+    }
+
+    /**
+     * The residual variance expected at each level, measured rather than modelled: the measured pixels are put into
+     * {@link #FIT_CLASSES} classes of equal count by level, each class gets the same trimmed mean of squares as a line
+     * (so a line of ordinary noise has ratio 1 whatever its level), and the variance between the classes' mean levels
+     * is interpolated linearly (held at the ends). No model of the camera is assumed: a straight line of variance
+     * against level (Poisson-Gaussian) misses the darkest and brightest levels by enough to make bright or dark rows
+     * look like bands.
+     */
+    private record LevelCurve(double[] levels, double[] variances) {
+
+        static LevelCurve of(float[] level, float[] residual, int n) {
+            int stride = Math.max(1, n / FIT_SAMPLES);
+            int ns = (n + stride - 1) / stride;
+            long[] order = new long[ns];
+            for (int s = 0; s < ns; s++) {
+                // sort by level, keeping the index: the level's bits are ordered for positive and negative floats alike
+                int bits = Float.floatToIntBits(level[s * stride]);
+                int key = bits >= 0 ? bits : bits ^ 0x7fffffff;
+                order[s] = ((long) key << 32) | (s * stride & 0xffffffffL);
+            }
+            java.util.Arrays.sort(order);
+            double[] lv = new double[FIT_CLASSES];
+            double[] var = new double[FIT_CLASSES];
+            double[] buf = new double[ns / FIT_CLASSES + 1];
+            for (int c = 0; c < FIT_CLASSES; c++) {
+                int a = (int) ((long) c * ns / FIT_CLASSES);
+                int b = (int) ((long) (c + 1) * ns / FIT_CLASSES);
+                double sum = 0;
+                for (int i = a; i < b; i++) {
+                    int p = (int) order[i];
+                    sum += level[p];
+                    buf[i - a] = Math.abs(residual[p]);
+                }
+                lv[c] = sum / Math.max(1, b - a);
+                var[c] = Math.max(1e-12, ratio(buf, b - a));
+            }
+            return new LevelCurve(lv, var);
+        }
+
+        double variance(double l) {
+            if (l <= levels[0]) {
+                return variances[0];
+            }
+            for (int c = 1; c < levels.length; c++) {
+                if (l <= levels[c]) {
+                    double t = levels[c] > levels[c - 1] ? (l - levels[c - 1]) / (levels[c] - levels[c - 1]) : 1;
+                    return variances[c - 1] + t * (variances[c] - variances[c - 1]);
+                }
+            }
+            return variances[levels.length - 1];
+        }
+    }
+
+    /**
+     * @return the variance ratio of one line: the mean of the smallest {@link #KEPT} of its z^2 (NaN with fewer than
+     *     8 pixels); the values are reordered
+     */
+    private static double ratio(double[] absZ, int m) {
+        if (m < 8) {
+            return Double.NaN;
+        }
+        java.util.Arrays.sort(absZ, 0, m);
+        int k = Math.max(1, (int) (KEPT * m));
+        double sum = 0;
+        for (int i = 0; i < k; i++) {
+            sum += absZ[i] * absZ[i];
+        }
+        return sum / k;
+    }
+
+    /** Divides the measured entries by their median; @return false when there is nothing to divide by */
+    private static boolean normalise(double[] p) {
+        double[] ok = new double[p.length];
+        int m = 0;
+        for (double q : p) {
+            if (Double.isFinite(q)) {
+                ok[m++] = q;
+            }
+        }
+        double med = m > 0 ? RobustStats.median(ok, m) : 0;
+        if (!(med > 0)) {
+            return false;
+        }
+        for (int i = 0; i < p.length; i++) {
+            p[i] /= med;
+        }
+        return true;
+    }
+}
