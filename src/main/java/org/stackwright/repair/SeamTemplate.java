@@ -11,27 +11,29 @@ import org.stackwright.volume.Volume;
  * median drops most of the specimen), cleaned of narrow lines by a running median of 5. At a candidate step P and
  * phase the profile is cut into tiles and fitted by a level per tile and block plus one template over the tile, common
  * to all tiles and blocks, both by medians in turn (a robust two-way fit: Tukey, "Exploratory Data Analysis",
- * Addison-Wesley 1977, ch. 11, median polish). The score is cross-validated: the template fitted to the even tiles
- * is scored on the odd ones and the other way round, as the share of the absolute residual (about the tile levels
- * alone) it removes. The specimen does not repeat with the tiles, and a smooth trend over the whole image differs
- * from tile to tile: a template fitted to either predicts the other tiles no better than nothing (score near 0); the
- * shading repeats, so the true step scores well above that.
+ * Addison-Wesley 1977, ch. 11, median polish). The score is cross-validated over up to {@link #FOLDS} folds of
+ * tiles: the template fitted to the other folds is scored on each, as the share of the absolute residual (about the
+ * tile levels alone) it removes, every residual clipped at {@link #CLIP} robust sigmas so that a cell in one block
+ * weighs the same with and without the template. The specimen does not repeat with the tiles, and a smooth trend
+ * over the whole image differs from tile to tile: a template fitted to either predicts the other tiles no better than
+ * nothing (score near 0); the shading repeats, so the true step scores well above that.
  *
  * <p>Where the seam lies in the tile is read from the template itself: vignetting darkens every tile towards its
- * borders, so the template, repeated, has its sharpest valley (a convex corner: the slope jumps up) at the seam. The
- * score is nearly blind to the exact step and phase, so only tilings of an uncropped mosaic are accepted: the first
- * tile starts at the image's first pixel with the template's valley there, the last tile ends at the image's last
- * pixel (give or take an overlap of up to {@link SeamDetector#MAX_BAND}), and the seams pass through every seam
- * already found (a gap of zeros); of those near the best step, the one with the sharpest valley wins.
+ * borders, so the template, repeated, has its sharpest valley (a convex corner: the slope jumps up) near the seam.
+ * The exact step is the best score near the best step among the tilings of an uncropped mosaic: the first tile
+ * starts at the image's first pixel with the template's valley within {@link #FIT} / 2 of it, the last tile ends at
+ * the image's last pixel (give or take an overlap of up to {@link SeamDetector#MAX_BAND}), and the seams pass through
+ * every seam already found (a gap of zeros). The same template supports a tile row whose seams are too faint for a
+ * comb of their own when another tile row found the step ({@link #supports}).
  */
 final class SeamTemplate {
 
     /** lines per block of the profiles */
     static final int BLOCK = 16;
     /**
-     * the cross-validated score a tiling needs; on invented mosaics ({@code InventedMosaic}) without seams along the
-     * axis the best of all steps scored at most 0.0063, with seams of shading only 0.023 to 0.070 (our measurement,
-     * no published value)
+     * the cross-validated score a tiling needs; on invented mosaics ({@code InventedMosaic}, seeds 44-53) without
+     * seams along the axis the best of all steps scored at most 0.010, at the true step of seams of shading only (2x4
+     * tiles of 110 px, 3x3 of 128 px) 0.078 to 0.23 (our measurement, no published value)
      */
     static final double SCORE = 0.03;
     /** folds of the cross-validation (at most; one tile each up to this many tiles) */
@@ -137,18 +139,14 @@ final class SeamTemplate {
     }
 
     /**
-     * Searches all steps with at least {@link #MIN_TILES} tiles (every second step, then the neighbours of the best),
-     * then refines the best one by the template's corner.
-     *
-     * @param anchors seams already found along the axis (borders), may be empty
-     * @return the fold found (check {@link Fold#found()}), or null when the axis is too short or no tiling near the
-     *     best step starts at the image's first pixel with its darkest corner there and passes through the anchors
+     * @return the step of the best cross-validated score over all steps with at least {@link #MIN_TILES} tiles (every
+     *     second step, then the neighbours of the best; the smallest step that explains nearly as much as a multiple
+     *     of it), or -1 when the axis is too short
      */
-    static Fold find(Profiles p, int[] anchors) {
-        int n = p.length();
-        int hi = n / MIN_TILES;
+    static int bestStep(Profiles p) {
+        int hi = p.length() / MIN_TILES;
         if (hi < SeamComb.MIN_PITCH) {
-            return null;
+            return -1;
         }
         double[] score = new double[hi + 2];
         Arrays.fill(score, Double.NEGATIVE_INFINITY);
@@ -171,10 +169,29 @@ final class SeamTemplate {
                 }
             }
         }
-        double top = score[best];
-        // the exact step: the sharpest corner of the template near the best score, among the tilings whose first tile
-        // starts at the image's first pixel and whose last tile ends at the last one, give or take an overlap (an
-        // uncropped mosaic), and whose seams pass through every seam already found
+        return best;
+    }
+
+    /**
+     * Searches all steps with at least {@link #MIN_TILES} tiles ({@link #bestStep}), then picks the exact step near
+     * the best one.
+     *
+     * @param anchors seams already found along the axis (borders), may be empty
+     * @return the fold found (check {@link Fold#found()}), or null when the axis is too short or no tiling near the
+     *     best step starts at the image's first pixel with its darkest corner there and passes through the anchors
+     */
+    static Fold find(Profiles p, int[] anchors) {
+        int n = p.length();
+        int hi = n / MIN_TILES;
+        int best = bestStep(p);
+        if (best < 0) {
+            return null;
+        }
+        // the exact step: the best score at phase 0 near the best step, among the tilings whose first tile starts at
+        // the image's first pixel and whose last tile ends at the last one, give or take an overlap (an uncropped
+        // mosaic), whose seams pass through every seam already found, and whose template has its sharpest valley
+        // within FIT / 2 of the seam (an off-centre vignetting moves the sharpest corner by a few pixels; our
+        // measurement on InventedMosaic: up to 3 px)
         int reach = Math.max(3, best / 20);
         Fold pick = null;
         for (int s = Math.max(SeamComb.MIN_PITCH, best - reach); s <= Math.min(hi, best + reach); s++) {
@@ -183,14 +200,12 @@ final class SeamTemplate {
             }
             double[] t = template(p, s, 0);
             int u = sharpest(t);
-            // a gap already found fixes the seams: the valley need only confirm them (an off-centre vignetting and the
-            // gap's missing positions move the sharpest corner by a few pixels)
-            if (Math.min(u, s - u) > (anchors.length > 0 ? FIT / 2 : 2)) {
+            if (Math.min(u, s - u) > FIT / 2) {
                 continue;
             }
-            double c = cornerAt(t, u);
-            if (pick == null || c > pick.corner()) {
-                pick = new Fold(s, 0, top, c);
+            double sc = score(p, s, 0);
+            if (pick == null || sc > pick.score()) {
+                pick = new Fold(s, 0, sc, cornerAt(t, u));
             }
         }
         return pick;
@@ -199,15 +214,17 @@ final class SeamTemplate {
     /**
      * Whether the shading supports vertical seams of step s and phase ph in a tile row [from, to) whose seams are too
      * faint for a comb of their own, the step and phase found in other tile rows: the template at that tiling explains
-     * the shading of the whole mosaic (its cross-validated score reaches {@link #SCORE}) and the template of the tile
-     * row alone has its sharpest valley within 2 px of the phase.
+     * the shading of the whole mosaic (its cross-validated score reaches {@link #SCORE} and the step lies near the
+     * best-scoring step of all, {@link #bestStep}) and the template of the tile
+     * row alone has its sharpest valley within {@link #FIT} / 2 of the phase.
      */
     static boolean supports(Volume v, int from, int to, int s, int ph) {
         if (score(profiles(v, true), s, ph) < SCORE) {
             return false;
         }
         int u = Math.floorMod(sharpest(template(profiles(v, true, from, to), s, ph)), s);
-        return Math.min(u, s - u) <= 2;
+        int best = bestStep(profiles(v, true));
+        return Math.min(u, s - u) <= FIT / 2 && Math.abs(s - best) <= Math.max(3, best / 20);
     }
 
     /** @return whether every anchor lies within 1 px of a seam of step s, phase ph */
