@@ -171,7 +171,11 @@ public final class SeamDetector {
                 folded = "y";
                 py = new SeamComb.Period(fy.pitch(), fy.phase(), 0, 0, 0);
                 rows = withTeeth(rows, fy, h, stepWidth, 0, w);
-                c = columns(image, rows, tooth, threshold, stepWidth, 0);
+                Columns again = columns(image, rows, tooth, threshold, stepWidth, 0);
+                // the tile rows cut at the seams of shading are shorter: their combs, weaker, must not overturn a
+                // step the longer stripes showed nor bring one the shading along x does not support (a stray pitch
+                // catching the gap and a few structures)
+                c = again.step() == c.step() || c.step() == 0 && nearBest(image, again.step()) ? again : c;
             }
         }
         if (c.step() == 0) {
@@ -218,6 +222,11 @@ public final class SeamDetector {
         List<Line> colLines = lines(SeamEvidence.of(image, true, 0, h), cols, threshold);
         List<Line> rowLines = lines(ey, rows, threshold);
         return new Found(cols, rows, regular, tiling, colLines, rowLines);
+    }
+
+    /** @return whether a step along x is 0 or near the best step of the shading template along x */
+    private static boolean nearBest(Volume image, int step) {
+        return step == 0 || SeamTemplate.nearBestStep(SeamTemplate.profiles(image, true), step);
     }
 
     /** Vertical seams of each tile row and their common step (0 when none repeats). */

@@ -172,6 +172,16 @@ final class SeamTemplate {
         return best;
     }
 
+    /** @return whether step s lies within the search's reach (3 px or 5 %) of the best-scoring step */
+    static boolean nearBestStep(Profiles p, int s) {
+        int best = bestStep(p);
+        return best > 0 && Math.abs(s - best) <= reach(best);
+    }
+
+    private static int reach(int best) {
+        return Math.max(3, best / 20);
+    }
+
     /**
      * Searches all steps with at least {@link #MIN_TILES} tiles ({@link #bestStep}), then picks the exact step near
      * the best one.
@@ -192,9 +202,8 @@ final class SeamTemplate {
         // mosaic), whose seams pass through every seam already found, and whose template has its sharpest valley
         // within FIT / 2 of the seam (an off-centre vignetting moves the sharpest corner by a few pixels; our
         // measurement on InventedMosaic: up to 3 px)
-        int reach = Math.max(3, best / 20);
         Fold pick = null;
-        for (int s = Math.max(SeamComb.MIN_PITCH, best - reach); s <= Math.min(hi, best + reach); s++) {
+        for (int s = Math.max(SeamComb.MIN_PITCH, best - reach(best)); s <= Math.min(hi, best + reach(best)); s++) {
             if (!onTeeth(anchors, s, 0) || n % s > SeamDetector.MAX_BAND) {
                 continue;
             }
@@ -223,8 +232,7 @@ final class SeamTemplate {
             return false;
         }
         int u = Math.floorMod(sharpest(template(profiles(v, true, from, to), s, ph)), s);
-        int best = bestStep(profiles(v, true));
-        return Math.min(u, s - u) <= FIT / 2 && Math.abs(s - best) <= Math.max(3, best / 20);
+        return Math.min(u, s - u) <= FIT / 2 && nearBestStep(profiles(v, true), s);
     }
 
     /** @return whether every anchor lies within 1 px of a seam of step s, phase ph */
