@@ -43,12 +43,11 @@ class ShadingSeamTest {
     /**
      * draws of the sweep that once failed, kept in CI: 45 (the comb found the step in one tile row only: the other row
      * now claims it from the shading template), 53 (a structure across a tile row taken for a seam broke the
-     * template's anchors; the cross-validation rejected the template), 3x3 seed 46 (no gap: the exact step from the
-     * template alone)
+     * template's anchors; the cross-validation rejected the template); the 3x3 and snake layouts only in the sweep
+     * (several seconds a draw)
      */
     static Stream<Draw> held() {
-        return Stream.of(new Draw("2x4 of 110", TWO_BY_FOUR, 45), new Draw("2x4 of 110", TWO_BY_FOUR, 53),
-                new Draw("3x3 of 128", THREE_BY_THREE, 46));
+        return Stream.of(new Draw("2x4 of 110", TWO_BY_FOUR, 45), new Draw("2x4 of 110", TWO_BY_FOUR, 53));
     }
 
     @ParameterizedTest
