@@ -101,14 +101,8 @@ class ShadingSeamTest {
         MosaicSeamTest.match("y", m.rowSeams, f.rows(), 0, l.gap(), problems, -1);
         int sy = l.tileH() - l.overlap();
         for (int tr = 0; tr < l.rows(); tr++) {
-            int y = tr * sy + sy / 2;
-            List<SeamDetector.Band> here = new ArrayList<>();
-            for (SeamDetector.Band b : f.columns()) {
-                if (y >= b.from() && y < b.to()) {
-                    here.add(b);
-                }
-            }
-            MosaicSeamTest.match("x (tile row " + tr + ")", m.columnSeams[tr], here, 0, l.gap(), problems, tr);
+            MosaicSeamTest.match("x (tile row " + tr + ")", m.columnSeams[tr], MosaicSeamTest.across(f.columns(),
+                    tr * sy + sy / 2), 0, l.gap(), problems, tr);
         }
         int stepX = l.cols() > 1 ? l.tileW() - l.overlap() : 0;
         int stepY = l.rows() > 1 ? l.tileH() - l.overlap() : 0;
