@@ -189,16 +189,27 @@ public final class SeamDetector {
                 folded = "y";
                 py = new SeamComb.Period(fy.pitch(), fy.phase(), 0, 0, 0);
                 rows = withTeeth(rows, fy, h, stepWidth, 0, w);
-                c = columns(image, rows, tooth, threshold, stepWidth, 0);
+                Columns again = columns(image, rows, tooth, threshold, stepWidth, 0);
+                // the tile rows cut at the seams of shading are shorter: their combs, weaker, must not overturn a
+                // step the longer stripes showed nor bring one the shading along x does not support (a stray pitch
+                // catching the gap and a few structures)
+                c = again.step() == c.step() || c.step() == 0 && nearBest(image, again.step()) ? again : c;
             }
         }
         if (c.step() == 0) {
-            SeamTemplate.Fold fx = SeamTemplate.find(SeamTemplate.profiles(image, true), anchors(c.bands()));
+            SeamTemplate.Profiles px = SeamTemplate.profiles(image, true);
+            List<Band> kept = c.bands();
+            SeamTemplate.Fold fx = SeamTemplate.find(px, anchors(kept));
+            if (fx == null || !fx.found()) {
+                // a lone step may be a structure that runs across a tile row: only the gaps of zeros must be seams
+                kept = c.bands().stream().filter(b -> coversGap(image, b)).toList();
+                fx = kept.size() < c.bands().size() ? SeamTemplate.find(px, anchors(kept)) : null;
+            }
             if (fx != null && fx.found()) {
                 folded += "x";
                 int[] ph = new int[c.phases().length];
                 Arrays.fill(ph, fx.phase());
-                c = new Columns(withTeeth(c.bands(), fx, w, stepWidth, 0, h), c.periods(), ph, c.blend(), fx.pitch());
+                c = new Columns(withTeeth(kept, fx, w, stepWidth, 0, h), c.periods(), ph, c.blend(), fx.pitch());
             }
         }
         // two tiles along an axis: one seam that cuts it into two whole tiles (give or take an overlap) is the step
@@ -229,6 +240,11 @@ public final class SeamDetector {
         List<Line> colLines = lines(SeamEvidence.of(image, true, 0, h), cols, threshold);
         List<Line> rowLines = lines(ey, rows, threshold);
         return new Found(cols, rows, regular, tiling, colLines, rowLines);
+    }
+
+    /** @return whether a step along x is 0 or near the best step of the shading template along x */
+    private static boolean nearBest(Volume image, int step) {
+        return step == 0 || SeamTemplate.nearBestStep(SeamTemplate.profiles(image, true), step);
     }
 
     /** Vertical seams of each tile row and their common step (0 when none repeats). */
@@ -267,6 +283,7 @@ public final class SeamDetector {
         if (!anyRepeat) {
             px = new SeamComb.Period[stripes];
         }
+        claimRows(image, ex, px, rows);
         List<Band> cols = new ArrayList<>();
         int[] phases = new int[stripes];
         int blendX = 0;
@@ -289,6 +306,42 @@ public final class SeamDetector {
             }
         }
         return new Columns(mergeAlongRows(cols, h), px, phases, blendX, stepX);
+    }
+
+    /**
+     * A tiling is a grid: a tile row without a comb of its own takes the step and phase of the tile rows with one
+     * (when those agree, as in a row-by-row mosaic) if the shading every tile shares supports it
+     * ({@link SeamTemplate#supports}) and every gap of zeros in the row lies on its teeth.
+     */
+    private static void claimRows(Volume image, List<SeamEvidence> ex, SeamComb.Period[] px, List<Band> rows) {
+        SeamComb.Period found = null;
+        for (SeamComb.Period p : px) {
+            if (p != null && found != null && p.phase() != found.phase()) {
+                return;
+            }
+            found = p != null ? p : found;
+        }
+        for (int s = 0; s < px.length && found != null; s++) {
+            if (px[s] != null || !gapsOnTeeth(ex.get(s), found)) {
+                continue;
+            }
+            int y0 = s == 0 ? 0 : rows.get(s - 1).end() + 1;
+            int y1 = s == px.length - 1 ? image.height() : rows.get(s).start() - 1;
+            if (y1 - y0 >= SeamTemplate.BLOCK && SeamTemplate.supports(image, y0, y1, found.pitch(), found.phase())) {
+                px[s] = new SeamComb.Period(found.pitch(), found.phase(), 0, 0, 0);
+            }
+        }
+    }
+
+    /** @return whether every gap of zeros along the evidence lies within 2 px of a tooth of the period */
+    private static boolean gapsOnTeeth(SeamEvidence e, SeamComb.Period p) {
+        for (int b = 0; b < e.length(); b++) {
+            int d = Math.floorMod(b - p.phase(), p.pitch());
+            if (e.zeros[b] >= 0.5 && (b == 0 || e.zeros[b - 1] < 0.5) && Math.min(d, p.pitch() - d) > 2) {
+                return false;
+            }
+        }
+        return true;
     }
 
     /**
@@ -587,22 +640,51 @@ public final class SeamDetector {
     private static List<Band> withTeeth(List<Band> found, SeamTemplate.Fold f, int n, int stepWidth, int from,
             int to) {
         List<Band> out = new ArrayList<>(found);
-        for (int b = f.phase(); b < n; b += f.pitch()) {
+        for (int seam = f.phase(); seam < n; seam += f.pitch()) {
+            final int b = seam;
             if (b < f.pitch() - SeamComb.END_SLACK || n - b < f.pitch() - SeamComb.END_SLACK) {
                 continue;
             }
-            boolean covered = false;
-            for (Band o : found) {
-                covered |= b >= o.start() - 2 && b <= o.end() + 2;
+            // the lines of [from, to) no band found so far covers at this seam (a tile row may have found it alone)
+            List<Band> here = found.stream().filter(o -> b >= o.start() - 2 && b <= o.end() + 2)
+                    .sorted((x, y) -> Integer.compare(x.from(), y.from())).toList();
+            int line = from;
+            for (Band o : here) {
+                if (o.from() > line) {
+                    out.add(toothBand(b, n, stepWidth, f.corner(), line, o.from()));
+                }
+                line = Math.max(line, o.to());
             }
-            if (!covered) {
-                out.add(new Band(Math.max(0, b - stepWidth / 2), Math.min(n, b - stepWidth / 2 + stepWidth),
-                        f.corner(), from, to, List.of("shading")));
+            if (line < to) {
+                out.add(toothBand(b, n, stepWidth, f.corner(), line, to));
             }
         }
         out.sort((x, y) -> x.start() != y.start() ? Integer.compare(x.start(), y.start()) : Integer.compare(x.from(),
                 y.from()));
         return out;
+    }
+
+    /** @return whether a vertical band (widened by a pixel) covers a column that is zero in most of its lines */
+    private static boolean coversGap(Volume image, Band b) {
+        int w = image.width();
+        int y1 = Math.min(image.height(), b.to());
+        float[] f = image.data();
+        for (int x = Math.max(0, b.start() - 1); x < Math.min(w, b.end() + 1); x++) {
+            int zeros = 0;
+            for (int y = b.from(); y < y1; y++) {
+                zeros += f[y * w + x] == 0 ? 1 : 0;
+            }
+            if (2 * zeros > y1 - b.from()) {
+                return true;
+            }
+        }
+        return false;
+    }
+
+    /** A band of the requested width centred on the fold's seam b, over the lines [from, to). */
+    private static Band toothBand(int b, int n, int stepWidth, double strength, int from, int to) {
+        return new Band(Math.max(0, b - stepWidth / 2), Math.min(n, b - stepWidth / 2 + stepWidth), strength, from, to,
+                List.of("shading"));
     }
 
     /**

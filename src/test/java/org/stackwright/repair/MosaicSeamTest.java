@@ -82,13 +82,7 @@ class MosaicSeamTest {
         // vertical seams, tile row by tile row (a snake shifts the odd rows)
         int sy = l.tileH() - l.overlap();
         for (int tr = 0; tr < l.rows(); tr++) {
-            int y = tr * sy + sy / 2;
-            List<SeamDetector.Band> here = new ArrayList<>();
-            for (SeamDetector.Band b : f.columns()) {
-                if (y >= b.from() && y < b.to()) {
-                    here.add(b);
-                }
-            }
+            List<SeamDetector.Band> here = across(f.columns(), tr * sy + sy / 2);
             worst = Math.max(worst, match("x (tile row " + tr + ")", m.columnSeams[tr], here, band, l.gap(), problems,
                     tr));
         }
@@ -180,6 +174,11 @@ class MosaicSeamTest {
             }
         }
         return worst;
+    }
+
+    /** @return the vertical bands that cross line y */
+    static List<SeamDetector.Band> across(List<SeamDetector.Band> columns, int y) {
+        return columns.stream().filter(b -> y >= b.from() && y < b.to()).toList();
     }
 
     private static int gapAt(SeamDetector.Band b, int gap) {
