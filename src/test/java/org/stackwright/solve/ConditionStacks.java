@@ -191,6 +191,37 @@ final class ConditionStacks {
     }
 
     /**
+     * The oracle of a method with the settings a default run used (camera values, background, lambda, acceleration):
+     * the smallest error against the truth over a fixed run of max iterations, every iteration compared.
+     *
+     * @return {best iteration count, its error}
+     */
+    static double[] methodOracle(Volume data, Volume psf0, DeconvolutionSettings used, Volume truth, int max,
+            int threads) {
+        Volume psf = PsfChecks.prepare("psf", psf0, data, true, RunContext.quiet(threads)).psf();
+        double[] best = {0, Double.POSITIVE_INFINITY};
+        try (Workers w = new Workers(threads)) {
+            DeconvolutionProblem p = new DeconvolutionProblem(data, psf, null, DeconvolutionProblem.Boundary.EXTENDED,
+                    used.camera(), used.background(), w);
+            used.withStopping(Stopping.fixed(max)).solver().solve(p, RunContext.quiet(threads), new IterationListener() {
+                @Override
+                public void iteration(int iteration, int maxIterations, double objective, double change) {
+                }
+
+                @Override
+                public void state(IterationState st) {
+                    double e = error(p.toVolume(st.estimate()).data(), truth.data());
+                    if (e < best[1]) {
+                        best[0] = st.iteration();
+                        best[1] = e;
+                    }
+                }
+            });
+        }
+        return best;
+    }
+
+    /**
      * The oracle: accelerated Richardson-Lucy with the true camera values and background (for the gradient the
      * ramp's minimum: the rest is light the object can take), the same PSF as the default run, every iteration
      * compared with the truth. When the best is at the last iteration the search is run again twice as long (up to
