@@ -24,7 +24,7 @@ import org.stackwright.volume.Volume;
  * richardson-lucy-tv); {@code --oracle} adds, per method and condition, the method's own oracle: the best error over
  * iteration counts of the same method with the settings the default run used (camera values, background, lambda,
  * acceleration), found with the truth, and the ratio of the default's error to it; {@code --only a,b} keeps the
- * conditions whose data name is listed; {@code --methods-only} leaves out the accelerated Richardson-Lucy table.
+ * conditions named (exact, cropped, wide, narrow, read-noise, gradient, dim, bright); {@code --methods-only} leaves out the accelerated Richardson-Lucy table.
  *
  * <p>With {@code --second} it runs the conditions of the second generator ({@link ConditionStacks#SECOND}, the Born
  * &amp; Wolf stacks) instead of the first's.
@@ -67,7 +67,7 @@ public final class AutomaticSettingsBenchmark {
             }
         }
         if (!only.isEmpty()) {
-            conditions = conditions.stream().filter(c -> only.contains(c.data())).toList();
+            conditions = conditions.stream().filter(c -> only.contains(c.name())).toList();
         }
         String set = conditions.get(0).set();
         Volume truth = ConditionStacks.read(set, "truth");
@@ -98,8 +98,8 @@ public final class AutomaticSettingsBenchmark {
                 if (withOracle) {
                     int max = Math.min(2500, Math.max(2 * k, k + 200));
                     double[] best = ConditionStacks.methodOracle(data, psf, o.settings(), truth, max, threads);
-                    while (best[0] >= max && max < 2500) { // the best at the last iteration: search further
-                        max = Math.min(2500, 2 * max);
+                    if (best[0] >= max && max < 2500) { // the best at the last iteration: search to 2500
+                        max = 2500;
                         best = ConditionStacks.methodOracle(data, psf, o.settings(), truth, max, threads);
                     }
                     oracle = String.format(Locale.ROOT, "; oracle %d, %.4f (of %d); ratio %.3f", (int) best[0], best[1],
