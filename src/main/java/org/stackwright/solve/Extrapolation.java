@@ -57,7 +57,7 @@ final class Extrapolation {
     /**
      * The step x_{k+1} = psi(y) in the grid, which holds the correction H^T( w y / (H y + b) ) on entry: the
      * multiplicative update y max(correction, 0) / d with d = H^T w, or, with a curvature, the Richardson-Lucy-TV
-     * denominator max(H^T w - lambda curv, H^T w / 2) (as {@link CorrectionStep#update}); then alpha for the next
+     * denominator max(H^T w - lambda curv, H^T w / 2) ({@link CorrectionStep#next}); then alpha for the next
      * {@link #extrapolate}.
      *
      * @param grid the work grid: the correction on entry, x_{k+1} on return
@@ -77,11 +77,7 @@ final class Extrapolation {
             for (int j = 0; j < count; j++) {
                 int i = index + j;
                 float yi = y[i];
-                float xn = 0f;
-                if (norm[i] > 0) {
-                    float den = curv == null ? norm[i] : Math.max(norm[i] - lam * curv[i], 0.5f * norm[i]);
-                    xn = yi * Math.max(a[at + j], 0f) / den;
-                }
+                float xn = CorrectionStep.next(yi, a[at + j], norm, curv, lam, i);
                 a[at + j] = xn;
                 if (g != null) {
                     float gi = xn - yi;
