@@ -23,7 +23,7 @@ final class FieldRules {
     static {
         // deconvolve
         rule("deconvolve", "regularization", s -> !is(s, "method", "richardson-lucy"));
-        rule("deconvolve", "acceleration", s -> is(s, "method", "richardson-lucy"));
+        rule("deconvolve", "acceleration", s -> is(s, "method", "richardson-lucy") || is(s, "method", "richardson-lucy-tv"));
         rule("deconvolve", "iterations", s -> !is(s, "method", "wiener"));
         rule("deconvolve", "stop", s -> !is(s, "method", "wiener"));
         rule("deconvolve", "tolerance", s -> !is(s, "method", "wiener") && is(s, "stop", "change"));

@@ -76,7 +76,7 @@ final class BlockDeconvolver implements BlockProcessor {
     static final String STEP = "step.";
 
     static boolean accelerated(DeconvolutionSettings s) {
-        return s.method().equals("richardson-lucy") && s.accelerated();
+        return s.extrapolated();
     }
 
     /** @return the solver of every block: accelerated Richardson-Lucy takes the representative block's steps */
@@ -96,7 +96,8 @@ final class BlockDeconvolver implements BlockProcessor {
         for (int k = 0; k < n; k++) {
             a[k] = g.number(STEP + (k + 1));
         }
-        return new RichardsonLucy(s.stopping(), a);
+        return s.method().equals("richardson-lucy-tv") ? new RichardsonLucyTv(s.stopping(), s.lambda(), a)
+                : new RichardsonLucy(s.stopping(), a);
     }
 
     /**

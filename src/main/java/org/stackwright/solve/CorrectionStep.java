@@ -75,11 +75,7 @@ final class CorrectionStep {
             for (int j = 0; j < count; j++) {
                 int i = index + j;
                 float old = x[i];
-                float nv = 0f;
-                if (norm[i] > 0) {
-                    float den = curv == null ? norm[i] : Math.max(norm[i] - lam * curv[i], 0.5f * norm[i]);
-                    nv = old * Math.max(a[at + j], 0f) / den;
-                }
+                float nv = next(old, a[at + j], norm, curv, lam, i);
                 x[i] = nv;
                 a[at + j] = nv;
                 double diff = nv - old;
@@ -91,6 +87,19 @@ final class CorrectionStep {
         }));
         holdsNext();
         return Math.sqrt(s[0] / Math.max(s[1], 1e-300));
+    }
+
+    /**
+     * The multiplicative step of voxel i (the formula of {@link #update}, also used by the accelerated variants'
+     * {@link Extrapolation}): x max(correction, 0) / d, with d = H^T w, or the RL-TV denominator when curv is given;
+     * 0 where H^T w is 0.
+     */
+    static float next(float x, float correction, float[] norm, float[] curv, float lam, int i) {
+        if (!(norm[i] > 0)) {
+            return 0f;
+        }
+        float den = curv == null ? norm[i] : Math.max(norm[i] - lam * curv[i], 0.5f * norm[i]);
+        return x * Math.max(correction, 0f) / den;
     }
 
     /** The caller has left its next iterate in the grid. */

@@ -237,7 +237,7 @@ public final class Deconvolution {
         set.putAll(found);
         set.put("regularization", used.regularized() ? used.lambda() : 0.0);
         set.put("boundary", used.boundary());
-        set.put("acceleration", used.method().equals("richardson-lucy") && used.accelerated());
+        set.put("acceleration", used.extrapolated());
         set.put("likelihood", used.likelihood());
         set.put("threads", threads);
         return set;

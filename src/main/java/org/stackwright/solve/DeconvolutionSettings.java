@@ -15,7 +15,7 @@ import java.util.List;
  * @param regularization lambda, or NaN to choose it from the data ("auto"; a solver built from unresolved settings
  *     uses {@link #defaultRegularization})
  * @param boundary "extended" or "periodic"
- * @param accelerated vector extrapolation for richardson-lucy
+ * @param accelerated vector extrapolation for richardson-lucy and richardson-lucy-tv
  * @param likelihood data term of total-variation (and of gaussian noise replicas): "poisson" or "gaussian"
  */
 public record DeconvolutionSettings(String method, Stopping stopping, double offset, double background, double gain,
@@ -90,6 +90,14 @@ public record DeconvolutionSettings(String method, Stopping stopping, double off
         return !method.equals("richardson-lucy");
     }
 
+    /**
+     * @return true when the solver extrapolates (Biggs &amp; Andrews 1997): acceleration on and a Richardson-Lucy
+     *     method (the run record's {@code acceleration})
+     */
+    public boolean extrapolated() {
+        return accelerated && (method.equals("richardson-lucy") || method.equals("richardson-lucy-tv"));
+    }
+
     /** @return true when nothing is left for {@link AutomaticSettings} to find */
     public boolean resolved() {
         return !Double.isNaN(offset) && !Double.isNaN(background) && !Double.isNaN(gain) && !Double.isNaN(readNoise)
@@ -113,7 +121,7 @@ public record DeconvolutionSettings(String method, Stopping stopping, double off
     public Solver solver() {
         return switch (method) {
             case "richardson-lucy" -> new RichardsonLucy(stopping, accelerated);
-            case "richardson-lucy-tv" -> new RichardsonLucyTv(stopping, lambda());
+            case "richardson-lucy-tv" -> new RichardsonLucyTv(stopping, lambda(), accelerated);
             case "total-variation" -> new PrimalDualTv(stopping, lambda(),
                     likelihood.equals("poisson") ? PrimalDualTv.DataTerm.POISSON : PrimalDualTv.DataTerm.GAUSSIAN);
             default -> new WienerFilter(lambda());

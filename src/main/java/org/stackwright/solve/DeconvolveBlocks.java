@@ -40,8 +40,8 @@ final class DeconvolveBlocks implements BlockOperation {
 
     /**
      * @param haloFactor halo = this times the PSF's size per axis (rounded up), or NaN for the default: 1.5 for
-     *     accelerated Richardson-Lucy (extrapolation carries the errors of a block's outer faces further inward),
-     *     1 otherwise
+     *     accelerated Richardson-Lucy and Richardson-Lucy-TV (extrapolation carries the errors of a block's outer
+     *     faces further inward), 1 otherwise
      */
     DeconvolveBlocks(double haloFactor) {
         this.haloFactor = haloFactor;

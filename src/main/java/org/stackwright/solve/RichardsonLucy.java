@@ -3,7 +3,6 @@ package org.stackwright.solve;
 import org.stackwright.fft.WorkGrid;
 import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.op.RunContext;
-import org.stackwright.parallel.Workers;
 
 /**
  * Richardson-Lucy deconvolution (Richardson, "Bayesian-based iterative method of image restoration", JOSA 62,
@@ -24,17 +23,16 @@ import org.stackwright.parallel.Workers;
  * <p><b>Acceleration</b> (optional): vector extrapolation of Biggs &amp; Andrews, "Acceleration of iterative image
  * restoration algorithms", Applied Optics 36(8), 1997: with g_k = psi(y_k) - y_k the last RL step,
  * alpha_k = sum(g_k g_{k-1}) / sum(g_{k-1} g_{k-1}) and x_{k+1} = psi(y_k), the next point is
- * y_{k+1} = x_{k+1} + alpha_k (x_{k+1} - x_k). Safeguards: alpha = 0 for the first two iterations, alpha clamped
- * to [0, 0.95], alpha reset to 0 after an iteration whose data fit got worse, and voxels that the extrapolation
- * would make negative keep their RL value.
+ * y_{k+1} = x_{k+1} + alpha_k (x_{k+1} - x_k) ({@link Extrapolation}, shared with accelerated
+ * {@link RichardsonLucyTv}). Safeguards: alpha = 0 for the first two iterations, alpha clamped to [0, 0.95], alpha
+ * reset to 0 after an iteration whose data fit got worse, and voxels that the extrapolation would make negative keep
+ * their RL value.
  *
  * <p>Objective per iteration: the mean Kullback-Leibler divergence per trusted pixel (the negative Poisson
  * log-likelihood up to a constant) of the estimate that entered the iteration (the extrapolated point when
  * accelerated).
  */
 public final class RichardsonLucy implements Solver {
-
-    private static final double MAX_ALPHA = 0.95;
 
     private final Stopping stopping;
     private final boolean accelerated;
@@ -120,97 +118,23 @@ public final class RichardsonLucy implements Solver {
     }
 
     private Solution accelerated(DeconvolutionProblem p, float[] y, RunContext context, IterationListener listener) {
-        int n = p.gridLength();
-        Workers workers = p.workers();
-        float[] norm = p.normalisation();
         CorrectionStep step = new CorrectionStep(p);
         WorkGrid buf = step.grid();
-        float[] xOld = y.clone();
-        // the last RL step, for the extrapolation's alpha only, kept in 16 bits ({@link #toHalf}); not needed when the
-        // steps are given
-        short[] gPrev = fixedSteps == null ? new short[n] : null;
-        Sums sums = new Sums(4);
+        Extrapolation ex = new Extrapolation(p, y, fixedSteps);
         IterationLog log = new IterationLog(method(), stopping, context, listener);
-        double lastFit = Double.POSITIVE_INFINITY;
-        int k = 0;
-        java.util.List<Double> steps = new java.util.ArrayList<>();
         while (true) {
             log.before();
             step.run(y);
             double fit = step.fit();
-            // buf <- psi(y) = x_{k+1}; g = x_{k+1} - y; sums for alpha and for the change x_{k+1} - x_k
-            double[] s = sums.run(workers, n, (from, to, acc) -> buf.update(from, to, (a, at, index, count) -> {
-                double gg = acc[0];
-                double pp = acc[1];
-                double dd = acc[2];
-                double xx = acc[3];
-                for (int j = 0; j < count; j++) {
-                    int i = index + j;
-                    float yi = y[i];
-                    float xn = norm[i] > 0 ? yi * Math.max(a[at + j], 0f) / norm[i] : 0f;
-                    a[at + j] = xn;
-                    if (gPrev != null) {
-                        float g = xn - yi;
-                        float gp = fromHalf(gPrev[i]);
-                        gg += (double) g * gp;
-                        pp += (double) gp * gp;
-                        gPrev[i] = toHalf(g);
-                    }
-                    double diff = xn - xOld[i];
-                    dd += diff * diff;
-                    xx += (double) xOld[i] * xOld[i];
-                }
-                acc[0] = gg;
-                acc[1] = pp;
-                acc[2] = dd;
-                acc[3] = xx;
-            }));
-            k++;
-            double alpha = 0;
-            if (fixedSteps != null) {
-                alpha = k <= fixedSteps.length ? fixedSteps[k - 1] : 0;
-            } else if (k >= 3 && s[1] > 0 && fit <= lastFit) {
-                alpha = Math.max(0, Math.min(MAX_ALPHA, s[0] / s[1]));
-            }
-            steps.add(alpha);
-            lastFit = fit;
-            double change = Math.sqrt(s[2] / Math.max(s[3], 1e-300));
-            final float a = (float) alpha;
-            // y <- the extrapolated point, also left in the work grid as the next iteration's input; xOld <- x_{k+1}
-            workers.forRange(n, (from, to) -> buf.update(from, to, (w, at, index, count) -> {
-                for (int j = 0; j < count; j++) {
-                    int i = index + j;
-                    float xn = w[at + j];
-                    float next = xn + a * (xn - xOld[i]);
-                    float yn = next >= 0 ? next : xn;
-                    y[i] = yn;
-                    w[at + j] = yn;
-                    xOld[i] = xn;
-                }
-            }));
+            // buf <- psi(y) = x_{k+1}, alpha; then y <- the extrapolated point, also left in buf as the next input
+            double change = ex.step(buf, y, null, 0f, fit);
+            ex.extrapolate(buf, y);
             step.holdsNext();
-            if (log.after(fit, fit, p.expectedFit(), change, step.held(), xOld)) {
+            if (log.after(fit, fit, p.expectedFit(), change, step.held(), ex.estimate())) {
                 break;
             }
         }
-        usedSteps = steps.stream().mapToDouble(Double::doubleValue).toArray();
-        return log.finish(xOld);
-    }
-
-    /**
-     * A float rounded to its upper 16 bits (sign, the float's 8-bit exponent and 7 stored mantissa bits, the
-     * "bfloat16" format; round to nearest, ties to even): half the memory of a float, with a relative rounding
-     * error of at most 2^-8. The previous RL step serves only the extrapolation's step alpha, a ratio of two sums
-     * over the whole grid clamped to [0, 0.95], where these errors average out; keeping it in 16 bits brings
-     * accelerated RL to 5.5 grids of floats plus the transfer function (README, Deconvolution).
-     */
-    static short toHalf(float f) {
-        int b = Float.floatToRawIntBits(f);
-        return (short) ((b + 0x7FFF + ((b >>> 16) & 1)) >>> 16);
-    }
-
-    /** @return the float a {@link #toHalf} value stands for */
-    static float fromHalf(short h) {
-        return Float.intBitsToFloat(h << 16);
+        usedSteps = ex.steps();
+        return log.finish(ex.estimate());
     }
 }

@@ -149,7 +149,7 @@ final class WholeStackValues {
             }
             // the representative block runs as every block will (the whole volume's start, background and
             // step balance), so its result is kept and used as its own block's output
-            Solver solver = BlockDeconvolver.accelerated(s) ? new RichardsonLucy(s.stopping(), true)
+            Solver solver = BlockDeconvolver.accelerated(s) ? s.solver()
                     : BlockDeconvolver.blockSolver(s, new Globals(Map.of(), numbers, Map.of()));
             BlockDeconvolver.Solved solved = BlockDeconvolver.solve(solver, s, bg, start, psf, part, ctx);
             Solution sol = solved == null ? null : solved.solution();
@@ -159,8 +159,9 @@ final class WholeStackValues {
                 how = "found by the " + s.stopping().rule().word() + " rule on block " + (rep.index() + 1) + " (core "
                         + rep.core() + ", the most signal above the background): " + sol.stopReason();
             }
-            if (steps && solver instanceof RichardsonLucy rl) {
-                double[] a = rl.steps();
+            double[] a = solver instanceof RichardsonLucy rl ? rl.steps()
+                    : solver instanceof RichardsonLucyTv tv ? tv.steps() : null;
+            if (steps && a != null) {
                 for (int k = 0; k < a.length; k++) {
                     numbers.put(BlockDeconvolver.STEP + (k + 1), a[k]);
                 }

@@ -191,6 +191,18 @@ final class ConditionStacks {
     }
 
     /**
+     * The oracle of a method with the settings a default run used (camera values, background, lambda, acceleration):
+     * the smallest error against the truth over a fixed run of max iterations, every iteration compared.
+     *
+     * @return {best iteration count, its error}
+     */
+    static double[] methodOracle(Volume data, Volume psf0, DeconvolutionSettings used, Volume truth, int max,
+            int threads) {
+        return bestIteration(data, psf0, used.camera(), used.background(), used.withStopping(Stopping.fixed(max)).solver(),
+                truth, threads);
+    }
+
+    /**
      * The oracle: accelerated Richardson-Lucy with the true camera values and background (for the gradient the
      * ramp's minimum: the rest is light the object can take), the same PSF as the default run, every iteration
      * compared with the truth. When the best is at the last iteration the search is run again twice as long (up to
@@ -199,31 +211,39 @@ final class ConditionStacks {
      * @return {best iteration count, its error}
      */
     static double[] oracle(Volume data, Volume psf, double[] cam, Volume truth, int max, int threads) {
-        Volume p = PsfChecks.prepare("psf", psf, data, true, RunContext.quiet(threads)).psf();
-        double[] best = {0, Double.POSITIVE_INFINITY};
-        try (Workers w = new Workers(threads)) {
-            DeconvolutionProblem problem = new DeconvolutionProblem(data, p, null, DeconvolutionProblem.Boundary.EXTENDED,
-                    Camera.of(cam[0], cam[2], cam[1]), cam[3] * cam[0], w);
-            new RichardsonLucy(Stopping.fixed(max), true).solve(problem, RunContext.quiet(threads), new IterationListener() {
-                @Override
-                public void iteration(int iteration, int maxIterations, double objective, double change) {
-                }
-
-                @Override
-                public void state(IterationState s) {
-                    double e = error(problem.toVolume(s.estimate()).data(), truth.data());
-                    if (e < best[1]) {
-                        best[0] = s.iteration();
-                        best[1] = e;
-                    }
-                }
-            });
-        }
+        double[] best = bestIteration(data, psf, Camera.of(cam[0], cam[2], cam[1]), cam[3] * cam[0],
+                new RichardsonLucy(Stopping.fixed(max), true), truth, threads);
         if (best[0] >= max) {
             if (max < 1000) {
                 return oracle(data, psf, cam, truth, Math.min(1000, 2 * max), threads);
             }
             throw new IllegalStateException("the oracle's best is at its last iteration " + max + "; search further");
+        }
+        return best;
+    }
+
+    /** @return {iteration, error} of the smallest error against the truth over the solver's run (every iteration) */
+    private static double[] bestIteration(Volume data, Volume psf0, Camera camera, double background, Solver solver,
+            Volume truth, int threads) {
+        Volume psf = PsfChecks.prepare("psf", psf0, data, true, RunContext.quiet(threads)).psf();
+        double[] best = {0, Double.POSITIVE_INFINITY};
+        try (Workers w = new Workers(threads)) {
+            DeconvolutionProblem p = new DeconvolutionProblem(data, psf, null, DeconvolutionProblem.Boundary.EXTENDED,
+                    camera, background, w);
+            solver.solve(p, RunContext.quiet(threads), new IterationListener() {
+                @Override
+                public void iteration(int iteration, int maxIterations, double objective, double change) {
+                }
+
+                @Override
+                public void state(IterationState st) {
+                    double e = error(p.toVolume(st.estimate()).data(), truth.data());
+                    if (e < best[1]) {
+                        best[0] = st.iteration();
+                        best[1] = e;
+                    }
+                }
+            });
         }
         return best;
     }

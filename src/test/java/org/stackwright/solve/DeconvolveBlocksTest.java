@@ -114,8 +114,9 @@ class DeconvolveBlocksTest {
         Simulation.Outcome sim = sim();
         for (String m : new String[] {"richardson-lucy-tv", "total-variation"}) {
             // a fixed lambda: an automatic one is chosen on the whole stack here and on one block there
+            // (richardson-lucy-tv without acceleration here; accelerated, it takes the steps of one block, below)
             Map<String, String> one = Map.of("background", "10", "method", m, "iterations", "10", "regularization",
-                    Double.toString(DeconvolutionSettings.defaultRegularization(m)));
+                    Double.toString(DeconvolutionSettings.defaultRegularization(m)), "acceleration", "off");
             Map<String, String> cut = new LinkedHashMap<>(one);
             cut.put("block-size", "32x30x8");
             double d = relativeMaxDifference(whole(sim, one), blocks(sim, cut, Double.NaN));
@@ -125,9 +126,18 @@ class DeconvolveBlocksTest {
         Map<String, String> acc = Map.of("background", "10", "acceleration", "on", "block-size", "32x30x8");
         Result r = BlockRun.inMemory(OP, new DeconvolveBlocks(), values(sim, acc), RunContext.quiet(2));
         Volume b = ImagePlusAdapter.toVolume(r.images().get("output"));
-        double same = relativeMaxDifference(wholeWithSteps(sim, r), b);
+        double same = relativeMaxDifference(wholeWithSteps(sim, r, steps -> new RichardsonLucy(Stopping.fixed(20), steps)), b);
         System.out.printf(Locale.ROOT, "accelerated RL, default halo (1.5 PSF): max difference %.3g of the maximum%n", same);
         assertTrue(same < 1e-2, "accelerated with the same steps: " + same);
+        double lambda = DeconvolutionSettings.defaultRegularization("richardson-lucy-tv");
+        Map<String, String> tv = Map.of("background", "10", "method", "richardson-lucy-tv", "regularization",
+                Double.toString(lambda), "acceleration", "on", "block-size", "32x30x8");
+        Result rt = BlockRun.inMemory(OP, new DeconvolveBlocks(), values(sim, tv), RunContext.quiet(2));
+        Volume bt = ImagePlusAdapter.toVolume(rt.images().get("output"));
+        double sameTv = relativeMaxDifference(wholeWithSteps(sim, rt,
+                steps -> new RichardsonLucyTv(Stopping.fixed(20), lambda, steps)), bt);
+        System.out.printf(Locale.ROOT, "accelerated RL-TV, default halo: max difference %.3g of the maximum%n", sameTv);
+        assertTrue(sameTv < 1e-2, "accelerated RL-TV with the same steps: " + sameTv);
     }
 
     /**
@@ -135,7 +145,8 @@ class DeconvolveBlocksTest {
      * extrapolation steps (Biggs &amp; Andrews 1997 take alpha as a sum over the whole grid; the block run fixes
      * the steps of one representative block for every block).
      */
-    private static Volume wholeWithSteps(Simulation.Outcome sim, Result blockRun) {
+    private static Volume wholeWithSteps(Simulation.Outcome sim, Result blockRun,
+            java.util.function.Function<double[], Solver> solver) {
         @SuppressWarnings("unchecked")
         Map<String, Object> g = (Map<String, Object>) blockRun.record().get("global_settings");
         double[] steps = (double[]) g.get("extrapolation_steps");
@@ -147,7 +158,7 @@ class DeconvolveBlocksTest {
             org.stackwright.model.DeconvolutionProblem p = new org.stackwright.model.DeconvolutionProblem(sim.data(),
                     psf, null, org.stackwright.model.DeconvolutionProblem.Boundary.EXTENDED, Camera.of(1, 100, 2), 10, w,
                     org.stackwright.fft.FftEngines.standard(), (float) start);
-            Solution sol = new RichardsonLucy(Stopping.fixed(20), steps).solve(p, ctx, IterationListener.NONE);
+            Solution sol = solver.apply(steps).solve(p, ctx, IterationListener.NONE);
             return p.toVolume(sol.estimate());
         }
     }

@@ -27,6 +27,7 @@ class ThreadsAndRepeatTest {
                 () -> new RichardsonLucy(Stopping.fixed(8), false),
                 () -> new RichardsonLucy(Stopping.fixed(8), true),
                 () -> new RichardsonLucyTv(Stopping.fixed(8), 0.002),
+                () -> new RichardsonLucyTv(Stopping.fixed(8), 0.002, true),
                 () -> new PrimalDualTv(Stopping.fixed(8), 0.05, PrimalDualTv.DataTerm.POISSON),
                 () -> new PrimalDualTv(Stopping.fixed(8), 0.05, PrimalDualTv.DataTerm.GAUSSIAN),
                 () -> new WienerFilter(0.01));

@@ -5,10 +5,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import java.util.Locale;
 
 import org.junit.jupiter.api.Test;
-import org.stackwright.model.DeconvolutionProblem;
 import org.stackwright.op.RunContext;
-import org.stackwright.parallel.Workers;
-import org.stackwright.psf.PsfChecks;
 import org.stackwright.volume.Volume;
 
 /**
@@ -41,7 +38,7 @@ class TotalVariationDefaultStopTest {
         int k = o.solution().iterations();
         String reason = o.solution().stopReason();
         double error = ConditionStacks.error(o.result().data(), truth.data());
-        double[] best = bestOverIterations(data, psf, o.settings(), truth, k + 500);
+        double[] best = ConditionStacks.methodOracle(data, psf, o.settings(), truth, k + 500, 2);
         String line = String.format(Locale.ROOT, "default: %d iterations, error %.4f; best over %d: %.4f after %d,"
                 + " ratio %.3f; lambda %.3g; %s", k, error, k + 500, best[1], (int) best[0],
                 error / best[1], o.settings().regularization(), reason);
@@ -51,29 +48,4 @@ class TotalVariationDefaultStopTest {
         assertTrue(error <= 1.10 * best[1], line);
     }
 
-    /** @return {iteration, error} of the smallest error over a fixed run with the used settings */
-    private static double[] bestOverIterations(Volume data, Volume psf0, DeconvolutionSettings used, Volume truth,
-            int max) {
-        Volume psf = PsfChecks.prepare("psf", psf0, data, true, RunContext.quiet(2)).psf();
-        double[] best = {0, Double.POSITIVE_INFINITY};
-        try (Workers w = new Workers(2)) {
-            DeconvolutionProblem p = new DeconvolutionProblem(data, psf, null, DeconvolutionProblem.Boundary.EXTENDED,
-                    used.camera(), used.background(), w);
-            used.withStopping(Stopping.fixed(max)).solver().solve(p, RunContext.quiet(2), new IterationListener() {
-                @Override
-                public void iteration(int iteration, int maxIterations, double objective, double change) {
-                }
-
-                @Override
-                public void state(IterationState st) {
-                    double e = ConditionStacks.error(p.toVolume(st.estimate()).data(), truth.data());
-                    if (e < best[1]) {
-                        best[0] = st.iteration();
-                        best[1] = e;
-                    }
-                }
-            });
-        }
-        return best;
-    }
 }
