@@ -375,6 +375,9 @@ public final class DeconvolutionBenchmark {
                 + "%.2f s wall, %.2f s CPU%n", bestE, bestK, bestT, bestCpu);
         DeconvolutionSettings s = new DeconvolutionSettings("richardson-lucy", new Stopping(StopRule.NOISE, 200, 1e-3),
                 offset, background, 1, 2, Double.NaN, "extended", true, "poisson");
+        // the first run of ours in this JVM, phase by phase: class loading, the compiler's warm-up and the first plans
+        System.out.println("demo: phases of the first run in this JVM (cold), noise stop:");
+        DemoPhases.run(data, psf, s, RunContext.quiet(threads)).print("  ");
         // first pass: find the first iteration that reaches the target (NRMSE computed outside the timing)
         List<Double> nrmse = new ArrayList<>();
         Deconvolution.Outcome o = Deconvolution.run(data, psf, "demo-psf.tif", null, s, RunContext.quiet(threads),
@@ -403,6 +406,12 @@ public final class DeconvolutionBenchmark {
                     RunContext.quiet(threads), IterationListener.NONE);
             double t = (System.nanoTime() - t0) * 1e-9;
             double c = (processCpu() - c0) * 1e-9;
+            System.out.printf(Locale.ROOT, "demo: phases of a run to iteration %d (warm):%n", reach);
+            List<DemoPhases> runs = new ArrayList<>();
+            for (int r = 0; r < 7; r++) {
+                runs.add(DemoPhases.run(data, psf, s.withStopping(Stopping.fixed(reach)), RunContext.quiet(threads)));
+            }
+            DemoPhases.printBest(runs, "  ");
             System.out.printf(Locale.ROOT, "demo: ours reaches the reference best NRMSE %.4f at iteration %d in %.2f s wall, "
                     + "%.2f s CPU: %.1fx shorter in wall time (goal >= 4), %.1fx less CPU; with the noise stop it runs "
                     + "%.2f s: %.1fx shorter%n", bestE, reach, t, c, bestT / t, bestCpu / c, full, bestT / full);
