@@ -87,9 +87,10 @@ class HostilePlatformTest {
     @Test
     void twoProcessesWritingOneOutputAtOnce() throws Exception {
         Path out = dir.resolve("two.tif");
+        Path release = dir.resolve("release"); // the first run holds its output until this exists
         List<String> cmd = List.of(Path.of(System.getProperty("java.home"), "bin", "java").toString(), "-cp",
-                System.getProperty("java.class.path"), SlowOperation.class.getName(), "--iterations", "30", "--delay",
-                "100", "--output", out.toString());
+                System.getProperty("java.class.path"), SlowOperation.class.getName(), "--iterations", "1200", "--delay",
+                "100", "--until", release.toString(), "--output", out.toString());
         Process first = new ProcessBuilder(cmd).redirectErrorStream(true).start();
         try {
             java.io.InputStream in = first.getInputStream();
@@ -107,12 +108,14 @@ class HostilePlatformTest {
             assertTrue(second.waitFor(120, TimeUnit.SECONDS));
             assertEquals(Main.BAD_INPUT, second.exitValue(), msg);
             assertTrue(msg.contains("another run is writing"), msg);
+            Files.createFile(release);
             in.transferTo(java.io.OutputStream.nullOutputStream());
             assertTrue(first.waitFor(120, TimeUnit.SECONDS));
             assertEquals(Main.OK, first.exitValue());
         } finally {
             first.destroyForcibly();
         }
+        Files.deleteIfExists(release);
         assertEquals(List.of("two.tif"), names());
     }
 

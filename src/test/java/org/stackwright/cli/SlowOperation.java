@@ -15,7 +15,8 @@ import org.stackwright.volume.VoxelSize;
 
 /**
  * A test-only iterative operation: each iteration checks for cancel, reports "iteration k", then waits. It
- * stands in for an iterative solver in the cancel tests.
+ * stands in for an iterative solver in the cancel tests; with {@code --until} it holds its run open until the test
+ * says so, however slowly a second process starts on a loaded machine.
  */
 final class SlowOperation implements Operation {
 
@@ -34,6 +35,7 @@ final class SlowOperation implements Operation {
         return List.of(
                 Limits.iterations("iterations", 100, "number of iterations"),
                 Param.integer("delay", 300, 0, 60_000, "milliseconds per iteration"),
+                Param.text("until", "", "end early once this file exists (empty: run all iterations)"),
                 Param.outputImage("output", true, "a small image"));
     }
 
@@ -41,7 +43,11 @@ final class SlowOperation implements Operation {
     public Result run(Values v, RunContext ctx) {
         int n = v.integer("iterations");
         long delay = v.integer("delay");
+        String until = v.text("until");
         for (int k = 1; k <= n; k++) {
+            if (!until.isEmpty() && java.nio.file.Files.exists(java.nio.file.Path.of(until))) {
+                break;
+            }
             ctx.checkCancelled();
             ctx.progress((double) k / n, "iteration " + k);
             try {
