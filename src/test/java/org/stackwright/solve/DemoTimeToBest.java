@@ -80,14 +80,15 @@ final class DemoTimeToBest {
             if (line.startsWith("run ")) {
                 String[] f = line.split(" ");
                 double e = Double.parseDouble(f[3]);
-                sweep.add(new double[] {Integer.parseInt(f[1]), Double.parseDouble(f[2])});
+                sweep.add(new double[] {Integer.parseInt(f[1]), Double.parseDouble(f[2]), Double.parseDouble(f[4])});
                 if (e < bestE) {
                     bestE = e;
                     bestK = Integer.parseInt(f[1]);
                 }
             }
         }
-        double[] line = straightLine(sweep);
+        double[] line = straightLine(sweep, 1);
+        double[] cpuLine = straightLine(sweep, 2);
         List<String> rep = DeconvolutionBenchmark.runPython("repeat", img, size, ps, psfSize, Integer.toString(bestK),
                 Integer.toString(REPEATS));
         double[] theirs = null;
@@ -103,8 +104,9 @@ final class DemoTimeToBest {
         }
         System.out.printf(Locale.ROOT, "demo 128x128x32: reference library plain RL (%s) best NRMSE %.4f at %d iterations; "
                 + "%d calls: shortest %.3f s wall, median %.3f s, CPU %.3f s; from the sweep's times (a + b k): set-up "
-                + "%.3f s, %.4f s per iteration, so %.3f s of iterations%n", out.get(0), bestE, bestK, REPEATS, theirs[0],
-                theirs[1], theirs[2], line[0], line[1], line[1] * bestK);
+                + "%.3f s, %.4f s per iteration, so %.3f s of iterations (in CPU: %.3f s, %.4f s, %.3f s)%n", out.get(0),
+                bestE, bestK, REPEATS, theirs[0], theirs[1], theirs[2], line[0], line[1], line[1] * bestK, cpuLine[0],
+                cpuLine[1], cpuLine[1] * bestK);
         // find the first iteration of ours that reaches the target (NRMSE computed outside the timing)
         List<Double> nrmse = new ArrayList<>();
         Deconvolution.Outcome o = Deconvolution.run(data, psf, "demo-psf.tif", null, s, RunContext.quiet(threads),
@@ -138,8 +140,10 @@ final class DemoTimeToBest {
         System.out.printf(Locale.ROOT, "demo: phases of a run to iteration %d (warm, shortest of %d):%n", reach, REPEATS);
         DemoPhases.printBest(runs, "  ");
         double iterOnly = Double.POSITIVE_INFINITY;
+        double iterCpu = 0;
         for (DemoPhases r : runs) {
             iterOnly = Math.min(iterOnly, r.phase("iterations")[0]);
+            iterCpu += r.phase("iterations")[1] / runs.size();
         }
         System.out.printf(Locale.ROOT, "demo: ours reaches the reference best NRMSE %.4f at iteration %d: %d calls, "
                 + "shortest %.3f s wall (median %.3f s), CPU %.3f s%n", bestE, reach, REPEATS, ours[0], ours[1], ours[2]);
@@ -147,20 +151,26 @@ final class DemoTimeToBest {
                 + "in wall time (goal >= 4); medians %.2fx; %.2fx less CPU%n", theirs[0] / ours[0], theirs[1] / ours[1],
                 theirs[2] / ours[2]);
         System.out.printf(Locale.ROOT, "demo: iterations only (ours: the solver's phase; theirs: %d x the sweep's slope): "
-                + "%.3f s against %.3f s: %.2fx shorter%n", bestK, iterOnly, line[1] * bestK, line[1] * bestK / iterOnly);
+                + "%.3f s against %.3f s: %.2fx shorter; CPU %.3f s against %.3f s: %.2fx less%n", bestK, iterOnly,
+                line[1] * bestK, line[1] * bestK / iterOnly, iterCpu, cpuLine[1] * bestK, cpuLine[1] * bestK / iterCpu);
         System.out.printf(Locale.ROOT, "demo: with the noise stop ours runs %.3f s: %.2fx shorter than the reference's "
                 + "best%n", full[0], theirs[0] / full[0]);
+        System.out.println("demo: first estimates (same problem, accelerated RL):");
+        DemoStarts.print(data, psf, truth, s.camera(), background, 2 * reach, threads);
         // not what a demo run gets (auto plans by estimate until a JVM has spent far more time on the grid, see
         // fftw.FftwPlanner): what measured plans would give, planned once untimed as if read from the user's wisdom
         String planning = System.getProperty("stackwright.fft.planning");
         System.setProperty("stackwright.fft.planning", "measure");
         try {
+            long t0 = System.nanoTime();
             Deconvolution.Outcome m = Deconvolution.run(data, psf, "demo-psf.tif", null,
                     s.withStopping(Stopping.fixed(reach)), RunContext.quiet(threads), IterationListener.NONE);
+            double planned = (System.nanoTime() - t0) * 1e-9;
             double[] measured = timeRuns(data, psf, s.withStopping(Stopping.fixed(reach)), threads);
-            System.out.printf(Locale.ROOT, "demo: the same with %s plans (not the default for a demo run): shortest %.3f s "
-                    + "wall (median %.3f s), CPU %.3f s: %.2fx shorter than the reference%n", m.record().get("fft_planning"),
-                    measured[0], measured[1], measured[2], theirs[0] / measured[0]);
+            System.out.printf(Locale.ROOT, "demo: the same with %s plans (not the default for a demo run; the run that "
+                    + "measured them took %.2f s): shortest %.3f s wall (median %.3f s), CPU %.3f s: %.2fx shorter than "
+                    + "the reference, %.2fx less CPU%n", m.record().get("fft_planning"), planned, measured[0], measured[1],
+                    measured[2], theirs[0] / measured[0], theirs[2] / measured[2]);
         } finally {
             System.setProperty("stackwright.fft.planning", planning == null ? "auto" : planning);
         }
@@ -181,8 +191,8 @@ final class DemoTimeToBest {
         return new double[] {walls[0], walls[REPEATS / 2], cpu};
     }
 
-    /** @return intercept and slope of the least-squares line through the points {x, y} */
-    private static double[] straightLine(List<double[]> points) {
+    /** @return intercept and slope of the least-squares line through the points (p[0], p[yAt]) */
+    private static double[] straightLine(List<double[]> points, int yAt) {
         double n = points.size();
         double sx = 0;
         double sy = 0;
@@ -190,9 +200,9 @@ final class DemoTimeToBest {
         double sxy = 0;
         for (double[] p : points) {
             sx += p[0];
-            sy += p[1];
+            sy += p[yAt];
             sxx += p[0] * p[0];
-            sxy += p[0] * p[1];
+            sxy += p[0] * p[yAt];
         }
         double slope = (n * sxy - sx * sy) / (n * sxx - sx * sx);
         return new double[] {(sy - slope * sx) / n, slope};
