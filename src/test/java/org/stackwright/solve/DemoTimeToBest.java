@@ -174,6 +174,31 @@ final class DemoTimeToBest {
         } finally {
             System.setProperty("stackwright.fft.planning", planning == null ? "auto" : planning);
         }
+        planRows(threads);
+    }
+
+    /**
+     * One forward + inverse transform alone (FFTW in place, the run's threads) at the demo's grid with estimated and measured
+     * plans, and with estimated plans at other sizes near it (where the native engine loads).
+     */
+    static void planRows(int threads) throws Exception {
+        java.lang.reflect.Method roundTrip;
+        try {
+            roundTrip = Class.forName("org.stackwright.fft.fftw.FftwTiming").getMethod("roundTrip", int.class, int.class,
+                    int.class, int.class, String.class, int.class);
+        } catch (ReflectiveOperationException | LinkageError e) {
+            System.out.println("demo plans: no native engine here");
+            return;
+        }
+        int[][] sizes = {{144, 144, 54}, {144, 144, 64}, {160, 160, 64}, {150, 150, 60}, {128, 128, 64}};
+        for (int[] g : sizes) {
+            for (String planning : g == sizes[0] ? new String[] {"estimate", "measure"} : new String[] {"estimate"}) {
+                Object[] o = (Object[]) roundTrip.invoke(null, g[0], g[1], g[2], threads, planning, 20);
+                System.out.printf(Locale.ROOT, "demo plans: %dx%dx%d%s, %d threads, %s plans: round trip %.4f s "
+                        + "(planning %.2f s)%n", g[0], g[1], g[2], g == sizes[0] ? " (the demo's grid)" : "", threads,
+                        planning, (Double) o[1], (Double) o[0]);
+            }
+        }
     }
 
     /** @return shortest wall, median wall and mean CPU seconds of {@link #REPEATS} runs */
