@@ -87,6 +87,7 @@ public final class DeconvolutionProblem {
     private final LinearOperator forward;
     private final Workers workers;
     private final int trusted;
+    /** start value of the iterations in photo-electrons: the caller's, or the mean of (y - b) over trusted pixels */
     private final float start;
     /** lower bound of the model H x + b in the ratio and the fit, photo-electrons */
     private final double modelFloor;
@@ -242,6 +243,8 @@ public final class DeconvolutionProblem {
         int[] hi = new int[heldShare > 0 ? pixels : 0];
         int held = 0;
         float brightest = 0;
+        // the sum behind the default start value ({@link #initialEstimate}), in the order of the pixels
+        double aboveBackground = 0;
         for (int i = 0; i < pixels; i++) {
             float v = adu[i];
             if ((mask != null && mask[i] != 0) || !Float.isFinite(v)) {
@@ -255,7 +258,9 @@ public final class DeconvolutionProblem {
                 any = true;
                 continue;
             }
-            brightest = Math.max(brightest, toElectrons(v));
+            float e = toElectrons(v);
+            brightest = Math.max(brightest, e);
+            aboveBackground += e - background;
             count++;
         }
         this.noData = any ? bits : null;
@@ -265,13 +270,14 @@ public final class DeconvolutionProblem {
                     + ": nothing is left to deconvolve");
         }
         this.trusted = count;
+        float begin = Float.isNaN(start) ? (float) Math.max(aboveBackground / count, 1e-3) : start;
         this.modelFloor = Math.max(TINY, MODEL_FLOOR_RELATIVE * (brightest + background));
         if (boundary == Boundary.ZERO_SAME) {
             this.norm = new float[n];
             for (int i = 0; i < n; i++) {
                 norm[i] = inWindow(i) ? 1f : 0f;
             }
-            this.start = start;
+            this.start = begin;
         } else {
             // H^T w computed in the operator's work grid (the FFT engine's own buffer for a blur, which the solver
             // uses afterwards), then copied out
@@ -302,7 +308,7 @@ public final class DeconvolutionProblem {
                     norm[i] = 0;
                 }
             }
-            this.start = start;
+            this.start = begin;
         }
     }
 
@@ -482,19 +488,11 @@ public final class DeconvolutionProblem {
      */
     public void initialEstimate(float[] x) {
         float v = start;
-        if (Float.isNaN(v)) {
-            double s = 0;
-            for (int i = 0; i < w * h * d; i++) {
-                float yi = datum(i);
-                if (yi >= 0) {
-                    s += yi - background;
-                }
+        workers.forRange(x.length, (from, to) -> {
+            for (int i = from; i < to; i++) {
+                x[i] = norm[i] > 0 ? v : 0f;
             }
-            v = (float) Math.max(s / trusted, 1e-3);
-        }
-        for (int i = 0; i < x.length; i++) {
-            x[i] = norm[i] > 0 ? v : 0f;
-        }
+        });
     }
 
     /**

@@ -150,13 +150,52 @@ public final class InputChecks {
      */
     public static void checkOffset(String key, Volume v, double offset, double readNoise, RunContext ctx) {
         double given = readNoise > 0 ? readNoise : 0; // NaN (auto, found later) counts as none given
-        double measured = pixelNoise(v);
-        double noise = Math.max(given, measured);
         // compared in the pixels' own precision: a pixel of exactly the offset (0 photons, no read noise) stored as
         // float may lie a rounding step below the offset given as a decimal
         float warnLimit = (float) (offset - 3 * given);
-        float refuseLimit = (float) (offset - noise);
         float[] d = v.data();
+        // counted first against the read noise given alone: the measured pixel noise can only lower the refusal's
+        // limit (noise = the larger of the two), so it is measured only when this count alone would refuse
+        long[] counts = countBelow(d, warnLimit, (float) (offset - given));
+        long finite = counts[0];
+        if (finite == 0) {
+            return;
+        }
+        long belowWarn = counts[1];
+        long belowRefuse = counts[2];
+        double measured = 0;
+        double noise = given;
+        if ((double) belowRefuse / finite > BELOW_OFFSET_REFUSE) {
+            measured = pixelNoise(v);
+            noise = Math.max(given, measured);
+            belowRefuse = countBelow(d, warnLimit, (float) (offset - noise))[2];
+        }
+        double refuseShare = (double) belowRefuse / finite;
+        double warnShare = (double) belowWarn / finite;
+        if (refuseShare <= BELOW_OFFSET_REFUSE && warnShare <= BELOW_OFFSET_WARN) {
+            return; // the usual case: no message, so the data's percentiles are not needed
+        }
+        String level = String.format(Locale.ROOT, " (their level: 1st percentile %s, median %s ADU)",
+                num(quantile(d, 0.01)), num(quantile(d, 0.5)));
+        if (refuseShare > BELOW_OFFSET_REFUSE) {
+            throw new IllegalArgumentException(String.format(Locale.ROOT, "offset = %s is above most of the data:"
+                    + " %.1f %% of the %s pixels lie more than one noise standard deviation (%s, %s ADU) below the offset"
+                    + " %s ADU%s; allowed: an"
+                    + " offset at or below the camera's dark level (give the camera's offset with --offset; data"
+                    + " that were already offset-subtracted need offset 0)", num(offset), 100 * refuseShare, key,
+                    given >= measured ? "the read noise" : "the pixel noise measured in the data", num(noise),
+                    num(offset), level));
+        }
+        if (warnShare > BELOW_OFFSET_WARN) {
+            ctx.warn(String.format(Locale.ROOT, "offset: %.1f %% of the %s pixels lie below the offset %s ADU%s%s;"
+                    + " they carry no signal above the offset (taken as 0 photons). Check the offset%s", 100 * warnShare,
+                    key, num(offset), given > 0 ? " minus 3 x read-noise" : "", level,
+                    given > 0 ? "" : " and give the read noise"));
+        }
+    }
+
+    /** @return finite pixels, those below {@code warnLimit} and those below {@code refuseLimit} */
+    private static long[] countBelow(float[] d, float warnLimit, float refuseLimit) {
         long finite = 0;
         long belowWarn = 0;
         long belowRefuse = 0;
@@ -167,28 +206,7 @@ public final class InputChecks {
                 belowRefuse += f < refuseLimit ? 1 : 0;
             }
         }
-        if (finite == 0) {
-            return;
-        }
-        String level = String.format(Locale.ROOT, " (their level: 1st percentile %s, median %s ADU)",
-                num(quantile(d, 0.01)), num(quantile(d, 0.5)));
-        double refuseShare = (double) belowRefuse / finite;
-        if (refuseShare > BELOW_OFFSET_REFUSE) {
-            throw new IllegalArgumentException(String.format(Locale.ROOT, "offset = %s is above most of the data:"
-                    + " %.1f %% of the %s pixels lie more than one noise standard deviation (%s, %s ADU) below the offset"
-                    + " %s ADU%s; allowed: an"
-                    + " offset at or below the camera's dark level (give the camera's offset with --offset; data"
-                    + " that were already offset-subtracted need offset 0)", num(offset), 100 * refuseShare, key,
-                    given >= measured ? "the read noise" : "the pixel noise measured in the data", num(noise),
-                    num(offset), level));
-        }
-        double warnShare = (double) belowWarn / finite;
-        if (warnShare > BELOW_OFFSET_WARN) {
-            ctx.warn(String.format(Locale.ROOT, "offset: %.1f %% of the %s pixels lie below the offset %s ADU%s%s;"
-                    + " they carry no signal above the offset (taken as 0 photons). Check the offset%s", 100 * warnShare,
-                    key, num(offset), given > 0 ? " minus 3 x read-noise" : "", level,
-                    given > 0 ? "" : " and give the read noise"));
-        }
+        return new long[] {finite, belowWarn, belowRefuse};
     }
 
     /**

@@ -44,7 +44,7 @@ import org.stackwright.volume.VoxelSize;
  * thread count and planning (goal ours &lt;= 1.25x), with each side's planning time;</li>
  * <li>on the bundled demo stack (invented truth known): the reference library's best NRMSE over a range of
  * iteration counts, and the time ours (accelerated, noise stop, standard engine) needs to reach that NRMSE (goal
- * &gt;= 4x shorter).</li>
+ * &gt;= 4x shorter), with a run's phases: {@link DemoTimeToBest} (what each side's time includes).</li>
  * </ol>
  * Run from the repository root after {@code mvn -q -DskipTests package test-compile}:
  * {@code java -Xmx12g -cp target/stackwright.jar:target/test-classes org.stackwright.solve.DeconvolutionBenchmark [--small-only]}
@@ -93,7 +93,7 @@ public final class DeconvolutionBenchmark {
                 transformAlone(576, 576, 160, threads, 3);
             }
         }
-        timeToBest(threads, tmp, python);
+        DemoTimeToBest.run(threads, tmp, python);
     }
 
     private static void iterationCost(int[] size, int psfSize, int threads, Path tmp, boolean python, int reps)
@@ -388,95 +388,12 @@ public final class DeconvolutionBenchmark {
         return new double[] {best, (processCpu() - c0) * 1e-9 / reps};
     }
 
-    private static void timeToBest(int threads, Path tmp, boolean python) throws Exception {
-        Path images = Paths.get("test-images");
-        Volume data = TiffFiles.read(images.resolve("demo-cells.tif"), "demo");
-        Volume truth = TiffFiles.read(images.resolve("demo-cells-truth.tif"), "demo");
-        Volume psf = TiffFiles.read(images.resolve("demo-psf.tif"), "demo");
-        double offset = 100;
-        double background = 10;
-        if (!python) {
-            System.out.println("time to best NRMSE: skipped (no /usr/bin/python3 with scikit-image)");
-            return;
-        }
-        // the reference library has no background or offset term: it gets the data minus offset and background,
-        // clipped at 0 (what a user of it would do)
-        float[] pre = data.data().clone();
-        for (int i = 0; i < pre.length; i++) {
-            pre[i] = (float) Math.max(0, pre[i] - offset - background);
-        }
-        Path img = tmp.resolve("demo-image.raw");
-        Path ps = tmp.resolve("demo-psf.raw");
-        Path tr = tmp.resolve("demo-truth.raw");
-        writeRaw(pre, img);
-        writeRaw(psf.data(), ps);
-        writeRaw(truth.data(), tr);
-        int[] size = {data.width(), data.height(), data.depth()};
-        List<String> out = runPython("best", img, size, ps, new int[] {psf.width(), psf.height(), psf.depth()},
-                tr.toString(), "2,4,6,8,10,15,20,30,40,60");
-        double bestE = Double.POSITIVE_INFINITY;
-        double bestT = 0;
-        double bestCpu = 0;
-        int bestK = 0;
-        for (String line : out) {
-            if (line.startsWith("run ")) {
-                String[] f = line.split(" ");
-                double e = Double.parseDouble(f[3]);
-                if (e < bestE) {
-                    bestE = e;
-                    bestT = Double.parseDouble(f[2]);
-                    bestCpu = Double.parseDouble(f[4]);
-                    bestK = Integer.parseInt(f[1]);
-                }
-            }
-        }
-        System.out.printf(Locale.ROOT, "demo 128x128x32: reference library plain RL best NRMSE %.4f at %d iterations, "
-                + "%.2f s wall, %.2f s CPU%n", bestE, bestK, bestT, bestCpu);
-        DeconvolutionSettings s = new DeconvolutionSettings("richardson-lucy", new Stopping(StopRule.NOISE, 200, 1e-3),
-                offset, background, 1, 2, Double.NaN, "extended", true, "poisson");
-        // first pass: find the first iteration that reaches the target (NRMSE computed outside the timing)
-        List<Double> nrmse = new ArrayList<>();
-        Deconvolution.Outcome o = Deconvolution.run(data, psf, "demo-psf.tif", null, s, RunContext.quiet(threads),
-                IterationListener.NONE);
-        double ourFinal = Nrmse.of(o.result().data(), truth.data());
-        int reach = -1;
-        for (int k = 1; k <= o.solution().iterations() && reach < 0; k++) {
-            Deconvolution.Outcome ok = Deconvolution.run(data, psf, "demo-psf.tif", null,
-                    s.withStopping(Stopping.fixed(k)), RunContext.quiet(threads), IterationListener.NONE);
-            double e = Nrmse.of(ok.result().data(), truth.data());
-            nrmse.add(e);
-            if (e <= bestE) {
-                reach = k;
-            }
-        }
-        long t0 = System.nanoTime();
-        Deconvolution.run(data, psf, "demo-psf.tif", null, s, RunContext.quiet(threads), IterationListener.NONE);
-        double full = (System.nanoTime() - t0) * 1e-9;
-        System.out.printf(Locale.ROOT, "demo: ours accelerated + noise stop (%s engine): %d iterations, %.2f s including "
-                + "set-up, NRMSE %.4f (%s)%n", o.record().get("fft_engine"), o.solution().iterations(), full, ourFinal,
-                o.solution().stopReason());
-        if (reach > 0) {
-            t0 = System.nanoTime();
-            long c0 = processCpu();
-            Deconvolution.run(data, psf, "demo-psf.tif", null, s.withStopping(Stopping.fixed(reach)),
-                    RunContext.quiet(threads), IterationListener.NONE);
-            double t = (System.nanoTime() - t0) * 1e-9;
-            double c = (processCpu() - c0) * 1e-9;
-            System.out.printf(Locale.ROOT, "demo: ours reaches the reference best NRMSE %.4f at iteration %d in %.2f s wall, "
-                    + "%.2f s CPU: %.1fx shorter in wall time (goal >= 4), %.1fx less CPU; with the noise stop it runs "
-                    + "%.2f s: %.1fx shorter%n", bestE, reach, t, c, bestT / t, bestCpu / c, full, bestT / full);
-        } else {
-            System.out.printf(Locale.ROOT, "demo: ours did not reach the reference best NRMSE %.4f before the noise stop "
-                    + "(NRMSE per iteration %s)%n", bestE, nrmse);
-        }
-    }
-
     private static List<String> runPython(String mode, Path img, int[] size, Path psf, int psfSize, String last)
             throws IOException, InterruptedException {
         return runPython(mode, img, size, psf, new int[] {psfSize, psfSize, psfSize}, last, null);
     }
 
-    private static List<String> runPython(String mode, Path img, int[] size, Path psf, int[] ps, String third,
+    static List<String> runPython(String mode, Path img, int[] size, Path psf, int[] ps, String third,
             String fourth) throws IOException, InterruptedException {
         List<String> cmd = new ArrayList<>(List.of(PYTHON, SCRIPT.toString(), mode, img.toString(),
                 "" + size[2], "" + size[1], "" + size[0], psf.toString(), "" + ps[2], "" + ps[1], "" + ps[0], third));
@@ -501,7 +418,7 @@ public final class DeconvolutionBenchmark {
         return lines;
     }
 
-    private static void writeRaw(float[] a, Path p) throws IOException {
+    static void writeRaw(float[] a, Path p) throws IOException {
         ByteBuffer b = ByteBuffer.allocate(4 * a.length).order(ByteOrder.LITTLE_ENDIAN);
         b.asFloatBuffer().put(a);
         try (FileChannel c = FileChannel.open(p, StandardOpenOption.CREATE, StandardOpenOption.WRITE,
@@ -511,7 +428,7 @@ public final class DeconvolutionBenchmark {
     }
 
     /** @return CPU time of this process (all threads), nanoseconds */
-    private static long processCpu() {
+    static long processCpu() {
         return ((com.sun.management.OperatingSystemMXBean) java.lang.management.ManagementFactory
                 .getOperatingSystemMXBean()).getProcessCpuTime();
     }
