@@ -10,7 +10,7 @@ package org.stackwright.model;
  * profile the compiler saw, so it changes from one JVM to the next. When it is a register that the previous pixel
  * wrote at the end of its long chain (a division and a logarithm), each pixel waits for the previous one: the
  * Richardson-Lucy ratio pass then ran at 39 ns per pixel instead of 12 in about half of the JVMs (measured
- * 2026-12-05, README, "FFT engines"). These helpers use only integer operations and bit moves
+ * 2026-12-05, README, "Deconvolution benchmark"). These helpers use only integer operations and bit moves
  * ({@link Double#longBitsToDouble}), which write their whole register, so no pixel waits for the previous one
  * whatever registers the compiler picks. Rare values (subnormal, infinite, NaN; for {@link #narrow} and
  * {@link #roundToFloat} also negative values) take the cast.
