@@ -36,7 +36,9 @@ import org.bytedeco.javacpp.FloatPointer;
  * benchmarks, and the tests pin it to estimate.
  *
  * <p><b>Determinism.</b> Estimated plans depend only on the size and thread count: repeat runs give bit-identical
- * results, and the results were also identical for 1, 2 and 4 threads at the sizes we tried. Measured plans are chosen
+ * results for one thread count. Plans for different thread counts may use different algorithms: the results were
+ * identical for 1, 2 and 4 threads at the demo's size, but not at every size (80x80x32: last bits differ, and
+ * iterations carry that forward; README, "FFT engine"). Measured plans are chosen
  * by timing, so two measurements can pick different algorithms and results differ in the last bits; the same wisdom
  * gives the same plan again.
  */
