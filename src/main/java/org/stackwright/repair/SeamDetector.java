@@ -167,7 +167,7 @@ public final class SeamDetector {
         }
         // the combs of short tile rows may lock onto stray steps (structures of the specimen): where the shading every
         // tile shares shows a step of its own, a comb must agree with it, else the rows' lone seams stand
-        if (c.step() > 0 && !shadingAgrees(image, rows, c)) {
+        if (c.step() > 0 && !shadingAgrees(image, rows, c, false)) {
             c = columns(image, rows, tooth, threshold, stepWidth, -1);
         }
         // an axis without a period of its own from steps: blend bands found from the noise (two exposures averaged)
@@ -195,7 +195,7 @@ public final class SeamDetector {
                 py = new SeamComb.Period(fy.pitch(), fy.phase(), 0, 0, 0);
                 rows = withTeeth(rows, fy, h, stepWidth, 0, w);
                 Columns again = columns(image, rows, tooth, threshold, stepWidth, 0);
-                if (again.step() > 0 && !shadingAgrees(image, rows, again)) {
+                if (again.step() > 0 && !shadingAgrees(image, rows, again, true)) {
                     again = columns(image, rows, tooth, threshold, stepWidth, -1);
                 }
                 // the tile rows cut at the seams of shading are shorter: their combs, weaker, must not overturn a
@@ -257,10 +257,12 @@ public final class SeamDetector {
 
     /**
      * @return whether the combs of the tile rows agree with the shading every tile shares: true when the shading shows
-     *     no step of its own ({@link SeamTemplate#shownStep}); else the common step must lie near the shown one and
-     *     each tile row's seams at the valley of that row's own shading template ({@link SeamTemplate#valleyAt})
+     *     no step of its own ({@link SeamTemplate#shownStep}); else the common step must lie near the shown one and,
+     *     with valleys, each tile row's seams at the valley of that row's own shading template
+     *     ({@link SeamTemplate#valleyAt}): asked of tile rows cut at seams found from the shading alone (gain steps
+     *     between tiles move a row's valley, and there the combs are strong)
      */
-    private static boolean shadingAgrees(Volume image, List<Band> rows, Columns c) {
+    private static boolean shadingAgrees(Volume image, List<Band> rows, Columns c, boolean valleys) {
         int shown = SeamTemplate.shownStep(SeamTemplate.profiles(image, true));
         if (shown < 0) {
             return true;
@@ -271,7 +273,7 @@ public final class SeamDetector {
         SeamComb.Period[] px = c.periods();
         for (int s = 0; s < px.length; s++) {
             int[] y = stripe(rows, s, image.height());
-            if (px[s] != null && y[1] - y[0] >= SeamTemplate.BLOCK && !SeamTemplate.valleyAt(image, y[0], y[1],
+            if (valleys && px[s] != null && y[1] - y[0] >= SeamTemplate.BLOCK && !SeamTemplate.valleyAt(image, y[0], y[1],
                     px[s].pitch(), px[s].phase())) {
                 return false;
             }
