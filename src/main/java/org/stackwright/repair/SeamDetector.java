@@ -273,15 +273,15 @@ public final class SeamDetector {
         SeamComb.Period[] px = c.periods();
         for (int s = 0; s < px.length; s++) {
             int[] y = stripe(rows, s, image.height());
-            if (valleys && px[s] != null && y[1] - y[0] >= SeamTemplate.BLOCK && !SeamTemplate.valleyAt(image, y[0], y[1],
-                    px[s].pitch(), px[s].phase())) {
+            if (valleys && px[s] != null && y[1] - y[0] >= SeamTemplate.BLOCK
+                    && !SeamTemplate.valleyAt(image, y[0], y[1], px[s].pitch(), px[s].phase())) {
                 return false;
             }
         }
         return true;
     }
 
-    /** @return the lines {first, one past the last} of tile row s between the horizontal seams (their bands left out) */
+    /** @return the lines {first, one past the last} of tile row s between the horizontal seams (bands left out) */
     private static int[] stripe(List<Band> rows, int s, int h) {
         int y0 = s == 0 ? 0 : rows.get(s - 1).end() + 1;
         int y1 = s == rows.size() ? h : rows.get(s).start() - 1;
