@@ -165,6 +165,11 @@ public final class SeamDetector {
                 c = guided;
             }
         }
+        // the combs of short tile rows may lock onto stray steps (structures of the specimen): where the shading every
+        // tile shares shows a step of its own, a comb must agree with it, else the rows' lone seams stand
+        if (c.step() > 0 && !shadingAgrees(image, rows, c, false)) {
+            c = columns(image, rows, tooth, threshold, stepWidth, -1);
+        }
         // an axis without a period of its own from steps: blend bands found from the noise (two exposures averaged)
         // are its seams (a seam band dimmed after acquisition also lowers the noise, but its steps find it first)
         BlendBands.Found blends = py == null || c.step() == 0 || !borrowed.isEmpty() ? BlendBands.find(image)
@@ -190,6 +195,9 @@ public final class SeamDetector {
                 py = new SeamComb.Period(fy.pitch(), fy.phase(), 0, 0, 0);
                 rows = withTeeth(rows, fy, h, stepWidth, 0, w);
                 Columns again = columns(image, rows, tooth, threshold, stepWidth, 0);
+                if (again.step() > 0 && !shadingAgrees(image, rows, again, true)) {
+                    again = columns(image, rows, tooth, threshold, stepWidth, -1);
+                }
                 // the tile rows cut at the seams of shading are shorter: their combs, weaker, must not overturn a
                 // step the longer stripes showed nor bring one the shading along x does not support (a stray pitch
                 // catching the gap and a few structures)
@@ -247,6 +255,39 @@ public final class SeamDetector {
         return step == 0 || SeamTemplate.nearBestStep(SeamTemplate.profiles(image, true), step);
     }
 
+    /**
+     * @return whether the combs of the tile rows agree with the shading every tile shares: true when the shading shows
+     *     no step of its own ({@link SeamTemplate#shownStep}); else the common step must lie near the shown one and,
+     *     with valleys, each tile row's seams at the valley of that row's own shading template
+     *     ({@link SeamTemplate#valleyAt}): asked of tile rows cut at seams found from the shading alone (gain steps
+     *     between tiles move a row's valley, and there the combs are strong)
+     */
+    private static boolean shadingAgrees(Volume image, List<Band> rows, Columns c, boolean valleys) {
+        int shown = SeamTemplate.shownStep(SeamTemplate.profiles(image, true));
+        if (shown < 0) {
+            return true;
+        }
+        if (!SeamTemplate.near(shown, c.step())) {
+            return false;
+        }
+        SeamComb.Period[] px = c.periods();
+        for (int s = 0; s < px.length; s++) {
+            int[] y = stripe(rows, s, image.height());
+            if (valleys && px[s] != null && y[1] - y[0] >= SeamTemplate.BLOCK
+                    && !SeamTemplate.valleyAt(image, y[0], y[1], px[s].pitch(), px[s].phase())) {
+                return false;
+            }
+        }
+        return true;
+    }
+
+    /** @return the lines {first, one past the last} of tile row s between the horizontal seams (bands left out) */
+    private static int[] stripe(List<Band> rows, int s, int h) {
+        int y0 = s == 0 ? 0 : rows.get(s - 1).end() + 1;
+        int y1 = s == rows.size() ? h : rows.get(s).start() - 1;
+        return new int[] {y0, Math.max(y0 + 1, y1)};
+    }
+
     /** Vertical seams of each tile row and their common step (0 when none repeats). */
     private record Columns(List<Band> bands, SeamComb.Period[] periods, int[] phases, int blend, int step) {
     }
@@ -254,8 +295,8 @@ public final class SeamDetector {
     /**
      * Vertical seams of each tile row, the rows cut by the horizontal seams found.
      *
-     * @param pitch 0 to search all pitches; else the one pitch tried, with teeth that need only {@link #OTHER_AXIS}
-     *     of the tooth limit
+     * @param pitch 0 to search all pitches; -1 for no comb (each tile row's lone seams); else the one pitch tried,
+     *     with teeth that need only {@link #OTHER_AXIS} of the tooth limit
      */
     private static Columns columns(Volume image, List<Band> rows, double toothIn, double threshold, int stepWidth,
             int pitch) {
@@ -271,11 +312,10 @@ public final class SeamDetector {
         int stripes = cut.length - 1;
         List<SeamEvidence> ex = new ArrayList<>();
         for (int s = 0; s < stripes; s++) {
-            int y0 = s == 0 ? 0 : rows.get(s - 1).end() + 1;
-            int y1 = s == stripes - 1 ? h : rows.get(s).start() - 1;
-            ex.add(SeamEvidence.of(image, true, y0, Math.max(y0 + 1, y1)));
+            int[] y = stripe(rows, s, h);
+            ex.add(SeamEvidence.of(image, true, y[0], y[1]));
         }
-        SeamComb.Period[] px = commonPitch(ex, tooth, threshold, pitch);
+        SeamComb.Period[] px = pitch < 0 ? new SeamComb.Period[stripes] : commonPitch(ex, tooth, threshold, pitch);
         boolean anyRepeat = false;
         for (int s = 0; s < stripes; s++) {
             anyRepeat |= repeats(ex.get(s), px[s], tooth) != null;
@@ -325,9 +365,9 @@ public final class SeamDetector {
             if (px[s] != null || !gapsOnTeeth(ex.get(s), found)) {
                 continue;
             }
-            int y0 = s == 0 ? 0 : rows.get(s - 1).end() + 1;
-            int y1 = s == px.length - 1 ? image.height() : rows.get(s).start() - 1;
-            if (y1 - y0 >= SeamTemplate.BLOCK && SeamTemplate.supports(image, y0, y1, found.pitch(), found.phase())) {
+            int[] y = stripe(rows, s, image.height());
+            if (y[1] - y[0] >= SeamTemplate.BLOCK && SeamTemplate.supports(image, y[0], y[1], found.pitch(),
+                    found.phase())) {
                 px[s] = new SeamComb.Period(found.pitch(), found.phase(), 0, 0, 0);
             }
         }

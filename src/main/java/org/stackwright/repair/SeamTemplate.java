@@ -175,7 +175,7 @@ final class SeamTemplate {
     /** @return whether step s lies within the search's reach (3 px or 5 %) of the best-scoring step */
     static boolean nearBestStep(Profiles p, int s) {
         int best = bestStep(p);
-        return best > 0 && Math.abs(s - best) <= reach(best);
+        return best > 0 && near(best, s);
     }
 
     private static int reach(int best) {
@@ -231,8 +231,38 @@ final class SeamTemplate {
         if (score(profiles(v, true), s, ph) < SCORE) {
             return false;
         }
+        return valleyAt(v, from, to, s, ph) && nearBestStep(profiles(v, true), s);
+    }
+
+    /**
+     * @return the best-scoring step ({@link #bestStep}) when the shading every tile shares shows it (its
+     *     cross-validated score, the best of {@link #PHASES} phases, reaches {@link #SCORE}), else -1: a mosaic
+     *     without shading, or one whose tiles differ only in gain, shows no step of its own here
+     */
+    static int shownStep(Profiles p) {
+        int best = bestStep(p);
+        if (best < 0) {
+            return -1;
+        }
+        double sc = Double.NEGATIVE_INFINITY;
+        for (int k = 0; k < PHASES; k++) {
+            sc = Math.max(sc, score(p, best, k * best / PHASES));
+        }
+        return sc >= SCORE ? best : -1;
+    }
+
+    /** @return whether step s lies within the search's reach (3 px or 5 %) of step best */
+    static boolean near(int best, int s) {
+        return Math.abs(s - best) <= reach(best);
+    }
+
+    /**
+     * @return whether the template of the tile row [from, to) alone, at step s and phase ph, has its sharpest valley
+     *     within {@link #FIT} / 2 of the phase (vignetting darkens every tile towards its borders)
+     */
+    static boolean valleyAt(Volume v, int from, int to, int s, int ph) {
         int u = Math.floorMod(sharpest(template(profiles(v, true, from, to), s, ph)), s);
-        return Math.min(u, s - u) <= FIT / 2 && nearBestStep(profiles(v, true), s);
+        return Math.min(u, s - u) <= FIT / 2;
     }
 
     /** @return whether every anchor lies within 1 px of a seam of step s, phase ph */
