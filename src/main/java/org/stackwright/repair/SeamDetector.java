@@ -3,6 +3,7 @@ package org.stackwright.repair;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.List;
+import java.util.function.Supplier;
 
 import org.stackwright.volume.Volume;
 
@@ -147,6 +148,10 @@ public final class SeamDetector {
         List<Band> rows = py != null ? seams(ey, py, tooth, threshold, stepWidth, 0, w)
                 : lone(ey, threshold, stepWidth, 0, w);
         Columns c = columns(image, rows, tooth, threshold, stepWidth, 0);
+        // the shading's block profiles along x, made once when a rule below first needs them (they are read only)
+        SeamTemplate.Profiles[] made = new SeamTemplate.Profiles[1];
+        Supplier<SeamTemplate.Profiles> alongX = () -> made[0] != null ? made[0]
+                : (made[0] = SeamTemplate.profiles(image, true));
         String borrowed = "";
         if (py == null && c.step() > 0) {
             // no period of horizontal seams of their own: try the vertical seams' step, the one pitch of square tiles
@@ -167,7 +172,7 @@ public final class SeamDetector {
         }
         // the combs of short tile rows may lock onto stray steps (structures of the specimen): where the shading every
         // tile shares shows a step of its own, a comb must agree with it, else the rows' lone seams stand
-        if (c.step() > 0 && !shadingAgrees(image, rows, c, false)) {
+        if (c.step() > 0 && !shadingAgrees(alongX.get(), image, rows, c, false)) {
             c = columns(image, rows, tooth, threshold, stepWidth, -1);
         }
         // an axis without a period of its own from steps: blend bands found from the noise (two exposures averaged)
@@ -195,17 +200,17 @@ public final class SeamDetector {
                 py = new SeamComb.Period(fy.pitch(), fy.phase(), 0, 0, 0);
                 rows = withTeeth(rows, fy, h, stepWidth, 0, w);
                 Columns again = columns(image, rows, tooth, threshold, stepWidth, 0);
-                if (again.step() > 0 && !shadingAgrees(image, rows, again, true)) {
+                if (again.step() > 0 && !shadingAgrees(alongX.get(), image, rows, again, true)) {
                     again = columns(image, rows, tooth, threshold, stepWidth, -1);
                 }
                 // the tile rows cut at the seams of shading are shorter: their combs, weaker, must not overturn a
                 // step the longer stripes showed nor bring one the shading along x does not support (a stray pitch
                 // catching the gap and a few structures)
-                c = again.step() == c.step() || c.step() == 0 && nearBest(image, again.step()) ? again : c;
+                c = again.step() == c.step() || c.step() == 0 && nearBest(alongX.get(), again.step()) ? again : c;
             }
         }
         if (c.step() == 0) {
-            SeamTemplate.Profiles px = SeamTemplate.profiles(image, true);
+            SeamTemplate.Profiles px = alongX.get();
             List<Band> kept = c.bands();
             SeamTemplate.Fold fx = SeamTemplate.find(px, anchors(kept));
             if (fx == null || !fx.found()) {
@@ -251,8 +256,8 @@ public final class SeamDetector {
     }
 
     /** @return whether a step along x is 0 or near the best step of the shading template along x */
-    private static boolean nearBest(Volume image, int step) {
-        return step == 0 || SeamTemplate.nearBestStep(SeamTemplate.profiles(image, true), step);
+    private static boolean nearBest(SeamTemplate.Profiles alongX, int step) {
+        return step == 0 || SeamTemplate.nearBestStep(alongX, step);
     }
 
     /**
@@ -262,8 +267,9 @@ public final class SeamDetector {
      *     ({@link SeamTemplate#valleyAt}): asked of tile rows cut at seams found from the shading alone (gain steps
      *     between tiles move a row's valley, and there the combs are strong)
      */
-    private static boolean shadingAgrees(Volume image, List<Band> rows, Columns c, boolean valleys) {
-        int shown = SeamTemplate.shownStep(SeamTemplate.profiles(image, true));
+    private static boolean shadingAgrees(SeamTemplate.Profiles alongX, Volume image, List<Band> rows, Columns c,
+            boolean valleys) {
+        int shown = SeamTemplate.shownStep(alongX);
         if (shown < 0) {
             return true;
         }
