@@ -43,11 +43,24 @@ final class NoiseRatioProfile {
      * @return the profiles, or null when the image is too small or shows no noise
      */
     static NoiseRatioProfile of(Volume image) {
-        if (image.width() < 3 || image.height() < 3) {
+        double correlation = NoisePredictor.correlation(image);
+        if (correlation >= NoisePredictor.TOO_SMOOTH) {
             return null;
         }
-        double[] cols = along(image, true);
-        double[] rws = along(image, false);
+        return of(image, correlation >= NoisePredictor.CORRELATED ? NoisePredictor.fit(image) : null);
+    }
+
+    /**
+     * @param pred the prediction whose error is the residual; null for the mean of the four neighbours
+     * @return the profiles, or null when the image is too small or shows no noise
+     */
+    static NoiseRatioProfile of(Volume image, NoisePredictor pred) {
+        int reach = pred == null ? 1 : NoisePredictor.REACH;
+        if (image.width() < 2 * reach + 1 || image.height() < 2 * reach + 1) {
+            return null;
+        }
+        double[] cols = along(image, true, pred);
+        double[] rws = along(image, false, pred);
         if (cols == null || rws == null || !normalise(cols) || !normalise(rws)) {
             return null;
         }
@@ -58,7 +71,7 @@ final class NoiseRatioProfile {
      * @param columns true for the ratio of each column, false for each row
      * @return the ratio per line, not yet normalised; null when too few pixels were measured
      */
-    private static double[] along(Volume image, boolean columns) {
+    private static double[] along(Volume image, boolean columns, NoisePredictor pred) {
         int w = image.width();
         int h = image.height();
         int d = image.depth();
@@ -80,6 +93,16 @@ final class NoiseRatioProfile {
                     int q = columns ? line : t;
                     int r = columns ? t : line;
                     if (q == 0 || q == w - 1 || r == 0 || r == h - 1) {
+                        continue;
+                    }
+                    if (pred != null) {
+                        if (q < NoisePredictor.REACH || q >= w - NoisePredictor.REACH || r < NoisePredictor.REACH
+                                || r >= h - NoisePredictor.REACH || !pred.measured(v, p, w)) {
+                            continue;
+                        }
+                        level[base + m] = 0.25f * (v[p - 1] + v[p + 1] + v[p - w] + v[p + w]);
+                        residual[base + m] = (float) pred.residual(v, p, w);
+                        m++;
                         continue;
                     }
                     float c = v[p];

@@ -65,6 +65,29 @@ final class InventedMosaic {
         static final Defects NONE = new Defects(0, 0, 0, 0, 0, 0);
     }
 
+    /**
+     * A linear smoothing of the noise as cameras and stitchers apply it (a test variant; {@link #NONE} keeps the plain
+     * mosaics and their numbers). A kind of {@code gauss} (a Gaussian of sigma {@code amount} px) or {@code mean3} (a
+     * 3x3 mean) smooths the stitched mosaic; {@code shift} interpolates every tile bilinearly at a sub-pixel offset
+     * drawn per tile and axis in [0, 1) (a stitcher's registration), before the tiles are blended. The random draws
+     * of the shifts come from a stream of their own, so specimen, gains and noise are those of the plain mosaic of
+     * the same seed.
+     *
+     * @param kind none, gauss, mean3, shift or median5 (a 5x5 median of the stitched mosaic: a non-linear
+     *     denoising, not a smoothing the noise measure can see through)
+     * @param amount the Gaussian's sigma, px (unused otherwise)
+     * @param quantize round the mosaic to whole numbers at the end, as a 16-bit file stores it
+     */
+    record Smoothing(String kind, double amount, boolean quantize) {
+        static final Smoothing NONE = new Smoothing("none", 0, false);
+
+        @Override
+        public String toString() {
+            return kind.equals("gauss") ? "Gaussian sigma " + amount + (quantize ? ", whole numbers" : "")
+                    : kind + (quantize ? ", whole numbers" : "");
+        }
+    }
+
     /** A planted line: x, y of its first pixel, length, vertical, hot. */
     record Line(int x, int y, int length, boolean vertical, boolean hot) {
     }
@@ -167,7 +190,12 @@ final class InventedMosaic {
     }
 
     static InventedMosaic make(Layout l, Defects d, boolean flatSpecimen, long seed) {
+        return make(l, d, flatSpecimen, seed, Smoothing.NONE);
+    }
+
+    static InventedMosaic make(Layout l, Defects d, boolean flatSpecimen, long seed, Smoothing smoothing) {
         SplittableRandom r = new SplittableRandom(seed);
+        double[][] shifts = tileShifts(l, smoothing, seed);
         int w = l.width();
         int h = l.height();
         double[] spec = specimen(w, h, l.background(), flatSpecimen, r);
@@ -196,13 +224,21 @@ final class InventedMosaic {
         float[] img = new float[w * h];
         double[] signal = new double[w * h];
         if (l.blend()) {
-            blendNoisyTiles(l, spec, gains, r, img, signal);
+            blendNoisyTiles(l, spec, gains, r, img, signal, shifts);
         } else {
             for (int p = 0; p < img.length; p++) {
                 double mu = mean[p];
                 signal[p] = mu;
                 img[p] = (float) (OFFSET + mu + Math.sqrt(mu) * r.nextGaussian() + READ_NOISE * r.nextGaussian());
             }
+            if (shifts != null) {
+                shiftCoveringTiles(l, img, shifts);
+            }
+        }
+        if (smoothing.kind().equals("gauss") || smoothing.kind().equals("mean3")) {
+            smooth(img, w, h, smoothing);
+        } else if (smoothing.kind().equals("median5")) {
+            median5(img, w, h);
         }
         int[] rowSeams = new int[l.rows() - 1];
         for (int i = 1; i < l.rows(); i++) {
@@ -239,7 +275,128 @@ final class InventedMosaic {
         InventedMosaic m = new InventedMosaic(l, new Volume(w, h, 1, img, VoxelSize.UNIT), signal, rowSeams, colSeams,
                 gains, truth);
         m.plant(d, r);
+        if (smoothing.quantize()) {
+            for (int p = 0; p < img.length; p++) {
+                img[p] = Math.round(img[p]);
+            }
+        }
         return m;
+    }
+
+    /** @return each tile's sub-pixel offset {dx, dy}, row-major, for a {@code shift} smoothing; else null */
+    private static double[][] tileShifts(Layout l, Smoothing smoothing, long seed) {
+        if (!smoothing.kind().equals("shift")) {
+            return null;
+        }
+        SplittableRandom r = new SplittableRandom(seed ^ 0x5eedL);
+        double[][] s = new double[l.rows() * l.cols()][];
+        for (int t = 0; t < s.length; t++) {
+            s[t] = new double[] {r.nextDouble(), r.nextDouble()};
+        }
+        return s;
+    }
+
+    /** The value of a tile (or image) of size w x h at (x + dx, y + dy), bilinear, clamped at its borders. */
+    private static double bilinear(double[] v, int w, int h, double x, double y) {
+        int x0 = (int) Math.floor(x);
+        int y0 = (int) Math.floor(y);
+        double fx = x - x0;
+        double fy = y - y0;
+        int xa = Math.max(0, Math.min(w - 1, x0));
+        int xb = Math.max(0, Math.min(w - 1, x0 + 1));
+        int ya = Math.max(0, Math.min(h - 1, y0));
+        int yb = Math.max(0, Math.min(h - 1, y0 + 1));
+        return (1 - fy) * ((1 - fx) * v[ya * w + xa] + fx * v[ya * w + xb])
+                + fy * ((1 - fx) * v[yb * w + xa] + fx * v[yb * w + xb]);
+    }
+
+    /**
+     * Without blending every pixel belongs to the tile that covers it last: each pixel is interpolated at that
+     * tile's offset from the stitched mosaic (the same noise statistics as interpolating the tile itself).
+     */
+    private static void shiftCoveringTiles(Layout l, float[] img, double[][] shifts) {
+        int w = l.width();
+        int h = l.height();
+        int sx = l.tileW() - l.overlap();
+        int sy = l.tileH() - l.overlap();
+        int[] owner = new int[w * h];
+        for (int tr = 0; tr < l.rows(); tr++) {
+            for (int k = 0; k < l.cols(); k++) {
+                int tc = l.snake() && tr % 2 == 1 ? l.cols() - 1 - k : k;
+                for (int v = 0; v < l.tileH(); v++) {
+                    for (int u = 0; u < l.tileW(); u++) {
+                        owner[(tr * sy + v) * w + tc * sx + u] = tr * l.cols() + tc;
+                    }
+                }
+            }
+        }
+        double[] src = new double[img.length];
+        for (int p = 0; p < img.length; p++) {
+            src[p] = img[p];
+        }
+        for (int p = 0; p < img.length; p++) {
+            double[] o = shifts[owner[p]];
+            img[p] = (float) bilinear(src, w, h, p % w + o[0], p / w + o[1]);
+        }
+    }
+
+    /** A Gaussian (separable, kernel to 4 sigma, normalised) or 3x3 mean of the whole mosaic, mirrored borders. */
+    private static void smooth(float[] img, int w, int h, Smoothing smoothing) {
+        double[] k;
+        if (smoothing.kind().equals("mean3")) {
+            k = new double[] {1 / 3.0, 1 / 3.0, 1 / 3.0};
+        } else {
+            double sg = smoothing.amount();
+            int rad = (int) Math.ceil(4 * sg);
+            k = new double[2 * rad + 1];
+            double sum = 0;
+            for (int i = -rad; i <= rad; i++) {
+                k[i + rad] = Math.exp(-i * i / (2 * sg * sg));
+                sum += k[i + rad];
+            }
+            for (int i = 0; i < k.length; i++) {
+                k[i] /= sum;
+            }
+        }
+        int rad = k.length / 2;
+        float[] tmp = new float[img.length];
+        for (int pass = 0; pass < 2; pass++) {
+            float[] from = pass == 0 ? img : tmp;
+            float[] to = pass == 0 ? tmp : img;
+            for (int y = 0; y < h; y++) {
+                for (int x = 0; x < w; x++) {
+                    double acc = 0;
+                    for (int i = -rad; i <= rad; i++) {
+                        int xx = pass == 0 ? mirror(x + i, w) : x;
+                        int yy = pass == 0 ? y : mirror(y + i, h);
+                        acc += k[i + rad] * from[yy * w + xx];
+                    }
+                    to[y * w + x] = (float) acc;
+                }
+            }
+        }
+    }
+
+    /** A 5x5 median of the whole mosaic, mirrored borders: a non-linear denoising. */
+    private static void median5(float[] img, int w, int h) {
+        float[] src = img.clone();
+        double[] win = new double[25];
+        for (int y = 0; y < h; y++) {
+            for (int x = 0; x < w; x++) {
+                int m = 0;
+                for (int j = -2; j <= 2; j++) {
+                    for (int i = -2; i <= 2; i++) {
+                        win[m++] = src[mirror(y + j, h) * w + mirror(x + i, w)];
+                    }
+                }
+                img[y * w + x] = (float) RobustStats.medianInPlace(win, 25);
+            }
+        }
+    }
+
+    private static int mirror(int i, int n) {
+        int j = i < 0 ? -i - 1 : i >= n ? 2 * n - 1 - i : i;
+        return Math.max(0, Math.min(n - 1, j));
     }
 
     /**
@@ -250,12 +407,13 @@ final class InventedMosaic {
      * @param signal the noise-free blended photons, written
      */
     private static void blendNoisyTiles(Layout l, double[] spec, double[] gains, SplittableRandom r, float[] img,
-            double[] signal) {
+            double[] signal, double[][] shifts) {
         int w = l.width();
         int sx = l.tileW() - l.overlap();
         int sy = l.tileH() - l.overlap();
         double[] sum = new double[img.length];
         double[] weight = new double[img.length];
+        double[] tile = new double[l.tileW() * l.tileH()];
         for (int tr = 0; tr < l.rows(); tr++) {
             for (int k = 0; k < l.cols(); k++) {
                 int tc = l.snake() && tr % 2 == 1 ? l.cols() - 1 - k : k;
@@ -264,8 +422,17 @@ final class InventedMosaic {
                     for (int u = 0; u < l.tileW(); u++) {
                         int p = (tr * sy + v) * w + tc * sx + u;
                         double mu = spec[p] * g * shading(l, u, v);
-                        double exposed = OFFSET + mu + Math.sqrt(mu) * r.nextGaussian() + READ_NOISE
+                        tile[v * l.tileW() + u] = OFFSET + mu + Math.sqrt(mu) * r.nextGaussian() + READ_NOISE
                                 * r.nextGaussian();
+                    }
+                }
+                double[] o = shifts == null ? null : shifts[tr * l.cols() + tc];
+                for (int v = 0; v < l.tileH(); v++) {
+                    for (int u = 0; u < l.tileW(); u++) {
+                        int p = (tr * sy + v) * w + tc * sx + u;
+                        double mu = spec[p] * g * shading(l, u, v);
+                        double exposed = o == null ? tile[v * l.tileW() + u]
+                                : bilinear(tile, l.tileW(), l.tileH(), u + o[0], v + o[1]);
                         double wgt = ramp(u, l.overlap(), l.tileW(), tc > 0, tc < l.cols() - 1)
                                 * ramp(v, l.overlap(), l.tileH(), tr > 0, tr < l.rows() - 1);
                         sum[p] += wgt * exposed;
