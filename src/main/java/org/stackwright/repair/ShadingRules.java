@@ -11,7 +11,8 @@ import org.stackwright.volume.Volume;
  * The rules that weigh the seams found from steps against the shading every tile shares ({@link SeamTemplate}), for
  * one detection: combs of short tile rows must agree with a step the shading shows, a tile row without a comb may
  * claim the other rows' comb where the shading supports it, and a fold of the shading adds a seam at every tooth
- * that no band covers. The shading's profiles along x are made once, when a rule first needs them.
+ * that no band covers. The shading's profiles along x are made once, when a rule first needs them, and their best
+ * step ({@link SeamTemplate#bestStep}) is searched once.
  */
 final class ShadingRules {
 
@@ -80,8 +81,8 @@ final class ShadingRules {
                 continue;
             }
             int[] y = TileRowSeams.stripe(rows, s, image.height());
-            if (y[1] - y[0] >= SeamTemplate.BLOCK && SeamTemplate.supports(image, y[0], y[1], found.pitch(),
-                    found.phase())) {
+            if (y[1] - y[0] >= SeamTemplate.BLOCK && SeamTemplate.supports(alongX(), image, y[0], y[1],
+                    found.pitch(), found.phase())) {
                 px[s] = new SeamComb.Period(found.pitch(), found.phase(), 0, 0, 0);
             }
         }
