@@ -23,9 +23,10 @@ import org.stackwright.volume.Volume;
  * with at least two bands. The band's ends (the overlap) are then fitted to all bands together by least squares
  * with the depth of the model, the baseline taken again away from the bands.
  *
- * <p>No noise dip shows when the noise was smoothed or denoised before blending or after it, or when the tiles
- * were not blended (the later tile covering the overlap): then nothing is found here and the steps and shading
- * ({@link SeamEvidence}, {@link SeamTemplate}) are all that is left.
+ * <p>No noise dip shows when the noise was denoised (non-linearly) before blending or after it, or smoothed beyond
+ * what {@link NoisePredictor} sees through, or when the tiles were not blended (the later tile covering the
+ * overlap): then nothing is found here and the steps and shading ({@link SeamEvidence}, {@link SeamTemplate}) are
+ * all that is left.
  */
 final class BlendBands {
 

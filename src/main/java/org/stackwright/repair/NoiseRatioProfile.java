@@ -15,6 +15,11 @@ import org.stackwright.volume.Volume;
  * (the smallest {@link #KEPT}), which ignores the minority of pixels on the specimen's edges, whose residual is
  * structure, not noise. The profile is divided by its median, so 1 is the noise of one exposure and 0.5 about the
  * noise of the mean of two.
+ *
+ * <p>When a smoothing or interpolation made neighbouring pixels share their noise ({@link NoisePredictor#correlated}),
+ * the four neighbours' mean cancels most of it and the residual is mostly the specimen's: the residual is then the
+ * error of the prediction {@link NoisePredictor} fits to the image, a linear filter that keeps the dip. Noise
+ * smoothed beyond what that prediction reaches ({@link NoisePredictor#TOO_SMOOTH}) gives no profile.
  */
 final class NoiseRatioProfile {
 
