@@ -24,6 +24,9 @@ class BlendBandsTest {
             0.25, 0.15, 300);
     static final InventedMosaic.Layout BLEND_SNAKE = new InventedMosaic.Layout(3, 4, 100, 90, 12, true, true, 0, 0.25,
             0.15, 300);
+    /** row-by-row order, tiles higher than wide, another overlap: a layout of the sweep only */
+    static final InventedMosaic.Layout BLEND_ROWS = new InventedMosaic.Layout(4, 3, 110, 130, 16, false, true, 0, 0.25,
+            0.15, 300);
 
     /**
      * On a flat specimen the noise ratio in the middle of a band is that of the mean of two exposures, 0.5, and at a
@@ -57,22 +60,27 @@ class BlendBandsTest {
     }
 
     /**
-     * The blended mosaic of MosaicSeamTest (seed 45): bands within 2 px, step exact; a second draw: bands within 2 px,
-     * step within 1 px (over 10 draws the step is exact on both axes in 5, see the sweep and README).
+     * The blended mosaic of MosaicSeamTest (seed 45) and a second draw: bands within 2 px, step exact (over 30 fresh
+     * draws the step is exact on both axes in 19 and 1 px off in 11, see the sweep and README).
      */
     @Test
     void blendedMosaicBandsWithin2PxAndStepExact() {
         String miss = check(BLEND_3X3, 45, true);
         assertNull(miss, "seed 45: " + miss);
-        miss = check(BLEND_3X3, 46, false);
+        miss = check(BLEND_3X3, 46, true);
         assertNull(miss, "seed 46: " + miss);
     }
 
-    /** Another overlap, tile size and snake order: bands within 2 px; the step within 1 px (see README's limits). */
+    /**
+     * Another overlap, tile size and snake order, and row-by-row order with tiles higher than wide: bands within 2 px,
+     * step exact (over 30 fresh draws each in 27, see README).
+     */
     @Test
-    void snakeBlendBandsWithin2Px() {
-        String miss = check(BLEND_SNAKE, 48, false);
+    void snakeAndRowBlendBandsWithin2PxAndStepExact() {
+        String miss = check(BLEND_SNAKE, 48, true);
         assertNull(miss, miss);
+        miss = check(BLEND_ROWS, 49, true);
+        assertNull(miss, "row-by-row, 110x130: " + miss);
     }
 
     /** Mosaics without blending (every layout of MosaicSeamTest but the blended ones) and an untiled flat field. */
@@ -91,18 +99,20 @@ class BlendBandsTest {
     /**
      * Draws of specimen, gains and noise: how often the blended mosaics' bands are all found within 2 px with the
      * step exact, and how often a mosaic without blending shows a band. A measurement for README, off by default
-     * ({@code -Dstackwright.blendsweep=N}, N seeds; about a second each).
+     * ({@code -Dstackwright.blendsweep=N}, N seeds from {@code -Dstackwright.blendsweep.from=S}, 200 by default;
+     * about two seconds each).
      */
     @Test
     void sweepOverSeeds() {
         int seeds = Integer.getInteger("stackwright.blendsweep", 0);
         Assumptions.assumeTrue(seeds > 0, "sweep off; -Dstackwright.blendsweep=N to run it");
-        int[] right = new int[2];
-        int[] within = new int[2];
+        long from = Long.getLong("stackwright.blendsweep.from", 200);
+        InventedMosaic.Layout[] layouts = {BLEND_3X3, BLEND_SNAKE, BLEND_ROWS};
+        int[] right = new int[layouts.length];
+        int[] within = new int[layouts.length];
         int falseBands = 0;
-        InventedMosaic.Layout[] layouts = {BLEND_3X3, BLEND_SNAKE};
-        for (long seed = 200; seed < 200 + seeds; seed++) {
-            for (int i = 0; i < 2; i++) {
+        for (long seed = from; seed < from + seeds; seed++) {
+            for (int i = 0; i < layouts.length; i++) {
                 String exact = check(layouts[i], seed, true);
                 String loose = check(layouts[i], seed, false);
                 right[i] += exact == null ? 1 : 0;
@@ -118,10 +128,13 @@ class BlendBandsTest {
                 falseBands += (f.x() != null ? 1 : 0) + (f.y() != null ? 1 : 0);
             }
         }
-        System.out.printf(Locale.ROOT, "blend sweep over %d seeds: 3x3 of 140 overlap 20: %d right (bands within 2 px, "
-                + "step exact), %d bands within 2 px and step within 1 px; snake 3x4 of 100x90 overlap 12: %d right, %d "
-                + "within; axes with a false band on 3 layouts without blending: %d of %d%n", seeds, right[0], within[0],
-                right[1], within[1], falseBands, 6 * seeds);
+        for (int i = 0; i < layouts.length; i++) {
+            System.out.printf(Locale.ROOT, "blend sweep, seeds %d-%d, %s: %d right (bands within 2 px, step exact), %d "
+                    + "bands within 2 px and step within 1 px%n", from, from + seeds - 1, layouts[i], right[i],
+                    within[i]);
+        }
+        System.out.printf(Locale.ROOT, "axes with a false band on 3 layouts without blending: %d of %d%n", falseBands,
+                6 * seeds);
         // goals of the issue, ours: no false band; the measured counts go to README
         assertEquals(0, falseBands, "false blend bands");
     }

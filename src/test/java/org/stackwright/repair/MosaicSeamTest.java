@@ -49,7 +49,8 @@ class MosaicSeamTest {
                 new Case("overlap 20, blended", new InventedMosaic.Layout(3, 3, 140, 140, 20, false, true, 0, 0.25,
                         0.15, 300), InventedMosaic.Defects.NONE, 45, true),
                 // blend bands found from the noise (BlendBands): another overlap, tile size and snake order; the
-                // bands are held in BlendBandsTest (the step may be 1 px off here: the band width and step trade off)
+                // bands and the exact step are held in BlendBandsTest (not held here: a blend shows no snake shift,
+                // so the overlap comes from the band width, not from the shift this test asks of snake layouts)
                 new Case("overlap 12, blended, snake, 3x4 of 100x90", new InventedMosaic.Layout(3, 4, 100, 90, 12,
                         true, true, 0, 0.25, 0.15, 300), InventedMosaic.Defects.NONE, 48, false),
                 // seams of shading only: the vertical ones are too faint at each border; their step comes from the
