@@ -58,9 +58,9 @@ final class ShadingRules {
 
     /**
      * @return whether the combs of the tile rows agree with the shading every tile shares: true when the shading shows
-     *     no step of its own ({@link SeamTemplate#shownStep}); else the common step must lie near the shown one, within
-     *     1 px of the exact step of the shading's fold through the gaps found ({@link SeamTemplate#find}) where one is
-     *     found, and,
+     *     no step of its own ({@link SeamTemplate#shownStep}); else the common step must lie near the shown one (within
+     *     1 px of the exact step of the shading's fold through the gaps found, {@link SeamTemplate#find}, where one is
+     *     found, unless a long comb shows a snake's shift) and,
      *     with valleys, each tile row's seams at the valley of that row's own shading template
      *     ({@link SeamTemplate#valleyAt}): asked of tile rows cut at seams found from the shading alone (gain steps
      *     between tiles move a row's valley, and there the combs are strong)
@@ -73,10 +73,17 @@ final class ShadingRules {
         if (!SeamTemplate.near(shown, c.step())) {
             return false;
         }
-        // the exact step of the shading's uncropped tiling through the gaps found: the comb's step within 1 px of it
-        // (stray steps within the search's reach can fill a short comb of a wrong step)
-        SeamTemplate.Fold exact = SeamTemplate.find(alongX(), SeamDetector.anchors(c.bands().stream()
-                .filter(b -> coversGap(image, b)).toList()));
+        // stray steps within the search's reach may fill a comb of a wrong step: its step must lie within 1 px of the
+        // exact step of the shading's uncropped tiling through the gaps found; not asked of a long comb (more than two
+        // strong teeth in a tile row) whose rows show a snake's shift: the shading then mixes rows shifted by the
+        // overlap
+        int most = 0;
+        for (SeamComb.Period p : c.periods()) {
+            most = Math.max(most, p == null ? 0 : p.strong());
+        }
+        boolean snake = TileRowSeams.snakeShift(c.phases(), c.step()) >= 0;
+        SeamTemplate.Fold exact = most > 2 && snake ? null : SeamTemplate.find(alongX(), SeamDetector.anchors(c.bands()
+                .stream().filter(b -> coversGap(image, b)).toList()));
         if (exact != null && exact.found() && Math.abs(exact.pitch() - c.step()) > 1) {
             return false;
         }
