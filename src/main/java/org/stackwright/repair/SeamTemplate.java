@@ -28,8 +28,8 @@ import org.stackwright.volume.Volume;
  * every seam already found (a gap of zeros). Near its top the score is flat (a step 1 px off moves the far seams by a
  * pixel or two of a smooth shading), so tilings within {@link #TIE} of the best score are near ties, broken by the
  * step evidence at their seams ({@link SeamEvidence}, signed the way the template steps across its border: an
- * off-centre vignetting leaves the same step at every seam). The same template supports a tile row whose seams are too faint for a
- * comb of their own when another tile row found the step ({@link #supports}).
+ * off-centre vignetting leaves the same step at every seam). The same template supports a tile row whose seams are
+ * too faint for a comb of their own when another tile row found the step ({@link #supports}).
  */
 final class SeamTemplate {
 
