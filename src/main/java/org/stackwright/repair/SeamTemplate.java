@@ -63,10 +63,15 @@ final class SeamTemplate {
         }
     }
 
-    /** Block profiles along one axis: log medians, running median 5; positions with missing data are not valid. */
+    /**
+     * Block profiles along one axis: log medians, running median 5; positions with missing data are not valid. The
+     * best step's search ({@link #bestStep}) is kept with them: several rules of one detection ask for it.
+     */
     static final class Profiles {
         final double[][] m;
         final boolean[] valid;
+        /** the result of {@link #bestStep}, {@link Integer#MIN_VALUE} until it is first asked for */
+        private int best = Integer.MIN_VALUE;
 
         private Profiles(double[][] m, boolean[] valid) {
             this.m = m;
@@ -141,9 +146,16 @@ final class SeamTemplate {
     /**
      * @return the step of the best cross-validated score over all steps with at least {@link #MIN_TILES} tiles (every
      *     second step, then the neighbours of the best; the smallest step that explains nearly as much as a multiple
-     *     of it), or -1 when the axis is too short
+     *     of it), or -1 when the axis is too short; searched once per profiles (the profiles are read only)
      */
     static int bestStep(Profiles p) {
+        if (p.best == Integer.MIN_VALUE) {
+            p.best = searchBestStep(p);
+        }
+        return p.best;
+    }
+
+    private static int searchBestStep(Profiles p) {
         int hi = p.length() / MIN_TILES;
         if (hi < SeamComb.MIN_PITCH) {
             return -1;
@@ -226,12 +238,14 @@ final class SeamTemplate {
      * the shading of the whole mosaic (its cross-validated score reaches {@link #SCORE} and the step lies near the
      * best-scoring step of all, {@link #bestStep}) and the template of the tile
      * row alone has its sharpest valley within {@link #FIT} / 2 of the phase.
+     *
+     * @param alongX the profiles of the whole image along x ({@link #profiles(Volume, boolean)}), shared by the rules
      */
-    static boolean supports(Volume v, int from, int to, int s, int ph) {
-        if (score(profiles(v, true), s, ph) < SCORE) {
+    static boolean supports(Profiles alongX, Volume v, int from, int to, int s, int ph) {
+        if (score(alongX, s, ph) < SCORE) {
             return false;
         }
-        return valleyAt(v, from, to, s, ph) && nearBestStep(profiles(v, true), s);
+        return valleyAt(v, from, to, s, ph) && nearBestStep(alongX, s);
     }
 
     /**

@@ -1,0 +1,155 @@
+package org.stackwright.repair;
+
+import java.util.ArrayList;
+import java.util.List;
+
+import org.stackwright.repair.SeamDetector.Band;
+import org.stackwright.repair.TileRowSeams.Columns;
+import org.stackwright.volume.Volume;
+
+/**
+ * The rules that weigh the seams found from steps against the shading every tile shares ({@link SeamTemplate}), for
+ * one detection: combs of short tile rows must agree with a step the shading shows, a tile row without a comb may
+ * claim the other rows' comb where the shading supports it, and a fold of the shading adds a seam at every tooth
+ * that no band covers. The shading's profiles along x are made once, when a rule first needs them, and their best
+ * step ({@link SeamTemplate#bestStep}) is searched once.
+ */
+final class ShadingRules {
+
+    private final Volume image;
+    private SeamTemplate.Profiles alongX;
+
+    /** @param image the image or stack the detection runs on, not modified */
+    ShadingRules(Volume image) {
+        this.image = image;
+    }
+
+    /** @return the shading's block profiles along x, made when a rule first needs them (they are read only) */
+    SeamTemplate.Profiles alongX() {
+        if (alongX == null) {
+            alongX = SeamTemplate.profiles(image, true);
+        }
+        return alongX;
+    }
+
+    /** @return whether a step along x is 0 or near the best step of the shading template along x */
+    boolean nearBest(int step) {
+        return step == 0 || SeamTemplate.nearBestStep(alongX(), step);
+    }
+
+    /**
+     * @return whether the combs of the tile rows agree with the shading every tile shares: true when the shading shows
+     *     no step of its own ({@link SeamTemplate#shownStep}); else the common step must lie near the shown one and,
+     *     with valleys, each tile row's seams at the valley of that row's own shading template
+     *     ({@link SeamTemplate#valleyAt}): asked of tile rows cut at seams found from the shading alone (gain steps
+     *     between tiles move a row's valley, and there the combs are strong)
+     */
+    boolean agree(List<Band> rows, Columns c, boolean valleys) {
+        int shown = SeamTemplate.shownStep(alongX());
+        if (shown < 0) {
+            return true;
+        }
+        if (!SeamTemplate.near(shown, c.step())) {
+            return false;
+        }
+        SeamComb.Period[] px = c.periods();
+        for (int s = 0; s < px.length; s++) {
+            int[] y = TileRowSeams.stripe(rows, s, image.height());
+            if (valleys && px[s] != null && y[1] - y[0] >= SeamTemplate.BLOCK
+                    && !SeamTemplate.valleyAt(image, y[0], y[1], px[s].pitch(), px[s].phase())) {
+                return false;
+            }
+        }
+        return true;
+    }
+
+    /**
+     * A tiling is a grid: a tile row without a comb of its own takes the step and phase of the tile rows with one
+     * (when those agree, as in a row-by-row mosaic) if the shading every tile shares supports it
+     * ({@link SeamTemplate#supports}) and every gap of zeros in the row lies on its teeth.
+     */
+    void claimRows(List<SeamEvidence> ex, SeamComb.Period[] px, List<Band> rows) {
+        SeamComb.Period found = null;
+        for (SeamComb.Period p : px) {
+            if (p != null && found != null && p.phase() != found.phase()) {
+                return;
+            }
+            found = p != null ? p : found;
+        }
+        for (int s = 0; s < px.length && found != null; s++) {
+            if (px[s] != null || !gapsOnTeeth(ex.get(s), found)) {
+                continue;
+            }
+            int[] y = TileRowSeams.stripe(rows, s, image.height());
+            if (y[1] - y[0] >= SeamTemplate.BLOCK && SeamTemplate.supports(alongX(), image, y[0], y[1],
+                    found.pitch(), found.phase())) {
+                px[s] = new SeamComb.Period(found.pitch(), found.phase(), 0, 0, 0);
+            }
+        }
+    }
+
+    /** @return whether every gap of zeros along the evidence lies within 2 px of a tooth of the period */
+    private static boolean gapsOnTeeth(SeamEvidence e, SeamComb.Period p) {
+        for (int b = 0; b < e.length(); b++) {
+            int d = Math.floorMod(b - p.phase(), p.pitch());
+            if (e.zeros[b] >= 0.5 && (b == 0 || e.zeros[b - 1] < 0.5) && Math.min(d, p.pitch() - d) > 2) {
+                return false;
+            }
+        }
+        return true;
+    }
+
+    /**
+     * The bands found so far plus a band of the requested width at every seam of the fold that none of them covers
+     * (within 2 px); the first and last tiles are whole, at least one step wide.
+     */
+    static List<Band> withTeeth(List<Band> found, SeamTemplate.Fold f, int n, int stepWidth, int from,
+            int to) {
+        List<Band> out = new ArrayList<>(found);
+        for (int seam = f.phase(); seam < n; seam += f.pitch()) {
+            final int b = seam;
+            if (b < f.pitch() - SeamComb.END_SLACK || n - b < f.pitch() - SeamComb.END_SLACK) {
+                continue;
+            }
+            // the lines of [from, to) no band found so far covers at this seam (a tile row may have found it alone)
+            List<Band> here = found.stream().filter(o -> b >= o.start() - 2 && b <= o.end() + 2)
+                    .sorted((x, y) -> Integer.compare(x.from(), y.from())).toList();
+            int line = from;
+            for (Band o : here) {
+                if (o.from() > line) {
+                    out.add(toothBand(b, n, stepWidth, f.corner(), line, o.from()));
+                }
+                line = Math.max(line, o.to());
+            }
+            if (line < to) {
+                out.add(toothBand(b, n, stepWidth, f.corner(), line, to));
+            }
+        }
+        out.sort((x, y) -> x.start() != y.start() ? Integer.compare(x.start(), y.start()) : Integer.compare(x.from(),
+                y.from()));
+        return out;
+    }
+
+    /** @return whether a vertical band (widened by a pixel) covers a column that is zero in most of its lines */
+    static boolean coversGap(Volume image, Band b) {
+        int w = image.width();
+        int y1 = Math.min(image.height(), b.to());
+        float[] f = image.data();
+        for (int x = Math.max(0, b.start() - 1); x < Math.min(w, b.end() + 1); x++) {
+            int zeros = 0;
+            for (int y = b.from(); y < y1; y++) {
+                zeros += f[y * w + x] == 0 ? 1 : 0;
+            }
+            if (2 * zeros > y1 - b.from()) {
+                return true;
+            }
+        }
+        return false;
+    }
+
+    /** A band of the requested width centred on the fold's seam b, over the lines [from, to). */
+    private static Band toothBand(int b, int n, int stepWidth, double strength, int from, int to) {
+        return new Band(Math.max(0, b - stepWidth / 2), Math.min(n, b - stepWidth / 2 + stepWidth), strength, from, to,
+                List.of("shading"));
+    }
+}

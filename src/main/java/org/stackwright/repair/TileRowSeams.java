@@ -1,0 +1,227 @@
+package org.stackwright.repair;
+
+import static org.stackwright.repair.SeamDetector.OTHER_AXIS;
+
+import java.util.ArrayList;
+import java.util.List;
+
+import org.stackwright.repair.SeamDetector.Band;
+import org.stackwright.volume.Volume;
+
+/**
+ * Vertical seams, searched in each tile row on its own (the stripes between the horizontal seams found) with one
+ * common step: the rows of a snake-order mosaic with overlap, whose seams are shifted by the overlap, get their own
+ * phase, and the shift gives the overlap ({@link #snakeShift}). Seams at the same place in every row are merged into
+ * one band over the whole height.
+ */
+final class TileRowSeams {
+
+    private TileRowSeams() {
+    }
+
+    /** @return the lines {first, one past the last} of tile row s between the horizontal seams (bands left out) */
+    static int[] stripe(List<Band> rows, int s, int h) {
+        int y0 = s == 0 ? 0 : rows.get(s - 1).end() + 1;
+        int y1 = s == rows.size() ? h : rows.get(s).start() - 1;
+        return new int[] {y0, Math.max(y0 + 1, y1)};
+    }
+
+    /** Vertical seams of each tile row and their common step (0 when none repeats). */
+    record Columns(List<Band> bands, SeamComb.Period[] periods, int[] phases, int blend, int step) {
+    }
+
+    /**
+     * Vertical seams of each tile row, the rows cut by the horizontal seams found.
+     *
+     * @param pitch 0 to search all pitches; -1 for no comb (each tile row's lone seams); else the one pitch tried,
+     *     with teeth that need only {@link SeamDetector#OTHER_AXIS} of the tooth limit
+     */
+    static Columns columns(Volume image, ShadingRules shading, List<Band> rows, double toothIn, double threshold,
+            int stepWidth, int pitch) {
+        int h = image.height();
+        double tooth = pitch > 0 ? OTHER_AXIS * toothIn : toothIn;
+        // tile rows: the stripes between horizontal seams, each searched on its own
+        int[] cut = new int[rows.size() + 2];
+        cut[0] = 0;
+        for (int i = 0; i < rows.size(); i++) {
+            cut[i + 1] = rows.get(i).centre();
+        }
+        cut[cut.length - 1] = h;
+        int stripes = cut.length - 1;
+        List<SeamEvidence> ex = new ArrayList<>();
+        for (int s = 0; s < stripes; s++) {
+            int[] y = stripe(rows, s, h);
+            ex.add(SeamEvidence.of(image, true, y[0], y[1]));
+        }
+        SeamComb.Period[] px = pitch < 0 ? new SeamComb.Period[stripes] : commonPitch(ex, tooth, threshold, pitch);
+        boolean anyRepeat = false;
+        for (int s = 0; s < stripes; s++) {
+            anyRepeat |= CombBands.repeats(ex.get(s), px[s], tooth) != null;
+        }
+        if (!anyRepeat) {
+            px = new SeamComb.Period[stripes];
+        }
+        shading.claimRows(ex, px, rows);
+        List<Band> cols = new ArrayList<>();
+        int[] phases = new int[stripes];
+        int blendX = 0;
+        for (int s = 0; s < stripes; s++) {
+            List<Band> found = px[s] != null
+                    ? CombBands.seams(ex.get(s), px[s], tooth, threshold, stepWidth, cut[s], cut[s + 1])
+                    : LoneEdges.lone(ex.get(s), threshold, stepWidth, cut[s], cut[s + 1]);
+            phases[s] = px[s] == null ? -1 : px[s].phase();
+            for (Band b : found) {
+                if (b.looks().contains("blend")) {
+                    blendX = Math.max(blendX, b.end() - b.start());
+                }
+            }
+            cols.addAll(found);
+        }
+        int stepX = 0;
+        for (SeamComb.Period p : px) {
+            if (p != null) {
+                stepX = p.pitch();
+            }
+        }
+        return new Columns(mergeAlongRows(cols, h), px, phases, blendX, stepX);
+    }
+
+    /**
+     * One pitch for all stripes (the most strong teeth less empty ones over all stripes), each stripe with its own
+     * phase.
+     *
+     * @param pitch 0 to search all pitches, else the only pitch tried (and kept)
+     */
+    static SeamComb.Period[] commonPitch(List<SeamEvidence> ex, double tooth, double threshold, int pitch) {
+        int n = ex.get(0).length();
+        SeamComb.Period[] best = null;
+        for (int s = pitch > 0 ? pitch : SeamComb.MIN_PITCH; s < (pitch > 0 ? Math.min(n, pitch + 1) : n); s++) {
+            SeamComb.Period[] at = combs(ex, s, 0, s - 1, 1, tooth, threshold);
+            if (total(at) != null && better(at, best)) {
+                best = at;
+            }
+        }
+        if (best == null) {
+            return new SeamComb.Period[ex.size()];
+        }
+        best = SeamComb.refine(ex, best, tooth, pitch > 0);
+        // a stripe without a comb of its own takes the phase of the stripe two above or below (same direction)
+        for (int i = 0; i < best.length; i++) {
+            if (best[i] == null) {
+                for (int j = i % 2; j < best.length; j += 2) {
+                    if (best[j] != null && j != i) {
+                        best[i] = new SeamComb.Period(best[j].pitch(), best[j].phase(), 0, 0, 0);
+                        break;
+                    }
+                }
+            }
+        }
+        return best;
+    }
+
+    /** The best comb of pitch s of each stripe, phases p0 .. p1 (taken modulo s), teeth looking window px aside. */
+    private static SeamComb.Period[] combs(List<SeamEvidence> ex, int s, int p0, int p1, int window, double tooth,
+            double threshold) {
+        SeamComb.Period[] at = new SeamComb.Period[ex.size()];
+        for (int i = 0; i < ex.size(); i++) {
+            for (int p = p0; p <= p1; p++) {
+                SeamComb.Period c = SeamComb.score(ex.get(i), s, Math.floorMod(p, s), window, tooth, threshold);
+                if (c != null && c.better(at[i])) {
+                    at[i] = c;
+                }
+            }
+        }
+        return at;
+    }
+
+    /** @return {strong teeth, summed evidence, teeth without evidence} over the stripes, or null if no comb */
+    private static double[] total(SeamComb.Period[] at) {
+        double strong = 0;
+        double sum = 0;
+        double empty = 0;
+        boolean any = false;
+        for (SeamComb.Period p : at) {
+            if (p != null) {
+                any = true;
+                strong += p.strong();
+                sum += p.sum();
+                empty += p.teeth() - p.strong();
+            }
+        }
+        return any ? new double[] {strong, sum, empty} : null;
+    }
+
+    private static boolean better(SeamComb.Period[] a, SeamComb.Period[] b) {
+        if (b == null) {
+            return true;
+        }
+        double[] ta = total(a);
+        double[] tb = total(b);
+        if (ta[0] - ta[2] != tb[0] - tb[2]) {
+            return ta[0] - ta[2] > tb[0] - tb[2];
+        }
+        if (ta[0] != tb[0]) {
+            return ta[0] > tb[0];
+        }
+        if (ta[2] != tb[2]) {
+            return ta[2] < tb[2];
+        }
+        return ta[1] > tb[1] * (1 + 1e-9);
+    }
+
+    /** The shift of the odd stripes' phase against the even ones when it is the same for all, else -1. */
+    static int snakeShift(int[] phases, int step) {
+        if (phases.length < 2 || step <= 0) {
+            return -1;
+        }
+        int shift = Integer.MIN_VALUE;
+        for (int i = 1; i < phases.length; i++) {
+            if (phases[i] < 0 || phases[i - 1] < 0) {
+                return -1;
+            }
+            int d = Math.floorMod((i % 2 == 1 ? 1 : -1) * (phases[i] - phases[i - 1]), step);
+            if (d > step / 2) {
+                d -= step;
+            }
+            if (shift == Integer.MIN_VALUE) {
+                shift = d;
+            } else if (Math.abs(shift - d) > 1) {
+                return -1;
+            }
+        }
+        return shift == Integer.MIN_VALUE || shift == 0 ? -1 : Math.abs(shift);
+    }
+
+    /** Bands at the same position in every stripe become one band over the whole height. */
+    private static List<Band> mergeAlongRows(List<Band> cols, int h) {
+        List<Band> out = new ArrayList<>();
+        boolean[] used = new boolean[cols.size()];
+        for (int i = 0; i < cols.size(); i++) {
+            if (used[i]) {
+                continue;
+            }
+            Band a = cols.get(i);
+            int from = a.from();
+            int to = a.to();
+            double strength = a.strength();
+            List<String> looks = new ArrayList<>(a.looks());
+            for (int j = i + 1; j < cols.size(); j++) {
+                Band b = cols.get(j);
+                if (!used[j] && b.start() == a.start() && b.end() == a.end() && b.from() == to) {
+                    used[j] = true;
+                    to = b.to();
+                    strength = Math.max(strength, b.strength());
+                    for (String l : b.looks()) {
+                        if (!looks.contains(l)) {
+                            looks.add(l);
+                        }
+                    }
+                }
+            }
+            out.add(new Band(a.start(), a.end(), strength, from, to, looks));
+        }
+        out.sort((x, y) -> x.start() != y.start() ? Integer.compare(x.start(), y.start()) : Integer.compare(x.from(),
+                y.from()));
+        return out;
+    }
+}
