@@ -27,7 +27,9 @@ import org.stackwright.parallel.Workers;
  *
  * Step sizes tau = c / L, sigma = 1 / (c L) with L^2 = ||H||^2 + ||D||^2 (||H|| = 1 for a unit-sum PSF) and
  * c = 10 x the mean signal per trusted pixel, which balances primal (photo-electrons) and dual (order one)
- * scales (the factor was chosen by trial on invented specimens). Non-negativity alone makes the dual objective
+ * scales (the factor was chosen by trial on invented specimens). By default the balance c is then adapted during the
+ * run by residual balancing ({@link StepBalance}; Goldstein, Li, Yuan, Esser &amp; Baraniuk, NIPS 2015) with tau sigma
+ * kept constant and a decaying adaptivity, which keeps the convergence and the solution. Non-negativity alone makes the dual objective
  * infinite whenever K^T p has a negative entry; the gap is therefore taken for the problem restricted to
  * 0 &lt;= x &lt;= U with U = 2 max(x_k), which holds the solution once the iterates settle:
  * gap = P(x) - D(p), D(p) = -F1*(p1) - U sum max(-(K^T p), 0). H x_new is
