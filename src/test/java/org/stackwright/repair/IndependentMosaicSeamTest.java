@@ -1,0 +1,272 @@
+package org.stackwright.repair;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.net.URISyntaxException;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+import java.util.TreeMap;
+import java.util.stream.Stream;
+
+import org.junit.jupiter.params.ParameterizedTest;
+import org.junit.jupiter.params.provider.MethodSource;
+
+import org.stackwright.op.InputChecks;
+import org.stackwright.testing.ReferenceFiles;
+import org.stackwright.volume.TiffFiles;
+import org.stackwright.volume.Volume;
+
+/**
+ * {@code seam-mask --detect} on invented mosaics made OUTSIDE the project by {@code tools/reference/make_mosaics.py}
+ * (numpy/scipy, its own specimen of ellipses, filaments and puncta, cos^4 vignetting, log-normal gains, Poisson and
+ * Gaussian read noise per tile exposure, its own stitcher), not by {@link InventedMosaic}, on which the detector was
+ * tuned. Each file is read as the command line reads it ({@link TiffFiles#open}, {@link InputChecks#oneVolume}) and
+ * detected with the command's defaults (threshold 8, seam width 4, see {@link SeamMaskOperation}).
+ *
+ * <p>Goals of the issue (ours, no published benchmark): every true seam found within 2 px (a lone border at the
+ * centre of its band, a gap covered by its band, a blend band's two ends each within 2 px), no band elsewhere, and
+ * the tile step exact: tile width/height minus the overlap along an axis with more than one tile, 0 along an axis
+ * with one tile. The tile size then follows where the overlap shows: snake order with the later tile covering the
+ * overlap (the shift of the odd tile rows must equal the overlap), a linear blend (the band width must equal it).
+ * Lines of defects and filaments ({@code line_x}) must never be inside a seam band.
+ *
+ * <p>Files on which the detector is measured to miss the goals are listed in {@link #MEASURED_MISSES} with what it
+ * found; for them the test asserts only what holds (the list of problems is exactly the measured one, so a change
+ * that fixes or worsens them shows), the others are held to the goals.
+ */
+class IndependentMosaicSeamTest {
+
+    static final String[] NAMES = {"a-steps-1", "a-steps-2", "b-shading-1", "b-shading-2", "c-snake-1", "c-snake-2",
+        "d-blend-1", "d-blend-2", "e-lines-1", "e-lines-2", "f-single-1", "f-single-2"};
+
+    /**
+     * The misses measured on the committed files (file -> problems as printed), NOT goals: the detector fails the
+     * issue's goals on these independent mosaics, measured 2026-12-05 and reported; a change to the detector that
+     * fixes (or worsens) one changes its list here. Not held files: b-shading-1, d-blend-1, d-blend-2, f-single-2
+     * (all goals held).
+     */
+    static final Map<String, List<String>> MEASURED_MISSES = Map.ofEntries(
+            // MISS (measured): nothing found, though the steps show in the column and row means (e.g. 463 -> 480 ADU
+            // at x = 100, 424 -> 404 at y = 90); the strongest vertical border (x = 200, gains 0.97 -> 1.14) is listed
+            // as a line that does not repeat. Small tiles (100 x 90: 3-4 teeth per comb), several gain steps of 1-2 %,
+            // and cos^4 shading with an off-centre axis (not the quadratic of InventedMosaic) leave too few teeth.
+            Map.entry("a-steps-1", List.of(
+                    "y: seam 90 not found within 2 px (nearest error 2147483647)",
+                    "y: seam 180 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 0): seam 100 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 0): seam 200 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 0): seam 300 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 1): seam 100 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 1): seam 200 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 1): seam 300 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 2): seam 100 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 2): seam 200 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 2): seam 300 not found within 2 px (nearest error 2147483647)",
+                    "step x 0 for 100",
+                    "step y 0 for 90")),
+            // MISS (measured): the horizontal seams and step 96 are right; along x only x = 110 in tile rows 0 and
+            // 2 (a lone step, no comb): step x 0, so the vertical seams of the other borders are missed.
+            Map.entry("a-steps-2", List.of(
+                    "x (tile row 0): seam 220 not found within 2 px (nearest error 110)",
+                    "x (tile row 0): seam 330 not found within 2 px (nearest error 220)",
+                    "x (tile row 1): seam 110 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 1): seam 220 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 1): seam 330 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 2): seam 110 not found within 2 px (nearest error 220)",
+                    "x (tile row 2): seam 220 not found within 2 px (nearest error 110)",
+                    "step x 0 for 110")),
+            // MISS (measured): shading only, gaps on one vertical and one horizontal seam; the gaps and the
+            // horizontal seams are found, the vertical seam at x = 118 without a gap is missed and step x is 0 (the
+            // shading template, SeamTemplate, does not fold to 118 on this cos^4 shading).
+            Map.entry("b-shading-2", List.of(
+                    "x (tile row 0): seam 118 not found within 2 px (nearest error 118)",
+                    "x (tile row 1): seam 118 not found within 2 px (nearest error 118)",
+                    "x (tile row 2): seam 118 not found within 2 px (nearest error 118)",
+                    "step x 0 for 118")),
+            // MISS (measured): steps 100 x 88 exact and tile rows 0 and 2 right; the shifted seams of tile row 1
+            // (112, 212, 312) are missed, so the snake shift (overlap 12) is not seen and the tile size is not found.
+            Map.entry("c-snake-1", List.of(
+                    "x (tile row 1): seam 112 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 1): seam 212 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 1): seam 312 not found within 2 px (nearest error 2147483647)",
+                    "overlap from the snake shift -1 for 12")),
+            // MISS (measured): step y right, but step x 108 for 110 (from the shading template, the seams too faint
+            // at each border): bands at 106..109 and 214..217 in every tile row; tile row 1 (shifted by the overlap,
+            // 128 and 238) missed, x = 220 four px off in rows 0 and 2 (a false band there).
+            Map.entry("c-snake-2", List.of(
+                    "x (tile row 0): seam 220 not found within 2 px (nearest error 4)",
+                    "x (tile row 0): extra band 214..217",
+                    "x (tile row 1): seam 128 not found within 2 px (nearest error 20)",
+                    "x (tile row 1): seam 238 not found within 2 px (nearest error 22)",
+                    "x (tile row 1): extra band 106..109",
+                    "x (tile row 1): extra band 214..217",
+                    "x (tile row 2): seam 220 not found within 2 px (nearest error 4)",
+                    "x (tile row 2): extra band 214..217",
+                    "step x 108 for 110",
+                    "overlap from the snake shift -1 for 18")),
+            // MISS (measured): nothing found; the true seam at x = 130 is listed with the filament (196) and the dead
+            // column (301) as a line that does not repeat. The defects are rightly not seams (held above).
+            Map.entry("e-lines-1", List.of(
+                    "y: seam 130 not found within 2 px (nearest error 2147483647)",
+                    "y: seam 260 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 0): seam 130 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 0): seam 260 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 1): seam 130 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 1): seam 260 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 2): seam 130 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 2): seam 260 not found within 2 px (nearest error 2147483647)",
+                    "step x 0 for 130",
+                    "step y 0 for 130")),
+            // MISS (measured): step y and the horizontal seams right; the vertical seams missed (x = 248 listed as a
+            // line); the weak sensor column repeated in every tile (37, 161, 285: the tile step apart) and the
+            // filament (203) are rightly not seams.
+            Map.entry("e-lines-2", List.of(
+                    "x (tile row 0): seam 124 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 0): seam 248 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 1): seam 124 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 1): seam 248 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 2): seam 124 not found within 2 px (nearest error 2147483647)",
+                    "x (tile row 2): seam 248 not found within 2 px (nearest error 2147483647)",
+                    "step x 0 for 124")),
+            // MISS (measured): one tile, no seam, yet 13 horizontal bands every 26 px (step y 26): a comb of a
+            // short pitch locks onto the smooth cos^4 falloff (a trend the sign test sees at every border) and the
+            // specimen; the other single tile (f-single-2) is right.
+            Map.entry("f-single-1", List.of(
+                    "y: extra band 24..27",
+                    "y: extra band 50..53",
+                    "y: extra band 76..79",
+                    "y: extra band 102..105",
+                    "y: extra band 128..131",
+                    "y: extra band 154..157",
+                    "y: extra band 180..183",
+                    "y: extra band 206..209",
+                    "y: extra band 232..235",
+                    "y: extra band 258..261",
+                    "y: extra band 284..287",
+                    "y: extra band 310..313",
+                    "y: extra band 336..339",
+                    "step y 26 for 0")));
+
+    /** The truth of one mosaic, from {@code mosaics/truth.txt}. */
+    record Truth(String name, int width, int height, int stepX, int stepY, int overlap, boolean snake, boolean blend,
+            List<int[]> seamsY, Map<Integer, List<int[]>> seamsX, Map<Integer, Integer> probeY, List<Integer> linesX) {
+        @Override
+        public String toString() {
+            return name;
+        }
+    }
+
+    static Stream<Truth> mosaics() {
+        List<String[]> table = ReferenceFiles.table("mosaics/truth.txt");
+        return Stream.of(NAMES).map(n -> truth(n, table));
+    }
+
+    static Truth truth(String name, List<String[]> table) {
+        Truth t = null;
+        List<int[]> seamsY = new ArrayList<>();
+        Map<Integer, List<int[]>> seamsX = new TreeMap<>();
+        Map<Integer, Integer> probe = new TreeMap<>();
+        List<Integer> lines = new ArrayList<>();
+        String[] size = null;
+        for (String[] r : table) {
+            if (!r[1].equals(name)) {
+                continue;
+            }
+            switch (r[0]) {
+                case "size" -> size = r;
+                case "seam_y" -> seamsY.add(new int[] {i(r[2]), i(r[3]), i(r[4])});
+                case "seam_x" -> {
+                    seamsX.computeIfAbsent(i(r[2]), k -> new ArrayList<>()).add(new int[] {i(r[4]), i(r[5]), i(r[6])});
+                    probe.put(i(r[2]), i(r[3]));
+                }
+                case "row_x" -> {
+                    seamsX.computeIfAbsent(i(r[2]), k -> new ArrayList<>());
+                    probe.put(i(r[2]), i(r[3]));
+                }
+                case "line_x" -> lines.add(i(r[2]));
+                default -> throw new IllegalStateException("unknown line " + r[0]);
+            }
+        }
+        if (size == null) {
+            throw new IllegalStateException("no size line for " + name);
+        }
+        t = new Truth(name, i(size[2]), i(size[3]), i(size[4]), i(size[5]), i(size[6]), size[9].equals("snake"),
+                size[10].equals("blend"), seamsY, seamsX, probe, lines);
+        return t;
+    }
+
+    @ParameterizedTest
+    @MethodSource("mosaics")
+    void seamsOfAnIndependentGenerator(Truth t) throws URISyntaxException {
+        Path file = Path.of(IndependentMosaicSeamTest.class.getResource("/reference/mosaics/" + t.name() + ".tif")
+                .toURI());
+        Volume img = InputChecks.oneVolume("input", TiffFiles.open(file, "--input"));
+        assertEquals(t.width(), img.width(), "width");
+        assertEquals(t.height(), img.height(), "height");
+        // the command's defaults: --threshold 8, --seam-width 4
+        SeamDetector.Found f = SeamDetector.detect(img, 8, 4);
+        List<String> problems = problems(t, f);
+        SeamDetector.Tiling tl = f.tiling();
+        System.out.printf(Locale.ROOT, "%-12s step %dx%d (true %dx%d), overlap seen %d (true %d), blend %dx%d, "
+                + "lines not seams x=%s; %s%n", t.name(), tl.stepX(), tl.stepY(), t.stepX(), t.stepY(), tl.overlapX(),
+                t.overlap(), tl.blendX(), tl.blendY(), f.columnLines().stream().map(SeamDetector.Line::position)
+                .toList(), problems.isEmpty() ? "all seams within 2 px, nothing else, step exact" : problems);
+        // defect columns and filaments are never inside a seam band (held on every file)
+        for (int x : t.linesX()) {
+            for (SeamDetector.Band b : f.columns()) {
+                assertTrue(x < b.start() - 2 || x >= b.end() + 2, t.name() + ": line at x=" + x
+                        + " inside seam band " + b);
+            }
+        }
+        assertEquals(MEASURED_MISSES.getOrDefault(t.name(), List.of()), problems, t.name());
+    }
+
+    /** @return every departure from the goals, in words (empty when all hold) */
+    static List<String> problems(Truth t, SeamDetector.Found f) {
+        List<String> problems = new ArrayList<>();
+        int blend = t.blend() ? t.overlap() : 0;
+        int gap = Math.max(maxGap(t.seamsY()), t.seamsX().values().stream().mapToInt(IndependentMosaicSeamTest::maxGap)
+                .max().orElse(0));
+        MosaicSeamTest.match("y", at(t.seamsY()), f.rows(), blend, gap, problems, -1);
+        for (Map.Entry<Integer, List<int[]>> e : t.seamsX().entrySet()) {
+            int y = t.probeY().get(e.getKey());
+            MosaicSeamTest.match("x (tile row " + e.getKey() + ")", at(e.getValue()), MosaicSeamTest.across(f.columns(),
+                    y), blend, gap, problems, e.getKey());
+        }
+        SeamDetector.Tiling tl = f.tiling();
+        if (tl.stepX() != t.stepX()) {
+            problems.add("step x " + tl.stepX() + " for " + t.stepX());
+        }
+        if (tl.stepY() != t.stepY()) {
+            problems.add("step y " + tl.stepY() + " for " + t.stepY());
+        }
+        if (t.snake() && !t.blend() && t.overlap() > 0 && tl.overlapX() != t.overlap()) {
+            problems.add("overlap from the snake shift " + tl.overlapX() + " for " + t.overlap());
+        }
+        if (t.blend()) {
+            if (t.stepX() > 0 && tl.blendX() != t.overlap()) {
+                problems.add("blend width x " + tl.blendX() + " for " + t.overlap());
+            }
+            if (t.stepY() > 0 && tl.blendY() != t.overlap()) {
+                problems.add("blend width y " + tl.blendY() + " for " + t.overlap());
+            }
+        }
+        return problems;
+    }
+
+    private static int maxGap(List<int[]> seams) {
+        return seams.stream().mapToInt(s -> s[1]).max().orElse(0);
+    }
+
+    private static int[] at(List<int[]> seams) {
+        return seams.stream().mapToInt(s -> s[0]).toArray();
+    }
+
+    private static int i(String s) {
+        return Integer.parseInt(s);
+    }
+}
