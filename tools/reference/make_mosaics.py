@@ -35,9 +35,11 @@ of a blend band [at, at + b); `probe_y` gives a line in the middle of each tile 
 defects and filaments that are not seams.
 
 Run from the repository root with Debian's /usr/bin/python3:  /usr/bin/python3 tools/reference/make_mosaics.py
+Fresh draws for the sweep (not committed):  /usr/bin/python3 tools/reference/make_mosaics.py --sweep 10 DIR
 """
 import json
 import os
+import sys
 
 import numpy as np
 import scipy
@@ -225,21 +227,39 @@ def table_lines(t):
     return out
 
 
+# the layouts: (name, [(seed, rows, cols, tile_w, tile_h, keyword arguments) for draw 1 and draw 2])
+LAYOUTS = [
+    ("a-steps", [(161, 3, 4, 100, 90, {}), (162, 3, 4, 110, 96, {"depth": 0.2})]),
+    ("b-shading", [(261, 2, 4, 96, 120, {"gain_sigma": 0, "depth": 0.28, "gaps_v": (0, 1, 2), "gaps_h": (0,)}),
+                   (262, 3, 3, 118, 118, {"gain_sigma": 0, "depth": 0.25, "gaps_v": (1,), "gaps_h": (0,)})]),
+    ("c-snake", [(361, 3, 4, 112, 100, {"overlap": 12, "snake": True}),
+                 (362, 3, 3, 128, 128, {"overlap": 18, "snake": True, "depth": 0.2})]),
+    ("d-blend", [(461, 3, 3, 136, 136, {"overlap": 20, "blend": True}),
+                 (462, 3, 3, 124, 140, {"overlap": 16, "blend": True, "depth": 0.2})]),
+    ("e-lines", [(561, 3, 3, 130, 130, {"extra": {"filament": [130 + 67], "dead_column": 260 + 41}}),
+                 (562, 3, 3, 124, 124, {"extra": {"filament": [124 + 80], "sensor_column": 37}})]),
+    ("f-single", [(661, 1, 1, 420, 360, {"depth": 0.3}), (662, 1, 1, 380, 400, {"depth": 0.22})]),
+]
+
+
 def main():
+    """Without arguments: the committed files (two draws per layout). With `--sweep N DIR`: N fresh draws per layout
+    (the two variants in turn, seeds 7000 + 100 * layout + k) into DIR, for IndependentMosaicSeamTest's sweep."""
+    global OUT
+    sweep = 0
+    if len(sys.argv) == 4 and sys.argv[1] == "--sweep":
+        sweep, OUT = int(sys.argv[2]), sys.argv[3]
     os.makedirs(OUT, exist_ok=True)
     truths = []
-    truths.append(make("a-steps-1", 161, 3, 4, 100, 90))
-    truths.append(make("a-steps-2", 162, 3, 4, 110, 96, depth=0.2))
-    truths.append(make("b-shading-1", 261, 2, 4, 96, 120, gain_sigma=0, depth=0.28, gaps_v=(0, 1, 2), gaps_h=(0,)))
-    truths.append(make("b-shading-2", 262, 3, 3, 118, 118, gain_sigma=0, depth=0.25, gaps_v=(1,), gaps_h=(0,)))
-    truths.append(make("c-snake-1", 361, 3, 4, 112, 100, overlap=12, snake=True))
-    truths.append(make("c-snake-2", 362, 3, 3, 128, 128, overlap=18, snake=True, depth=0.2))
-    truths.append(make("d-blend-1", 461, 3, 3, 136, 136, overlap=20, blend=True))
-    truths.append(make("d-blend-2", 462, 3, 3, 124, 140, overlap=16, blend=True, depth=0.2))
-    truths.append(make("e-lines-1", 561, 3, 3, 130, 130, extra={"filament": [130 + 67], "dead_column": 260 + 41}))
-    truths.append(make("e-lines-2", 562, 3, 3, 124, 124, extra={"filament": [124 + 80], "sensor_column": 37}))
-    truths.append(make("f-single-1", 661, 1, 1, 420, 360, depth=0.3))
-    truths.append(make("f-single-2", 662, 1, 1, 380, 400, depth=0.22))
+    for li, (name, variants) in enumerate(LAYOUTS):
+        if sweep == 0:
+            for k, (seed, rows, cols, tw, th, kw) in enumerate(variants):
+                truths.append(make("%s-%d" % (name, k + 1), seed, rows, cols, tw, th, **kw))
+        else:
+            for k in range(sweep):
+                _, rows, cols, tw, th, kw = variants[k % 2]
+                seed = 7000 + 100 * li + k
+                truths.append(make("%s-s%d" % (name, seed), seed, rows, cols, tw, th, **kw))
     with open(os.path.join(OUT, "truth.txt"), "w") as f:
         f.write("# made by tools/reference/make_mosaics.py; one line per item, columns separated by spaces\n"
                 "# size NAME WIDTH HEIGHT STEP_X STEP_Y OVERLAP TILE_W TILE_H ORDER STITCH(cover|blend)\n"

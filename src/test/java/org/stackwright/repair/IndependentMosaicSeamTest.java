@@ -3,7 +3,9 @@ package org.stackwright.repair;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
+import java.io.IOException;
 import java.net.URISyntaxException;
+import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.List;
@@ -12,6 +14,8 @@ import java.util.Map;
 import java.util.TreeMap;
 import java.util.stream.Stream;
 
+import org.junit.jupiter.api.Assumptions;
+import org.junit.jupiter.api.Test;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.MethodSource;
 
@@ -204,6 +208,55 @@ class IndependentMosaicSeamTest {
     void seamsOfAnIndependentGenerator(Truth t) throws URISyntaxException {
         Path file = Path.of(IndependentMosaicSeamTest.class.getResource("/reference/mosaics/" + t.name() + ".tif")
                 .toURI());
+        List<String> problems = detect(file, t);
+        assertEquals(MEASURED_MISSES.getOrDefault(t.name(), List.of()), problems, t.name());
+    }
+
+    /**
+     * Fresh draws of the same layouts, made by {@code make_mosaics.py --sweep N DIR} (not committed): how often each
+     * layout meets the goals. A measurement for README, off by default ({@code -Dstackwright.independentmosaics=DIR});
+     * it holds only that defect lines are never seams.
+     */
+    @Test
+    void sweepOverFreshDraws() throws IOException {
+        String dir = System.getProperty("stackwright.independentmosaics");
+        Assumptions.assumeTrue(dir != null, "sweep off; make_mosaics.py --sweep N DIR, then "
+                + "-Dstackwright.independentmosaics=DIR");
+        List<String[]> table = new ArrayList<>();
+        for (String line : Files.readAllLines(Path.of(dir, "truth.txt"))) {
+            String l = line.trim();
+            if (!l.isEmpty() && !l.startsWith("#")) {
+                table.add(l.split("\\s+"));
+            }
+        }
+        // per layout (the name before "-s"): draws, all goals met, seams, seams found, false bands, steps exact
+        Map<String, int[]> tally = new TreeMap<>();
+        for (String[] r : table) {
+            if (!r[0].equals("size")) {
+                continue;
+            }
+            Truth t = truth(r[1], table);
+            List<String> problems = detect(Path.of(dir, t.name() + ".tif"), t);
+            int[] c = tally.computeIfAbsent(t.name().substring(0, t.name().lastIndexOf("-s")), k -> new int[6]);
+            int seams = t.seamsY().size() + t.seamsX().values().stream().mapToInt(List::size).sum();
+            long missed = problems.stream().filter(p -> p.contains("not found")).count();
+            c[0]++;
+            c[1] += problems.isEmpty() ? 1 : 0;
+            c[2] += seams;
+            c[3] += seams - missed;
+            c[4] += problems.stream().filter(p -> p.contains("extra band")).count();
+            c[5] += problems.stream().noneMatch(p -> p.startsWith("step")) ? 1 : 0;
+        }
+        tally.forEach((k, c) -> System.out.printf(Locale.ROOT, "%-10s %d draws: all goals met in %d; seams found "
+                + "within 2 px %d of %d; false bands %d; tile step exact on both axes in %d%n", k, c[0], c[1], c[3],
+                c[2], c[4], c[5]));
+    }
+
+    /**
+     * Reads the file as the command line does, detects with the command's defaults, prints what was found and checks
+     * that no defect line lies in a seam band. @return the departures from the goals
+     */
+    static List<String> detect(Path file, Truth t) {
         Volume img = InputChecks.oneVolume("input", TiffFiles.open(file, "--input"));
         assertEquals(t.width(), img.width(), "width");
         assertEquals(t.height(), img.height(), "height");
@@ -222,7 +275,7 @@ class IndependentMosaicSeamTest {
                         + " inside seam band " + b);
             }
         }
-        assertEquals(MEASURED_MISSES.getOrDefault(t.name(), List.of()), problems, t.name());
+        return problems;
     }
 
     /** @return every departure from the goals, in words (empty when all hold) */
