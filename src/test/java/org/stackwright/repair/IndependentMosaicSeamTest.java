@@ -56,8 +56,8 @@ class IndependentMosaicSeamTest {
     static final Map<String, List<String>> MEASURED_MISSES = Map.ofEntries(
             // MISS (measured): nothing found, though the steps show in the column and row means (e.g. 463 -> 480 ADU
             // at x = 100, 424 -> 404 at y = 90); the strongest vertical border (x = 200, gains 0.97 -> 1.14) is listed
-            // as a line that does not repeat. Small tiles (100 x 90: 3-4 teeth per comb), several gain steps of 1-2 %,
-            // and cos^4 shading with an off-centre axis (not the quadratic of InventedMosaic) leave too few teeth.
+            // as a line that does not repeat. Our guess, not diagnosed: small tiles (100 x 90: 3-4 teeth per comb),
+            // several gain steps of 1-2 % and cos^4 shading about an off-centre axis leave too few teeth per comb.
             Map.entry("a-steps-1", List.of(
                     "y: seam 90 not found within 2 px (nearest error 2147483647)",
                     "y: seam 180 not found within 2 px (nearest error 2147483647)",
@@ -136,9 +136,9 @@ class IndependentMosaicSeamTest {
                     "x (tile row 2): seam 124 not found within 2 px (nearest error 2147483647)",
                     "x (tile row 2): seam 248 not found within 2 px (nearest error 2147483647)",
                     "step x 0 for 124")),
-            // MISS (measured): one tile, no seam, yet 13 horizontal bands every 26 px (step y 26): a comb of a
-            // short pitch locks onto the smooth cos^4 falloff (a trend the sign test sees at every border) and the
-            // specimen; the other single tile (f-single-2) is right.
+            // MISS (measured): one tile, no seam, yet 13 horizontal bands every 26 px (step y 26), all from the
+            // shading template (tiling.folded "y", looks "shading"): SeamTemplate folds the smooth cos^4 falloff and
+            // the specimen at a pitch where no border shows a seam; the other single tile (f-single-2) is right.
             Map.entry("f-single-1", List.of(
                     "y: extra band 24..27",
                     "y: extra band 50..53",
@@ -265,9 +265,11 @@ class IndependentMosaicSeamTest {
         List<String> problems = problems(t, f);
         SeamDetector.Tiling tl = f.tiling();
         System.out.printf(Locale.ROOT, "%-12s step %dx%d (true %dx%d), overlap seen %d (true %d), blend %dx%d, "
-                + "lines not seams x=%s; %s%n", t.name(), tl.stepX(), tl.stepY(), t.stepX(), t.stepY(), tl.overlapX(),
-                t.overlap(), tl.blendX(), tl.blendY(), f.columnLines().stream().map(SeamDetector.Line::position)
-                .toList(), problems.isEmpty() ? "all seams within 2 px, nothing else, step exact" : problems);
+                + "step from the other axis '%s', from the shading '%s', looks x=%s y=%s, lines not seams x=%s; %s%n",
+                t.name(), tl.stepX(), tl.stepY(), t.stepX(), t.stepY(), tl.overlapX(), t.overlap(), tl.blendX(),
+                tl.blendY(), tl.borrowed(), tl.folded(), looks(f.columns()), looks(f.rows()),
+                f.columnLines().stream().map(SeamDetector.Line::position).toList(),
+                problems.isEmpty() ? "all seams within 2 px, nothing else, step exact" : problems);
         // defect columns and filaments are never inside a seam band (held on every file)
         for (int x : t.linesX()) {
             for (SeamDetector.Band b : f.columns()) {
@@ -309,6 +311,11 @@ class IndependentMosaicSeamTest {
             }
         }
         return problems;
+    }
+
+    /** @return the looks of the bands found, without repeats */
+    private static List<String> looks(List<SeamDetector.Band> bands) {
+        return bands.stream().flatMap(b -> b.looks().stream()).distinct().toList();
     }
 
     private static int maxGap(List<int[]> seams) {
