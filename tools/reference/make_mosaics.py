@@ -8,9 +8,9 @@ law, other gains, another camera and another stitcher, so a detector tuned on on
   angles, wavy filaments (parametric sums of sines rasterised by sub-pixel steps), bright puncta; the features are
   softened by scipy.ndimage.gaussian_filter (sigma 1.2 px). Synthetic shapes only, no photographs.
 - Vignetting of every tile: the cos^4 law of natural illumination falloff, V = cos^4(theta) with
-  tan(theta) = r / f (Slama (ed.), "Manual of Photogrammetry", 4th ed., 1980, the cos^4 law), r the distance from an
-  optical centre that is offset from the tile centre (the same for every tile of a mosaic, as one camera), with
-  slightly different scales along x and y; f is set so that the darkest tile corner loses `depth` (18-30 %).
+  tan(theta) = r / f (Slama (ed.), "Manual of Photogrammetry", 4th ed., 1980; cited from memory), r the distance
+  from an optical centre that is offset from the tile centre (the same for every tile of a mosaic, as one camera),
+  with slightly different scales along x and y; f is set so that the darkest tile corner loses `depth` (18-30 %).
 - Gains: log-normal per tile, exp(N(0, sigma)), sigma 0.07 (steps of a few to ~20 %), or exactly 1 (shading only).
 - Camera, one exposure per tile: ADU = round(1.8 * (Poisson(photons) + N(0, 1.4 e-)) + 200), clipped to 16 bits
   (numpy.random.Generator, PCG64). Every tile has its own noise, also where tiles overlap.
