@@ -168,6 +168,49 @@ public final class TotalVariation {
     }
 
     /**
+     * {@link #dualStep} that also returns the l1 norm of the TV part of the dual residual of adaptive primal-dual
+     * splitting (Goldstein, Li, Yuan, Esser &amp; Baraniuk, "Adaptive Primal-Dual Splitting Methods for Statistical
+     * Learning and Image Processing", NIPS 2015): sum over components of |(p_old - p_new) / sigma + D xbar - D x|,
+     * where x is the iterate that xbar = 2 x - x_previous extrapolates. The step itself is computed exactly as by
+     * {@link #dualStep}.
+     *
+     * @param xbar not modified
+     * @param x not modified
+     * @return the l1 norm of the residual
+     */
+    public double dualStepResidual(float[] xbar, float[] x, float sigma, float lambda, float[] px, float[] py,
+            float[] pz) {
+        final double inv = 1.0 / sigma;
+        return workers.sum(nz * ny, (from, to) -> {
+            double s = 0;
+            for (int row = from; row < to; row++) {
+                int iz = row / ny;
+                int iy = row % ny;
+                for (int ix = 0, i = row * nx; ix < nx; ix++, i++) {
+                    float gx = dx(xbar, i, ix);
+                    float gy = dy(xbar, i, iy);
+                    float gz = dz(xbar, i, iz);
+                    float a = px[i] + sigma * gx;
+                    float b = py[i] + sigma * gy;
+                    float c = pz[i] + sigma * gz;
+                    float len = (float) norm(a, b, c);
+                    float f = len > lambda ? lambda / len : 1f;
+                    float na = a * f;
+                    float nb = b * f;
+                    float nc = c * f;
+                    s += Math.abs((px[i] - na) * inv + gx - dx(x, i, ix))
+                            + Math.abs((py[i] - nb) * inv + gy - dy(x, i, iy))
+                            + Math.abs((pz[i] - nc) * inv + gz - dz(x, i, iz));
+                    px[i] = na;
+                    py[i] = nb;
+                    pz[i] = nc;
+                }
+            }
+            return s;
+        });
+    }
+
+    /**
      * out = div(D x / sqrt(|D x|^2 + eps^2)) = -D^T (D x / |D x|_eps), the curvature term whose negative is the
      * gradient of the smoothed TV.
      *

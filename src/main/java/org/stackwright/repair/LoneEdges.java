@@ -24,7 +24,8 @@ final class LoneEdges {
     /**
      * Without a period: the strong edges that are not narrow lines, each a band of the requested width. Without the
      * support of repeating teeth an edge must exceed {@link #LONE} times the threshold (structure that runs along a
-     * line gives evidence of the size of the threshold now and then).
+     * line gives evidence of the size of the threshold now and then); the first border of a gap of zeros, which no
+     * structure makes, needs only the threshold.
      */
     static List<Band> lone(SeamEvidence e, double thresholdIn, int stepWidth, int from, int to) {
         double threshold = LONE * thresholdIn;
@@ -32,7 +33,10 @@ final class LoneEdges {
         List<Band> out = new ArrayList<>();
         for (int b = 1; b < n; b++) {
             double s = e.combStrength(b, threshold / 2);
-            if (s > threshold && s >= e.combStrength(b - 1, threshold / 2) && s >= e.combStrength(b + 1 < n ? b + 1 : b,
+            // a gap of zeros across the lines is no structure: the usual threshold (its sign test saturates near it
+            // when the lines are few or the empirical null is wide)
+            double bar = e.zeros[b] >= 0.5 ? thresholdIn : threshold;
+            if (s > bar && s >= e.combStrength(b - 1, threshold / 2) && s >= e.combStrength(b + 1 < n ? b + 1 : b,
                     threshold / 2)) {
                 if (!out.isEmpty() && b - out.get(out.size() - 1).centre() <= MAX_BAND) {
                     continue;

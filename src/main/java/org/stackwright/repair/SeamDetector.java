@@ -138,10 +138,15 @@ public final class SeamDetector {
         double tooth = threshold / 2;
         SeamEvidence ey = SeamEvidence.of(image, false, 0, w);
         SeamComb.Period py = CombBands.repeats(ey, SeamComb.find(ey, null, tooth, threshold), tooth);
-        List<Band> rows = py != null ? CombBands.seams(ey, py, tooth, threshold, stepWidth, 0, w)
-                : LoneEdges.lone(ey, threshold, stepWidth, 0, w);
         // the rules that weigh the combs against the shading every tile shares (its profiles made once, when needed)
         ShadingRules shading = new ShadingRules(image);
+        // a short comb of horizontal seams may be a gap and a stray step (two tiles along y allow no true comb): where
+        // the tiles have a shading of their own, a comb whose tiling the shading along y contradicts is none
+        if (py != null && shading.contradicts(py)) {
+            py = null;
+        }
+        List<Band> rows = py != null ? CombBands.seams(ey, py, tooth, threshold, stepWidth, 0, w)
+                : LoneEdges.lone(ey, threshold, stepWidth, 0, w);
         Columns c = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, 0);
         String borrowed = "";
         if (py == null && c.step() > 0) {
@@ -185,7 +190,7 @@ public final class SeamDetector {
         // an axis still without a period: the shading every tile shares may show the step (SeamTemplate)
         String folded = "";
         if (py == null) {
-            SeamTemplate.Fold fy = SeamTemplate.find(SeamTemplate.profiles(image, false), anchors(rows));
+            SeamTemplate.Fold fy = SeamTemplate.find(shading.alongY(), anchors(rows));
             if (fy != null && fy.found()) {
                 folded = "y";
                 py = new SeamComb.Period(fy.pitch(), fy.phase(), 0, 0, 0);
@@ -263,7 +268,7 @@ public final class SeamDetector {
     }
 
     /** @return the border of each band found so far (a gap's first zero, else its centre), ascending: fold anchors */
-    private static int[] anchors(List<Band> bands) {
+    static int[] anchors(List<Band> bands) {
         return bands.stream().mapToInt(b -> b.looks().contains("gap") ? b.start() : b.centre()).distinct().sorted()
                 .toArray();
     }

@@ -18,6 +18,7 @@ final class ShadingRules {
 
     private final Volume image;
     private SeamTemplate.Profiles alongX;
+    private SeamTemplate.Profiles alongY;
 
     /** @param image the image or stack the detection runs on, not modified */
     ShadingRules(Volume image) {
@@ -32,6 +33,24 @@ final class ShadingRules {
         return alongX;
     }
 
+    /** @return the shading's block profiles along y, made when a rule first needs them (they are read only) */
+    SeamTemplate.Profiles alongY() {
+        if (alongY == null) {
+            alongY = SeamTemplate.profiles(image, false);
+        }
+        return alongY;
+    }
+
+    /**
+     * @return whether the tiles have a shading of their own (it shows a step along x, {@link SeamTemplate#shownStep})
+     *     and the template along y at the comb's step and phase predicts the shading worse than no template at all
+     *     (cross-validated score below 0): horizontal seams the shading contradicts
+     */
+    boolean contradicts(SeamComb.Period rowComb) {
+        return SeamTemplate.shownStep(alongX()) >= 0 && SeamTemplate.score(alongY(), rowComb.pitch(),
+                rowComb.phase()) < 0;
+    }
+
     /** @return whether a step along x is 0 or near the best step of the shading template along x */
     boolean nearBest(int step) {
         return step == 0 || SeamTemplate.nearBestStep(alongX(), step);
@@ -39,7 +58,9 @@ final class ShadingRules {
 
     /**
      * @return whether the combs of the tile rows agree with the shading every tile shares: true when the shading shows
-     *     no step of its own ({@link SeamTemplate#shownStep}); else the common step must lie near the shown one and,
+     *     no step of its own ({@link SeamTemplate#shownStep}); else the common step must lie near the shown one (within
+     *     1 px of the exact step of the shading's fold through the gaps found, {@link SeamTemplate#find}, where one is
+     *     found, unless a long comb shows a snake's shift) and,
      *     with valleys, each tile row's seams at the valley of that row's own shading template
      *     ({@link SeamTemplate#valleyAt}): asked of tile rows cut at seams found from the shading alone (gain steps
      *     between tiles move a row's valley, and there the combs are strong)
@@ -50,6 +71,20 @@ final class ShadingRules {
             return true;
         }
         if (!SeamTemplate.near(shown, c.step())) {
+            return false;
+        }
+        // stray steps within the search's reach may fill a comb of a wrong step: its step must lie within 1 px of the
+        // exact step of the shading's uncropped tiling through the gaps found; not asked of a long comb (more than two
+        // strong teeth in a tile row) whose rows show a snake's shift: the shading then mixes rows shifted by the
+        // overlap
+        int most = 0;
+        for (SeamComb.Period p : c.periods()) {
+            most = Math.max(most, p == null ? 0 : p.strong());
+        }
+        boolean snake = TileRowSeams.snakeShift(c.phases(), c.step()) >= 0;
+        SeamTemplate.Fold exact = most > 2 && snake ? null : SeamTemplate.find(alongX(), SeamDetector.anchors(c.bands()
+                .stream().filter(b -> coversGap(image, b)).toList()));
+        if (exact != null && exact.found() && Math.abs(exact.pitch() - c.step()) > 1) {
             return false;
         }
         SeamComb.Period[] px = c.periods();

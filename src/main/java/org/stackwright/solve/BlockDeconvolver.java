@@ -83,7 +83,8 @@ final class BlockDeconvolver implements BlockProcessor {
     static Solver blockSolver(DeconvolutionSettings s, Globals g) {
         if (s.method().equals("total-variation") && g.numbers().containsKey(WholeStackValues.MEAN_SIGNAL)) {
             return new PrimalDualTv(s.stopping(), s.lambda(), s.likelihood().equals("poisson")
-                    ? PrimalDualTv.DataTerm.POISSON : PrimalDualTv.DataTerm.GAUSSIAN, g.number(WholeStackValues.MEAN_SIGNAL));
+                    ? PrimalDualTv.DataTerm.POISSON : PrimalDualTv.DataTerm.GAUSSIAN, g.number(WholeStackValues.MEAN_SIGNAL),
+                    false);
         }
         if (!accelerated(s) || !g.numbers().containsKey(STEP + 1)) {
             return s.solver();

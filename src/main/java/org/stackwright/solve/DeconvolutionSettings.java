@@ -15,7 +15,7 @@ import java.util.List;
  * @param regularization lambda, or NaN to choose it from the data ("auto"; a solver built from unresolved settings
  *     uses {@link #defaultRegularization})
  * @param boundary "extended" or "periodic"
- * @param accelerated vector extrapolation for richardson-lucy and richardson-lucy-tv
+ * @param accelerated vector extrapolation for richardson-lucy and richardson-lucy-tv; adaptive primal-dual steps for total-variation
  * @param likelihood data term of total-variation (and of gaussian noise replicas): "poisson" or "gaussian"
  */
 public record DeconvolutionSettings(String method, Stopping stopping, double offset, double background, double gain,
@@ -123,7 +123,8 @@ public record DeconvolutionSettings(String method, Stopping stopping, double off
             case "richardson-lucy" -> new RichardsonLucy(stopping, accelerated);
             case "richardson-lucy-tv" -> new RichardsonLucyTv(stopping, lambda(), accelerated);
             case "total-variation" -> new PrimalDualTv(stopping, lambda(),
-                    likelihood.equals("poisson") ? PrimalDualTv.DataTerm.POISSON : PrimalDualTv.DataTerm.GAUSSIAN);
+                    likelihood.equals("poisson") ? PrimalDualTv.DataTerm.POISSON : PrimalDualTv.DataTerm.GAUSSIAN,
+                    accelerated);
             default -> new WienerFilter(lambda());
         };
     }

@@ -89,7 +89,7 @@ public final class DeconvolveOperation implements Operation, Blockwise {
                 Param.image("mask", false, "pixels to exclude from the data fit: nonzero = dead, saturated, seam"),
                 Param.choice("boundary", "extended", List.of("extended", "periodic"),
                         "extended = object larger than the image, no wrap-around; periodic = wraps around (smaller, faster)"),
-                Param.choice("acceleration", "on", List.of("on", "off"), "vector extrapolation for richardson-lucy and richardson-lucy-tv"),
+                Param.choice("acceleration", "on", List.of("on", "off"), "vector extrapolation for richardson-lucy and richardson-lucy-tv, adaptive steps for total-variation"),
                 Param.choice("likelihood", "poisson", List.of("poisson", "gaussian"), "data term of total-variation; with "
                         + "replicas also their noise (gaussian: additive, read-noise as standard deviation)").withAlias("noise"),
                 Param.number("na", null, 0.01, 1.7, "", "numerical aperture, for the sampling check (optional)"),

@@ -60,6 +60,11 @@ final class IterationLog {
         fluctuation = perPixel;
     }
 
+    /** @return iterations recorded so far */
+    int done() {
+        return done;
+    }
+
     /** Checks for cancel before an iteration. */
     void before() {
         context.checkCancelled();

@@ -27,7 +27,9 @@ import org.stackwright.parallel.Workers;
  *
  * Step sizes tau = c / L, sigma = 1 / (c L) with L^2 = ||H||^2 + ||D||^2 (||H|| = 1 for a unit-sum PSF) and
  * c = 10 x the mean signal per trusted pixel, which balances primal (photo-electrons) and dual (order one)
- * scales (the factor was chosen by trial on invented specimens). Non-negativity alone makes the dual objective
+ * scales (the factor was chosen by trial on invented specimens). By default the balance c is then adapted during the
+ * run by residual balancing ({@link StepBalance}; Goldstein, Li, Yuan, Esser &amp; Baraniuk, NIPS 2015) with tau sigma
+ * kept constant and a decaying adaptivity, which keeps the convergence and the solution. Non-negativity alone makes the dual objective
  * infinite whenever K^T p has a negative entry; the gap is therefore taken for the problem restricted to
  * 0 &lt;= x &lt;= U with U = 2 max(x_k), which holds the solution once the iterates settle:
  * gap = P(x) - D(p), D(p) = -F1*(p1) - U sum max(-(K^T p), 0). H x_new is
@@ -58,6 +60,7 @@ public final class PrimalDualTv implements Solver {
     private final double lambda;
     private final DataTerm dataTerm;
     private final double meanSignal;
+    private final boolean adaptive;
 
     /**
      * @param stopping when to stop; CHANGE stops on the relative primal-dual gap
@@ -65,17 +68,28 @@ public final class PrimalDualTv implements Solver {
      * @param dataTerm Poisson (Kullback-Leibler) or Gaussian (least squares)
      */
     public PrimalDualTv(Stopping stopping, double lambda, DataTerm dataTerm) {
-        this(stopping, lambda, dataTerm, Double.NaN);
+        this(stopping, lambda, dataTerm, true);
+    }
+
+    /**
+     * @param adaptive true to adapt the step balance during the run ({@link StepBalance}, residual balancing of
+     *     Goldstein et al. 2015), false for the constant balance
+     */
+    public PrimalDualTv(Stopping stopping, double lambda, DataTerm dataTerm, boolean adaptive) {
+        this(stopping, lambda, dataTerm, Double.NaN, adaptive);
     }
 
     /**
      * As above, with the mean signal that sets the step sizes given instead of taken from the problem: the blocks
-     * of one volume take the whole volume's, so that they all take the same steps and agree where they meet.
+     * of one volume take the whole volume's, so that they all take the same steps and agree where they meet. Blocks
+     * keep the balance constant ({@code adaptive} false): adapted, each block would take its own steps.
      *
      * @param meanSignal mean of max(y - b, 0) per trusted pixel in photo-electrons, or NaN to compute it
+     * @param adaptive true to adapt the step balance during the run
      */
-    public PrimalDualTv(Stopping stopping, double lambda, DataTerm dataTerm, double meanSignal) {
+    public PrimalDualTv(Stopping stopping, double lambda, DataTerm dataTerm, double meanSignal, boolean adaptive) {
         this.meanSignal = meanSignal;
+        this.adaptive = adaptive;
         if (!(lambda > 0) || !Double.isFinite(lambda)) {
             throw new IllegalArgumentException("regularization = " + lambda + " is not allowed for total-variation; give a positive number");
         }
@@ -97,7 +111,7 @@ public final class PrimalDualTv implements Solver {
 
     @Override
     public double gridArrays() {
-        return 9;
+        return adaptive ? 10 : 9;
     }
 
     @Override
@@ -129,24 +143,30 @@ public final class PrimalDualTv implements Solver {
             }
         }
         double trusted = p.trustedPixels();
-        double c = STEP_BALANCE * Math.max(Double.isNaN(meanSignal) ? signal / trusted : meanSignal, 1e-3);
+        double scale = Math.max(Double.isNaN(meanSignal) ? signal / trusted : meanSignal, 1e-3);
         double l = Math.sqrt(1 + tv.normSquaredBound());
-        final float tau = (float) (c / l);
-        final float sigma = (float) (1 / (c * l));
+        StepBalance steps = new StepBalance(STEP_BALANCE * scale, l, scale, adaptive);
+        // K^T p of the previous iteration, for the primal residual of the adapted steps
+        float[] ktPrevious = adaptive ? new float[n] : null;
         final float upper = (float) (BOX * Math.max(brightest, 1));
         final float lam = (float) lambda;
         final boolean poisson = dataTerm == DataTerm.POISSON;
         final double floor = p.modelFloor();
-        Sums dualSums = new Sums(1);
+        Sums dualSums = new Sums(2);
         Sums primalSums = new Sums(3);
         Sums fitSums = new Sums(2);
         IterationLog log = new IterationLog(method(), stopping, context, listener);
         log.stopWhenSettled();
         while (true) {
             log.before();
-            // dual step for the data term; buf holds H xbar
-            double dualData = dualSums.run(workers, n, (from, to, acc) -> {
+            final float sigma = steps.sigma();
+            final double inverseSigma = 1.0 / sigma;
+            final boolean residual = adaptive;
+            // dual step for the data term; buf holds H xbar, hx holds H x (x is the iterate xbar extrapolates); with
+            // adapted steps also the data part of the dual residual |(p1_old - p1_new) / sigma + H xbar - H x|
+            double[] dualPass = dualSums.run(workers, n, (from, to, acc) -> {
                 double s = 0;
+                double r = 0;
                 for (int i = from; i < to; i++) {
                     float yi = y[i];
                     if (yi < 0) {
@@ -163,14 +183,33 @@ public final class PrimalDualTv implements Solver {
                         v = (q - sigma * (yi - b)) / (1 + sigma);
                         s -= 0.5 * v * v + v * (yi - b);
                     }
+                    if (residual) {
+                        r += Math.abs((p1[i] - (float) v) * inverseSigma + buf[i] - hx[i]);
+                    }
                     p1[i] = (float) v;
                 }
                 acc[0] += s;
-            })[0];
-            tv.dualStep(xbar, sigma, lam, px, py, pz);
+                acc[1] += r;
+            });
+            double dualData = dualPass[0];
+            double dualResidual = dualPass[1];
+            if (adaptive) {
+                dualResidual += tv.dualStepResidual(xbar, x, sigma, lam, px, py, pz);
+            } else {
+                tv.dualStep(xbar, sigma, lam, px, py, pz);
+            }
             // K^T p = H^T p1 + D^T p2
             h.applyAdjoint(p1, buf);
             tv.adjoint(px, py, pz, buf, true);
+            if (adaptive) {
+                // the primal residual of the pair (the last primal step, this dual step), then the steps adapted
+                // before the next primal step (Goldstein et al. 2015); on the first iteration no primal step came yet
+                double primalResidual = primalResidual(workers, n, norm, x, xbar, buf, ktPrevious, steps.tau());
+                if (log.done() > 0) {
+                    steps.balance(primalResidual, dualResidual);
+                }
+            }
+            final float tau = steps.tau();
             double[] s = primalSums.run(workers, n, (from, to, acc) -> {
                 double neg = 0;
                 double dd = 0;
@@ -227,6 +266,31 @@ public final class PrimalDualTv implements Solver {
                 break;
             }
         }
-        return log.finish(x);
+        Solution s = log.finish(x);
+        return new Solution(s.estimate(), s.iterations(), s.stopReason() + "; " + steps.describe(), s.objective(),
+                s.change(), s.seconds());
+    }
+
+    /**
+     * The l1 norm of the primal residual (x_previous - x) / tau - (K^T p_previous - K^T p) over the trusted voxels,
+     * with x_previous = 2 x - xbar; stores K^T p as the next iteration's previous.
+     *
+     * @param kt K^T p of this iteration, not modified
+     * @param ktPrevious K^T p of the previous iteration, overwritten by kt
+     * @param tau the step of the last primal step
+     */
+    private static double primalResidual(Workers workers, int n, float[] norm, float[] x, float[] xbar, float[] kt,
+            float[] ktPrevious, float tau) {
+        final double inverseTau = 1.0 / tau;
+        return workers.sum(n, (from, to) -> {
+            double r = 0;
+            for (int i = from; i < to; i++) {
+                if (norm[i] > 0) {
+                    r += Math.abs((x[i] - xbar[i]) * inverseTau - ktPrevious[i] + kt[i]);
+                }
+                ktPrevious[i] = kt[i];
+            }
+            return r;
+        });
     }
 }

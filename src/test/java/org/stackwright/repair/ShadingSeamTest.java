@@ -45,11 +45,18 @@ class ShadingSeamTest {
      * now claims it from the shading template), 53 (a structure across a tile row taken for a seam broke the
      * template's anchors; the cross-validation rejected the template); snake 45 (the combs of the short tile rows took
      * a step of 81 px from stray structures and reported seams that are not there: a comb must now agree with the
-     * step the shading shows, and with each row's shading valley); the 3x3 layout only in the sweep
+     * step the shading shows, and with each row's shading valley); 57 (the gap on the horizontal seam fell short of
+     * twice the threshold as a lone edge: a gap needs only the threshold), 59 and snake 63 (combs of steps 107 and
+     * 124 from a gap and stray steps, within the reach of the shading's best step: a comb must now lie within 1 px of
+     * the shading's exact step), 62 (a comb of step 52 along y from the gap and a stray step, two tiles along y: the
+     * shading along y contradicts it); 3x3 55 (the template's score 0.2 % higher 1 px off the step: near ties are
+     * broken by the steps at the seams)
      */
     static Stream<Draw> held() {
         return Stream.of(new Draw("2x4 of 110", TWO_BY_FOUR, 45), new Draw("2x4 of 110", TWO_BY_FOUR, 53),
-                new Draw("snake 3x4 of 120x100", SNAKE, 45));
+                new Draw("snake 3x4 of 120x100", SNAKE, 45), new Draw("2x4 of 110", TWO_BY_FOUR, 57),
+                new Draw("2x4 of 110", TWO_BY_FOUR, 59), new Draw("2x4 of 110", TWO_BY_FOUR, 62),
+                new Draw("snake 3x4 of 120x100", SNAKE, 63), new Draw("3x3 of 128", THREE_BY_THREE, 55));
     }
 
     @ParameterizedTest

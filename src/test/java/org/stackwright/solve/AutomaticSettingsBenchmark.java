@@ -20,7 +20,7 @@ import org.stackwright.volume.Volume;
  * <p>With {@code --methods m1,m2,...} it also runs each named method with its defaults (automatic lambda and stop) on
  * every condition and prints its error, so the default method can be compared with the others on the same data.
  *
- * <p>{@code --acceleration off} runs the methods without vector extrapolation (as before it was offered for
+ * <p>{@code --acceleration off} runs the methods without vector extrapolation and total-variation with constant steps (as before they were offered for
  * richardson-lucy-tv); {@code --oracle} adds, per method and condition, the method's own oracle: the best error over
  * iteration counts of the same method with the settings the default run used (camera values, background, lambda,
  * acceleration), found with the truth, and the ratio of the default's error to it; {@code --only a,b} keeps the

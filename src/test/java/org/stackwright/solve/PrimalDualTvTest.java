@@ -44,6 +44,38 @@ class PrimalDualTvTest {
         }
     }
 
+    /**
+     * The adapted steps (residual balancing, Goldstein, Li, Yuan, Esser &amp; Baraniuk, NIPS 2015) reach the same
+     * solution as the constant steps: both runs are taken to a relative primal-dual gap of 1e-5 (a certificate of
+     * optimality for the same problem, Chambolle &amp; Pock 2011) and must agree to the constant-step solver's own
+     * run-to-run tolerance above (1e-3 against a run twice as long), and both stay non-negative.
+     */
+    @Test
+    void adaptedStepsReachTheSameSolution() {
+        Volume truth = SpecimenDeconvolutionTest.spheres(24, 24, 8, 3);
+        try (Workers w = new Workers(2)) {
+            Volume data = SpecimenDeconvolutionTest.poisson(Convolution.convolve(truth, TestSpecimens.psf(), w), 1, 4);
+            DeconvolutionProblem p = new DeconvolutionProblem(data, TestSpecimens.psf(), null,
+                    DeconvolutionProblem.Boundary.EXTENDED, Camera.of(1, 0, 0), 1, w);
+            double tol = 1e-5;
+            Solution constant = new PrimalDualTv(new Stopping(StopRule.CHANGE, 3000, tol), 0.1,
+                    PrimalDualTv.DataTerm.POISSON, false).solve(p, RunContext.quiet(2), IterationListener.NONE);
+            Solution adapted = new PrimalDualTv(new Stopping(StopRule.CHANGE, 3000, tol), 0.1,
+                    PrimalDualTv.DataTerm.POISSON, true).solve(p, RunContext.quiet(2), IterationListener.NONE);
+            String line = "constant: " + constant.iterations() + " iterations, " + constant.stopReason() + "; adapted: "
+                    + adapted.iterations() + " iterations, " + adapted.stopReason();
+            System.out.println("primal-dual steps: " + line);
+            assertTrue(constant.stopReason().startsWith("change"), line);
+            assertTrue(adapted.stopReason().startsWith("change"), line);
+            assertTrue(adapted.stopReason().contains("steps adapted"), line);
+            double d = relativeDifference(p.toVolume(adapted.estimate()).data(), p.toVolume(constant.estimate()).data());
+            assertTrue(d <= 1e-3, "relative difference of the adapted to the constant steps' solution: " + d + "; " + line);
+            for (float v : adapted.estimate()) {
+                assertTrue(v >= 0, "negative value " + v);
+            }
+        }
+    }
+
     private static double min(double[] a, int from, int to) {
         double m = Double.POSITIVE_INFINITY;
         for (int i = from; i < to; i++) {
