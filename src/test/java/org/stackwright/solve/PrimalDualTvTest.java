@@ -18,11 +18,8 @@ class PrimalDualTvTest {
 
     @Test
     void gapFallsToTheToleranceAndTheSolutionMatchesALongRun() {
-        Volume truth = SpecimenDeconvolutionTest.spheres(24, 24, 8, 3);
         try (Workers w = new Workers(2)) {
-            Volume data = SpecimenDeconvolutionTest.poisson(Convolution.convolve(truth, TestSpecimens.psf(), w), 1, 4);
-            DeconvolutionProblem p = new DeconvolutionProblem(data, TestSpecimens.psf(), null,
-                    DeconvolutionProblem.Boundary.EXTENDED, Camera.of(1, 0, 0), 1, w);
+            DeconvolutionProblem p = spheresProblem(w);
             double tol = 1e-5;
             Solution s = new PrimalDualTv(new Stopping(StopRule.CHANGE, 3000, tol), 0.1, PrimalDualTv.DataTerm.POISSON)
                     .solve(p, RunContext.quiet(2), IterationListener.NONE);
@@ -52,11 +49,8 @@ class PrimalDualTvTest {
      */
     @Test
     void adaptedStepsReachTheSameSolution() {
-        Volume truth = SpecimenDeconvolutionTest.spheres(24, 24, 8, 3);
         try (Workers w = new Workers(2)) {
-            Volume data = SpecimenDeconvolutionTest.poisson(Convolution.convolve(truth, TestSpecimens.psf(), w), 1, 4);
-            DeconvolutionProblem p = new DeconvolutionProblem(data, TestSpecimens.psf(), null,
-                    DeconvolutionProblem.Boundary.EXTENDED, Camera.of(1, 0, 0), 1, w);
+            DeconvolutionProblem p = spheresProblem(w);
             double tol = 1e-5;
             Solution constant = new PrimalDualTv(new Stopping(StopRule.CHANGE, 3000, tol), 0.1,
                     PrimalDualTv.DataTerm.POISSON, false).solve(p, RunContext.quiet(2), IterationListener.NONE);
@@ -74,6 +68,14 @@ class PrimalDualTvTest {
                 assertTrue(v >= 0, "negative value " + v);
             }
         }
+    }
+
+    /** the small blurred, Poisson-noisy stack of spheres both tests solve */
+    private static DeconvolutionProblem spheresProblem(Workers w) {
+        Volume truth = SpecimenDeconvolutionTest.spheres(24, 24, 8, 3);
+        Volume data = SpecimenDeconvolutionTest.poisson(Convolution.convolve(truth, TestSpecimens.psf(), w), 1, 4);
+        return new DeconvolutionProblem(data, TestSpecimens.psf(), null, DeconvolutionProblem.Boundary.EXTENDED,
+                Camera.of(1, 0, 0), 1, w);
     }
 
     private static double min(double[] a, int from, int to) {
