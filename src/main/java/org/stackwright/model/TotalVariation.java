@@ -149,34 +149,19 @@ public final class TotalVariation {
      * @param pz modified
      */
     public void dualStep(float[] xbar, float sigma, float lambda, float[] px, float[] py, float[] pz) {
-        workers.forRange(nz * ny, (from, to) -> {
-            for (int row = from; row < to; row++) {
-                int iz = row / ny;
-                int iy = row % ny;
-                for (int ix = 0, i = row * nx; ix < nx; ix++, i++) {
-                    float a = px[i] + sigma * dx(xbar, i, ix);
-                    float b = py[i] + sigma * dy(xbar, i, iy);
-                    float c = pz[i] + sigma * dz(xbar, i, iz);
-                    float len = (float) norm(a, b, c);
-                    float f = len > lambda ? lambda / len : 1f;
-                    px[i] = a * f;
-                    py[i] = b * f;
-                    pz[i] = c * f;
-                }
-            }
-        });
+        dualStepResidual(xbar, null, sigma, lambda, px, py, pz);
     }
 
     /**
      * {@link #dualStep} that also returns the l1 norm of the TV part of the dual residual of adaptive primal-dual
      * splitting (Goldstein, Li, Yuan, Esser &amp; Baraniuk, "Adaptive Primal-Dual Splitting Methods for Statistical
      * Learning and Image Processing", NIPS 2015): sum over components of |(p_old - p_new) / sigma + D xbar - D x|,
-     * where x is the iterate that xbar = 2 x - x_previous extrapolates. The step itself is computed exactly as by
-     * {@link #dualStep}.
+     * where x is the iterate that xbar = 2 x - x_previous extrapolates. {@link #dualStep} is this step without the
+     * residual.
      *
      * @param xbar not modified
-     * @param x not modified
-     * @return the l1 norm of the residual
+     * @param x not modified; null for the step alone ({@link #dualStep})
+     * @return the l1 norm of the residual (0 when x is null)
      */
     public double dualStepResidual(float[] xbar, float[] x, float sigma, float lambda, float[] px, float[] py,
             float[] pz) {
@@ -198,9 +183,11 @@ public final class TotalVariation {
                     float na = a * f;
                     float nb = b * f;
                     float nc = c * f;
-                    s += Math.abs((px[i] - na) * inv + gx - dx(x, i, ix))
-                            + Math.abs((py[i] - nb) * inv + gy - dy(x, i, iy))
-                            + Math.abs((pz[i] - nc) * inv + gz - dz(x, i, iz));
+                    if (x != null) {
+                        s += Math.abs((px[i] - na) * inv + gx - dx(x, i, ix))
+                                + Math.abs((py[i] - nb) * inv + gy - dy(x, i, iy))
+                                + Math.abs((pz[i] - nc) * inv + gz - dz(x, i, iz));
+                    }
                     px[i] = na;
                     py[i] = nb;
                     pz[i] = nc;
