@@ -36,7 +36,7 @@ of a blend band [at, at + b); `probe_y` gives a line in the middle of each tile 
 defects and filaments that are not seams.
 
 Run from the repository root with Debian's /usr/bin/python3:  /usr/bin/python3 tools/reference/make_mosaics.py
-Fresh draws for the sweep (not committed):  /usr/bin/python3 tools/reference/make_mosaics.py --sweep 10 DIR
+Fresh draws for the sweep (not committed):  /usr/bin/python3 tools/reference/make_mosaics.py --sweep 10 DIR [SEED_BASE]
 """
 import json
 import os
@@ -244,12 +244,16 @@ LAYOUTS = [
 
 
 def main():
-    """Without arguments: the committed files (one draw per layout, its first variant). With `--sweep N DIR`: N fresh draws per layout
-    (the two variants in turn, seeds 7000 + 100 * layout + k) into DIR, for IndependentMosaicSeamTest's sweep."""
+    """Without arguments: the committed files (one draw per layout, its first variant). With `--sweep N DIR [BASE]`: N
+    fresh draws per layout (the two variants in turn, seeds BASE + 100 * layout + k, BASE 7000 by default) into DIR,
+    for IndependentMosaicSeamTest's sweep; tune on one BASE and measure on another (held out), e.g. 20000."""
     global OUT
     sweep = 0
-    if len(sys.argv) == 4 and sys.argv[1] == "--sweep":
+    base = 7000
+    if len(sys.argv) in (4, 5) and sys.argv[1] == "--sweep":
         sweep, OUT = int(sys.argv[2]), sys.argv[3]
+        if len(sys.argv) == 5:
+            base = int(sys.argv[4])
     os.makedirs(OUT, exist_ok=True)
     truths = []
     for li, (name, variants) in enumerate(LAYOUTS):
@@ -261,7 +265,7 @@ def main():
         else:
             for k in range(sweep):
                 _, rows, cols, tw, th, kw = variants[k % 2]
-                seed = 7000 + 100 * li + k
+                seed = base + 100 * li + k
                 truths.append(make("%s-s%d" % (name, seed), seed, rows, cols, tw, th, **kw))
     with open(os.path.join(OUT, "truth.txt"), "w") as f:
         f.write("# made by tools/reference/make_mosaics.py; one line per item, columns separated by spaces\n"
