@@ -183,6 +183,15 @@ final class SeamComb {
 
     /** @return the comb (s, p) scored with teeth that look window pixels either side, or null if it fails */
     static Period score(SeamEvidence e, int s, int p, int window, double toothLimit, double seamLimit) {
+        return score(e, s, p, window, toothLimit, seamLimit, 2);
+    }
+
+    /**
+     * @param minStrong the fewest strong teeth the comb needs: 2 (and {@link #STRONG_SHARE} of its teeth) for a comb
+     *     searched over pitches and phases, 1 for one comb tried at a step and phase found elsewhere
+     * @return the comb (s, p) scored with teeth that look window pixels either side, or null if it fails
+     */
+    static Period score(SeamEvidence e, int s, int p, int window, double toothLimit, double seamLimit, int minStrong) {
         int n = e.length();
         int teeth = 0;
         int strong = 0;
@@ -206,7 +215,8 @@ final class SeamComb {
             }
         }
         // the teeth together: Stouffer's sum of z-scores over sqrt(teeth)
-        if (strong < 2 || strong < STRONG_SHARE * teeth || all / Math.sqrt(teeth) <= seamLimit) {
+        boolean share = minStrong == 1 || strong >= STRONG_SHARE * teeth;
+        if (strong < minStrong || !share || all / Math.sqrt(teeth) <= seamLimit) {
             return null;
         }
         return new Period(s, p, strong, teeth, sum);

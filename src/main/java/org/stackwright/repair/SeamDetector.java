@@ -162,8 +162,10 @@ public final class SeamDetector {
             }
         }
         // the combs of short tile rows may lock onto stray steps (structures of the specimen): where the shading every
-        // tile shares shows a step of its own, a comb must agree with it, else the rows' lone seams stand
-        if (c.step() > 0 && !shading.agree(rows, c, false)) {
+        // tile shares shows a step of its own, a comb must agree with it, else the rows' lone seams stand; a comb with
+        // two seams of its own in one tile row (gain steps between tiles) stands without the shading, whose best step
+        // an off-centre vignetting can move by several pixels
+        if (c.step() > 0 && !shading.agree(rows, c, false) && !TileRowSeams.standsOnSteps(image, rows, c, threshold)) {
             c = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, -1);
         }
         // an axis without a period of its own from steps: blend bands found from the noise (two exposures averaged)

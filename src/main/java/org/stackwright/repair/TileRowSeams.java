@@ -51,7 +51,7 @@ final class TileRowSeams {
         List<SeamEvidence> ex = new ArrayList<>();
         for (int s = 0; s < stripes; s++) {
             int[] y = stripe(rows, s, h);
-            ex.add(SeamEvidence.of(image, true, y[0], y[1]));
+            ex.add(SeamEvidence.of(image, true, y[0], y[1], !rows.isEmpty()));
         }
         SeamComb.Period[] px = pitch < 0 ? new SeamComb.Period[stripes] : commonPitch(ex, tooth, threshold, pitch);
         boolean anyRepeat = false;
@@ -61,6 +61,7 @@ final class TileRowSeams {
         if (!anyRepeat) {
             px = new SeamComb.Period[stripes];
         }
+        confirmRows(ex, px, tooth);
         shading.claimRows(ex, px, rows);
         List<Band> cols = new ArrayList<>();
         int[] phases = new int[stripes];
@@ -84,6 +85,55 @@ final class TileRowSeams {
             }
         }
         return new Columns(mergeAlongRows(cols, h), px, phases, blendX, stepX);
+    }
+
+    /**
+     * A tiling is a grid: a tile row without a comb of its own takes the step and phase the other tile rows agree on
+     * (as in a row-by-row mosaic) when its own steps confirm them there: with no search over pitches and phases, the
+     * comb at those teeth needs one strong tooth and its teeth together (Stouffer's sum over their number) above the
+     * tooth limit, not the seam limit. A snake's shifted row has nothing at the other rows' teeth.
+     */
+    static void confirmRows(List<SeamEvidence> ex, SeamComb.Period[] px, double tooth) {
+        SeamComb.Period found = null;
+        for (SeamComb.Period p : px) {
+            if (p != null && found != null && p.phase() != found.phase()) {
+                return;
+            }
+            found = p != null ? p : found;
+        }
+        for (int s = 0; s < px.length && found != null; s++) {
+            if (px[s] == null && SeamComb.score(ex.get(s), found.pitch(), found.phase(), 1, tooth, tooth, 1) != null) {
+                px[s] = new SeamComb.Period(found.pitch(), found.phase(), 0, 0, 0);
+            }
+        }
+    }
+
+    /**
+     * @return whether the comb of some tile row has two teeth that are seams on their own: steps above the seam
+     *     limit that keep their sign along the tile row ({@link SeamEvidence}, one tile per stripe). Such a comb
+     *     stands on the gain steps between tiles and needs no support from the shading.
+     */
+    static boolean standsOnSteps(Volume image, List<Band> rows, Columns c, double threshold) {
+        SeamComb.Period[] px = c.periods();
+        for (int s = 0; s < px.length; s++) {
+            if (px[s] == null) {
+                continue;
+            }
+            int[] y = stripe(rows, s, image.height());
+            SeamEvidence e = SeamEvidence.of(image, true, y[0], y[1], !rows.isEmpty());
+            int seams = 0;
+            for (int b : px[s].borders(e.length())) {
+                double t = 0;
+                for (int d = -1; d <= 1; d++) {
+                    t = Math.max(t, e.peak(b + d, threshold / 2));
+                }
+                seams += t > threshold ? 1 : 0;
+            }
+            if (seams >= 2) {
+                return true;
+            }
+        }
+        return false;
     }
 
     /**
