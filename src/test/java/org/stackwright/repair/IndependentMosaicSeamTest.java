@@ -56,8 +56,10 @@ class IndependentMosaicSeamTest {
     static final Map<String, List<String>> MEASURED_MISSES = Map.ofEntries(
             // MISS (measured): nothing found, though the steps show in the column and row means (e.g. 463 -> 480 ADU
             // at x = 100, 424 -> 404 at y = 90); the strongest vertical border (x = 200, gains 0.97 -> 1.14) is listed
-            // as a line that does not repeat. Our guess, not diagnosed: small tiles (100 x 90: 3-4 teeth per comb),
-            // several gain steps of 1-2 % and cos^4 shading about an off-centre axis leave too few teeth per comb.
+            // as a line that does not repeat. Diagnosed (unchanged by the one-sign rule of tile rows, 2026-12-05): the
+            // horizontal seams step 6.8 and 2.7 (z; the tooth limit is 4), so no tile rows are cut; the whole-height
+            // comb of step 100 (teeth 5.6, 9.4, 3.0) is overruled by the shading template's best step, 113 (its
+            // score is broad on this cos^4 vignetting), and the tile step along y is never tried.
             Map.entry("a-steps-1", List.of(
                     "y: seam 90 not found within 2 px (nearest error 2147483647)",
                     "y: seam 180 not found within 2 px (nearest error 2147483647)",
@@ -80,7 +82,9 @@ class IndependentMosaicSeamTest {
                     "x (tile row 1): seam 312 not found within 2 px (nearest error 2147483647)",
                     "overlap from the snake shift -1 for 12")),
             // MISS (measured): nothing found; the true seam at x = 130 is listed with the filament (196) and the dead
-            // column (301) as a line that does not repeat. The defects are rightly not seams (held above).
+            // column (301) as a line that does not repeat. The defects are rightly not seams (held above). Diagnosed:
+            // both axes have two borders, and the second is weak on each (x: 14.7 and 3.5; y: 7.2 and 3.4, z against
+            // a tooth limit of 4), so no comb of two strong teeth exists.
             Map.entry("e-lines-1", List.of(
                     "y: seam 130 not found within 2 px (nearest error 2147483647)",
                     "y: seam 260 not found within 2 px (nearest error 2147483647)",
