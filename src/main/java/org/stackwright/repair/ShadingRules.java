@@ -69,13 +69,7 @@ final class ShadingRules {
      * ({@link SeamTemplate#supports}) and every gap of zeros in the row lies on its teeth.
      */
     void claimRows(List<SeamEvidence> ex, SeamComb.Period[] px, List<Band> rows) {
-        SeamComb.Period found = null;
-        for (SeamComb.Period p : px) {
-            if (p != null && found != null && p.phase() != found.phase()) {
-                return;
-            }
-            found = p != null ? p : found;
-        }
+        SeamComb.Period found = TileRowSeams.agreed(px);
         for (int s = 0; s < px.length && found != null; s++) {
             if (px[s] != null || !gapsOnTeeth(ex.get(s), found)) {
                 continue;

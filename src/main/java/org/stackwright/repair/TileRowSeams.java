@@ -94,18 +94,24 @@ final class TileRowSeams {
      * tooth limit, not the seam limit. A snake's shifted row has nothing at the other rows' teeth.
      */
     static void confirmRows(List<SeamEvidence> ex, SeamComb.Period[] px, double tooth) {
-        SeamComb.Period found = null;
-        for (SeamComb.Period p : px) {
-            if (p != null && found != null && p.phase() != found.phase()) {
-                return;
-            }
-            found = p != null ? p : found;
-        }
+        SeamComb.Period found = agreed(px);
         for (int s = 0; s < px.length && found != null; s++) {
             if (px[s] == null && SeamComb.score(ex.get(s), found.pitch(), found.phase(), 1, tooth, tooth, 1) != null) {
                 px[s] = new SeamComb.Period(found.pitch(), found.phase(), 0, 0, 0);
             }
         }
+    }
+
+    /** @return the comb of the tile rows that have one when all of them share its phase, else null */
+    static SeamComb.Period agreed(SeamComb.Period[] px) {
+        SeamComb.Period found = null;
+        for (SeamComb.Period p : px) {
+            if (p != null && found != null && p.phase() != found.phase()) {
+                return null;
+            }
+            found = p != null ? p : found;
+        }
+        return found;
     }
 
     /**
