@@ -112,10 +112,11 @@ final class ShadingRules {
      * like a seam; but the image is smooth there. The bend of a border is the corner of the shading's block profiles
      * across it (the slope of a straight line over the {@link SeamTemplate#FIT} positions after it minus that over the
      * FIT before), its median over the blocks and the fold's inner seams, the largest within 2 px; the fold is backed
-     * when that beats the one of every shift of its teeth by {@link #SHIFT} px or more (a circular-shift test: a smooth
-     * field bends about as much at the teeth as between them, so its teeth rank anywhere among the shifts; tiles
-     * darkened towards their borders bend up at every border, in the same place). A fold whose inner seams are all
-     * gaps of zeros is backed by the gaps.
+     * when that exceeds the median bend of the same teeth shifted by {@link #SHIFT} px or more by {@link #BEND_Z}
+     * robust sigmas (1.4826 MAD) of the shifts' bends (a circular-shift test, as for a period in a series: a smooth
+     * field bends about as much at the teeth as between them, tiles darkened towards their borders bend up at every
+     * border, in the same place). A fold whose inner seams all lie in gaps of zeros is backed by the gaps; a step too
+     * small for {@link #MIN_SHIFTS} shifts is not backed.
      */
     static boolean backed(SeamTemplate.Profiles p, SeamTemplate.Fold f) {
         int s = f.pitch();
