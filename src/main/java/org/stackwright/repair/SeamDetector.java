@@ -26,7 +26,8 @@ import org.stackwright.volume.Volume;
  * the noise of two exposures is averaged) as its seams; their looks say "blend" and "noise". Where the shading every
  * tile shares shows the step, the combs must agree with it, and an axis still without a period may take it from there
  * ({@link ShadingRules}, {@link SeamTemplate}) where the image bends at the fold's borders more than between them
- * (a smooth falloff, as in a single tile, folds at many steps). This class runs those steps in order and holds the results.
+ * (a smooth falloff, as in a single tile, folds at many steps). This class runs those steps in order and holds the
+ * results.
  */
 public final class SeamDetector {
 
