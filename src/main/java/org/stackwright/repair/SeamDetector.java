@@ -25,7 +25,9 @@ import org.stackwright.volume.Volume;
  * axis still without a period of its own takes the blend bands found from the noise ({@link BlendBands}: inside a blend
  * the noise of two exposures is averaged) as its seams; their looks say "blend" and "noise". Where the shading every
  * tile shares shows the step, the combs must agree with it, and an axis still without a period may take it from there
- * ({@link ShadingRules}, {@link SeamTemplate}). This class runs those steps in order and holds the results.
+ * ({@link ShadingRules}, {@link SeamTemplate}) where the image bends at the fold's borders more than between them
+ * (a smooth falloff, as in a single tile, folds at many steps). This class runs those steps in order and holds the
+ * results.
  */
 public final class SeamDetector {
 
@@ -187,8 +189,9 @@ public final class SeamDetector {
         // an axis still without a period: the shading every tile shares may show the step (SeamTemplate)
         String folded = "";
         if (py == null) {
-            SeamTemplate.Fold fy = SeamTemplate.find(SeamTemplate.profiles(image, false), anchors(rows));
-            if (fy != null && fy.found()) {
+            SeamTemplate.Profiles alongY = SeamTemplate.profiles(image, false);
+            SeamTemplate.Fold fy = SeamTemplate.find(alongY, anchors(rows));
+            if (fy != null && fy.found() && ShadingRules.backed(alongY, fy)) {
                 folded = "y";
                 py = new SeamComb.Period(fy.pitch(), fy.phase(), 0, 0, 0);
                 rows = ShadingRules.withTeeth(rows, fy, h, stepWidth, 0, w);
@@ -211,7 +214,7 @@ public final class SeamDetector {
                 kept = c.bands().stream().filter(b -> ShadingRules.coversGap(image, b)).toList();
                 fx = kept.size() < c.bands().size() ? SeamTemplate.find(px, anchors(kept)) : null;
             }
-            if (fx != null && fx.found()) {
+            if (fx != null && fx.found() && ShadingRules.backed(px, fx)) {
                 folded += "x";
                 int[] ph = new int[c.phases().length];
                 Arrays.fill(ph, fx.phase());
