@@ -33,7 +33,7 @@ final class CombBands {
         if (p == null || p.strong() == 0) {
             return p;
         }
-        int[] b = p.borders(e.length());
+        int[] b = scored(p, e.length());
         return repeating(e, e.step, b, tooth).length > 0 || repeating(e, e.kink, b, tooth).length > 0 ? p : null;
     }
 
@@ -42,19 +42,34 @@ final class CombBands {
             int to) {
         int n = e.length();
         int[] borders = p.borders(n);
-        int[] steps = repeating(e, e.step, borders, tooth);
-        int[] kinks = repeating(e, e.kink, borders, tooth);
+        int[] steps = repeating(e, e.step, scored(p, n), tooth);
+        int[] kinks = repeating(e, e.kink, scored(p, n), tooth);
         List<Band> out = new ArrayList<>();
         for (int t : borders) {
             // the first and last tiles of a mosaic are whole, at least one step wide: a tooth closer than that to an
-            // end is no seam unless it shows one
+            // end is no seam unless it shows one by itself, as a lone edge must (the comb was not scored on it: the
+            // overlap past the last step of a row is no seam)
             int slack = SeamComb.END_SLACK;
-            if ((n - t < p.pitch() - slack || t < p.pitch() - slack) && nearest(e, t, tooth) <= tooth) {
+            if ((n - t < p.pitch() - slack || t < p.pitch() - slack) && nearest(e, t, tooth) <= threshold) {
                 continue;
             }
             out.add(band(e, t, steps, kinks, stepWidth, from, to));
         }
         return out;
+    }
+
+    /**
+     * @return the teeth the comb was scored on ({@link SeamComb#score}): the first and last tiles are whole, at least
+     *     one step wide (less {@link SeamComb#END_SLACK}), so a tooth nearer an end expects no seam and is no miss when
+     *     the evidence does not repeat there (a snake row's first tooth, the overlap past the last step); all teeth
+     *     when fewer than two are left
+     */
+    static int[] scored(SeamComb.Period p, int n) {
+        int s = p.pitch();
+        int[] all = p.borders(n);
+        int[] inner = java.util.Arrays.stream(all).filter(b -> b >= s - SeamComb.END_SLACK
+                && n - b >= s - SeamComb.END_SLACK).toArray();
+        return inner.length >= 2 ? inner : all;
     }
 
     /** @return the largest peak evidence within 2 pixels of t */

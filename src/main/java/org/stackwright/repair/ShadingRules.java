@@ -89,7 +89,7 @@ final class ShadingRules {
     }
 
     /** @return whether every gap of zeros along the evidence lies within 2 px of a tooth of the period */
-    private static boolean gapsOnTeeth(SeamEvidence e, SeamComb.Period p) {
+    static boolean gapsOnTeeth(SeamEvidence e, SeamComb.Period p) {
         for (int b = 0; b < e.length(); b++) {
             int d = Math.floorMod(b - p.phase(), p.pitch());
             if (e.zeros[b] >= 0.5 && (b == 0 || e.zeros[b - 1] < 0.5) && Math.min(d, p.pitch() - d) > 2) {

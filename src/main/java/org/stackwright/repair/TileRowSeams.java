@@ -61,7 +61,9 @@ final class TileRowSeams {
         if (!anyRepeat) {
             px = new SeamComb.Period[stripes];
         }
+        nearOthers(ex, px, tooth, threshold);
         shading.claimRows(ex, px, rows);
+        sameParity(px);
         List<Band> cols = new ArrayList<>();
         int[] phases = new int[stripes];
         int blendX = 0;
@@ -117,6 +119,54 @@ final class TileRowSeams {
             }
         }
         return best;
+    }
+
+    /**
+     * A stripe without a comb of its own takes one of the common pitch at a phase near the other stripes' (within
+     * {@link SeamDetector#MAX_BAND}: the tiles of a grid move only by an overlap from row to row, as the rows of a
+     * snake order do) when its own evidence shows one: with the pitch known and the phase nearly so, its teeth need
+     * only {@link SeamDetector#OTHER_AXIS} of the tooth limit, as for one pitch tried along the other axis. Gaps of
+     * zeros in the stripe must lie on its teeth.
+     */
+    static void nearOthers(List<SeamEvidence> ex, SeamComb.Period[] px, double tooth, double threshold) {
+        SeamComb.Period[] own = px.clone();
+        for (int i = 0; i < px.length; i++) {
+            if (px[i] != null) {
+                continue;
+            }
+            SeamComb.Period best = null;
+            for (SeamComb.Period other : own) {
+                if (other == null) {
+                    continue;
+                }
+                int s = other.pitch();
+                for (int d = -SeamDetector.MAX_BAND; d <= SeamDetector.MAX_BAND && 2 * d < s; d++) {
+                    int ph = Math.floorMod(other.phase() + d, s);
+                    SeamComb.Period c = SeamComb.score(ex.get(i), s, ph, 1, OTHER_AXIS * tooth, threshold);
+                    if (c != null && c.better(best) && ShadingRules.gapsOnTeeth(ex.get(i), c)) {
+                        best = c;
+                    }
+                }
+            }
+            if (best != null) {
+                px[i] = SeamComb.refine(List.of(ex.get(i)), new SeamComb.Period[] {best}, OTHER_AXIS * tooth, true)[0];
+            }
+        }
+    }
+
+    /**
+     * A stripe still without a comb takes the phase of a stripe two, four, ... above or below (the same direction
+     * in a snake order) that has one.
+     */
+    private static void sameParity(SeamComb.Period[] px) {
+        SeamComb.Period[] had = px.clone();
+        for (int i = 0; i < px.length; i++) {
+            for (int j = i % 2; j < px.length && px[i] == null; j += 2) {
+                if (had[j] != null && j != i) {
+                    px[i] = new SeamComb.Period(had[j].pitch(), had[j].phase(), 0, 0, 0);
+                }
+            }
+        }
     }
 
     /** The best comb of pitch s of each stripe, phases p0 .. p1 (taken modulo s), teeth looking window px aside. */
