@@ -59,16 +59,19 @@ final class CombBands {
     }
 
     /**
-     * @return the teeth the comb was scored on ({@link SeamComb#score}): the first and last tiles are whole, at least
-     *     one step wide (less {@link SeamComb#END_SLACK}), so a tooth nearer an end expects no seam and is no miss when
-     *     the evidence does not repeat there (a snake row's first tooth, the overlap past the last step); all teeth
-     *     when fewer than two are left
+     * @return the teeth that must show the repeating evidence: not one closer to an end than the widest band
+     *     ({@link SeamDetector#MAX_BAND}), which no seam between whole tiles can reach (the first tooth of a snake row
+     *     shifted by the overlap, the overlap past the last step of a row). An uncropped mosaic with overlap
+     *     (columns x step + overlap long) has such a tooth at one end at most: with one at both ends, or fewer than
+     *     two teeth left, all teeth count. Teeth further in count as misses where the evidence does not repeat, even
+     *     within one step of an end where the comb's score does not look (a comb of stray steps leaves them empty)
      */
     static int[] scored(SeamComb.Period p, int n) {
-        int s = p.pitch();
         int[] all = p.borders(n);
-        int[] inner = java.util.Arrays.stream(all).filter(b -> b >= s - SeamComb.END_SLACK
-                && n - b >= s - SeamComb.END_SLACK).toArray();
+        if (all.length == 0 || all[0] <= MAX_BAND && n - all[all.length - 1] <= MAX_BAND) {
+            return all;
+        }
+        int[] inner = java.util.Arrays.stream(all).filter(b -> b > MAX_BAND && n - b > MAX_BAND).toArray();
         return inner.length >= 2 ? inner : all;
     }
 
