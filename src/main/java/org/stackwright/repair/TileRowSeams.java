@@ -63,6 +63,7 @@ final class TileRowSeams {
         }
         nearOthers(ex, px, tooth, threshold);
         shading.claimRows(ex, px, rows);
+        shading.claimShifted(ex, px, rows, tooth, threshold);
         sameParity(px);
         List<Band> cols = new ArrayList<>();
         int[] phases = new int[stripes];
