@@ -69,13 +69,7 @@ final class ShadingRules {
      * ({@link SeamTemplate#supports}) and every gap of zeros in the row lies on its teeth.
      */
     void claimRows(List<SeamEvidence> ex, SeamComb.Period[] px, List<Band> rows) {
-        SeamComb.Period found = null;
-        for (SeamComb.Period p : px) {
-            if (p != null && found != null && p.phase() != found.phase()) {
-                return;
-            }
-            found = p != null ? p : found;
-        }
+        SeamComb.Period found = commonPhase(px);
         for (int s = 0; s < px.length && found != null; s++) {
             if (px[s] != null || !gapsOnTeeth(ex.get(s), found)) {
                 continue;
@@ -95,13 +89,7 @@ final class ShadingRules {
      * and the row's own shading template has its valley ({@link SeamTemplate#valleyAt}); the strongest such tooth.
      */
     void claimShifted(List<SeamEvidence> ex, SeamComb.Period[] px, List<Band> rows, double tooth, double threshold) {
-        SeamComb.Period found = null;
-        for (SeamComb.Period p : px) {
-            if (p != null && found != null && p.phase() != found.phase()) {
-                return;
-            }
-            found = p != null ? p : found;
-        }
+        SeamComb.Period found = commonPhase(px);
         for (int s = 0; s < px.length && found != null; s++) {
             int[] y = TileRowSeams.stripe(rows, s, image.height());
             int pitch = found.pitch();
@@ -126,6 +114,18 @@ final class ShadingRules {
                 px[s] = p;
             }
         }
+    }
+
+    /** @return a comb of the tile rows that have one when they all share its phase, else null */
+    private static SeamComb.Period commonPhase(SeamComb.Period[] px) {
+        SeamComb.Period found = null;
+        for (SeamComb.Period p : px) {
+            if (p != null && found != null && p.phase() != found.phase()) {
+                return null;
+            }
+            found = p != null ? p : found;
+        }
+        return found;
     }
 
     /** @return whether every gap of zeros along the evidence lies within 2 px of a tooth of the period */
