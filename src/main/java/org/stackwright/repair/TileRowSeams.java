@@ -109,27 +109,19 @@ final class TileRowSeams {
         }
         best = SeamComb.refine(ex, best, tooth, pitch > 0);
         // a stripe without a comb of its own takes the phase of the stripe two above or below (same direction)
-        for (int i = 0; i < best.length; i++) {
-            if (best[i] == null) {
-                for (int j = i % 2; j < best.length; j += 2) {
-                    if (best[j] != null && j != i) {
-                        best[i] = new SeamComb.Period(best[j].pitch(), best[j].phase(), 0, 0, 0);
-                        break;
-                    }
-                }
-            }
-        }
+        sameParity(best);
         return best;
     }
 
     /**
-     * A stripe without a comb of its own takes one of the common pitch at a phase near the other stripes' (within
-     * {@link SeamDetector#MAX_BAND}: the tiles of a grid move only by an overlap from row to row, as the rows of a
+     * A stripe without a comb of its own (tooth limit toothIn, the one its comb search used) takes one of the common
+     * pitch at a phase near the other stripes' (within {@link SeamDetector#MAX_BAND}: the tiles of a grid move only by an overlap from row to row, as the rows of a
      * snake order do) when its own evidence shows one: with the pitch known and the phase nearly so, its teeth need
      * only {@link SeamDetector#OTHER_AXIS} of the tooth limit, as for one pitch tried along the other axis. Gaps of
      * zeros in the stripe must lie on its teeth.
      */
-    static void nearOthers(List<SeamEvidence> ex, SeamComb.Period[] px, double tooth, double threshold) {
+    static void nearOthers(List<SeamEvidence> ex, SeamComb.Period[] px, double toothIn, double threshold) {
+        double tooth = OTHER_AXIS * toothIn;
         SeamComb.Period[] own = px.clone();
         for (int i = 0; i < px.length; i++) {
             if (px[i] != null) {
@@ -143,14 +135,14 @@ final class TileRowSeams {
                 int s = other.pitch();
                 for (int d = -SeamDetector.MAX_BAND; d <= SeamDetector.MAX_BAND && 2 * d < s; d++) {
                     int ph = Math.floorMod(other.phase() + d, s);
-                    SeamComb.Period c = SeamComb.score(ex.get(i), s, ph, 1, OTHER_AXIS * tooth, threshold);
+                    SeamComb.Period c = SeamComb.score(ex.get(i), s, ph, 1, tooth, threshold);
                     if (c != null && c.better(best) && ShadingRules.gapsOnTeeth(ex.get(i), c)) {
                         best = c;
                     }
                 }
             }
             if (best != null) {
-                px[i] = SeamComb.refine(List.of(ex.get(i)), new SeamComb.Period[] {best}, OTHER_AXIS * tooth, true)[0];
+                px[i] = SeamComb.refine(List.of(ex.get(i)), new SeamComb.Period[] {best}, tooth, true)[0];
             }
         }
     }
