@@ -68,10 +68,10 @@ final class CombBands {
      */
     static int[] scored(SeamComb.Period p, int n) {
         int[] all = p.borders(n);
-        if (all.length == 0 || all[0] <= MAX_BAND && n - all[all.length - 1] <= MAX_BAND) {
+        if (all.length == 0 || all[0] <= MAX_BAND) {
             return all;
         }
-        int[] inner = java.util.Arrays.stream(all).filter(b -> b > MAX_BAND && n - b > MAX_BAND).toArray();
+        int[] inner = java.util.Arrays.stream(all).filter(b -> n - b > MAX_BAND).toArray();
         return inner.length >= 2 ? inner : all;
     }
 
