@@ -59,12 +59,12 @@ final class CombBands {
     }
 
     /**
-     * @return the teeth that must show the repeating evidence: not one closer to an end than the widest band
-     *     ({@link SeamDetector#MAX_BAND}), which no seam between whole tiles can reach (the first tooth of a snake row
-     *     shifted by the overlap, the overlap past the last step of a row). An uncropped mosaic with overlap
-     *     (columns x step + overlap long) has such a tooth at one end at most: with one at both ends, or fewer than
-     *     two teeth left, all teeth count. Teeth further in count as misses where the evidence does not repeat, even
-     *     within one step of an end where the comb's score does not look (a comb of stray steps leaves them empty)
+     * @return the teeth that must show the repeating evidence: not one closer to the last pixel than the widest band
+     *     ({@link SeamDetector#MAX_BAND}), which no seam between whole tiles can reach (the overlap past the last step
+     *     of an uncropped mosaic with overlap, columns x step + overlap long). A tooth as near the first pixel is not
+     *     excused (a comb of stray steps could pass on its inner teeth; a snake row's shifted first tooth is found by
+     *     the row's search near the other rows' phase), nor are teeth further in, even within one step of an end where
+     *     the comb's score does not look; all teeth when fewer than two are left
      */
     static int[] scored(SeamComb.Period p, int n) {
         int[] all = p.borders(n);
