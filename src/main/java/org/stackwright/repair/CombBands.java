@@ -33,7 +33,7 @@ final class CombBands {
         if (p == null || p.strong() == 0) {
             return p;
         }
-        int[] b = p.borders(e.length());
+        int[] b = scored(p, e.length());
         return repeating(e, e.step, b, tooth).length > 0 || repeating(e, e.kink, b, tooth).length > 0 ? p : null;
     }
 
@@ -42,19 +42,37 @@ final class CombBands {
             int to) {
         int n = e.length();
         int[] borders = p.borders(n);
-        int[] steps = repeating(e, e.step, borders, tooth);
-        int[] kinks = repeating(e, e.kink, borders, tooth);
+        int[] steps = repeating(e, e.step, scored(p, n), tooth);
+        int[] kinks = repeating(e, e.kink, scored(p, n), tooth);
         List<Band> out = new ArrayList<>();
         for (int t : borders) {
             // the first and last tiles of a mosaic are whole, at least one step wide: a tooth closer than that to an
-            // end is no seam unless it shows one
+            // end is no seam unless it shows one by itself, as a lone edge must (the comb was not scored on it: the
+            // overlap past the last step of a row is no seam)
             int slack = SeamComb.END_SLACK;
-            if ((n - t < p.pitch() - slack || t < p.pitch() - slack) && nearest(e, t, tooth) <= tooth) {
+            if ((n - t < p.pitch() - slack || t < p.pitch() - slack) && nearest(e, t, tooth) <= threshold) {
                 continue;
             }
             out.add(band(e, t, steps, kinks, stepWidth, from, to));
         }
         return out;
+    }
+
+    /**
+     * @return the teeth that must show the repeating evidence: not one closer to the last pixel than the widest band
+     *     ({@link SeamDetector#MAX_BAND}), which no seam between whole tiles can reach (the overlap past the last step
+     *     of an uncropped mosaic with overlap, columns x step + overlap long). A tooth as near the first pixel is not
+     *     excused (a comb of stray steps could pass on its inner teeth; a snake row's shifted first tooth is found by
+     *     the row's search near the other rows' phase), nor are teeth further in, even within one step of an end where
+     *     the comb's score does not look; all teeth when fewer than two are left
+     */
+    static int[] scored(SeamComb.Period p, int n) {
+        int[] all = p.borders(n);
+        if (all.length == 0 || all[0] <= MAX_BAND) {
+            return all;
+        }
+        int[] inner = java.util.Arrays.stream(all).filter(b -> n - b > MAX_BAND).toArray();
+        return inner.length >= 2 ? inner : all;
     }
 
     /** @return the largest peak evidence within 2 pixels of t */

@@ -174,13 +174,17 @@ public final class SeamDetector {
         // are its seams (a seam band dimmed after acquisition also lowers the noise, but its steps find it first)
         BlendBands.Found blends = py == null || c.step() == 0 || !borrowed.isEmpty() ? BlendBands.find(image)
                 : BlendBands.Found.NONE;
+        // whether the vertical seams had a period of their own before the rows are cut at the horizontal blend bands:
+        // the shorter tile rows cut there may lock onto stray steps of the specimen, which must not overturn the
+        // vertical blend bands the noise shows (structures add to the noise, they cannot remove it)
+        boolean xSteps = c.step() > 0 && !borrowed.equals("x");
         if (blends.y() != null && (py == null || borrowed.equals("y"))) {
             py = new SeamComb.Period(blends.y().step(), blends.y().phase(), 0, 0, 0);
             rows = blendBands(blends.y(), 0, w);
             c = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, 0);
             borrowed = "";
         }
-        if (blends.x() != null && (c.step() == 0 || borrowed.equals("x"))) {
+        if (blends.x() != null && !xSteps) {
             int[] ph = new int[c.phases().length];
             Arrays.fill(ph, blends.x().phase());
             c = new Columns(blendBands(blends.x(), 0, h), c.periods(), ph, blends.x().width(), blends.x().step());

@@ -184,8 +184,42 @@ final class ShadingRules {
         return true;
     }
 
+    /**
+     * A tile row still without a comb, whose shading does not put its tile borders at the other rows' phase (a snake
+     * row, shifted by the overlap, whose seams are too faint for a comb): the common pitch at a phase within
+     * {@link SeamDetector#MAX_BAND} of theirs where one tooth shows a seam by itself (evidence above the threshold)
+     * and the row's own shading template has its valley ({@link SeamTemplate#valleyAt}); the strongest such tooth.
+     */
+    void claimShifted(List<SeamEvidence> ex, SeamComb.Period[] px, List<Band> rows, double tooth, double threshold) {
+        SeamComb.Period found = TileRowSeams.agreed(px);
+        for (int s = 0; s < px.length && found != null; s++) {
+            int[] y = TileRowSeams.stripe(rows, s, image.height());
+            int pitch = found.pitch();
+            if (px[s] != null || y[1] - y[0] < SeamTemplate.BLOCK
+                    || SeamTemplate.valleyAt(image, y[0], y[1], pitch, found.phase())) {
+                continue;
+            }
+            SeamEvidence e = ex.get(s);
+            double top = threshold;
+            int best = -1;
+            for (int b = 0; b < e.length(); b++) {
+                int d = Math.floorMod(b - found.phase(), pitch);
+                int shift = Math.min(d, pitch - d);
+                if (shift > 2 && shift <= SeamDetector.MAX_BAND && SeamComb.inRange(b, e.length())
+                        && e.peak(b, tooth) > top) {
+                    top = e.peak(b, tooth);
+                    best = b;
+                }
+            }
+            SeamComb.Period p = best < 0 ? null : new SeamComb.Period(pitch, Math.floorMod(best, pitch), 0, 0, 0);
+            if (p != null && gapsOnTeeth(e, p) && SeamTemplate.valleyAt(image, y[0], y[1], pitch, p.phase())) {
+                px[s] = p;
+            }
+        }
+    }
+
     /** @return whether every gap of zeros along the evidence lies within 2 px of a tooth of the period */
-    private static boolean gapsOnTeeth(SeamEvidence e, SeamComb.Period p) {
+    static boolean gapsOnTeeth(SeamEvidence e, SeamComb.Period p) {
         for (int b = 0; b < e.length(); b++) {
             int d = Math.floorMod(b - p.phase(), p.pitch());
             if (e.zeros[b] >= 0.5 && (b == 0 || e.zeros[b - 1] < 0.5) && Math.min(d, p.pitch() - d) > 2) {

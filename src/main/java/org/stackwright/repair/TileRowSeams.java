@@ -62,7 +62,10 @@ final class TileRowSeams {
             px = new SeamComb.Period[stripes];
         }
         confirmRows(ex, px, tooth);
+        nearOthers(ex, px, tooth, threshold);
         shading.claimRows(ex, px, rows);
+        shading.claimShifted(ex, px, rows, tooth, threshold);
+        sameParity(px);
         List<Band> cols = new ArrayList<>();
         int[] phases = new int[stripes];
         int blendX = 0;
@@ -162,17 +165,57 @@ final class TileRowSeams {
         }
         best = SeamComb.refine(ex, best, tooth, pitch > 0);
         // a stripe without a comb of its own takes the phase of the stripe two above or below (same direction)
-        for (int i = 0; i < best.length; i++) {
-            if (best[i] == null) {
-                for (int j = i % 2; j < best.length; j += 2) {
-                    if (best[j] != null && j != i) {
-                        best[i] = new SeamComb.Period(best[j].pitch(), best[j].phase(), 0, 0, 0);
-                        break;
+        sameParity(best);
+        return best;
+    }
+
+    /**
+     * A stripe without a comb of its own (tooth limit toothIn, the one its comb search used) takes one of the common
+     * pitch at a phase near the other stripes' (within {@link SeamDetector#MAX_BAND}: the tiles of a grid move only by an overlap from row to row, as the rows of a
+     * snake order do) when its own evidence shows one: with the pitch known and the phase nearly so, its teeth need
+     * only {@link SeamDetector#OTHER_AXIS} of the tooth limit, as for one pitch tried along the other axis. Gaps of
+     * zeros in the stripe must lie on its teeth.
+     */
+    static void nearOthers(List<SeamEvidence> ex, SeamComb.Period[] px, double toothIn, double threshold) {
+        double tooth = OTHER_AXIS * toothIn;
+        SeamComb.Period[] own = px.clone();
+        for (int i = 0; i < px.length; i++) {
+            if (px[i] != null) {
+                continue;
+            }
+            SeamComb.Period best = null;
+            for (SeamComb.Period other : own) {
+                if (other == null) {
+                    continue;
+                }
+                int s = other.pitch();
+                for (int d = -SeamDetector.MAX_BAND; d <= SeamDetector.MAX_BAND && 2 * d < s; d++) {
+                    int ph = Math.floorMod(other.phase() + d, s);
+                    SeamComb.Period c = SeamComb.score(ex.get(i), s, ph, 1, tooth, threshold);
+                    if (c != null && c.better(best) && ShadingRules.gapsOnTeeth(ex.get(i), c)) {
+                        best = c;
                     }
                 }
             }
+            if (best != null) {
+                px[i] = SeamComb.refine(List.of(ex.get(i)), new SeamComb.Period[] {best}, tooth, true)[0];
+            }
         }
-        return best;
+    }
+
+    /**
+     * A stripe still without a comb takes the phase of a stripe two, four, ... above or below (the same direction
+     * in a snake order) that has one.
+     */
+    private static void sameParity(SeamComb.Period[] px) {
+        SeamComb.Period[] had = px.clone();
+        for (int i = 0; i < px.length; i++) {
+            for (int j = i % 2; j < px.length && px[i] == null; j += 2) {
+                if (had[j] != null && j != i) {
+                    px[i] = new SeamComb.Period(had[j].pitch(), had[j].phase(), 0, 0, 0);
+                }
+            }
+        }
     }
 
     /** The best comb of pitch s of each stripe, phases p0 .. p1 (taken modulo s), teeth looking window px aside. */
