@@ -3,6 +3,7 @@ package org.stackwright.repair;
 import static org.stackwright.repair.SeamDetector.MAX_BAND;
 
 import java.util.ArrayList;
+import java.util.Arrays;
 import java.util.List;
 
 import org.stackwright.repair.SeamDetector.Band;
@@ -71,7 +72,7 @@ final class CombBands {
         if (all.length == 0 || all[0] <= MAX_BAND) {
             return all;
         }
-        int[] inner = java.util.Arrays.stream(all).filter(b -> n - b > MAX_BAND).toArray();
+        int[] inner = Arrays.stream(all).filter(b -> n - b > MAX_BAND).toArray();
         return inner.length >= 2 ? inner : all;
     }
 

@@ -10,10 +10,10 @@ import org.stackwright.volume.Volume;
 /**
  * The rules that weigh the seams found from steps against the shading every tile shares ({@link SeamTemplate}), for
  * one detection: combs of short tile rows must agree with a step the shading shows, a tile row without a comb may
- * claim the other rows' comb where the shading supports it, a fold of the shading must be backed by the seam
- * evidence at its borders ({@link #backed}), and it adds a seam at every tooth that no band covers. The shading's
- * profiles along x are made once, when a rule first needs them, and their best step ({@link SeamTemplate#bestStep})
- * is searched once.
+ * claim the other rows' comb where the shading supports it, a fold of the shading must be backed by the image
+ * bending at its borders more than between them ({@link #backed}), and it adds a seam at every tooth that no band
+ * covers. The shading's profiles along x are made once, when a rule first needs them, and their best step
+ * ({@link SeamTemplate#bestStep}) is searched once.
  */
 final class ShadingRules {
 

@@ -171,10 +171,10 @@ final class TileRowSeams {
 
     /**
      * A stripe without a comb of its own (tooth limit toothIn, the one its comb search used) takes one of the common
-     * pitch at a phase near the other stripes' (within {@link SeamDetector#MAX_BAND}: the tiles of a grid move only by an overlap from row to row, as the rows of a
-     * snake order do) when its own evidence shows one: with the pitch known and the phase nearly so, its teeth need
-     * only {@link SeamDetector#OTHER_AXIS} of the tooth limit, as for one pitch tried along the other axis. Gaps of
-     * zeros in the stripe must lie on its teeth.
+     * pitch at a phase near the other stripes' (within {@link SeamDetector#MAX_BAND}: the tiles of a grid move only
+     * by an overlap from row to row, as the rows of a snake order do) when its own evidence shows one: with the pitch
+     * known and the phase nearly so, its teeth need only {@link SeamDetector#OTHER_AXIS} of the tooth limit, as for
+     * one pitch tried along the other axis. Gaps of zeros in the stripe must lie on its teeth.
      */
     static void nearOthers(List<SeamEvidence> ex, SeamComb.Period[] px, double toothIn, double threshold) {
         double tooth = OTHER_AXIS * toothIn;
