@@ -11,7 +11,6 @@ import org.junit.jupiter.api.Test;
 import org.stackwright.op.RunContext;
 import org.stackwright.op.Values;
 import org.stackwright.testing.IndependentAcquisition;
-import org.stackwright.testing.IndependentAcquisition.Optics;
 import org.stackwright.volume.Volume;
 
 /**
@@ -35,8 +34,7 @@ class AdaptiveTvStepsTest {
     @Test
     void adaptedStepsReachALowerErrorInTheSameIterationsOnABrightStack() {
         IndependentAcquisition.Sensor sensor = IndependentAcquisition.Sensor.camera();
-        IndependentAcquisition.Acquisition a = IndependentAcquisition.acquire(new IndependentAcquisition.Plan(32, 32, 12,
-                IndependentAcquisition.Layout.CROSSING, 20000, 40, new Optics(1.3, 2.2, 6, 8, 1), sensor, 20261205L));
+        IndependentAcquisition.Acquisition a = IndependentAcquisition.brightCrossing();
         Volume truth = a.truthAdu();
         double[] error = new double[2];
         String[] reason = new String[2];

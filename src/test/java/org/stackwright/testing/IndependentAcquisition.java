@@ -164,6 +164,15 @@ public final class IndependentAcquisition {
         return Math.pow(1 + t * t, -o.axialPower());
     }
 
+    /**
+     * The bright stack the total-variation stop and step tests share: 32 x 32 x 12 crossing filaments, 20000 photons
+     * at the peak over 40 of background, the camera sensor, a fixed seed.
+     */
+    public static Acquisition brightCrossing() {
+        return acquire(new Plan(32, 32, 12, Layout.CROSSING, 20000, 40, new Optics(1.3, 2.2, 6, 8, 1),
+                Sensor.camera(), 20261205L));
+    }
+
     /** Draws the specimen, blurs it and records it. Deterministic for the plan's seed. */
     public static Acquisition acquire(Plan plan) {
         Optics o = plan.optics();
