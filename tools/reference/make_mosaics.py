@@ -37,6 +37,7 @@ defects and filaments that are not seams.
 
 Run from the repository root with Debian's /usr/bin/python3:  /usr/bin/python3 tools/reference/make_mosaics.py
 Fresh draws for the sweep (not committed):  /usr/bin/python3 tools/reference/make_mosaics.py --sweep 10 DIR [SEED_BASE]
+Cropped by a random margin on each side (a trimmed mosaic):  ... --sweep 10 DIR SEED_BASE --crop
 """
 import json
 import os
@@ -213,6 +214,32 @@ def make(name, seed, rows, cols, tw, th, overlap=0, snake=False, blend=False, ga
     return truth
 
 
+def crop(name, seed, t):
+    """Crops a drawn mosaic by a random margin on each side (0 to a quarter of the tile step, its own random stream), as
+    a user who trims a stitched mosaic to a rectangle of interest does: the image is then no longer a whole number of
+    tile steps plus one tile, and its first tile is partial. The truth is moved with the crop; with margins under a
+    quarter step no seam or tile row leaves the image."""
+    rng = np.random.default_rng(seed + 1_000_000)
+    path = os.path.join(OUT, name + ".tif")
+    img = tifffile.imread(path)
+    qx = max(1, (t["step_x"] or t["width"]) // 4)
+    qy = max(1, (t["step_y"] or t["height"]) // 4)
+    left, right = (int(v) for v in rng.integers(0, qx, 2))
+    top, bottom = (int(v) for v in rng.integers(0, qy, 2))
+    img = img[top:img.shape[0] - bottom, left:img.shape[1] - right]
+    tifffile.imwrite(path, img, compression="zlib")
+    t["width"], t["height"] = img.shape[1], img.shape[0]
+    t["crop"] = {"left": left, "right": right, "top": top, "bottom": bottom}
+    t["seams_y"] = [dict(s, at=s["at"] - top) for s in t["seams_y"]]
+    t["seams_x"] = [[dict(s, at=s["at"] - left) for s in row] for row in t["seams_x"]]
+    t["probe_y"] = [min(t["height"] - 1, max(0, p - top)) for p in t["probe_y"]]
+    t["lines_x"] = [x - left for x in t["lines_x"] if 0 <= x - left < t["width"]]
+    with open(os.path.join(OUT, name + ".json"), "w") as f:
+        json.dump(t, f, indent=1)
+        f.write("\n")
+    return t
+
+
 def table_lines(t):
     """The truth as plain lines for the Java test (no JSON parser there): see the header written by main()."""
     n = t["name"]
@@ -246,14 +273,17 @@ LAYOUTS = [
 def main():
     """Without arguments: the committed files (one draw per layout, its first variant). With `--sweep N DIR [BASE]`: N
     fresh draws per layout (the two variants in turn, seeds BASE + 100 * layout + k, BASE 7000 by default) into DIR,
-    for IndependentMosaicSeamTest's sweep; tune on one BASE and measure on another (held out), e.g. 20000."""
+    for IndependentMosaicSeamTest's sweep; tune on one BASE and measure on another (held out), e.g. 20000. With
+    `--crop` after them, every sweep draw is also cropped by a random margin on each side (see crop)."""
     global OUT
     sweep = 0
     base = 7000
-    if len(sys.argv) in (4, 5) and sys.argv[1] == "--sweep":
-        sweep, OUT = int(sys.argv[2]), sys.argv[3]
-        if len(sys.argv) == 5:
-            base = int(sys.argv[4])
+    args = [a for a in sys.argv[1:] if a != "--crop"]
+    cropped = len(args) < len(sys.argv) - 1
+    if len(args) in (3, 4) and args[0] == "--sweep":
+        sweep, OUT = int(args[1]), args[2]
+        if len(args) == 4:
+            base = int(args[3])
     os.makedirs(OUT, exist_ok=True)
     truths = []
     for li, (name, variants) in enumerate(LAYOUTS):
@@ -266,7 +296,8 @@ def main():
             for k in range(sweep):
                 _, rows, cols, tw, th, kw = variants[k % 2]
                 seed = base + 100 * li + k
-                truths.append(make("%s-s%d" % (name, seed), seed, rows, cols, tw, th, **kw))
+                t = make("%s-s%d" % (name, seed), seed, rows, cols, tw, th, **kw)
+                truths.append(crop(t["name"], seed, t) if cropped else t)
     with open(os.path.join(OUT, "truth.txt"), "w") as f:
         f.write("# made by tools/reference/make_mosaics.py; one line per item, columns separated by spaces\n"
                 "# size NAME WIDTH HEIGHT STEP_X STEP_Y OVERLAP TILE_W TILE_H ORDER STITCH(cover|blend)\n"
