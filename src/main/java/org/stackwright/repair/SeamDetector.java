@@ -26,8 +26,9 @@ import org.stackwright.volume.Volume;
  * the noise of two exposures is averaged) as its seams; their looks say "blend" and "noise". Where the shading every
  * tile shares shows the step, the combs must agree with it, and an axis still without a period may take it from there
  * ({@link ShadingRules}, {@link SeamTemplate}) where the image bends at the fold's borders more than between them
- * (a smooth falloff, as in a single tile, folds at many steps). This class runs those steps in order and holds the
- * results.
+ * (a smooth falloff, as in a single tile, folds at many steps). An axis of three or more whole tiles still without a
+ * period is weighed in blocks of single tiles cut at the other axis's seams, where the gain steps of the tiles do not
+ * cancel ({@link GridBlocks}). This class runs those steps in order and holds the results.
  */
 public final class SeamDetector {
 
@@ -226,14 +227,35 @@ public final class SeamDetector {
                         fx.pitch());
             }
         }
+        // three or more whole tiles along an axis still without a period: its seams in blocks of single tiles, cut at
+        // the other axis's seams, where the gains of the tiles do not cancel (GridBlocks)
+        // (an axis with one seam that halves it has two whole tiles: that seam is a cut, the axis needs no grid)
+        SeamEvidence ex = SeamEvidence.of(image, true, 0, h);
+        boolean askY = py == null && !(rows.size() == 1 && halves(rows.get(0), h));
+        boolean askX = c.step() == 0 && !halvesAll(c, w);
+        if (askY || askX) {
+            int[][] cutsY = askY ? null : spans(rows);
+            int[][] cutsX = askX ? null : spans(c.bands());
+            GridBlocks.Grid g = GridBlocks.find(image, cutsX, cutsY, ex, ey, tooth, threshold);
+            if (g != null) {
+                if (askY) {
+                    py = new SeamComb.Period(g.stepY(), 0, g.teethY().length, g.teethY().length, 0);
+                    rows = gridBands(g.teethY(), g.zY(), stepWidth, h, 0, w);
+                }
+                if (askX) {
+                    SeamComb.Period[] per = new SeamComb.Period[c.periods().length];
+                    Arrays.fill(per, new SeamComb.Period(g.stepX(), 0, g.teethX().length, g.teethX().length, 0));
+                    c = new Columns(gridBands(g.teethX(), g.zX(), stepWidth, w, 0, h), per,
+                            new int[c.phases().length], c.blend(), g.stepX());
+                }
+            }
+        }
         // two tiles along an axis: one seam that cuts it into two whole tiles (give or take an overlap) is the step
         if (py == null && rows.size() == 1 && halves(rows.get(0), h)) {
             py = new SeamComb.Period(anchors(rows)[0], 0, 0, 0, 0);
             folded += "y=2";
         }
-        List<Band> colsSoFar = c.bands();
-        if (c.step() == 0 && colsSoFar.size() == c.phases().length && colsSoFar.stream().allMatch(b -> halves(b, w)
-                && b.start() == colsSoFar.get(0).start())) {
+        if (c.step() == 0 && halvesAll(c, w)) {
             c = new Columns(c.bands(), c.periods(), c.phases(), c.blend(), anchors(c.bands())[0]);
             folded += "x=2";
         }
@@ -251,7 +273,7 @@ public final class SeamDetector {
         Tiling tiling = new Tiling(stepX, py == null ? 0 : py.pitch(), phases, py == null ? -1 : py.phase(),
                 TileRowSeams.snakeShift(phases, stepX), blendX, blendY, borrowed, folded);
         boolean regular = (py != null || rows.isEmpty()) && (stepX > 0 || cols.isEmpty());
-        List<Line> colLines = LoneEdges.lines(SeamEvidence.of(image, true, 0, h), cols, threshold);
+        List<Line> colLines = LoneEdges.lines(ex, cols, threshold);
         List<Line> rowLines = LoneEdges.lines(ey, rows, threshold);
         return new Found(cols, rows, regular, tiling, colLines, rowLines);
     }
@@ -263,6 +285,39 @@ public final class SeamDetector {
             out.add(new Band(a.starts()[i], a.starts()[i] + a.width(), a.z()[i], from, to, List.of("blend", "noise")));
         }
         return out;
+    }
+
+    /** The teeth of a grid found in blocks of single tiles as seams of the requested width, over the lines [from, to). */
+    private static List<Band> gridBands(int[] teeth, double[] z, int stepWidth, int n, int from, int to) {
+        List<Band> out = new ArrayList<>();
+        for (int i = 0; i < teeth.length; i++) {
+            int b = teeth[i];
+            out.add(new Band(Math.max(0, b - stepWidth / 2), Math.min(n, b - stepWidth / 2 + stepWidth), z[i], from,
+                    to, List.of("step")));
+        }
+        return out;
+    }
+
+    /** @return {start, end} of the bands (of all tile rows together), ascending, overlapping ones merged */
+    private static int[][] spans(List<Band> bands) {
+        List<int[]> out = new ArrayList<>();
+        bands.stream().map(b -> new int[] {b.start(), b.end()}).sorted((p, q) -> Integer.compare(p[0], q[0]))
+                .forEach(p -> {
+                    int[] last = out.isEmpty() ? null : out.get(out.size() - 1);
+                    if (last != null && p[0] <= last[1]) {
+                        last[1] = Math.max(last[1], p[1]);
+                    } else {
+                        out.add(p);
+                    }
+                });
+        return out.toArray(new int[0][]);
+    }
+
+    /** @return whether every tile row has one vertical seam, the same, that halves the width */
+    private static boolean halvesAll(Columns c, int w) {
+        List<Band> b = c.bands();
+        return !b.isEmpty() && b.size() == c.phases().length && b.stream().allMatch(x -> halves(x, w)
+                && x.start() == b.get(0).start());
     }
 
     /** @return whether the band's border cuts an axis of length n into two tiles of its step plus an overlap */

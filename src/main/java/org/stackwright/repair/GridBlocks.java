@@ -1,0 +1,243 @@
+package org.stackwright.repair;
+
+import static org.stackwright.repair.SeamDetector.MAX_BAND;
+
+import java.util.ArrayList;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
+
+import org.stackwright.volume.Volume;
+
+/**
+ * The seams of an uncropped mosaic of three or more whole tiles along an axis whose step evidence over the whole
+ * image is too weak for a comb. Gains differ tile by tile, so the step of a vertical seam keeps its sign along one
+ * tile row but may change it from row to row, and over the whole height the rows cancel (the same for a horizontal
+ * seam along the tile columns). Cut into the blocks of single tiles along the other axis, each block shows the seam
+ * with one sign ({@link SeamEvidence}, one tile per block); one grid holds for all blocks, so their squared z-scores
+ * at a tooth add as a chi-square with one degree of freedom per block (turned into a normal deviate by Wilson &
+ * Hilferty 1931, as in {@link SeamEvidence}), which passes where no single block does.
+ *
+ * <p>The grid is anchored at the first pixel and made of m &gt;= 3 whole tiles of its step s (n - m s in
+ * [0, {@link SeamDetector#MAX_BAND}]: an overlap past the last step at most), the rule of two halves
+ * ({@code SeamDetector.halves}) carried to more tiles. Its step is a divisor of one of the {@link #SEEDS} strongest
+ * borders along the axis. A tooth k s is strong when its blocks pass the tooth limit; the teeth are judged as a
+ * comb's ({@link SeamComb}), over all the teeth of the axes asked together, since the tiles form one grid: at least
+ * two strong teeth and {@link SeamComb#STRONG_SHARE} of all, and their summed evidence over the square root of their
+ * number above the seam limit; each axis asked must itself have at least half of its teeth strong (so that a grid of
+ * quarter tiles cannot pass on one seam that halves the axis). Where the gains of two neighbouring tiles hardly
+ * differ, a seam of the grid shows no step in any block, and the grid's other teeth carry it. Edges of narrow lines
+ * (a defective column, a thin filament, a sensor column repeated in every tile) give no evidence, so a line that
+ * does not repeat, or one inside each tile, is never a seam.
+ */
+final class GridBlocks {
+
+    /**
+     * Strongest borders along an axis (one per {@link SeamDetector#MAX_BAND}) tried as one seam of the grid: a few,
+     * as the strongest border over the whole image may be a structure (no source; not tuned).
+     */
+    static final int SEEDS = 3;
+    /** lines left out on either side of a cut between blocks: the seam there and the one-pixel doubt of its place */
+    static final int MARGIN = 3;
+    /** a block shorter than this many lines is left out (fewer lines than two blocks of the sign test) */
+    static final int MIN_LINES = 2 * SeamEvidence.BLOCK;
+
+    /**
+     * The grid found.
+     *
+     * @param stepX tile step along x (0 when not asked or not found)
+     * @param stepY tile step along y
+     * @param teethX vertical seam borders
+     * @param teethY horizontal seam borders
+     * @param zX combined evidence of each vertical tooth
+     * @param zY combined evidence of each horizontal tooth
+     */
+    record Grid(int stepX, int stepY, int[] teethX, int[] teethY, double[] zX, double[] zY) {
+    }
+
+    /** One axis tested: its teeth at their best offset and the combined evidence of each, or null. */
+    private record Axis(int step, int[] teeth, double[] z, double sum, int strong) {
+    }
+
+    private GridBlocks() {
+    }
+
+    /**
+     * @param image the image, not modified
+     * @param cutsX {start, end} of the vertical seam bands already found, ascending (null when x needs a grid)
+     * @param cutsY {start, end} of the horizontal seam bands already found (null when y needs a grid)
+     * @param ex step evidence for vertical seams over the whole height
+     * @param ey step evidence for horizontal seams over the whole width
+     * @return the grid of the axes that needed one, or null when none passes on every axis asked
+     */
+    static Grid find(Volume image, int[][] cutsX, int[][] cutsY, SeamEvidence ex, SeamEvidence ey, double tooth,
+            double threshold) {
+        int w = image.width();
+        int h = image.height();
+        List<Integer> sxs = cutsX != null ? List.of(0) : steps(ex, w, tooth);
+        List<Integer> sys = cutsY != null ? List.of(0) : steps(ey, h, tooth);
+        Map<Integer, List<SeamEvidence>> rowsOf = new HashMap<>();
+        Map<Integer, List<SeamEvidence>> colsOf = new HashMap<>();
+        Grid best = null;
+        double bestScore = Double.NEGATIVE_INFINITY;
+        for (int sx : sxs) {
+            for (int sy : sys) {
+                Axis ax = null;
+                Axis ay = null;
+                if (cutsX == null) {
+                    // vertical seams, over the tile rows cut by the horizontal seams (found or of this grid)
+                    int[][] cy = cutsY != null ? cutsY : cuts(teeth(sy, h));
+                    List<SeamEvidence> blocks = rowsOf.computeIfAbsent(sy, k -> blocks(image, true, cy, h));
+                    ax = axis(blocks, sx, w, tooth);
+                    if (ax == null) {
+                        continue;
+                    }
+                }
+                if (cutsY == null) {
+                    int[][] cx = cutsX != null ? cutsX : cuts(teeth(sx, w));
+                    List<SeamEvidence> blocks = colsOf.computeIfAbsent(sx, k -> blocks(image, false, cx, w));
+                    ay = axis(blocks, sy, h, tooth);
+                    if (ay == null) {
+                        continue;
+                    }
+                }
+                int strong = 0;
+                int teeth = 0;
+                double sum = 0;
+                for (Axis a : new Axis[] {ax, ay}) {
+                    if (a != null) {
+                        strong += a.strong();
+                        teeth += a.teeth().length;
+                        sum += a.sum();
+                    }
+                }
+                if (strong < 2 || strong < SeamComb.STRONG_SHARE * teeth || sum / Math.sqrt(teeth) <= threshold) {
+                    continue;
+                }
+                // as a comb: the most strong teeth less empty ones (a multiple of the step explains a subset, a
+                // fraction has empty teeth), then the most evidence
+                double score = (2 * strong - teeth) * 1e6 + sum;
+                if (score > bestScore) {
+                    bestScore = score;
+                    best = new Grid(ax == null ? 0 : ax.step(), ay == null ? 0 : ay.step(),
+                            ax == null ? new int[0] : ax.teeth(), ay == null ? new int[0] : ay.teeth(),
+                            ax == null ? new double[0] : ax.z(), ay == null ? new double[0] : ay.z());
+                }
+            }
+        }
+        return best;
+    }
+
+    /**
+     * @return the steps s of grids of m &gt;= 3 whole tiles (0 &lt;= n - m s &lt;= MAX_BAND) that have one of the
+     *     {@link #SEEDS} strongest borders of the axis on a tooth (k s within one pixel of it)
+     */
+    static List<Integer> steps(SeamEvidence e, int n, double tooth) {
+        List<Integer> seeds = new ArrayList<>();
+        for (int i = 0; i < SEEDS; i++) {
+            int top = -1;
+            for (int b = 1; b < n; b++) {
+                double s = e.peak(b, tooth);
+                boolean far = true;
+                for (int q : seeds) {
+                    far &= Math.abs(q - b) > MAX_BAND;
+                }
+                if (s > 0 && far && (top < 0 || s > e.peak(top, tooth))) {
+                    top = b;
+                }
+            }
+            if (top < 0) {
+                break;
+            }
+            seeds.add(top);
+        }
+        List<Integer> out = new ArrayList<>();
+        for (int a : seeds) {
+            for (int k = 1; k * SeamComb.MIN_PITCH <= a + 1; k++) {
+                int s = Math.round(a / (float) k);
+                if (s >= SeamComb.MIN_PITCH && Math.abs(k * s - a) <= 1 && wholeTiles(s, n) && !out.contains(s)) {
+                    out.add(s);
+                }
+            }
+        }
+        return out;
+    }
+
+    /** @return whether m &gt;= 3 whole tiles of step s fill an axis of n pixels, give or take an overlap */
+    static boolean wholeTiles(int s, int n) {
+        int m = n / s;
+        return m >= 3 && n - m * s <= MAX_BAND;
+    }
+
+    /** @return the teeth s, 2s, ... of m whole tiles along n */
+    static int[] teeth(int s, int n) {
+        int m = n / s;
+        int[] t = new int[m - 1];
+        for (int k = 1; k < m; k++) {
+            t[k - 1] = k * s;
+        }
+        return t;
+    }
+
+    /**
+     * The evidence of each block between the cuts: lines [end of a cut + MARGIN, start of the next - MARGIN).
+     *
+     * @param cuts {start, end} of each seam band across the lines, ascending
+     */
+    private static List<SeamEvidence> blocks(Volume image, boolean alongX, int[][] cuts, int lines) {
+        List<SeamEvidence> out = new ArrayList<>();
+        int from = 0;
+        for (int i = 0; i <= cuts.length; i++) {
+            int to = i < cuts.length ? cuts[i][0] - MARGIN : lines;
+            if (to - from >= MIN_LINES) {
+                out.add(SeamEvidence.of(image, alongX, from, to, true));
+            }
+            from = i < cuts.length ? cuts[i][1] + MARGIN : lines;
+        }
+        return out;
+    }
+
+    /** @return the teeth of a grid as cuts of one pixel each, {t, t + 1} */
+    private static int[][] cuts(int[] teeth) {
+        int[][] c = new int[teeth.length][];
+        for (int i = 0; i < teeth.length; i++) {
+            c[i] = new int[] {teeth[i], teeth[i] + 1};
+        }
+        return c;
+    }
+
+    /**
+     * @return the teeth of step s with their squared step z-scores over the blocks as one chi-square each (at one
+     *     offset within a pixel, the same for all blocks; 0 at the edges of a narrow line), or null when fewer than
+     *     half of them pass the tooth limit (each axis of the grid must show its own teeth)
+     */
+    private static Axis axis(List<SeamEvidence> blocks, int s, int n, double tooth) {
+        if (blocks.size() < 2) {
+            return null;
+        }
+        int[] t = teeth(s, n);
+        int[] at = new int[t.length];
+        double[] z = new double[t.length];
+        double sum = 0;
+        int strong = 0;
+        for (int i = 0; i < t.length; i++) {
+            z[i] = Double.NEGATIVE_INFINITY;
+            for (int d = -1; d <= 1; d++) {
+                double chi = 0;
+                for (SeamEvidence e : blocks) {
+                    int b = t[i] + d;
+                    double step = b > 0 && b < e.length() && e.combStrength(b, tooth) > 0 ? e.step[b] : 0;
+                    chi += step * step;
+                }
+                double zc = SeamEvidence.wilsonHilferty(chi, blocks.size());
+                if (zc > z[i]) {
+                    z[i] = zc;
+                    at[i] = t[i] + d;
+                }
+            }
+            strong += z[i] > tooth ? 1 : 0;
+            sum += Math.max(0, z[i]);
+        }
+        return strong > 0 && 2 * strong >= t.length ? new Axis(s, at, z, sum, strong) : null;
+    }
+}
