@@ -63,6 +63,7 @@ final class TileRowSeams {
         }
         confirmRows(ex, px, tooth);
         nearOthers(ex, px, tooth, threshold);
+        snakeRows(ex, px, tooth);
         shading.claimRows(ex, px, rows);
         shading.claimShifted(ex, px, rows, tooth, threshold);
         sameParity(px);
@@ -199,6 +200,55 @@ final class TileRowSeams {
             }
             if (best != null) {
                 px[i] = SeamComb.refine(List.of(ex.get(i)), new SeamComb.Period[] {best}, tooth, true)[0];
+            }
+        }
+    }
+
+    /**
+     * A snake order moves the seams of the tile rows placed right to left by the overlap to the right: there the left
+     * tile is placed later and covers the overlap, so the visible border lies at its end. With the first row placed
+     * left to right (as the independent generator does), the odd rows' seams lie right of the even rows'. A stripe
+     * without a comb of its own, when the stripes with one are all of the other parity and share a phase, takes the
+     * common pitch at that phase moved by 3 to {@link SeamDetector#MAX_BAND} px in this direction (odd rows to the
+     * right, even rows to the left) where its own steps show the seams: one tooth above the tooth limit and its teeth
+     * together (Stouffer's sum) above it too, the best such shift, its phase refined on the exact borders. Only the one direction is searched, and only where
+     * {@link #confirmRows} found nothing at the other rows' teeth (a snake's shifted row has nothing there); its
+     * limits are {@link #confirmRows}' (tooth limit, not seam limit): fitted on the independent snake draws
+     * (tune-c-snake), where the shifted rows' own evidence is one clear step and a faint one.
+     */
+    static void snakeRows(List<SeamEvidence> ex, SeamComb.Period[] px, double tooth) {
+        SeamComb.Period found = agreed(px);
+        if (found == null) {
+            return;
+        }
+        int parity = -1;
+        for (int s = 0; s < px.length; s++) {
+            if (px[s] != null && px[s].strong() > 0) {
+                if (parity >= 0 && parity != s % 2) {
+                    return;
+                }
+                parity = s % 2;
+            }
+        }
+        if (parity < 0) {
+            return;
+        }
+        int pitch = found.pitch();
+        for (int s = 0; s < px.length; s++) {
+            if (px[s] != null || s % 2 == parity) {
+                continue;
+            }
+            int sign = s % 2 == 1 ? 1 : -1;
+            SeamComb.Period best = null;
+            for (int d = 3; d <= SeamDetector.MAX_BAND && 2 * d < pitch; d++) {
+                int ph = Math.floorMod(found.phase() + sign * d, pitch);
+                SeamComb.Period c = SeamComb.score(ex.get(s), pitch, ph, 1, tooth, tooth, 1);
+                if (c != null && c.better(best) && ShadingRules.gapsOnTeeth(ex.get(s), c)) {
+                    best = c;
+                }
+            }
+            if (best != null) {
+                px[s] = SeamComb.refine(List.of(ex.get(s)), new SeamComb.Period[] {best}, tooth, true)[0];
             }
         }
     }
