@@ -205,16 +205,16 @@ final class TileRowSeams {
     }
 
     /**
-     * A snake order moves the seams of the tile rows placed right to left by the overlap to the right: there the left
-     * tile is placed later and covers the overlap, so the visible border lies at its end. With the first row placed
-     * left to right (as the independent generator does), the odd rows' seams lie right of the even rows'. A stripe
-     * without a comb of its own, when the stripes with one are all of the other parity and share a phase, takes the
-     * common pitch at that phase moved by 3 to {@link SeamDetector#MAX_BAND} px in this direction (odd rows to the
-     * right, even rows to the left) where its own steps show the seams: one tooth above the tooth limit and its teeth
-     * together (Stouffer's sum) above it too, the best such shift, its phase refined on the exact borders. Only the one direction is searched, and only where
-     * {@link #confirmRows} found nothing at the other rows' teeth (a snake's shifted row has nothing there); its
-     * limits are {@link #confirmRows}' (tooth limit, not seam limit): fitted on the independent snake draws
-     * (tune-c-snake), where the shifted rows' own evidence is one clear step and a faint one.
+     * A snake order moves the seams of the tile rows placed right to left by the overlap: there the left tile is
+     * placed later and covers the overlap, so the visible border lies at its end. The image is the tiles' bounding
+     * box, a whole number of steps plus one overlap wide (the last tile is whole): the rows placed left to right have
+     * their seams at whole steps from the left edge (phase 0), the others at the overlap, the length past the last
+     * whole step (phase n mod step). A stripe without a comb of its own, when the stripes with one are all of the
+     * other parity and share one of these two phases (within a pixel), takes the common pitch at the other phase
+     * (within a pixel) where its own steps show the seams: one tooth above the tooth limit and its teeth together
+     * (Stouffer's sum) above it too, as {@link #confirmRows} asks of a comb tried with no search (the phase is given
+     * by the width, not searched); its phase refined on the exact borders. Off when the length past the last step is
+     * under 3 px or over {@link SeamDetector#MAX_BAND} (no overlap, or not a covered one).
      */
     static void snakeRows(List<SeamEvidence> ex, SeamComb.Period[] px, double tooth) {
         SeamComb.Period found = agreed(px);
@@ -230,19 +230,24 @@ final class TileRowSeams {
                 parity = s % 2;
             }
         }
-        if (parity < 0) {
+        int pitch = found.pitch();
+        int overlap = Math.floorMod(ex.get(0).length(), pitch);
+        if (parity < 0 || overlap < 3 || overlap > SeamDetector.MAX_BAND) {
             return;
         }
-        int pitch = found.pitch();
+        boolean atEdge = within1(found.phase(), 0, pitch);
+        if (atEdge == within1(found.phase(), overlap, pitch)) {
+            return;
+        }
+        int target = atEdge ? overlap : 0;
         for (int s = 0; s < px.length; s++) {
             if (px[s] != null || s % 2 == parity) {
                 continue;
             }
-            int sign = s % 2 == 1 ? 1 : -1;
             SeamComb.Period best = null;
-            for (int d = 3; d <= SeamDetector.MAX_BAND && 2 * d < pitch; d++) {
-                int ph = Math.floorMod(found.phase() + sign * d, pitch);
-                SeamComb.Period c = SeamComb.score(ex.get(s), pitch, ph, 1, tooth, tooth, 1);
+            for (int d = -1; d <= 1; d++) {
+                SeamComb.Period c = SeamComb.score(ex.get(s), pitch, Math.floorMod(target + d, pitch), 1, tooth,
+                        tooth, 1);
                 if (c != null && c.better(best) && ShadingRules.gapsOnTeeth(ex.get(s), c)) {
                     best = c;
                 }
@@ -251,6 +256,12 @@ final class TileRowSeams {
                 px[s] = SeamComb.refine(List.of(ex.get(s)), new SeamComb.Period[] {best}, tooth, true)[0];
             }
         }
+    }
+
+    /** @return whether phases a and b of a comb of pitch s lie within a pixel of each other (circularly) */
+    private static boolean within1(int a, int b, int s) {
+        int d = Math.floorMod(a - b, s);
+        return Math.min(d, s - d) <= 1;
     }
 
     /**
