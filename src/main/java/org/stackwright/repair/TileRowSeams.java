@@ -63,6 +63,7 @@ final class TileRowSeams {
         }
         confirmRows(ex, px, tooth);
         nearOthers(ex, px, tooth, threshold);
+        snakeRows(ex, px, tooth);
         shading.claimRows(ex, px, rows);
         shading.claimShifted(ex, px, rows, tooth, threshold);
         sameParity(px);
@@ -201,6 +202,80 @@ final class TileRowSeams {
                 px[i] = SeamComb.refine(List.of(ex.get(i)), new SeamComb.Period[] {best}, tooth, true)[0];
             }
         }
+    }
+
+    /**
+     * A snake order moves the seams of the tile rows placed right to left by the overlap: there the left tile is
+     * placed later and covers the overlap, so the visible border lies at its end. The image is the tiles' bounding
+     * box, a whole number of steps plus one overlap wide (the last tile is whole): the rows placed left to right have
+     * their seams at whole steps from the left edge (phase 0), the others at the overlap, the length past the last
+     * whole step (phase n mod step). A stripe without a comb of its own, when the stripes with one are all of the
+     * other parity and share one of these two phases (within a pixel), takes the common pitch at the other phase
+     * (within a pixel) where its own steps show the seams: one tooth above the tooth limit and its teeth together
+     * (Stouffer's sum) above it too, as {@link #confirmRows} asks of a comb tried with no search (the phase is given
+     * by the width, not searched); its phase refined on the exact borders. Off when the length past the last step is
+     * under 3 px or over {@link SeamDetector#MAX_BAND} (no overlap, or not a covered one).
+     */
+    static void snakeRows(List<SeamEvidence> ex, SeamComb.Period[] px, double tooth) {
+        SeamComb.Period found = agreed(px);
+        if (found == null) {
+            return;
+        }
+        int parity = -1;
+        for (int s = 0; s < px.length; s++) {
+            if (px[s] != null && px[s].strong() > 0) {
+                if (parity >= 0 && parity != s % 2) {
+                    return;
+                }
+                parity = s % 2;
+            }
+        }
+        int pitch = found.pitch();
+        int target = shiftedPhase(found, ex.get(0).length());
+        if (parity < 0 || target < 0) {
+            return;
+        }
+        for (int s = 0; s < px.length; s++) {
+            if (px[s] != null || s % 2 == parity) {
+                continue;
+            }
+            SeamComb.Period best = null;
+            for (int d = -1; d <= 1; d++) {
+                SeamComb.Period c = SeamComb.score(ex.get(s), pitch, Math.floorMod(target + d, pitch), 1, tooth,
+                        tooth, 1);
+                if (c != null && c.better(best) && ShadingRules.gapsOnTeeth(ex.get(s), c)) {
+                    best = c;
+                }
+            }
+            if (best != null) {
+                px[s] = SeamComb.refine(List.of(ex.get(s)), new SeamComb.Period[] {best}, tooth, true)[0];
+            }
+        }
+    }
+
+    /**
+     * @return the phase of a snake's other tile rows ({@link #snakeRows}) for rows whose comb has the phase found, on
+     *     an axis of length n: the overlap (n mod step) for a comb at phase 0, 0 for one at the overlap (within a
+     *     pixel); -1 when the comb lies at neither or the length past the last whole step is under 3 px or over
+     *     {@link SeamDetector#MAX_BAND}
+     */
+    static int shiftedPhase(SeamComb.Period found, int n) {
+        int pitch = found.pitch();
+        int overlap = Math.floorMod(n, pitch);
+        if (overlap < 3 || overlap > SeamDetector.MAX_BAND) {
+            return -1;
+        }
+        boolean atEdge = within1(found.phase(), 0, pitch);
+        if (atEdge == within1(found.phase(), overlap, pitch)) {
+            return -1;
+        }
+        return atEdge ? overlap : 0;
+    }
+
+    /** @return whether phases a and b of a comb of pitch s lie within a pixel of each other (circularly) */
+    static boolean within1(int a, int b, int s) {
+        int d = Math.floorMod(a - b, s);
+        return Math.min(d, s - d) <= 1;
     }
 
     /**

@@ -50,30 +50,15 @@ class IndependentMosaicSeamTest {
     /**
      * The misses measured on the committed files (file -> problems as printed), NOT goals: the detector fails the
      * issue's goals on these independent mosaics, measured 2026-12-05 and reported; a change to the detector that
-     * fixes (or worsens) one changes its list here. Files without an entry are held to all the goals (f-single-1 since
-     * a fold of the shading must bend the image at its teeth: before, it got 13 horizontal bands every 26 px folded
-     * from its smooth vignetting; a-steps-1 and e-lines-1 since the seams of three or more whole tiles are weighed in
-     * blocks of single tiles, {@link GridBlocks}: before, nothing was found on either, as the gain steps of the tile
-     * rows cancel over the whole height and no comb of two strong teeth existed).
+     * fixes (or worsens) one changes its list here. No committed file misses now; all are held to all the goals
+     * (f-single-1 since a fold of the shading must bend the image at its teeth: before, it got 13 horizontal bands
+     * every 26 px folded from its smooth vignetting; a-steps-1 and e-lines-1 since the seams of three or more whole
+     * tiles are weighed in blocks of single tiles, {@link GridBlocks}: before, nothing was found on either, as the
+     * gain steps of the tile rows cancel over the whole height and no comb of two strong teeth existed; c-snake-1
+     * since its shifted tile row 1, whose faint seams form no comb, takes the phase the width gives,
+     * TileRowSeams.snakeRows: before, it took a single wrong tooth at 91).
      */
-    static final Map<String, List<String>> MEASURED_MISSES = Map.ofEntries(
-            // MISS (measured): steps 100 x 88 exact and tile rows 0 and 2 right; the shifted seams of tile row 1
-            // (112, 212, 312) are missed. Diagnosed: row 1's seams are faint (no evidence at 112 and 212); at 312 a
-            // step up and one down at 313 make it a 1-px line, which is no comb evidence; its shading template puts
-            // the valley at 11, so the row rightly does not claim the other rows' phase 0. Since a row still without
-            // a comb takes its strongest single tooth within an overlap of the others' phase where its own shading
-            // has its valley (ShadingRules.claimShifted), together with the changed evidence of one tile row
-            // (SeamEvidence.ONE_SIGN, TileRowSeams.confirmRows; each change alone kept the old misses), row 1 takes
-            // a wrong tooth at 91 (shift 9, wrong side): three false bands, the overlap seen as 9. Kept: over 30 snake draws (20 tuning, 10 held out) the claim raises the draws that
-            // meet all goals from 8 to 12 and seams found from 199 to 215 of 285, false bands equal (28).
-            Map.entry("c-snake-1", List.of(
-                    "x (tile row 1): seam 112 not found within 2 px (nearest error 21)",
-                    "x (tile row 1): seam 212 not found within 2 px (nearest error 21)",
-                    "x (tile row 1): seam 312 not found within 2 px (nearest error 21)",
-                    "x (tile row 1): extra band 89..92",
-                    "x (tile row 1): extra band 189..192",
-                    "x (tile row 1): extra band 289..292",
-                    "overlap from the snake shift 9 for 12")));
+    static final Map<String, List<String>> MEASURED_MISSES = Map.of();
 
     /** The truth of one mosaic, from {@code mosaics/truth.txt}. */
     record Truth(String name, int width, int height, int stepX, int stepY, int overlap, boolean snake, boolean blend,
