@@ -186,11 +186,9 @@ final class ShadingRules {
 
     /**
      * A tile row still without a comb, whose shading does not put its tile borders at the other rows' phase (a snake
-     * row, shifted by the overlap, whose seams are too faint for a comb): the common pitch at the phase of a snake's
-     * other rows that the width gives ({@link TileRowSeams#shiftedPhase}, within a pixel) where one tooth shows a seam
-     * by itself (evidence above the threshold) and the row's own shading template has its valley
-     * ({@link SeamTemplate#valleyAt}); the strongest such tooth. (Searched over every shift up to
-     * {@link SeamDetector#MAX_BAND} either way, the single tooth was often a stray step: c-snake-1 took one at 91.)
+     * row, shifted by the overlap, whose seams are too faint for a comb): the common pitch at a phase within
+     * {@link SeamDetector#MAX_BAND} of theirs where one tooth shows a seam by itself (evidence above the threshold)
+     * and the row's own shading template has its valley ({@link SeamTemplate#valleyAt}); the strongest such tooth.
      */
     void claimShifted(List<SeamEvidence> ex, SeamComb.Period[] px, List<Band> rows, double tooth, double threshold) {
         SeamComb.Period found = TileRowSeams.agreed(px);
@@ -202,11 +200,12 @@ final class ShadingRules {
                 continue;
             }
             SeamEvidence e = ex.get(s);
-            int target = TileRowSeams.shiftedPhase(found, e.length());
             double top = threshold;
             int best = -1;
-            for (int b = 0; b < e.length() && target >= 0; b++) {
-                if (TileRowSeams.within1(b, target, pitch) && SeamComb.inRange(b, e.length())
+            for (int b = 0; b < e.length(); b++) {
+                int d = Math.floorMod(b - found.phase(), pitch);
+                int shift = Math.min(d, pitch - d);
+                if (shift > 2 && shift <= SeamDetector.MAX_BAND && SeamComb.inRange(b, e.length())
                         && e.peak(b, tooth) > top) {
                     top = e.peak(b, tooth);
                     best = b;

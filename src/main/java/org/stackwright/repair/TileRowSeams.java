@@ -231,10 +231,15 @@ final class TileRowSeams {
             }
         }
         int pitch = found.pitch();
-        int target = shiftedPhase(found, ex.get(0).length());
-        if (parity < 0 || target < 0) {
+        int overlap = Math.floorMod(ex.get(0).length(), pitch);
+        if (parity < 0 || overlap < 3 || overlap > SeamDetector.MAX_BAND) {
             return;
         }
+        boolean atEdge = within1(found.phase(), 0, pitch);
+        if (atEdge == within1(found.phase(), overlap, pitch)) {
+            return;
+        }
+        int target = atEdge ? overlap : 0;
         for (int s = 0; s < px.length; s++) {
             if (px[s] != null || s % 2 == parity) {
                 continue;
@@ -253,27 +258,8 @@ final class TileRowSeams {
         }
     }
 
-    /**
-     * @return the phase of a snake's other tile rows ({@link #snakeRows}) for rows whose comb has the phase found, on
-     *     an axis of length n: the overlap (n mod step) for a comb at phase 0, 0 for one at the overlap (within a
-     *     pixel); -1 when the comb lies at neither or the length past the last whole step is under 3 px or over
-     *     {@link SeamDetector#MAX_BAND}
-     */
-    static int shiftedPhase(SeamComb.Period found, int n) {
-        int pitch = found.pitch();
-        int overlap = Math.floorMod(n, pitch);
-        if (overlap < 3 || overlap > SeamDetector.MAX_BAND) {
-            return -1;
-        }
-        boolean atEdge = within1(found.phase(), 0, pitch);
-        if (atEdge == within1(found.phase(), overlap, pitch)) {
-            return -1;
-        }
-        return atEdge ? overlap : 0;
-    }
-
     /** @return whether phases a and b of a comb of pitch s lie within a pixel of each other (circularly) */
-    static boolean within1(int a, int b, int s) {
+    private static boolean within1(int a, int b, int s) {
         int d = Math.floorMod(a - b, s);
         return Math.min(d, s - d) <= 1;
     }
