@@ -47,6 +47,43 @@ final class GapTiling {
     }
 
     /**
+     * Whether a comb agrees with the gaps of zeros along its evidence: true when there is no gap, or when the gaps and
+     * the length admit no uncropped tiling ({@link #step} 0: a cropped mosaic, on which they say nothing of the
+     * step); else the comb must be one of those tilings, its pitch leaving at most {@link SeamDetector#MAX_BAND} past
+     * its last whole tile, its phase within a pixel of the first pixel and every gap's first zero within a pixel of a
+     * tooth. A comb that misses them caught stray steps of the specimen.
+     */
+    static boolean admits(SeamEvidence e, SeamComb.Period p) {
+        int n = e.length();
+        int[] gaps = starts(e);
+        if (gaps.length == 0 || step(gaps, n) == 0) {
+            return true;
+        }
+        int s = p.pitch();
+        if (n % s > SeamDetector.MAX_BAND || Math.min(p.phase() % s, s - p.phase() % s) > 1) {
+            return false;
+        }
+        for (int g : gaps) {
+            int d = Math.floorMod(g - p.phase(), s);
+            if (Math.min(d, s - d) > 1) {
+                return false;
+            }
+        }
+        return true;
+    }
+
+    /** @return the first zero of every gap along the evidence (a run of pixels zero in at least half the lines) */
+    static int[] starts(SeamEvidence e) {
+        List<Integer> out = new ArrayList<>();
+        for (int b = 1; b < e.length(); b++) {
+            if (e.zeros[b] >= 0.5 && e.zeros[b - 1] < 0.5) {
+                out.add(b);
+            }
+        }
+        return out.stream().mapToInt(Integer::intValue).toArray();
+    }
+
+    /**
      * @param alongX true for vertical bands (columns), false for horizontal ones (rows)
      * @return the first line of each band (widened by a pixel) that is zero in more than half of the band's lines, a
      *     gap's first zero, ascending without repeats; bands without one are left out

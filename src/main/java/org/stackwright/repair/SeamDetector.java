@@ -141,6 +141,10 @@ public final class SeamDetector {
         double tooth = threshold / 2;
         SeamEvidence ey = SeamEvidence.of(image, false, 0, w);
         SeamComb.Period py = CombBands.repeats(ey, SeamComb.find(ey, null, tooth, threshold), tooth);
+        // a comb that does not fit the tilings the gaps of zeros admit caught stray steps
+        if (py != null && !GapTiling.admits(ey, py)) {
+            py = null;
+        }
         List<Band> rows = py != null ? CombBands.seams(ey, py, tooth, threshold, stepWidth, 0, w)
                 : LoneEdges.lone(ey, threshold, stepWidth, 0, w);
         // the rules that weigh the combs against the shading every tile shares (its profiles made once, when needed)
