@@ -24,7 +24,10 @@ final class LoneEdges {
     /**
      * Without a period: the strong edges that are not narrow lines, each a band of the requested width. Without the
      * support of repeating teeth an edge must exceed {@link #LONE} times the threshold (structure that runs along a
-     * line gives evidence of the size of the threshold now and then).
+     * line gives evidence of the size of the threshold now and then). The first zero of a gap of zeros (zero in at
+     * least half the lines, at most {@link SeamDetector#MAX_BAND} wide) is a seam whatever its sign test says: a
+     * stitcher leaves no data there, no structure makes whole lines zero (the test's empirical null can scale even
+     * a gap's edge below the limit).
      */
     static List<Band> lone(SeamEvidence e, double thresholdIn, int stepWidth, int from, int to) {
         double threshold = LONE * thresholdIn;
@@ -32,8 +35,9 @@ final class LoneEdges {
         List<Band> out = new ArrayList<>();
         for (int b = 1; b < n; b++) {
             double s = e.combStrength(b, threshold / 2);
-            if (s > threshold && s >= e.combStrength(b - 1, threshold / 2) && s >= e.combStrength(b + 1 < n ? b + 1 : b,
-                    threshold / 2)) {
+            boolean peak = s > threshold && s >= e.combStrength(b - 1, threshold / 2)
+                    && s >= e.combStrength(b + 1 < n ? b + 1 : b, threshold / 2);
+            if (peak || gapStart(e, b)) {
                 if (!out.isEmpty() && b - out.get(out.size() - 1).centre() <= MAX_BAND) {
                     continue;
                 }
@@ -44,6 +48,18 @@ final class LoneEdges {
             }
         }
         return out;
+    }
+
+    /** @return whether b is the first zero of a gap: zero in at least half the lines, at most MAX_BAND wide */
+    private static boolean gapStart(SeamEvidence e, int b) {
+        if (e.zeros[b] < 0.5 || e.zeros[b - 1] >= 0.5) {
+            return false;
+        }
+        int end = b;
+        while (end < e.length() && e.zeros[end] >= 0.5) {
+            end++;
+        }
+        return end - b <= MAX_BAND;
     }
 
     /** Strong evidence more than 2 pixels from every seam band: lines that do not repeat with the tile step. */

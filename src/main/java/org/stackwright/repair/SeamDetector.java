@@ -87,7 +87,8 @@ public final class SeamDetector {
      *     fit it (with {@link #OTHER_AXIS} of the usual evidence per seam), else ""
      * @param folded the axes ("x", "y", "yx") whose step came from the shading every tile shares
      *     ({@link SeamTemplate}), because their seams are too faint at each border, and ("x=2", "y=2") those with two
-     *     tiles, whose step is the one seam that cuts the axis into two whole tiles; else ""
+     *     tiles, whose step is the one seam that cuts the axis into two whole tiles, and ("x=gaps", "y=gaps") those
+     *     whose step the gaps of zeros and the axis's length fix ({@link GapTiling}); else ""
      */
     public record Tiling(int stepX, int stepY, int[] phaseX, int phaseY, int overlapX, int blendX, int blendY,
             String borrowed, String folded) {
@@ -141,6 +142,10 @@ public final class SeamDetector {
         double tooth = threshold / 2;
         SeamEvidence ey = SeamEvidence.of(image, false, 0, w);
         SeamComb.Period py = CombBands.repeats(ey, SeamComb.find(ey, null, tooth, threshold), tooth);
+        // a comb that does not fit the tilings the gaps of zeros admit caught stray steps
+        if (py != null && !GapTiling.admits(ey, py)) {
+            py = null;
+        }
         List<Band> rows = py != null ? CombBands.seams(ey, py, tooth, threshold, stepWidth, 0, w)
                 : LoneEdges.lone(ey, threshold, stepWidth, 0, w);
         // the rules that weigh the combs against the shading every tile shares (its profiles made once, when needed)
@@ -195,7 +200,7 @@ public final class SeamDetector {
         String folded = "";
         if (py == null) {
             SeamTemplate.Profiles alongY = SeamTemplate.profiles(image, false);
-            SeamTemplate.Fold fy = SeamTemplate.find(alongY, anchors(rows));
+            SeamTemplate.Fold fy = SeamTemplate.find(alongY, anchors(rows), GapTiling.starts(image, rows, false));
             if (fy != null && fy.found() && ShadingRules.backed(alongY, fy)) {
                 folded = "y";
                 py = new SeamComb.Period(fy.pitch(), fy.phase(), 0, 0, 0);
@@ -210,14 +215,28 @@ public final class SeamDetector {
                 c = again.step() == c.step() || c.step() == 0 && shading.nearBest(again.step()) ? again : c;
             }
         }
+        // an axis still without a period whose gaps of zeros, with its length, leave one coarsest tiling of three tiles
+        // or more (two tiles: the halves below)
+        int gy = py == null ? GapTiling.step(GapTiling.starts(image, rows, false), h) : 0;
+        if (gy > 0 && h / gy >= 3) {
+            folded += "y=gaps";
+            py = new SeamComb.Period(gy, 0, 0, 0, 0);
+            rows = GapTiling.onGrid(rows, gy, h, stepWidth, 0, w);
+            Columns again = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, 0);
+            if (again.step() > 0 && !shading.agree(rows, again, true)) {
+                again = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, -1);
+            }
+            c = again.step() == c.step() || c.step() == 0 && shading.nearBest(again.step()) ? again : c;
+        }
         if (c.step() == 0) {
             SeamTemplate.Profiles px = shading.alongX();
             List<Band> kept = c.bands();
-            SeamTemplate.Fold fx = SeamTemplate.find(px, anchors(kept));
+            SeamTemplate.Fold fx = SeamTemplate.find(px, anchors(kept), GapTiling.starts(image, kept, true));
             if (fx == null || !fx.found()) {
                 // a lone step may be a structure that runs across a tile row: only the gaps of zeros must be seams
                 kept = c.bands().stream().filter(b -> ShadingRules.coversGap(image, b)).toList();
-                fx = kept.size() < c.bands().size() ? SeamTemplate.find(px, anchors(kept)) : null;
+                fx = kept.size() < c.bands().size()
+                        ? SeamTemplate.find(px, anchors(kept), GapTiling.starts(image, kept, true)) : null;
             }
             if (fx != null && fx.found() && ShadingRules.backed(px, fx)) {
                 folded += "x";
@@ -225,6 +244,14 @@ public final class SeamDetector {
                 Arrays.fill(ph, fx.phase());
                 c = new Columns(ShadingRules.withTeeth(kept, fx, w, stepWidth, 0, h), c.periods(), ph, c.blend(),
                         fx.pitch());
+            } else {
+                int gx = GapTiling.step(GapTiling.starts(image, c.bands(), true), w);
+                if (gx > 0 && w / gx >= 3) {
+                    folded += "x=gaps";
+                    int[] ph = new int[c.phases().length];
+                    c = new Columns(GapTiling.onGrid(c.bands(), gx, w, stepWidth, 0, h), c.periods(), ph, c.blend(),
+                            gx);
+                }
             }
         }
         // three or more whole tiles along an axis still without a period: its seams in blocks of single tiles, cut at

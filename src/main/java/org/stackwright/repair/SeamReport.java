@@ -42,10 +42,12 @@ final class SeamReport {
         tiling.put("tile_width", t.stepX() > 0 && overlap > 0 ? t.stepX() + overlap : t.stepX());
         tiling.put("tile_height", t.stepY() > 0 && overlap > 0 ? t.stepY() + overlap : t.stepY());
         tiling.put("step_from_other_axis", t.borrowed().isEmpty() ? null : t.borrowed());
-        String shaded = t.folded().replace("x=2", "").replace("y=2", "");
+        String shaded = t.folded().replace("x=gaps", "").replace("y=gaps", "").replace("x=2", "").replace("y=2", "");
+        String gapped = (t.folded().contains("x=gaps") ? "x" : "") + (t.folded().contains("y=gaps") ? "y" : "");
         String halved = (t.folded().contains("x=2") ? "x" : "") + (t.folded().contains("y=2") ? "y" : "");
         tiling.put("step_from_shading", shaded.isEmpty() ? null : shaded);
         tiling.put("step_from_one_seam", halved.isEmpty() ? null : halved);
+        tiling.put("step_from_gaps", gapped.isEmpty() ? null : gapped);
         String noise = (f.columns().stream().anyMatch(b -> b.looks().contains("noise")) ? "x" : "")
                 + (f.rows().stream().anyMatch(b -> b.looks().contains("noise")) ? "y" : "");
         tiling.put("blend_from_noise", noise.isEmpty() ? null : noise);
@@ -83,6 +85,12 @@ final class SeamReport {
                 r.line(String.format(Locale.ROOT, "two tiles along %s: the one seam cuts the image into two whole "
                         + "tiles, so its position is taken as the step (an uncropped mosaic)", axis));
             }
+        }
+        if (!gapped.isEmpty()) {
+            r.line(String.format(Locale.ROOT, "the seams along %s show no period of their own: the gaps of zeros and "
+                    + "the image's length leave one coarsest tiling of whole tiles (an uncropped mosaic), whose other "
+                    + "seams are marked where it puts them; check the mask there", gapped.length() == 2 ? "x and y"
+                    : gapped));
         }
         if (!f.columnLines().isEmpty() || !f.rowLines().isEmpty()) {
             r.line(String.format(Locale.ROOT, "not seams (they do not repeat with the tile step): vertical lines at x = "

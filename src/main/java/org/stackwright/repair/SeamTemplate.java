@@ -203,6 +203,17 @@ final class SeamTemplate {
      *     best step starts at the image's first pixel with its darkest corner there and passes through the anchors
      */
     static Fold find(Profiles p, int[] anchors) {
+        return find(p, anchors, new int[0]);
+    }
+
+    /**
+     * As {@link #find(Profiles, int[])}, the tiling's seams also passing exactly through every gap's first zero: that
+     * is the tile border itself (the stitcher leaves no data from there), where the anchor of a step found is the
+     * centre of its band, within a pixel of the border.
+     *
+     * @param gaps first zero of every gap of zeros along the axis, may be empty
+     */
+    static Fold find(Profiles p, int[] anchors, int[] gaps) {
         int n = p.length();
         int hi = n / MIN_TILES;
         int best = bestStep(p);
@@ -216,7 +227,7 @@ final class SeamTemplate {
         // measurement on InventedMosaic: up to 3 px)
         Fold pick = null;
         for (int s = Math.max(SeamComb.MIN_PITCH, best - reach(best)); s <= Math.min(hi, best + reach(best)); s++) {
-            if (!onTeeth(anchors, s, 0) || n % s > SeamDetector.MAX_BAND) {
+            if (!onTeeth(anchors, s, 0, 1) || !onTeeth(gaps, s, 0, 0) || n % s > SeamDetector.MAX_BAND) {
                 continue;
             }
             double[] t = template(p, s, 0);
@@ -279,11 +290,11 @@ final class SeamTemplate {
         return Math.min(u, s - u) <= FIT / 2;
     }
 
-    /** @return whether every anchor lies within 1 px of a seam of step s, phase ph */
-    private static boolean onTeeth(int[] anchors, int s, int ph) {
+    /** @return whether every anchor lies within slack px of a seam of step s, phase ph */
+    private static boolean onTeeth(int[] anchors, int s, int ph, int slack) {
         for (int a : anchors) {
             int d = Math.floorMod(a - ph, s);
-            if (Math.min(d, s - d) > 1) {
+            if (Math.min(d, s - d) > slack) {
                 return false;
             }
         }

@@ -235,6 +235,12 @@ final class ShadingRules {
      */
     static List<Band> withTeeth(List<Band> found, SeamTemplate.Fold f, int n, int stepWidth, int from,
             int to) {
+        return withTeeth(found, f, n, stepWidth, from, to, "shading");
+    }
+
+    /** As {@link #withTeeth(List, SeamTemplate.Fold, int, int, int, int)}, the added bands with the given look. */
+    static List<Band> withTeeth(List<Band> found, SeamTemplate.Fold f, int n, int stepWidth, int from, int to,
+            String look) {
         List<Band> out = new ArrayList<>(found);
         for (int seam = f.phase(); seam < n; seam += f.pitch()) {
             final int b = seam;
@@ -247,12 +253,12 @@ final class ShadingRules {
             int line = from;
             for (Band o : here) {
                 if (o.from() > line) {
-                    out.add(toothBand(b, n, stepWidth, f.corner(), line, o.from()));
+                    out.add(toothBand(b, n, stepWidth, f.corner(), line, o.from(), look));
                 }
                 line = Math.max(line, o.to());
             }
             if (line < to) {
-                out.add(toothBand(b, n, stepWidth, f.corner(), line, to));
+                out.add(toothBand(b, n, stepWidth, f.corner(), line, to, look));
             }
         }
         out.sort((x, y) -> x.start() != y.start() ? Integer.compare(x.start(), y.start()) : Integer.compare(x.from(),
@@ -278,8 +284,8 @@ final class ShadingRules {
     }
 
     /** A band of the requested width centred on the fold's seam b, over the lines [from, to). */
-    private static Band toothBand(int b, int n, int stepWidth, double strength, int from, int to) {
+    private static Band toothBand(int b, int n, int stepWidth, double strength, int from, int to, String look) {
         return new Band(Math.max(0, b - stepWidth / 2), Math.min(n, b - stepWidth / 2 + stepWidth), strength, from, to,
-                List.of("shading"));
+                List.of(look));
     }
 }

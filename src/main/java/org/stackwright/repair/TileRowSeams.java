@@ -54,6 +54,12 @@ final class TileRowSeams {
             ex.add(SeamEvidence.of(image, true, y[0], y[1], !rows.isEmpty()));
         }
         SeamComb.Period[] px = pitch < 0 ? new SeamComb.Period[stripes] : commonPitch(ex, tooth, threshold, pitch);
+        for (int s = 0; s < stripes; s++) {
+            // a comb that does not fit the tilings the gaps of zeros admit caught stray steps
+            if (px[s] != null && !GapTiling.admits(ex.get(s), px[s])) {
+                px[s] = null;
+            }
+        }
         boolean anyRepeat = false;
         for (int s = 0; s < stripes; s++) {
             anyRepeat |= CombBands.repeats(ex.get(s), px[s], tooth) != null;

@@ -29,6 +29,12 @@ class ShadingSeamTest {
     /** 3x3 tiles of 128 px, no gaps: no seam shows anything but the corner of the shading */
     static final InventedMosaic.Layout THREE_BY_THREE = new InventedMosaic.Layout(3, 3, 128, 128, 0, false, false, 0,
             0.25, 0, 300);
+    /**
+     * 3x3 tiles of 128 px, a gap on the second seam along each axis only: the first seam is a corner of the shading,
+     * and the gap and the length fix the step ({@link GapTiling})
+     */
+    static final InventedMosaic.Layout THREE_BY_THREE_GAPS = new InventedMosaic.Layout(3, 3, 128, 128, 0, false,
+            false, 2, 0.25, 0, 300);
     /** 3x4 tiles of 120x100 px in snake order, gaps */
     static final InventedMosaic.Layout SNAKE = new InventedMosaic.Layout(3, 4, 120, 100, 0, true, false, 2, 0.25, 0,
             300);
@@ -45,11 +51,14 @@ class ShadingSeamTest {
      * now claims it from the shading template), 53 (a structure across a tile row taken for a seam broke the
      * template's anchors; the cross-validation rejected the template); snake 45 (the combs of the short tile rows took
      * a step of 81 px from stray structures and reported seams that are not there: a comb must now agree with the
-     * step the shading shows, and with each row's shading valley); the 3x3 layout only in the sweep
+     * step the shading shows, and with each row's shading valley); 3x3 with gaps 59 (a comb of 132 px through the
+     * gap and a stray step, not a tiling the gap and the length admit) and 62 (no comb and no fold along y: the gap
+     * at 256 of 384 px fixes the step); the 3x3 layouts otherwise only in the sweep
      */
     static Stream<Draw> held() {
         return Stream.of(new Draw("2x4 of 110", TWO_BY_FOUR, 45), new Draw("2x4 of 110", TWO_BY_FOUR, 53),
-                new Draw("snake 3x4 of 120x100", SNAKE, 45));
+                new Draw("snake 3x4 of 120x100", SNAKE, 45), new Draw("3x3 of 128, gaps", THREE_BY_THREE_GAPS, 59),
+                new Draw("3x3 of 128, gaps", THREE_BY_THREE_GAPS, 62));
     }
 
     @ParameterizedTest
@@ -76,7 +85,7 @@ class ShadingSeamTest {
     void sweep() {
         int seeds = Integer.getInteger("stackwright.shadingsweep", 0);
         Assumptions.assumeTrue(seeds > 0, "sweep off; -Dstackwright.shadingsweep=N to run it");
-        for (InventedMosaic.Layout l : List.of(TWO_BY_FOUR, THREE_BY_THREE, SNAKE)) {
+        for (InventedMosaic.Layout l : List.of(TWO_BY_FOUR, THREE_BY_THREE, SNAKE, THREE_BY_THREE_GAPS)) {
             int right = 0;
             int missed = 0;
             int extra = 0;
