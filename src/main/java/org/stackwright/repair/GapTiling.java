@@ -25,14 +25,16 @@ final class GapTiling {
      * @param gaps first zero of every gap along the axis, ascending
      * @param n length of the axis
      * @return the largest step s >= {@link SeamComb#MIN_PITCH} with every gap at a multiple of s and n - (n / s) s
-     *     at most {@link SeamDetector#MAX_BAND}, or 0 when there is no gap or no such step
+     *     at most {@link SeamDetector#MAX_BAND}, whose seams are at most twice as many as the gaps (a seam without a
+     *     gap is one nothing but the length shows; on a cropped mosaic the small divisors of a gap's position fit any
+     *     length and would cut it into dozens of such seams), or 0 when there is no gap or no such step
      */
     static int step(int[] gaps, int n) {
         if (gaps.length == 0) {
             return 0;
         }
         for (int s = n / 2; s >= SeamComb.MIN_PITCH; s--) {
-            if (n % s > SeamDetector.MAX_BAND) {
+            if (n % s > SeamDetector.MAX_BAND || n / s - 1 > 2 * gaps.length) {
                 continue;
             }
             boolean all = true;
