@@ -205,14 +205,7 @@ public final class SeamDetector {
                 folded = "y";
                 py = new SeamComb.Period(fy.pitch(), fy.phase(), 0, 0, 0);
                 rows = ShadingRules.withTeeth(rows, fy, h, stepWidth, 0, w);
-                Columns again = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, 0);
-                if (again.step() > 0 && !shading.agree(rows, again, true)) {
-                    again = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, -1);
-                }
-                // the tile rows cut at the seams of shading are shorter: their combs, weaker, must not overturn a
-                // step the longer stripes showed nor bring one the shading along x does not support (a stray pitch
-                // catching the gap and a few structures)
-                c = again.step() == c.step() || c.step() == 0 && shading.nearBest(again.step()) ? again : c;
+                c = recut(image, shading, rows, c, tooth, threshold, stepWidth);
             }
         }
         // an axis still without a period whose gaps of zeros, with its length, leave one coarsest tiling of three tiles
@@ -222,11 +215,7 @@ public final class SeamDetector {
             folded += "y=gaps";
             py = new SeamComb.Period(gy, 0, 0, 0, 0);
             rows = GapTiling.onGrid(rows, gy, h, stepWidth, 0, w);
-            Columns again = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, 0);
-            if (again.step() > 0 && !shading.agree(rows, again, true)) {
-                again = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, -1);
-            }
-            c = again.step() == c.step() || c.step() == 0 && shading.nearBest(again.step()) ? again : c;
+            c = recut(image, shading, rows, c, tooth, threshold, stepWidth);
         }
         if (c.step() == 0) {
             SeamTemplate.Profiles px = shading.alongX();
@@ -312,6 +301,21 @@ public final class SeamDetector {
             out.add(new Band(a.starts()[i], a.starts()[i] + a.width(), a.z()[i], from, to, List.of("blend", "noise")));
         }
         return out;
+    }
+
+    /**
+     * The vertical seams again over the tile rows cut at horizontal seams found late (from the shading or the gaps).
+     * The tile rows are shorter than the stripes before: their combs, weaker, must not overturn a step the longer
+     * stripes showed nor bring one the shading along x does not support (a stray pitch catching the gap and a few
+     * structures).
+     */
+    private static Columns recut(Volume image, ShadingRules shading, List<Band> rows, Columns c, double tooth,
+            double threshold, int stepWidth) {
+        Columns again = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, 0);
+        if (again.step() > 0 && !shading.agree(rows, again, true)) {
+            again = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, -1);
+        }
+        return again.step() == c.step() || c.step() == 0 && shading.nearBest(again.step()) ? again : c;
     }
 
     /** The teeth of a grid found in blocks of single tiles as seams of the requested width, over the lines [from, to). */

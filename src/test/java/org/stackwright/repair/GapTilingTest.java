@@ -9,6 +9,7 @@ class GapTilingTest {
 
     @Test
     void coarsestTilingThroughTheGaps() {
+        // expected values: the arithmetic of the tiling itself (multiples and remainders), no outside source needed
         // 3 tiles of 118: a gap on the second seam (236) or the first (118) leaves 118 (59 would add empty seams)
         assertEquals(118, GapTiling.step(new int[] {236}, 354));
         assertEquals(118, GapTiling.step(new int[] {118}, 354));
@@ -21,5 +22,8 @@ class GapTilingTest {
         // no gap, or gaps no uncropped tiling passes through (a cropped mosaic): nothing
         assertEquals(0, GapTiling.step(new int[0], 354));
         assertEquals(0, GapTiling.step(new int[] {101}, 354));
+        // a trimmed mosaic: 340 % 42 = 4 and 340 % 30 = 10 fit the length, but 42 and 30 (divisors of the gap at
+        // 210) would add 7 and 10 seams that only the length shows for one gap: nothing
+        assertEquals(0, GapTiling.step(new int[] {210}, 340));
     }
 }
