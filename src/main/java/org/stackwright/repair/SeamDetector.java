@@ -173,7 +173,8 @@ public final class SeamDetector {
         // tile shares shows a step of its own, a comb must agree with it, else the rows' lone seams stand; a comb with
         // two seams of its own in one tile row (gain steps between tiles) stands without the shading, whose best step
         // an off-centre vignetting can move by several pixels
-        if (c.step() > 0 && !shading.agree(rows, c, false) && !TileRowSeams.standsOnSteps(image, rows, c, threshold)) {
+        if (c.step() > 0 && !shading.agree(rows, c, false) && !TileRowSeams.standsOnSteps(image, rows, c, threshold)
+                && !TileRowSeams.snakeStands(c, SeamTemplate.shownStep(shading.alongX()))) {
             c = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, -1);
         }
         // an axis without a period of its own from steps: blend bands found from the noise (two exposures averaged)
@@ -257,12 +258,23 @@ public final class SeamDetector {
                 if (askY) {
                     py = new SeamComb.Period(g.stepY(), 0, g.teethY().length, g.teethY().length, 0);
                     rows = gridBands(g.teethY(), g.zY(), stepWidth, h, 0, w);
+                    if (!askX) {
+                        // the vertical seams were searched over the whole height: again in the tile rows now cut
+                        c = recut(image, shading, rows, c, tooth, threshold, stepWidth);
+                    }
                 }
                 if (askX) {
                     SeamComb.Period[] per = new SeamComb.Period[c.periods().length];
                     Arrays.fill(per, new SeamComb.Period(g.stepX(), 0, g.teethX().length, g.teethX().length, 0));
                     c = new Columns(gridBands(g.teethX(), g.zX(), stepWidth, w, 0, h), per,
                             new int[c.phases().length], c.blend(), g.stepX());
+                    // one grid for all tile rows: a snake's rows in two phases show in their own combs at its step
+                    Columns rowsAt = rows.isEmpty() ? null
+                            : TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, g.stepX());
+                    if (rowsAt != null && rowsAt.step() == g.stepX()
+                            && TileRowSeams.snakeStands(rowsAt, SeamTemplate.shownStep(shading.alongX()))) {
+                        c = rowsAt;
+                    }
                 }
             }
         }
@@ -312,7 +324,8 @@ public final class SeamDetector {
     private static Columns recut(Volume image, ShadingRules shading, List<Band> rows, Columns c, double tooth,
             double threshold, int stepWidth) {
         Columns again = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, 0);
-        if (again.step() > 0 && !shading.agree(rows, again, true)) {
+        if (again.step() > 0 && !shading.agree(rows, again, true)
+                && !TileRowSeams.snakeStands(again, SeamTemplate.shownStep(shading.alongX()))) {
             again = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, -1);
         }
         return again.step() == c.step() || c.step() == 0 && shading.nearBest(again.step()) ? again : c;

@@ -335,6 +335,33 @@ final class TileRowSeams {
         return ta[1] > tb[1] * (1 + 1e-9);
     }
 
+    /**
+     * @return whether the tile rows' combs make a snake order on their own steps, which needs no support from the
+     *     shading's step: every tile row has a comb with a strong tooth of its own, the rows of each parity share a
+     *     phase, and the odd rows are shifted against the even ones by one common shift of 3 px up to
+     *     {@link SeamDetector#MAX_BAND} (a covered overlap, {@link #snakeShift}); stray steps of the specimen do not
+     *     line up so in every row. The shading's step, when it shows one, must lie near the step or near the step plus
+     *     that shift: the tiles of a snake's two directions show their shading shifted by the overlap, and the fold
+     *     over the whole image then prefers the tile width (measured: 112 for step 100 and overlap 12 on a tune draw).
+     */
+    static boolean snakeStands(Columns c, int shown) {
+        SeamComb.Period[] px = c.periods();
+        if (px.length < 2 || c.step() <= 0) {
+            return false;
+        }
+        for (SeamComb.Period p : px) {
+            if (p == null || p.strong() < 1) {
+                return false;
+            }
+        }
+        int shift = snakeShift(c.phases(), c.step());
+        if (shift < 3 || shift > SeamDetector.MAX_BAND) {
+            return false;
+        }
+        return shown < 0 || SeamTemplate.near(shown, c.step()) || SeamTemplate.near(shown, c.step() + shift)
+                || shown > c.step() && shown < c.step() + shift;
+    }
+
     /** The shift of the odd stripes' phase against the even ones when it is the same for all, else -1. */
     static int snakeShift(int[] phases, int step) {
         if (phases.length < 2 || step <= 0) {
