@@ -254,6 +254,13 @@ public final class SeamDetector {
             int[][] cutsY = askY ? null : spans(rows);
             int[][] cutsX = askX ? null : spans(c.bands());
             GridBlocks.Grid g = GridBlocks.find(image, cutsX, cutsY, ex, ey, tooth, threshold);
+            // a snake order's tile rows in two phases (SnakeBlocks), where that grid scores better than one phase
+            SnakeBlocks.Snake sn = askX && !askY && !rows.isEmpty()
+                    ? SnakeBlocks.find(image, cutsY, ex, tooth, threshold) : null;
+            if (sn != null && (g == null || sn.score() > SnakeBlocks.scoreX(g, tooth))) {
+                c = TileRowSeams.snake(rows, sn, tooth, stepWidth, w, h, c.blend());
+                g = null;
+            }
             if (g != null) {
                 if (askY) {
                     py = new SeamComb.Period(g.stepY(), 0, g.teethY().length, g.teethY().length, 0);
@@ -268,13 +275,6 @@ public final class SeamDetector {
                     Arrays.fill(per, new SeamComb.Period(g.stepX(), 0, g.teethX().length, g.teethX().length, 0));
                     c = new Columns(gridBands(g.teethX(), g.zX(), stepWidth, w, 0, h), per,
                             new int[c.phases().length], c.blend(), g.stepX());
-                    // one grid for all tile rows: a snake's rows in two phases show in their own combs at its step
-                    Columns rowsAt = rows.isEmpty() ? null
-                            : TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, g.stepX());
-                    if (rowsAt != null && rowsAt.step() == g.stepX()
-                            && TileRowSeams.snakeStands(rowsAt, SeamTemplate.shownStep(shading.alongX()))) {
-                        c = rowsAt;
-                    }
                 }
             }
         }

@@ -385,6 +385,38 @@ final class TileRowSeams {
         return shift == Integer.MIN_VALUE || shift == 0 ? -1 : Math.abs(shift);
     }
 
+    /**
+     * The vertical seams of a snake grid found in blocks of single tiles ({@link SnakeBlocks}): in each tile row (the
+     * stripes between the horizontal seams' centres) a band of width stepWidth at every tooth, shifted in the rows of
+     * the shifted parity; each row with its comb and phase.
+     */
+    static Columns snake(List<Band> rows, SnakeBlocks.Snake sn, double tooth, int stepWidth, int w, int h,
+            int blend) {
+        int stripes = rows.size() + 1;
+        SeamComb.Period[] px = new SeamComb.Period[stripes];
+        int[] phases = new int[stripes];
+        int strong = 0;
+        double sum = 0;
+        for (double z : sn.z()) {
+            strong += z > tooth ? 1 : 0;
+            sum += Math.max(0, z);
+        }
+        List<Band> cols = new ArrayList<>();
+        for (int s = 0; s < stripes; s++) {
+            int from = s == 0 ? 0 : rows.get(s - 1).centre();
+            int to = s == rows.size() ? h : rows.get(s).centre();
+            int shift = s % 2 == sn.parity() ? sn.shift() : 0;
+            for (int i = 0; i < sn.teeth().length; i++) {
+                int b = sn.teeth()[i] + shift;
+                cols.add(new Band(Math.max(0, b - stepWidth / 2), Math.min(w, b - stepWidth / 2 + stepWidth),
+                        sn.z()[i], from, to, List.of("step")));
+            }
+            phases[s] = Math.floorMod(sn.teeth()[0] + shift, sn.step());
+            px[s] = new SeamComb.Period(sn.step(), phases[s], strong, sn.teeth().length, sum);
+        }
+        return new Columns(mergeAlongRows(cols, h), px, phases, blend, sn.step());
+    }
+
     /** Bands at the same position in every stripe become one band over the whole height. */
     private static List<Band> mergeAlongRows(List<Band> cols, int h) {
         List<Band> out = new ArrayList<>();

@@ -1,0 +1,131 @@
+package org.stackwright.repair;
+
+import static org.stackwright.repair.SeamDetector.MAX_BAND;
+
+import java.util.ArrayList;
+import java.util.List;
+
+import org.stackwright.volume.Volume;
+
+/**
+ * The vertical seams of an uncropped snake-order mosaic with covered overlap from blocks of single tiles, as
+ * {@link GridBlocks} finds them, but with the tile rows in two phases. A snake places every other tile row right to
+ * left: there the later left tile covers the overlap, and the visible seams lie one overlap further right. The image
+ * is a whole number of steps plus one overlap wide, so the rows placed right to left have their seams at k s + (n
+ * mod s), the others at k s. One grid of {@link GridBlocks} over all tile rows adds the shifted rows' evidence at the
+ * wrong place (and the tile rows' own combs may be too weak for a comb, or take the unshifted phase). Here the
+ * tile rows of one parity are read at the shifted teeth, per tooth the squared z-scores of all rows add as a
+ * chi-square (Wilson and Hilferty 1931, as in {@link GridBlocks}), judged with the limits of {@link GridBlocks}.
+ */
+final class SnakeBlocks {
+
+    /**
+     * The snake grid found.
+     *
+     * @param step tile step along x
+     * @param shift the phase of the shifted tile rows (n mod step)
+     * @param parity the parity of the tile rows whose seams are shifted
+     * @param teeth the unshifted rows' seam borders (the shifted rows' are these plus shift)
+     * @param z combined evidence of each tooth
+     * @param score the most strong teeth less empty ones, then the most evidence (the score of {@link GridBlocks})
+     */
+    record Snake(int step, int shift, int parity, int[] teeth, double[] z, double score) {
+    }
+
+    private SnakeBlocks() {
+    }
+
+    /**
+     * @param cutsY {start, end} of the horizontal seam bands found (one per border between tile rows), ascending
+     * @param ex step evidence for vertical seams over the whole height (the seeds of the steps tried)
+     * @return the best snake grid that passes the limits of {@link GridBlocks}, or null
+     */
+    static Snake find(Volume image, int[][] cutsY, SeamEvidence ex, double tooth, double threshold) {
+        int w = image.width();
+        int h = image.height();
+        List<SeamEvidence> blocks = new ArrayList<>();
+        List<Integer> row = new ArrayList<>();
+        int from = 0;
+        for (int i = 0; i <= cutsY.length; i++) {
+            int to = i < cutsY.length ? cutsY[i][0] - GridBlocks.MARGIN : h;
+            if (to - from >= GridBlocks.MIN_LINES) {
+                blocks.add(SeamEvidence.of(image, true, from, to, true));
+                row.add(i);
+            }
+            from = i < cutsY.length ? cutsY[i][1] + GridBlocks.MARGIN : h;
+        }
+        Snake best = null;
+        for (int s : GridBlocks.steps(ex, w, tooth)) {
+            int shift = w - (w / s) * s;
+            // a covered overlap: 3 px or more (as TileRowSeams.snakeRows) up to MAX_BAND
+            if (shift < 3 || shift > MAX_BAND) {
+                continue;
+            }
+            for (int parity = 0; parity < 2; parity++) {
+                Snake sn = at(blocks, row, s, shift, parity, w, tooth, threshold);
+                if (sn != null && (best == null || sn.score() > best.score())) {
+                    best = sn;
+                }
+            }
+        }
+        return best;
+    }
+
+    /** @return the snake grid of step s with the rows of the given parity shifted, or null when it fails a limit */
+    private static Snake at(List<SeamEvidence> blocks, List<Integer> row, int s, int shift, int parity, int w,
+            double tooth, double threshold) {
+        int even = 0;
+        for (int r : row) {
+            even += r % 2 == 0 ? 1 : 0;
+        }
+        // both parities must be read, else the grid is GridBlocks' own
+        if (even == 0 || even == row.size()) {
+            return null;
+        }
+        int[] t = GridBlocks.teeth(s, w);
+        int[] at = new int[t.length];
+        double[] z = new double[t.length];
+        double sum = 0;
+        int strong = 0;
+        for (int i = 0; i < t.length; i++) {
+            z[i] = Double.NEGATIVE_INFINITY;
+            for (int d = -1; d <= 1; d++) {
+                double chi = 0;
+                for (int k = 0; k < blocks.size(); k++) {
+                    SeamEvidence e = blocks.get(k);
+                    int b = t[i] + d + (row.get(k) % 2 == parity ? shift : 0);
+                    double step = b > 0 && b < e.length() && e.combStrength(b, tooth) > 0 ? e.step[b] : 0;
+                    chi += step * step;
+                }
+                double zc = SeamEvidence.wilsonHilferty(chi, blocks.size());
+                if (zc > z[i]) {
+                    z[i] = zc;
+                    at[i] = t[i] + d;
+                }
+            }
+            strong += z[i] > tooth ? 1 : 0;
+            sum += Math.max(0, z[i]);
+        }
+        if (strong < 2 || 2 * strong < t.length || strong < SeamComb.STRONG_SHARE * t.length
+                || sum / Math.sqrt(t.length) <= threshold) {
+            return null;
+        }
+        return new Snake(s, shift, parity, at, z, score(strong, t.length, sum));
+    }
+
+    /** @return the score of {@link GridBlocks}: the most strong teeth less empty ones, then the most evidence */
+    static double score(int strong, int teeth, double sum) {
+        return (2 * strong - teeth) * 1e6 + sum;
+    }
+
+    /** @return the score of the x axis of a grid of {@link GridBlocks} (its teeth above the tooth limit, their sum) */
+    static double scoreX(GridBlocks.Grid g, double tooth) {
+        int strong = 0;
+        double sum = 0;
+        for (double z : g.zX()) {
+            strong += z > tooth ? 1 : 0;
+            sum += Math.max(0, z);
+        }
+        return score(strong, g.zX().length, sum);
+    }
+}
