@@ -46,6 +46,11 @@ final class BlendBands {
     static final double MIN_MEAN_DEPTH = 0.6;
     /** the band's start is refined this far around the comb's, pixels */
     static final int REFINE = 4;
+    /**
+     * the two axes' free widths at most this far apart are taken for one overlap (fitted: 18 of the 20 draws of
+     * tune-d-blend, one overlap on both axes, have free widths this close; 4 or more gave the same draws)
+     */
+    static final int ONE_OVERLAP = 4;
 
     /**
      * The blend bands along one axis.
@@ -81,11 +86,25 @@ final class BlendBands {
         if (p == null) {
             return Found.NONE;
         }
-        return new Found(along(p.columns), along(p.rows));
+        Axis cx = comb(p.columns);
+        Axis cy = comb(p.rows);
+        if (cx == null || cy == null) {
+            return new Found(cx == null ? null : refine(p.columns, cx), cy == null ? null : refine(p.rows, cy));
+        }
+        Fits fx = fits(p.columns, cx);
+        Fits fy = fits(p.rows, cy);
+        Axis[] both = oneOverlap(fx, fy);
+        return both != null ? new Found(both[0], both[1]) : new Found(fx.best(), fy.best());
     }
 
     /** @return the blend bands of one profile (ratio per line, 1 = one exposure), or null */
     static Axis along(double[] ratio) {
+        Axis a = comb(ratio);
+        return a == null ? null : refine(ratio, a);
+    }
+
+    /** @return the best comb of blend dips of one profile, step and width still those of the comb search, or null */
+    private static Axis comb(double[] ratio) {
         int n = ratio.length;
         if (n < 2 * SeamComb.MIN_PITCH) {
             return null;
@@ -113,7 +132,7 @@ final class BlendBands {
             }
         }
         // a best dip at the widest width searched is a slower trend of the noise ratio, not a band of blending
-        return best == null || best.width() == MAX_WIDTH ? null : refine(ratio, best);
+        return best == null || best.width() == MAX_WIDTH ? null : best;
     }
 
     /**
@@ -239,45 +258,126 @@ final class BlendBands {
      * baseline now taken away from the bands) against the dip of a blend with one depth for all (fitted), over the
      * same window around each band of the comb for every candidate. With two or three bands the step of a free fit
      * is only good to a pixel or two, so when the fit is that close to an uncropped mosaic (k bands, k + 1 whole tiles
-     * from the first pixel to the last: n = (k + 1) step + width, the bands starting at step, 2 step, ...), the
-     * uncropped tiling nearest to it is taken.
+     * from the first pixel to the last: n = (k + 1) step + width, the bands starting at step, 2 step, ...), only the
+     * uncropped tilings near it are candidates. A trimmed mosaic (the first tile not starting at pixel 0) is far from
+     * any and keeps the free fit, its step and phase from the bands alone.
      */
     private static Axis refine(double[] ratio, Axis a) {
+        return fits(ratio, a).best();
+    }
+
+    /**
+     * The candidates of one axis: every tiling (step, start, width) near the comb, or only the uncropped ones near the
+     * free fit when there are any (see {@link #refine}), with their misfit in units of the deficit's variance so that
+     * the misfits of the two axes add up.
+     *
+     * @param comb the comb found
+     * @param freeWidth the width of the best free fit
+     * @param candidates {step, start, width} of each candidate
+     * @param cost its misfit over the deficit's robust variance
+     */
+    private record Fits(Axis comb, int freeWidth, List<int[]> candidates, List<Double> cost) {
+
+        /** @return the bands of the best candidate of this width, or of any width when it is 0; null when none */
+        Axis at(int width) {
+            int best = -1;
+            for (int i = 0; i < candidates.size(); i++) {
+                if ((width == 0 || candidates.get(i)[2] == width) && (best < 0 || cost.get(i) < cost.get(best))) {
+                    best = i;
+                }
+            }
+            if (best < 0) {
+                return null;
+            }
+            int[] c = candidates.get(best);
+            int[] starts = new int[comb.starts().length];
+            for (int t = 0; t < starts.length; t++) {
+                starts[t] = c[1] + t * c[0];
+            }
+            return new Axis(c[0], c[2], starts, comb.z(), comb.depth());
+        }
+
+        Axis best() {
+            return at(0);
+        }
+
+        /** @return the least misfit of a candidate of this width, infinite when none */
+        double least(int width) {
+            double m = Double.POSITIVE_INFINITY;
+            for (int i = 0; i < candidates.size(); i++) {
+                if (candidates.get(i)[2] == width) {
+                    m = Math.min(m, cost.get(i));
+                }
+            }
+            return m;
+        }
+    }
+
+    private static Fits fits(double[] ratio, Axis a) {
         int n = ratio.length;
         double[] deficit = deficit(ratio, a.starts(), a.width(), REFINE);
+        double[] dev = new double[n];
+        double med = RobustStats.median(deficit, n);
+        for (int i = 0; i < n; i++) {
+            dev[i] = Math.abs(deficit[i] - med);
+        }
+        double spread = Math.max(1e-6, RobustStats.MAD_TO_SIGMA * RobustStats.median(dev, n));
         int first = a.starts()[0];
         int k = a.starts().length;
-        int[] free = null;
-        double freeCost = Double.POSITIVE_INFINITY;
+        List<int[]> free = new ArrayList<>();
+        List<Double> freeCost = new ArrayList<>();
+        int[] best = null;
+        double bestCost = Double.POSITIVE_INFINITY;
         for (int pitch = a.step() - 2; pitch <= a.step() + 2; pitch++) {
             for (int start = first - REFINE; start <= first + REFINE; start++) {
                 for (int wdt = MIN_WIDTH; wdt <= MAX_WIDTH; wdt++) {
-                    double cost = cost(deficit, a.starts(), start, pitch, wdt);
-                    if (cost < freeCost) {
-                        freeCost = cost;
-                        free = new int[] {pitch, start, wdt};
+                    double cost = cost(deficit, a.starts(), start, pitch, wdt) / (spread * spread);
+                    free.add(new int[] {pitch, start, wdt});
+                    freeCost.add(cost);
+                    if (cost < bestCost) {
+                        bestCost = cost;
+                        best = new int[] {pitch, start, wdt};
                     }
                 }
             }
         }
-        int[] best = free;
-        double uncroppedCost = Double.POSITIVE_INFINITY;
-        for (int pitch = free[0] - 2; pitch <= free[0] + 2; pitch++) {
+        List<int[]> uncropped = new ArrayList<>();
+        List<Double> uncroppedCost = new ArrayList<>();
+        for (int pitch = best[0] - 2; pitch <= best[0] + 2; pitch++) {
             int wdt = n - (k + 1) * pitch;
-            if (wdt < MIN_WIDTH || wdt > MAX_WIDTH || Math.abs(pitch - free[1]) > 2 || Math.abs(wdt - free[2]) > 3) {
+            if (wdt < MIN_WIDTH || wdt > MAX_WIDTH || Math.abs(pitch - best[1]) > 2 || Math.abs(wdt - best[2]) > 3) {
                 continue;
             }
-            double cost = cost(deficit, a.starts(), pitch, pitch, wdt);
-            if (cost < uncroppedCost) {
-                uncroppedCost = cost;
-                best = new int[] {pitch, pitch, wdt};
+            uncropped.add(new int[] {pitch, pitch, wdt});
+            uncroppedCost.add(cost(deficit, a.starts(), pitch, pitch, wdt) / (spread * spread));
+        }
+        return uncropped.isEmpty() ? new Fits(a, best[2], free, freeCost)
+                : new Fits(a, best[2], uncropped, uncroppedCost);
+    }
+
+    /**
+     * Both axes with one band width, the overlap the acquisition set for the whole mosaic: the width whose best
+     * candidates on the two axes misfit least together. With two bands per axis the width of one axis alone is only
+     * good to a pixel or two (free widths of one overlap 0-5 px apart between the axes on the draws of tune-d-blend);
+     * the bands of both axes together narrow it and, on an uncropped mosaic, the step with it. Taken only when the
+     * axes' own widths lie within {@link #ONE_OVERLAP} of each other, else each keeps its own.
+     *
+     * @return {x, y}, or null when the axes are fitted apart
+     */
+    private static Axis[] oneOverlap(Fits fx, Fits fy) {
+        if (Math.abs(fx.freeWidth() - fy.freeWidth()) > ONE_OVERLAP) {
+            return null;
+        }
+        int best = 0;
+        double bestCost = Double.POSITIVE_INFINITY;
+        for (int wdt = MIN_WIDTH; wdt <= MAX_WIDTH; wdt++) {
+            double c = fx.least(wdt) + fy.least(wdt);
+            if (c < bestCost) {
+                bestCost = c;
+                best = wdt;
             }
         }
-        int[] starts = new int[k];
-        for (int t = 0; t < k; t++) {
-            starts[t] = best[1] + t * best[0];
-        }
-        return new Axis(best[0], best[2], starts, a.z(), a.depth());
+        return best == 0 ? null : new Axis[] {fx.at(best), fy.at(best)};
     }
 
     /**

@@ -11,6 +11,8 @@ import java.util.Locale;
 import org.junit.jupiter.api.Assumptions;
 import org.junit.jupiter.api.Test;
 
+import org.stackwright.volume.Volume;
+
 /**
  * Blend bands found from the noise ({@link BlendBands}) on invented mosaics of {@link InventedMosaic}, whose tiles are
  * separate noisy exposures blended afterwards. The physics checked: the variance of a weighted mean of independent
@@ -81,6 +83,45 @@ class BlendBandsTest {
         assertNull(miss, miss);
         miss = check(BLEND_ROWS, 49, true);
         assertNull(miss, "row-by-row, 110x130: " + miss);
+    }
+
+    /**
+     * A blended mosaic trimmed on every side (the first tile no longer starts at pixel 0, as in the trimmed draws of
+     * the independent generator): the step and phase come from the bands alone, the uncropped tiling is not taken.
+     * Bands within 2 px and the step within 1 px (two bands per axis: their step is good to about a pixel, see the
+     * sweep over trimmed draws in README); both axes keep the one overlap.
+     */
+    @Test
+    void trimmedBlendedMosaicBandsWithin2Px() {
+        for (long seed : new long[] {45, 46}) {
+            InventedMosaic m = InventedMosaic.make(BLEND_3X3, InventedMosaic.Defects.NONE, false, seed);
+            int left = 13;
+            int top = 7;
+            Volume cut = trim(m.image, left, top, 21, 9);
+            BlendBands.Found f = BlendBands.find(cut);
+            int step = BLEND_3X3.tileW() - BLEND_3X3.overlap();
+            String x = axis("x", f.x(), shift(m.columnSeams[0], left), BLEND_3X3.overlap(), step, false);
+            String y = axis("y", f.y(), shift(m.rowSeams, top), BLEND_3X3.overlap(), step, false);
+            assertNull(x == null ? y : x, "seed " + seed + ": " + f);
+            assertEquals(f.x().width(), f.y().width(), "one overlap on both axes");
+        }
+    }
+
+    private static int[] shift(int[] at, int by) {
+        return Arrays.stream(at).map(a -> a - by).toArray();
+    }
+
+    /** @return the image less these margins */
+    static Volume trim(Volume v, int left, int top, int right, int bottom) {
+        int w = v.width() - left - right;
+        int h = v.height() - top - bottom;
+        float[] out = new float[w * h];
+        for (int y = 0; y < h; y++) {
+            for (int x = 0; x < w; x++) {
+                out[y * w + x] = v.get(x + left, y + top, 0);
+            }
+        }
+        return new Volume(w, h, 1, out, v.voxel());
     }
 
     /** Mosaics without blending (every layout of MosaicSeamTest but the blended ones) and an untiled flat field. */
