@@ -97,8 +97,8 @@ final class SeamComb {
      * Whether the detection running on this thread reads the mosaic as trimmed
      * ({@link #freePhase(java.util.function.Supplier)}): the scoring of teeth near the ends and the ranking of far
      * pitches depend on it. A thread-scoped setting because the combs are scored from several steps of one detection
-     * (tile rows, other axis), which all read the same way and run on the caller's thread (the tile rows' steps,
-     * {@code TileRowSeams}, are another engineer's work in progress: a parameter through them would be cleaner).
+     * (tile rows, other axis), which all read the same way and run on the caller's thread; a reading passed as a
+     * parameter through {@code TileRowSeams} and {@code CombBands} would be plainer and is the intended next form.
      */
     private static final ThreadLocal<Boolean> FREE_PHASE = ThreadLocal.withInitial(() -> false);
 
