@@ -47,11 +47,15 @@ final class CombBands {
         int[] kinks = repeating(e, e.kink, scored(p, n), tooth);
         List<Band> out = new ArrayList<>();
         for (int t : borders) {
-            // the first and last tiles of a mosaic are whole, at least one step wide: a tooth closer than that to an
-            // end is no seam unless it shows one by itself, as a lone edge must (the comb was not scored on it: the
-            // overlap past the last step of a row is no seam)
-            int slack = SeamComb.END_SLACK;
-            if ((n - t < p.pitch() - slack || t < p.pitch() - slack) && nearest(e, t, tooth) <= threshold) {
+            // within MAX_BAND or half a step of an end (an overlap past the last step is no seam; the comb was not
+            // scored there) a tooth must show a seam by itself, as a lone edge must; further in (within a step of an
+            // end only in a trimmed mosaic, whose end tiles are partial) a tooth is a seam as every inner tooth is
+            // (an uncropped reading: the first and last tiles are whole, at least one step wide, so a tooth within a
+            // step of an end must show a seam by itself)
+            boolean nearEnd = SeamComb.freePhase()
+                    ? SeamComb.atEnd(t, n) || SeamComb.withinHalfStep(t, n, p.pitch())
+                    : n - t < p.pitch() - SeamComb.END_SLACK || t < p.pitch() - SeamComb.END_SLACK;
+            if (nearEnd && nearest(e, t, tooth) <= threshold) {
                 continue;
             }
             out.add(band(e, t, steps, kinks, stepWidth, from, to));

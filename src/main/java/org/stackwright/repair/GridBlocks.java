@@ -129,10 +129,105 @@ final class GridBlocks {
     }
 
     /**
+     * The seams of a trimmed mosaic along one axis (its end tiles partial, the grid's phase free), the other axis's
+     * seams known: the blocks of single tiles cut there combine their step evidence at every border as in
+     * {@link #find}, and a comb of free pitch and phase is laid over the combined evidence, judged as
+     * {@link SeamComb}'s (at least two strong teeth and {@link SeamComb#STRONG_SHARE} of all, their summed evidence
+     * over the square root of their number above the seam limit; the most strong teeth less empty ones, then the most
+     * strong teeth, then the fewest empty ones, then the most evidence). No tooth is looked for within
+     * {@link SeamDetector#MAX_BAND} of an end, where an overlap past the last step looks the same.
+     *
+     * @param alongX true for vertical seams (the blocks are tile rows cut at the horizontal seams)
+     * @param cuts {start, end} of the other axis's seam bands, ascending
+     * @return the grid of the one axis (the other axis's step 0; its step from the first and last tooth), or null
+     *     when no comb passes
+     */
+    static Grid trimmed(Volume image, boolean alongX, int[][] cuts, double tooth, double threshold) {
+        int n = alongX ? image.width() : image.height();
+        List<SeamEvidence> blocks = blocks(image, alongX, cuts, alongX ? image.height() : image.width());
+        if (blocks.size() < 2) {
+            return null;
+        }
+        double[] z = new double[n];
+        for (int b = 0; b < n; b++) {
+            double chi = 0;
+            for (SeamEvidence e : blocks) {
+                double step = b > 0 && b < e.length() && e.combStrength(b, tooth) > 0 ? e.step[b] : 0;
+                chi += step * step;
+            }
+            z[b] = SeamEvidence.wilsonHilferty(chi, blocks.size());
+        }
+        int[] bestAt = null;
+        double[] bestZ = null;
+        int bestS = 0;
+        double[] bestRank = null;
+        for (int s = SeamComb.MIN_PITCH; s < n; s++) {
+            for (int p = 0; p < s; p++) {
+                List<Integer> at = new ArrayList<>();
+                List<Double> zs = new ArrayList<>();
+                int strong = 0;
+                double sum = 0;
+                double all = 0;
+                for (int b = p; b < n; b += s) {
+                    if (b <= MAX_BAND || n - b <= MAX_BAND || !SeamComb.inRange(b, n)) {
+                        continue;
+                    }
+                    int top = b;
+                    for (int d = -1; d <= 1; d++) {
+                        if (b + d > 0 && b + d < n && z[b + d] > z[top]) {
+                            top = b + d;
+                        }
+                    }
+                    at.add(top);
+                    zs.add(z[top]);
+                    all += Math.max(0, z[top]);
+                    if (z[top] > tooth) {
+                        strong++;
+                        sum += z[top];
+                    }
+                }
+                int teeth = at.size();
+                if (strong < 2 || strong < SeamComb.STRONG_SHARE * teeth || all / Math.sqrt(teeth) <= threshold) {
+                    continue;
+                }
+                double[] rank = {2 * strong - teeth, strong, -(teeth - strong), sum};
+                if (bestRank == null || java.util.Arrays.compare(rank, bestRank) > 0) {
+                    bestRank = rank;
+                    bestS = s;
+                    bestAt = at.stream().mapToInt(Integer::intValue).toArray();
+                    bestZ = zs.stream().mapToDouble(Double::doubleValue).toArray();
+                }
+            }
+        }
+        if (bestAt == null) {
+            return null;
+        }
+        // the step from the teeth's exact places (their one-pixel windows let neighbouring pitches tie)
+        bestS = Math.round((bestAt[bestAt.length - 1] - bestAt[0]) / (float) (bestAt.length - 1));
+        return alongX ? new Grid(bestS, 0, bestAt, new int[0], bestZ, new double[0])
+                : new Grid(0, bestS, new int[0], bestAt, new double[0], bestZ);
+    }
+
+    /**
      * @return the steps s of grids of m &gt;= 3 whole tiles (0 &lt;= n - m s &lt;= MAX_BAND) that have one of the
      *     {@link #SEEDS} strongest borders of the axis on a tooth (k s within one pixel of it)
      */
     static List<Integer> steps(SeamEvidence e, int n, double tooth) {
+        List<Integer> seeds = seeds(e, n, tooth);
+        List<Integer> out = new ArrayList<>();
+        for (int a : seeds) {
+            for (int k = 1; k * SeamComb.MIN_PITCH <= a + 1; k++) {
+                int s = Math.round(a / (float) k);
+                if (s >= SeamComb.MIN_PITCH && Math.abs(k * s - a) <= 1 && wholeTiles(s, n) && !out.contains(s)) {
+                    out.add(s);
+                }
+            }
+        }
+        return out;
+    }
+
+    /** @return the {@link #SEEDS} strongest borders along the axis, one per {@link SeamDetector#MAX_BAND} */
+    private static List<Integer> seeds(SeamEvidence e, int n, double tooth) {
         List<Integer> seeds = new ArrayList<>();
         for (int i = 0; i < SEEDS; i++) {
             int top = -1;
@@ -151,16 +246,7 @@ final class GridBlocks {
             }
             seeds.add(top);
         }
-        List<Integer> out = new ArrayList<>();
-        for (int a : seeds) {
-            for (int k = 1; k * SeamComb.MIN_PITCH <= a + 1; k++) {
-                int s = Math.round(a / (float) k);
-                if (s >= SeamComb.MIN_PITCH && Math.abs(k * s - a) <= 1 && wholeTiles(s, n) && !out.contains(s)) {
-                    out.add(s);
-                }
-            }
-        }
-        return out;
+        return seeds;
     }
 
     /** @return whether m &gt;= 3 whole tiles of step s fill an axis of n pixels, give or take an overlap */

@@ -10,9 +10,14 @@ package org.stackwright.repair;
  * Edges of narrow lines (a defective column, a thin structure: {@link SeamEvidence#combStrength}) are no
  * teeth. Of all such combs the one with the most strong teeth less teeth without evidence wins (then the most
  * strong teeth, then the fewest teeth without evidence, then one whose tiles start at the image's first pixel, as
- * in an uncropped mosaic, then the smaller pitch, then the largest summed evidence); a multiple of the true pitch
+ * in an uncropped mosaic, then, in a trimmed reading, between pitches more than {@link #FAR} apart the largest summed
+ * evidence, then the
+ * smaller pitch, then the largest summed evidence); a multiple of the true pitch
  * has fewer strong teeth, a fraction of it as many empty teeth as it may catch stray evidence, and a line
- * that does not repeat (a defective column, a structure) cannot fill a comb. The pitch and phase are then refined
+ * that does not repeat (a defective column, a structure) cannot fill a comb. No tooth is scored within a step of an
+ * end of an uncropped mosaic, whose end tiles are whole; in a trimmed reading ({@link #freePhase}) the end tiles are
+ * partial, so a tooth within a step of an end that shows a seam counts ({@link #withinStep}). The
+ * pitch and phase are then refined
  * on the exact border positions. This is a comb filter in the sense of harmonic period estimation (a periodic
  * pulse train matched against the signal; e.g. Hermes, "Measurement of pitch by subharmonic summation", J.
  * Acoust. Soc. Am. 83(1):257-264, 1988, which also explains the preference for the most teeth).
@@ -23,6 +28,13 @@ final class SeamComb {
     static final int MIN_PITCH = 16;
     /** a tooth may lie this much closer to an end than one step: the two edges of a band straddle the border */
     static final int END_SLACK = 6;
+    /**
+     * pitches further apart than this (pixels) cannot explain the same borders: the refinement's reach (3 px) on
+     * either side plus the teeth's one-pixel window; nearer ones are told apart by the smaller pitch (the demo mosaic
+     * of 128 px tiles, whose pitches 126 and 130 both catch its dimmed bands, found 132 when they were compared by
+     * their evidence)
+     */
+    static final int FAR = 7;
     /** share of the teeth of a period that must be strong */
     static final double STRONG_SHARE = 0.6;
 
@@ -67,6 +79,11 @@ final class SeamComb {
             if (anchored() != o.anchored()) {
                 return anchored();
             }
+            if (freePhase() && Math.abs(pitch - o.pitch) > FAR) {
+                // pitches far apart that explain as many teeth (two strong teeth each, as on a trimmed axis of three
+                // tiles, whose end tiles are partial): the stronger evidence, stray steps are weaker than seams
+                return sum > o.sum;
+            }
             if (pitch != o.pitch) {
                 // the teeth's one-pixel windows let pitches a few pixels apart explain the same borders; the exact
                 // refinement that follows moves the pitch up as readily as down
@@ -76,7 +93,65 @@ final class SeamComb {
         }
     }
 
+    /**
+     * Whether the detection running on this thread reads the mosaic as trimmed
+     * ({@link #freePhase(java.util.function.Supplier)}): the scoring of teeth near the ends and the ranking of far
+     * pitches depend on it. A thread-scoped setting because the combs are scored from several steps of one detection
+     * (tile rows, other axis), which all read the same way and run on the caller's thread; a reading passed as a
+     * parameter through {@code TileRowSeams} and {@code CombBands} would be plainer and is the intended next form.
+     */
+    private static final ThreadLocal<Boolean> FREE_PHASE = ThreadLocal.withInitial(() -> false);
+
     private SeamComb() {
+    }
+
+    /** @return whether the detection on this thread reads the mosaic as trimmed (its end tiles partial) */
+    static boolean freePhase() {
+        return FREE_PHASE.get();
+    }
+
+    /**
+     * Runs a detection that reads the mosaic as trimmed: a tooth within a step of an end that shows a seam by itself
+     * counts, pitches far apart are ranked by their evidence. An uncropped mosaic is read first (the default), since
+     * a trimmed reading lets a comb of a wrong pitch catch a seam near an end that a whole end tile explains (a
+     * snake row's shifted seam, measured on draws c-snake-s7204 and s7212 of the independent generator).
+     */
+    static <T> T freePhase(java.util.function.Supplier<T> detection) {
+        boolean was = FREE_PHASE.get();
+        FREE_PHASE.set(true);
+        try {
+            return detection.get();
+        } finally {
+            FREE_PHASE.set(was);
+        }
+    }
+
+    /**
+     * @return whether border b lies within {@link SeamDetector#MAX_BAND} of an image end, where an overlap past the
+     *     last step of an uncropped mosaic (no seam), a snake row's shifted first tooth (no seam) and the border of a
+     *     partial tile of a trimmed mosaic (a seam) cannot be told apart: such a tooth is not scored
+     */
+    static boolean atEnd(int b, int n) {
+        return b <= SeamDetector.MAX_BAND || n - b <= SeamDetector.MAX_BAND;
+    }
+
+    /**
+     * @return whether border b lies closer than one step S to an end: an uncropped mosaic, whose first and last tiles
+     *     are whole, has no seam there, a trimmed one (its first or last tile partial, the grid's phase free) does.
+     *     Such a tooth counts when its evidence exceeds the seam limit and is not held against the comb when it does
+     *     not
+     */
+    static boolean withinStep(int b, int n, int s) {
+        return n - b < s - END_SLACK || b < s - END_SLACK;
+    }
+
+    /**
+     * @return whether border b lies within half a step (and {@link #END_SLACK}) of an end: twice the pitch of an
+     *     uncropped mosaic with an even number of tiles puts its end teeth exactly there, so a partial tile that short
+     *     cannot be told from a comb of double pitch; it is left to the smaller pitch (no tooth counted there)
+     */
+    static boolean withinHalfStep(int b, int n, int s) {
+        return n - b <= s / 2 + END_SLACK || b <= s / 2 + END_SLACK;
     }
 
     /** @return whether border b is far enough from the image ends for the evidence to be defined */
@@ -198,16 +273,22 @@ final class SeamComb {
         double sum = 0;
         double all = 0;
         for (int b = p; b < n; b += s) {
-            // the first and last tiles are whole, at least one step wide: no tooth is expected closer than that to
-            // either end (an overlap extends the image past the last step, a snake row starts with a shifted seam)
-            if (!inRange(b, n) || n - b < s - END_SLACK || b < s - END_SLACK) {
+            // teeth near the ends: an uncropped mosaic's end tiles are whole (no seam within a step of an end, an
+            // overlap past the last step, a snake row's shifted first tooth), a trimmed one's are partial (a seam)
+            if (!inRange(b, n) || (freePhase() ? atEnd(b, n) : withinStep(b, n, s))) {
                 continue;
             }
-            teeth++;
             double t = 0;
             for (int d = -window; d <= window; d++) {
                 t = Math.max(t, e.peak(b + d, toothLimit));
             }
+            // a tooth within a step of an end counts only where it shows a seam by itself, as a lone edge must:
+            // stray steps near the ends, counted at the tooth limit, made combs of uncropped mosaics whose seams are
+            // faint (measured on committed draws: a-steps-1 got a pitch of 112 for 100)
+            if (withinStep(b, n, s) && (t <= seamLimit || withinHalfStep(b, n, s))) {
+                continue;
+            }
+            teeth++;
             all += t;
             if (t > toothLimit) {
                 strong++;

@@ -137,6 +137,51 @@ public final class SeamDetector {
      * @param stepWidth band width given to a lone step or corner, pixels
      */
     public static Found detect(Volume image, double threshold, int stepWidth) {
+        Found whole = detectOnce(image, threshold, stepWidth);
+        if (uncropped(whole.tiling(), image.width(), image.height())) {
+            return whole;
+        }
+        // no uncropped tiling on both axes: the mosaic may have been trimmed (its end tiles partial, the grid's phase
+        // free); that reading is taken when it finds the step on more axes, or on as many where the uncropped reading
+        // found a tiling that does not start at the first pixel
+        Found trimmed = SeamComb.freePhase(() -> detectOnce(image, threshold, stepWidth));
+        int a = axes(whole.tiling());
+        int b = axes(trimmed.tiling());
+        return b > a || b == a && a > 0 ? trimmed : whole;
+    }
+
+    /** @return the number of axes with a step */
+    private static int axes(Tiling t) {
+        return (t.stepX() > 0 ? 1 : 0) + (t.stepY() > 0 ? 1 : 0);
+    }
+
+    /**
+     * @return whether both axes have a step and every phase found starts the tiles at the first pixel and ends them
+     *     at the last, give or take an overlap (up to {@link #MAX_BAND}; a snake row starts at the overlap)
+     */
+    static boolean uncropped(Tiling t, int w, int h) {
+        if (t.stepX() <= 0 || t.stepY() <= 0 || !whole(t.phaseY(), t.stepY(), h)) {
+            return false;
+        }
+        for (int p : t.phaseX()) {
+            if (p >= 0 && !whole(p, t.stepX(), w)) {
+                return false;
+            }
+        }
+        return true;
+    }
+
+    /**
+     * @return whether tiles of step s at phase p start within MAX_BAND of 0 and end within MAX_BAND of n (a phase up to
+     *     3 px short of a step, as {@link SeamComb.Period#anchored}, counts as 0)
+     */
+    private static boolean whole(int p, int s, int n) {
+        int a = Math.floorMod(p, s);
+        int r = Math.floorMod(n - a, s);
+        return (a <= MAX_BAND || s - a <= 3) && (r <= MAX_BAND || s - r <= 3);
+    }
+
+    private static Found detectOnce(Volume image, double threshold, int stepWidth) {
         int w = image.width();
         int h = image.height();
         double tooth = threshold / 2;
@@ -199,7 +244,10 @@ public final class SeamDetector {
         }
         // an axis still without a period: the shading every tile shares may show the step (SeamTemplate)
         String folded = "";
-        if (py == null) {
+        // (the rules of an uncropped mosaic below, folds at phase 0, gap tilings from the first pixel and two halves,
+        // are not read into a trimmed mosaic: there they fitted specimen lines, measured on crop-check e-lines-s20400)
+        boolean whole = !SeamComb.freePhase();
+        if (py == null && whole) {
             SeamTemplate.Profiles alongY = SeamTemplate.profiles(image, false);
             SeamTemplate.Fold fy = SeamTemplate.find(alongY, anchors(rows), GapTiling.starts(image, rows, false));
             if (fy != null && fy.found() && ShadingRules.backed(alongY, fy)) {
@@ -211,14 +259,14 @@ public final class SeamDetector {
         }
         // an axis still without a period whose gaps of zeros, with its length, leave one coarsest tiling of three tiles
         // or more (two tiles: the halves below)
-        int gy = py == null ? GapTiling.step(GapTiling.starts(image, rows, false), h) : 0;
+        int gy = py == null && whole ? GapTiling.step(GapTiling.starts(image, rows, false), h) : 0;
         if (gy > 0 && h / gy >= 3) {
             folded += "y=gaps";
             py = new SeamComb.Period(gy, 0, 0, 0, 0);
             rows = GapTiling.onGrid(rows, gy, h, stepWidth, 0, w);
             c = recut(image, shading, rows, c, tooth, threshold, stepWidth);
         }
-        if (c.step() == 0) {
+        if (c.step() == 0 && whole) {
             SeamTemplate.Profiles px = shading.alongX();
             List<Band> kept = c.bands();
             SeamTemplate.Fold fx = SeamTemplate.find(px, anchors(kept), GapTiling.starts(image, kept, true));
@@ -254,8 +302,15 @@ public final class SeamDetector {
             int[][] cutsY = askY ? null : spans(rows);
             int[][] cutsX = askX ? null : spans(c.bands());
             GridBlocks.Grid g = GridBlocks.find(image, cutsX, cutsY, ex, ey, tooth, threshold);
+            boolean free = false;
+            if (g == null && SeamComb.freePhase() && askX != askY) {
+                // a trimmed mosaic: the grid's phase is free, the other axis's seams cut the blocks
+                g = GridBlocks.trimmed(image, askX, askX ? cutsY : cutsX, tooth, threshold);
+                free = true;
+            }
             // a snake order's tile rows in two phases (SnakeBlocks), where that grid scores better than one phase
-            SnakeBlocks.Snake sn = askX && !askY && !rows.isEmpty()
+            // (an uncropped snake only: its shifted rows are read at the width's phase)
+            SnakeBlocks.Snake sn = whole && askX && !askY && !rows.isEmpty()
                     ? SnakeBlocks.find(image, cutsY, ex, tooth, threshold) : null;
             if (sn != null && (g == null || sn.score() > SnakeBlocks.scoreX(g, tooth))) {
                 c = TileRowSeams.snake(rows, sn, tooth, stepWidth, w, h, c.blend());
@@ -263,7 +318,8 @@ public final class SeamDetector {
             }
             if (g != null) {
                 if (askY) {
-                    py = new SeamComb.Period(g.stepY(), 0, g.teethY().length, g.teethY().length, 0);
+                    int phase = free ? g.teethY()[0] % g.stepY() : 0;
+                    py = new SeamComb.Period(g.stepY(), phase, g.teethY().length, g.teethY().length, 0);
                     rows = gridBands(g.teethY(), g.zY(), stepWidth, h, 0, w);
                     if (!askX) {
                         // the vertical seams were searched over the whole height: again in the tile rows now cut
@@ -273,17 +329,18 @@ public final class SeamDetector {
                 if (askX) {
                     SeamComb.Period[] per = new SeamComb.Period[c.periods().length];
                     Arrays.fill(per, new SeamComb.Period(g.stepX(), 0, g.teethX().length, g.teethX().length, 0));
-                    c = new Columns(gridBands(g.teethX(), g.zX(), stepWidth, w, 0, h), per,
-                            new int[c.phases().length], c.blend(), g.stepX());
+                    int[] ph = new int[c.phases().length];
+                    Arrays.fill(ph, free ? g.teethX()[0] % g.stepX() : 0);
+                    c = new Columns(gridBands(g.teethX(), g.zX(), stepWidth, w, 0, h), per, ph, c.blend(), g.stepX());
                 }
             }
         }
         // two tiles along an axis: one seam that cuts it into two whole tiles (give or take an overlap) is the step
-        if (py == null && rows.size() == 1 && halves(rows.get(0), h)) {
+        if (py == null && whole && rows.size() == 1 && halves(rows.get(0), h)) {
             py = new SeamComb.Period(anchors(rows)[0], 0, 0, 0, 0);
             folded += "y=2";
         }
-        if (c.step() == 0 && halvesAll(c, w)) {
+        if (c.step() == 0 && whole && halvesAll(c, w)) {
             c = new Columns(c.bands(), c.periods(), c.phases(), c.blend(), anchors(c.bands())[0]);
             folded += "x=2";
         }
