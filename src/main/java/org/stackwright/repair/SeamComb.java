@@ -11,14 +11,12 @@ package org.stackwright.repair;
  * teeth. Of all such combs the one with the most strong teeth less teeth without evidence wins (then the most
  * strong teeth, then the fewest teeth without evidence, then one whose tiles start at the image's first pixel, as
  * in an uncropped mosaic, then, in a trimmed reading, between pitches more than {@link #FAR} apart the largest summed
- * evidence, then the
- * smaller pitch, then the largest summed evidence); a multiple of the true pitch
- * has fewer strong teeth, a fraction of it as many empty teeth as it may catch stray evidence, and a line
- * that does not repeat (a defective column, a structure) cannot fill a comb. No tooth is scored within a step of an
- * end of an uncropped mosaic, whose end tiles are whole; in a trimmed reading ({@link #freePhase}) the end tiles are
- * partial, so a tooth within a step of an end that shows a seam counts ({@link #withinStep}). The
- * pitch and phase are then refined
- * on the exact border positions. This is a comb filter in the sense of harmonic period estimation (a periodic
+ * evidence, then the smaller pitch, then the largest summed evidence); a multiple of the true pitch has fewer strong
+ * teeth, a fraction of it as many empty teeth as it may catch stray evidence, and a line that does not repeat (a
+ * defective column, a structure) cannot fill a comb. No tooth is scored within a step of an end of an uncropped
+ * mosaic, whose end tiles are whole; in a trimmed reading ({@link #freePhase}) the end tiles are partial, so a tooth
+ * within a step of an end that shows a seam counts ({@link #withinStep}). The pitch and phase are then refined on the
+ * exact border positions. This is a comb filter in the sense of harmonic period estimation (a periodic
  * pulse train matched against the signal; e.g. Hermes, "Measurement of pitch by subharmonic summation", J.
  * Acoust. Soc. Am. 83(1):257-264, 1988, which also explains the preference for the most teeth).
  */
