@@ -88,7 +88,8 @@ public final class SeamDetector {
      * @param folded the axes ("x", "y", "yx") whose step came from the shading every tile shares
      *     ({@link SeamTemplate}), because their seams are too faint at each border, and ("x=2", "y=2") those with two
      *     tiles, whose step is the one seam that cuts the axis into two whole tiles, and ("x=gaps", "y=gaps") those
-     *     whose step the gaps of zeros and the axis's length fix ({@link GapTiling}); else ""
+     *     whose step the gaps of zeros and the axis's length fix ({@link GapTiling}), and {@link #TRIMMED} when the
+     *     mosaic was read as trimmed; else ""
      */
     public record Tiling(int stepX, int stepY, int[] phaseX, int phaseY, int overlapX, int blendX, int blendY,
             String borrowed, String folded) {
@@ -147,8 +148,19 @@ public final class SeamDetector {
         Found trimmed = SeamComb.freePhase(() -> detectOnce(image, threshold, stepWidth));
         int a = axes(whole.tiling());
         int b = axes(trimmed.tiling());
-        return b > a || b == a && a > 0 ? trimmed : whole;
+        if (!(b > a || b == a && a > 0)) {
+            return whole;
+        }
+        // the report says which reading was taken: seams near the image's ends are less certain in it
+        Tiling t = trimmed.tiling();
+        Tiling marked = new Tiling(t.stepX(), t.stepY(), t.phaseX(), t.phaseY(), t.overlapX(), t.blendX(), t.blendY(),
+                t.borrowed(), t.folded() + TRIMMED);
+        return new Found(trimmed.columns(), trimmed.rows(), trimmed.regular(), marked, trimmed.columnLines(),
+                trimmed.rowLines());
     }
+
+    /** the mark in {@link Tiling#folded} of a mosaic read as trimmed (its end tiles partial, the grid's phase free) */
+    static final String TRIMMED = "trimmed";
 
     /** @return the number of axes with a step */
     private static int axes(Tiling t) {

@@ -44,8 +44,9 @@ import org.stackwright.volume.Volume;
  */
 class IndependentMosaicSeamTest {
 
-    /** one committed draw per layout (the first variant; the sweep draws both variants) */
-    static final String[] NAMES = {"a-steps-1", "b-shading-1", "c-snake-1", "d-blend-1", "e-lines-1", "f-single-1"};
+    /** one committed draw per layout (the first variant; the sweep draws both variants) and one trimmed draw */
+    static final String[] NAMES = {"a-steps-1", "b-shading-1", "c-snake-1", "d-blend-1", "e-lines-1", "f-single-1",
+        "a-steps-trimmed-1"};
 
     /**
      * The misses measured on the committed files (file -> problems as printed), NOT goals: the detector fails the

@@ -71,6 +71,28 @@ class RepairCommandLineTest {
         }
     }
 
+    /**
+     * A trimmed mosaic (made outside the project: {@code tools/reference/make_mosaics.py}, draw a-steps-trimmed-1, its
+     * first tiles partial) is read as trimmed and the run says so, in words and in the record; the demo mosaic, whole
+     * tiles from the first pixel, is not.
+     */
+    @Test
+    void aTrimmedMosaicIsReportedAsRead() throws Exception {
+        Path trimmed = Path.of(RepairCommandLineTest.class.getResource("/reference/mosaics/a-steps-trimmed-1.tif")
+                .toURI());
+        Path record = dir.resolve("trimmed.json");
+        assertEquals(Main.OK, run("seam-mask", "--detect", "--input", trimmed.toString(), "--output",
+                dir.resolve("trimmed-seams.tif").toString(), "--record", record.toString()), err.toString());
+        assertTrue(Files.readString(record).replaceAll("\\s", "").contains("\"read_as_trimmed\":true"),
+                Files.readString(record));
+        assertTrue(out.toString().contains("read as a trimmed mosaic"), out.toString());
+        Path whole = dir.resolve("whole.json");
+        assertEquals(Main.OK, run("seam-mask", "--detect", "--input", demo("demo-tiles.tif").toString(), "--output",
+                dir.resolve("whole-seams.tif").toString(), "--record", whole.toString()), err.toString());
+        assertTrue(Files.readString(whole).replaceAll("\\s", "").contains("\"read_as_trimmed\":false"),
+                Files.readString(whole));
+    }
+
     @Test
     void refusalsNameTheSetting() throws Exception {
         Path all = dir.resolve("all.tif");
