@@ -56,7 +56,7 @@ final class GridBlocks {
     }
 
     /** One axis tested: its teeth at their best offset and the combined evidence of each, or null. */
-    private record Axis(int step, int[] teeth, double[] z, double sum, int strong) {
+    record Axis(int step, int[] teeth, double[] z, double sum, int strong) {
     }
 
     private GridBlocks() {
@@ -301,6 +301,15 @@ final class GridBlocks {
         if (blocks.size() < 2) {
             return null;
         }
+        Axis a = teethOverBlocks(blocks, new int[blocks.size()], s, n, tooth);
+        return a.strong() > 0 && 2 * a.strong() >= a.teeth().length ? a : null;
+    }
+
+    /**
+     * The grid's teeth of step s over an axis of n pixels, each placed within a pixel where the squared step
+     * evidence summed over the blocks (each read shift[k] px further on) is largest, as a z (Wilson-Hilferty).
+     */
+    static Axis teethOverBlocks(List<SeamEvidence> blocks, int[] shift, int s, int n, double tooth) {
         int[] t = teeth(s, n);
         int[] at = new int[t.length];
         double[] z = new double[t.length];
@@ -310,8 +319,9 @@ final class GridBlocks {
             z[i] = Double.NEGATIVE_INFINITY;
             for (int d = -1; d <= 1; d++) {
                 double chi = 0;
-                for (SeamEvidence e : blocks) {
-                    int b = t[i] + d;
+                for (int k = 0; k < blocks.size(); k++) {
+                    SeamEvidence e = blocks.get(k);
+                    int b = t[i] + d + shift[k];
                     double step = b > 0 && b < e.length() && e.combStrength(b, tooth) > 0 ? e.step[b] : 0;
                     chi += step * step;
                 }
@@ -324,6 +334,6 @@ final class GridBlocks {
             strong += z[i] > tooth ? 1 : 0;
             sum += Math.max(0, z[i]);
         }
-        return strong > 0 && 2 * strong >= t.length ? new Axis(s, at, z, sum, strong) : null;
+        return new Axis(s, at, z, sum, strong);
     }
 }

@@ -82,35 +82,19 @@ final class SnakeBlocks {
         if (even == 0 || even == row.size()) {
             return null;
         }
-        int[] t = GridBlocks.teeth(s, w);
-        int[] at = new int[t.length];
-        double[] z = new double[t.length];
-        double sum = 0;
-        int strong = 0;
-        for (int i = 0; i < t.length; i++) {
-            z[i] = Double.NEGATIVE_INFINITY;
-            for (int d = -1; d <= 1; d++) {
-                double chi = 0;
-                for (int k = 0; k < blocks.size(); k++) {
-                    SeamEvidence e = blocks.get(k);
-                    int b = t[i] + d + (row.get(k) % 2 == parity ? shift : 0);
-                    double step = b > 0 && b < e.length() && e.combStrength(b, tooth) > 0 ? e.step[b] : 0;
-                    chi += step * step;
-                }
-                double zc = SeamEvidence.wilsonHilferty(chi, blocks.size());
-                if (zc > z[i]) {
-                    z[i] = zc;
-                    at[i] = t[i] + d;
-                }
-            }
-            strong += z[i] > tooth ? 1 : 0;
-            sum += Math.max(0, z[i]);
+        int[] shifts = new int[blocks.size()];
+        for (int k = 0; k < shifts.length; k++) {
+            shifts[k] = row.get(k) % 2 == parity ? shift : 0;
         }
+        GridBlocks.Axis ax = GridBlocks.teethOverBlocks(blocks, shifts, s, w, tooth);
+        int[] t = ax.teeth();
+        int strong = ax.strong();
+        double sum = ax.sum();
         if (strong < 2 || 2 * strong < t.length || strong < SeamComb.STRONG_SHARE * t.length
                 || sum / Math.sqrt(t.length) <= threshold) {
             return null;
         }
-        return new Snake(s, shift, parity, at, z, score(strong, t.length, sum));
+        return new Snake(s, shift, parity, t, ax.z(), score(strong, t.length, sum));
     }
 
     /** @return the score of {@link GridBlocks}: the most strong teeth less empty ones, then the most evidence */
