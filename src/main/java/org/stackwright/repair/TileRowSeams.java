@@ -106,10 +106,52 @@ final class TileRowSeams {
     static void confirmRows(List<SeamEvidence> ex, SeamComb.Period[] px, double tooth) {
         SeamComb.Period found = agreed(px);
         for (int s = 0; s < px.length && found != null; s++) {
-            if (px[s] == null && SeamComb.score(ex.get(s), found.pitch(), found.phase(), 1, tooth, tooth, 1) != null) {
+            if (px[s] == null && (SeamComb.score(ex.get(s), found.pitch(), found.phase(), 1, tooth, tooth, 1) != null
+                    || gridRow(ex.get(s), found, tooth))) {
                 px[s] = new SeamComb.Period(found.pitch(), found.phase(), 0, 0, 0);
             }
         }
+    }
+
+    /**
+     * @return whether a tile row whose own steps are too faint to confirm the agreed comb is still better read as a
+     *     row of the grid than as a snake's shifted row: its evidence at the agreed teeth is positive and, when a
+     *     snake shift is possible, larger than at every phase shifted by 3 px up to {@link SeamDetector#MAX_BAND}
+     *     (a covered overlap, as {@link #snakeRows} and {@link #snakeStands} read one). An uncropped image exactly a
+     *     whole number of steps wide, or wider by less than 3 px or more than that band, has no covered overlap,
+     *     hence no snake shift: every tile row of a grid has its seams.
+     */
+    static boolean gridRow(SeamEvidence e, SeamComb.Period found, double tooth) {
+        int pitch = found.pitch();
+        double here = teethSum(e, pitch, found.phase(), tooth);
+        if (here <= 0) {
+            return false;
+        }
+        int over = Math.floorMod(e.length(), pitch);
+        if (!SeamComb.freePhase() && (over < 3 || over > SeamDetector.MAX_BAND)) {
+            return true;
+        }
+        for (int d = 3; d <= SeamDetector.MAX_BAND && 2 * d < pitch; d++) {
+            for (int sign = -1; sign <= 1; sign += 2) {
+                if (teethSum(e, pitch, Math.floorMod(found.phase() + sign * d, pitch), tooth) >= here) {
+                    return false;
+                }
+            }
+        }
+        return true;
+    }
+
+    /** @return the peak evidence summed over the teeth of comb (pitch, phase), each looking a pixel aside */
+    private static double teethSum(SeamEvidence e, int pitch, int phase, double tooth) {
+        double sum = 0;
+        for (int b : new SeamComb.Period(pitch, phase, 0, 0, 0).borders(e.length())) {
+            double t = 0;
+            for (int d = -1; d <= 1; d++) {
+                t = Math.max(t, e.peak(b + d, tooth));
+            }
+            sum += t;
+        }
+        return sum;
     }
 
     /** @return the comb of the tile rows that have one when all of them share its phase, else null */
