@@ -22,6 +22,21 @@ final class SeamReport {
     private SeamReport() {
     }
 
+    /**
+     * @return where the tiles start along an axis, modulo the step: the centre of the first seam band found (the comb's
+     *     phase is the border its edges gave, which for a dimmed band of a few pixels is the band's far edge, 2 px
+     *     past the border on the demo mosaic), else the comb's phase, else 0
+     */
+    static int origin(List<SeamDetector.Band> seams, int step, int phase) {
+        if (step <= 0) {
+            return 0;
+        }
+        if (!seams.isEmpty()) {
+            return Math.floorMod(seams.get(0).centre(), step);
+        }
+        return phase >= 0 ? Math.floorMod(phase, step) : 0;
+    }
+
     /** Records and reports a detection. */
     static void detected(SeamDetector.Found f, int w, int h, Result r, RunContext ctx) {
         SeamDetector.Tiling t = f.tiling();
@@ -31,9 +46,9 @@ final class SeamReport {
         Map<String, Object> tiling = new LinkedHashMap<>();
         tiling.put("step_x", t.stepX());
         tiling.put("step_y", t.stepY());
-        tiling.put("origin_x", t.stepX() > 0 && t.phaseX().length > 0 && t.phaseX()[0] >= 0
-                ? Math.floorMod(t.phaseX()[0], t.stepX()) : 0);
-        tiling.put("origin_y", t.stepY() > 0 ? Math.floorMod(t.phaseY(), t.stepY()) : 0);
+        tiling.put("origin_x", origin(f.columns().stream().filter(b -> b.from() == 0).toList(), t.stepX(),
+                t.phaseX().length > 0 ? t.phaseX()[0] : -1));
+        tiling.put("origin_y", origin(f.rows(), t.stepY(), t.phaseY()));
         String order = t.overlapX() > 0 ? "snake" : t.blendX() > 0 || t.blendY() > 0
                 ? "row-by-row or snake (blending looks the same in both)" : "row-by-row or snake without overlap";
         tiling.put("order", order);

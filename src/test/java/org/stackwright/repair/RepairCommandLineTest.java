@@ -86,10 +86,16 @@ class RepairCommandLineTest {
         assertTrue(Files.readString(record).replaceAll("\\s", "").contains("\"read_as_trimmed\":true"),
                 Files.readString(record));
         assertTrue(out.toString().contains("read as a trimmed mosaic"), out.toString());
+        // the truth of the draw (make_mosaics.py, truth.txt): first seams at x = 92, y = 82, steps 100 x 90
+        assertTrue(Files.readString(record).replaceAll("\\s", "").contains("\"origin_x\":92,\"origin_y\":82"),
+                Files.readString(record));
         Path whole = dir.resolve("whole.json");
         assertEquals(Main.OK, run("seam-mask", "--detect", "--input", demo("demo-tiles.tif").toString(), "--output",
                 dir.resolve("whole-seams.tif").toString(), "--record", whole.toString()), err.toString());
         assertTrue(Files.readString(whole).replaceAll("\\s", "").contains("\"read_as_trimmed\":false"),
+                Files.readString(whole));
+        // the demo mosaic's tiles start at pixel 0 (3 x 4 tiles of 128 px over 512 x 384: test-images/README.md)
+        assertTrue(Files.readString(whole).replaceAll("\\s", "").contains("\"origin_x\":0,\"origin_y\":0"),
                 Files.readString(whole));
     }
 
