@@ -88,11 +88,12 @@ public final class SeamDetector {
      * @param folded the axes ("x", "y", "yx") whose step came from the shading every tile shares
      *     ({@link SeamTemplate}), because their seams are too faint at each border, and ("x=2", "y=2") those with two
      *     tiles, whose step is the one seam that cuts the axis into two whole tiles, and ("x=gaps", "y=gaps") those
-     *     whose step the gaps of zeros and the axis's length fix ({@link GapTiling}), and {@link #TRIMMED} when the
-     *     mosaic was read as trimmed; else ""
+     *     whose step the gaps of zeros and the axis's length fix ({@link GapTiling}); else ""
+     * @param trimmed whether the mosaic was read as trimmed (its end tiles partial, the grid's phase free): the seams
+     *     near its ends are the least certain
      */
     public record Tiling(int stepX, int stepY, int[] phaseX, int phaseY, int overlapX, int blendX, int blendY,
-            String borrowed, String folded) {
+            String borrowed, String folded, boolean trimmed) {
     }
 
     /**
@@ -148,19 +149,10 @@ public final class SeamDetector {
         Found trimmed = SeamComb.freePhase(() -> detectOnce(image, threshold, stepWidth));
         int a = axes(whole.tiling());
         int b = axes(trimmed.tiling());
-        if (!(b > a || b == a && a > 0)) {
-            return whole;
-        }
-        // the report says which reading was taken: seams near the image's ends are less certain in it
-        Tiling t = trimmed.tiling();
-        Tiling marked = new Tiling(t.stepX(), t.stepY(), t.phaseX(), t.phaseY(), t.overlapX(), t.blendX(), t.blendY(),
-                t.borrowed(), t.folded() + TRIMMED);
-        return new Found(trimmed.columns(), trimmed.rows(), trimmed.regular(), marked, trimmed.columnLines(),
-                trimmed.rowLines());
+        // (the tiling says which reading was taken: seams near the image's ends are less certain in a trimmed one)
+        return b > a || b == a && a > 0 ? trimmed : whole;
     }
 
-    /** the mark in {@link Tiling#folded} of a mosaic read as trimmed (its end tiles partial, the grid's phase free) */
-    static final String TRIMMED = "trimmed";
 
     /** @return the number of axes with a step */
     private static int axes(Tiling t) {
@@ -368,7 +360,7 @@ public final class SeamDetector {
             }
         }
         Tiling tiling = new Tiling(stepX, py == null ? 0 : py.pitch(), phases, py == null ? -1 : py.phase(),
-                TileRowSeams.snakeShift(phases, stepX), blendX, blendY, borrowed, folded);
+                TileRowSeams.snakeShift(phases, stepX), blendX, blendY, borrowed, folded, !whole);
         boolean regular = (py != null || rows.isEmpty()) && (stepX > 0 || cols.isEmpty());
         List<Line> colLines = LoneEdges.lines(ex, cols, threshold);
         List<Line> rowLines = LoneEdges.lines(ey, rows, threshold);

@@ -57,8 +57,7 @@ final class SeamReport {
         tiling.put("tile_width", t.stepX() > 0 && overlap > 0 ? t.stepX() + overlap : t.stepX());
         tiling.put("tile_height", t.stepY() > 0 && overlap > 0 ? t.stepY() + overlap : t.stepY());
         tiling.put("step_from_other_axis", t.borrowed().isEmpty() ? null : t.borrowed());
-        boolean trimmed = t.folded().contains(SeamDetector.TRIMMED);
-        String shaded = t.folded().replace(SeamDetector.TRIMMED, "").replace("x=gaps", "").replace("y=gaps", "")
+        String shaded = t.folded().replace("x=gaps", "").replace("y=gaps", "")
                 .replace("x=2", "").replace("y=2", "");
         String gapped = (t.folded().contains("x=gaps") ? "x" : "") + (t.folded().contains("y=gaps") ? "y" : "");
         String halved = (t.folded().contains("x=2") ? "x" : "") + (t.folded().contains("y=2") ? "y" : "");
@@ -68,7 +67,7 @@ final class SeamReport {
         String noise = (f.columns().stream().anyMatch(b -> b.looks().contains("noise")) ? "x" : "")
                 + (f.rows().stream().anyMatch(b -> b.looks().contains("noise")) ? "y" : "");
         tiling.put("blend_from_noise", noise.isEmpty() ? null : noise);
-        tiling.put("read_as_trimmed", trimmed);
+        tiling.put("read_as_trimmed", t.trimmed());
         r.record("tiling", tiling);
         r.record("lines_not_seams", Map.of("vertical", lines(f.columnLines()), "horizontal", lines(f.rowLines())));
         int[] cx = SeamDetector.centres(f.columns());
@@ -82,7 +81,7 @@ final class SeamReport {
                     + "%s x %s px", overlap, tiling.get("tile_width"), tiling.get("tile_height"))
                     : "; an overlap covered by the later tile is not visible: the tiles may be larger than the step"));
         }
-        if (trimmed) {
+        if (t.trimmed()) {
             r.line("no tiling runs whole from the image's first pixel to its last: read as a trimmed mosaic (end tiles "
                     + "partial, origin free); seams near the image's ends are the least certain, check them or give the "
                     + "layout (--grid, --tile, --overlap)");

@@ -171,9 +171,9 @@ class IndependentMosaicSeamTest {
         List<String> problems = problems(t, f);
         SeamDetector.Tiling tl = f.tiling();
         System.out.printf(Locale.ROOT, "%-12s step %dx%d (true %dx%d), overlap seen %d (true %d), blend %dx%d, "
-                + "step from the other axis '%s', from the shading '%s', looks x=%s y=%s, lines not seams x=%s; %s%n",
+                + "step from the other axis '%s', from the shading '%s', read as trimmed %s, looks x=%s y=%s, lines not seams x=%s; %s%n",
                 t.name(), tl.stepX(), tl.stepY(), t.stepX(), t.stepY(), tl.overlapX(), t.overlap(), tl.blendX(),
-                tl.blendY(), tl.borrowed(), tl.folded(), looks(f.columns()), looks(f.rows()),
+                tl.blendY(), tl.borrowed(), tl.folded(), tl.trimmed(), looks(f.columns()), looks(f.rows()),
                 f.columnLines().stream().map(SeamDetector.Line::position).toList(),
                 problems.isEmpty() ? "all seams within 2 px, nothing else, step exact" : problems);
         // defect columns and filaments are never inside a seam band (held on every file)
