@@ -57,7 +57,7 @@ final class OperationRunner {
                 OptionSpec.Builder b = OptionSpec.builder("--" + name).type(String.class).description(describe(p))
                         .hidden(!name.equals(p.key()));
                 if (p.kind() == Param.Kind.FLAG) {
-                    b.arity("0..1").fallbackValue("true").paramLabel("");
+                    b.arity("0..1").fallbackValue("true").paramLabel("true|false");
                 } else {
                     b.arity("1").paramLabel(label(p));
                 }
