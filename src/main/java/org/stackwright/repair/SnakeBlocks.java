@@ -79,7 +79,10 @@ final class SnakeBlocks {
      * either way (a covered overlap; the direction says which parity was placed right to left). Per tooth the squared
      * z-scores of the blocks add as a chi-square (each block within one common pixel of the tooth); a tooth within
      * {@link SeamDetector#MAX_BAND} of an end, in either parity, is not looked for. Judged and ranked as
-     * {@link GridBlocks#trimmed} judges its combs.
+     * {@link GridBlocks#trimmed} judges its combs; with the shift searched too, the rows of each parity must also show
+     * their own seams, strong in at least half the teeth (as {@link GridBlocks} asks of each axis of a grid), else
+     * stray steps in one parity make a grid (measured: check c-snake s20207, uncropped but read as trimmed, gave step
+     * 91 for 110 with one strong tooth per parity asked; asking {@link SeamComb#STRONG_SHARE} lost crop-tune s7207).
      *
      * @param cutsY {start, end} of the horizontal seam bands found (one per border between tile rows), ascending
      * @return the best snake grid, or null when none passes
@@ -113,6 +116,7 @@ final class SnakeBlocks {
         // per parity, the squared evidence summed over its blocks
         double[] even = new double[n];
         double[] shifted = new double[n];
+        int evenBlocks = sq.size() - odd;
         for (int k = 0; k < sq.size(); k++) {
             double[] into = row.get(k) % 2 == 0 ? even : shifted;
             for (int b = 0; b < n; b++) {
@@ -131,6 +135,8 @@ final class SnakeBlocks {
                     List<Integer> at = new ArrayList<>();
                     List<Double> zs = new ArrayList<>();
                     int strong = 0;
+                    int strongEven = 0;
+                    int strongOdd = 0;
                     double sum = 0;
                     double all = 0;
                     for (int b = p; b < n; b += s) {
@@ -148,6 +154,8 @@ final class SnakeBlocks {
                         }
                         at.add(top);
                         zs.add(zt);
+                        strongEven += SeamEvidence.wilsonHilferty(even[top], evenBlocks) > tooth ? 1 : 0;
+                        strongOdd += SeamEvidence.wilsonHilferty(shifted[top + d], odd) > tooth ? 1 : 0;
                         all += Math.max(0, zt);
                         if (zt > tooth) {
                             strong++;
@@ -155,8 +163,8 @@ final class SnakeBlocks {
                         }
                     }
                     int teeth = at.size();
-                    if (strong < 2 || strong < SeamComb.STRONG_SHARE * teeth
-                            || all / Math.sqrt(teeth) <= threshold) {
+                    if (strong < 2 || strong < SeamComb.STRONG_SHARE * teeth || all / Math.sqrt(teeth) <= threshold
+                            || 2 * strongEven < teeth || 2 * strongOdd < teeth) {
                         continue;
                     }
                     double[] rank = {2 * strong - teeth, strong, -(teeth - strong), sum};
