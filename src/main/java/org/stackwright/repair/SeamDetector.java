@@ -313,9 +313,11 @@ public final class SeamDetector {
                 free = true;
             }
             // a snake order's tile rows in two phases (SnakeBlocks), where that grid scores better than one phase
-            // (an uncropped snake only: its shifted rows are read at the width's phase)
-            SnakeBlocks.Snake sn = whole && askX && !askY && !rows.isEmpty()
-                    ? SnakeBlocks.find(image, cutsY, ex, tooth, threshold) : null;
+            // (an uncropped snake's shifted rows are read at the width's phase; a trimmed one's with step, phase and
+            // shift searched: on crop-tune c-snake it found the seams of s7207, whose rows had no comb of their own)
+            SnakeBlocks.Snake sn = !askX || askY || rows.isEmpty() ? null
+                    : whole ? SnakeBlocks.find(image, cutsY, ex, tooth, threshold)
+                    : SnakeBlocks.trimmed(image, cutsY, tooth, threshold);
             if (sn != null && (g == null || sn.score() > SnakeBlocks.scoreX(g, tooth))) {
                 c = TileRowSeams.snake(rows, sn, tooth, stepWidth, w, h, c.blend());
                 g = null;

@@ -262,7 +262,8 @@ final class TileRowSeams {
      * (within a pixel) where its own steps show the seams: one tooth above the tooth limit and its teeth together
      * (Stouffer's sum) above it too, as {@link #confirmRows} asks of a comb tried with no search (the phase is given
      * by the width, not searched); its phase refined on the exact borders. Off when the length past the last step is
-     * under 3 px or over {@link SeamDetector#MAX_BAND} (no overlap, or not a covered one).
+     * under 3 px or over {@link SeamDetector#MAX_BAND} (no overlap, or not a covered one). A trimmed mosaic's width
+     * gives no overlap: there {@link #shiftedRows} searches the shift.
      */
     static void snakeRows(List<SeamEvidence> ex, SeamComb.Period[] px, double tooth) {
         SeamComb.Period found = agreed(px);
@@ -279,6 +280,10 @@ final class TileRowSeams {
             }
         }
         int pitch = found.pitch();
+        if (parity >= 0 && SeamComb.freePhase()) {
+            shiftedRows(ex, px, found, parity, tooth);
+            return;
+        }
         int overlap = Math.floorMod(ex.get(0).length(), pitch);
         if (parity < 0 || overlap < 3 || overlap > SeamDetector.MAX_BAND) {
             return;
@@ -302,6 +307,45 @@ final class TileRowSeams {
             }
             if (best != null) {
                 px[s] = SeamComb.refine(List.of(ex.get(s)), new SeamComb.Period[] {best}, tooth, true)[0];
+            }
+        }
+    }
+
+    /**
+     * The shifted tile rows of a snake in a trimmed mosaic ({@link SeamComb#freePhase}): its width no longer gives
+     * the overlap, so a stripe without a comb of its own, the stripes with one all of the other parity and sharing a
+     * phase, tries the common pitch at every phase shifted by 3 px up to {@link SeamDetector#MAX_BAND} either way (a
+     * covered overlap, as {@link #snakeStands} reads one; the direction of the shift depends on which parity was
+     * placed right to left). Its own steps must show the seams there as {@link #snakeRows} asks (one tooth above the
+     * tooth limit, the teeth together above it), and more evidence than at the other rows' phase and at every other
+     * shift (as {@link #gridRow} weighs them): the best of some forty phases tried, not one given by the width.
+     */
+    static void shiftedRows(List<SeamEvidence> ex, SeamComb.Period[] px, SeamComb.Period found, int parity,
+            double tooth) {
+        int pitch = found.pitch();
+        for (int s = 0; s < px.length; s++) {
+            if (px[s] != null || s % 2 == parity) {
+                continue;
+            }
+            SeamEvidence e = ex.get(s);
+            int bestPh = -1;
+            double bestSum = teethSum(e, pitch, found.phase(), tooth);
+            for (int d = 3; d <= SeamDetector.MAX_BAND && 2 * d < pitch; d++) {
+                for (int sign = -1; sign <= 1; sign += 2) {
+                    int ph = Math.floorMod(found.phase() + sign * d, pitch);
+                    double sum = teethSum(e, pitch, ph, tooth);
+                    if (sum > bestSum) {
+                        bestSum = sum;
+                        bestPh = ph;
+                    }
+                }
+            }
+            if (bestPh < 0) {
+                continue;
+            }
+            SeamComb.Period c = SeamComb.score(e, pitch, bestPh, 1, tooth, tooth, 1);
+            if (c != null && ShadingRules.gapsOnTeeth(e, c)) {
+                px[s] = SeamComb.refine(List.of(e), new SeamComb.Period[] {c}, tooth, true)[0];
             }
         }
     }
