@@ -140,19 +140,43 @@ public final class SeamDetector {
      */
     public static Found detect(Volume image, double threshold, int stepWidth) {
         Found whole = detectOnce(image, threshold, stepWidth);
-        if (uncropped(whole.tiling(), image.width(), image.height())) {
+        boolean uncropped = uncropped(whole.tiling(), image.width(), image.height());
+        if (uncropped && !foldedAtZero(whole.tiling().folded())) {
             return whole;
         }
         // no uncropped tiling on both axes: the mosaic may have been trimmed (its end tiles partial, the grid's phase
         // free); that reading is taken when it finds the step on more axes, or on as many where the uncropped reading
-        // found a tiling that does not start at the first pixel
+        // found a tiling that does not start at the first pixel. A shading fold assumes the phase 0 it then shows, so
+        // an uncropped tiling with a fold is weighed against the trimmed reading too: where that finds both steps from
+        // the seams' own evidence (no fold), every seam showing by itself (above the seam limit), it is taken
+        // (measured on crop-tune a-steps-s7012: the fold at phase 0 gave 92 x 82 for 100 x 90, which its combs found
+        // trimmed, every seam above 11; combs of teeth at the tooth limit only caught stray steps on shading-only
+        // mosaics of InventedMosaic, ShadingSeamTest 3x3 of 128 with gaps, seed 59)
         Found trimmed = SeamComb.freePhase(() -> detectOnce(image, threshold, stepWidth));
         int a = axes(whole.tiling());
         int b = axes(trimmed.tiling());
+        boolean taken = uncropped
+                ? b == 2 && trimmed.tiling().borrowed().isEmpty() && trimmed.tiling().folded().isEmpty()
+                        && allShow(trimmed, threshold)
+                : b > a || b == a && a > 0;
         // (the tiling says which reading was taken: seams near the image's ends are less certain in a trimmed one)
-        return b > a || b == a && a > 0 ? trimmed : whole;
+        return taken ? trimmed : whole;
     }
 
+    /**
+     * @return whether the marks of {@link Tiling#folded} name a shading fold ("x", "y"; a fold assumes phase 0), not
+     *     only tilings the gaps of zeros or two halves fix
+     */
+    static boolean foldedAtZero(String folded) {
+        String rest = folded.replace("x=gaps", "").replace("y=gaps", "").replace("x=2", "").replace("y=2", "");
+        return rest.contains("x") || rest.contains("y");
+    }
+
+    /** @return whether every band found exceeds the seam limit: each seam shows by itself */
+    private static boolean allShow(Found f, double threshold) {
+        return java.util.stream.Stream.concat(f.columns().stream(), f.rows().stream())
+                .allMatch(b -> b.strength() > threshold);
+    }
 
     /** @return the number of axes with a step */
     private static int axes(Tiling t) {
