@@ -275,10 +275,16 @@ public final class SeamDetector {
         // (the rules of an uncropped mosaic below, folds at phase 0, gap tilings from the first pixel and two halves,
         // are not read into a trimmed mosaic: there they fitted specimen lines, measured on crop-check e-lines-s20400)
         boolean whole = !SeamComb.freePhase();
+        // a fold along an axis where no seam showed by itself, weighed again at the end (ShadingRules.predictsEveryTile)
+        LoneFold lone = null;
+        LoneFold loneX = null;
         if (py == null && whole) {
             SeamTemplate.Profiles alongY = SeamTemplate.profiles(image, false);
             SeamTemplate.Fold fy = SeamTemplate.find(alongY, anchors(rows), GapTiling.starts(image, rows, false));
             if (fy != null && fy.found() && ShadingRules.backed(alongY, fy)) {
+                if (anchors(rows).length == 0) {
+                    lone = new LoneFold(alongY, fy, rows, c);
+                }
                 folded = "y";
                 py = new SeamComb.Period(fy.pitch(), fy.phase(), 0, 0, 0);
                 rows = ShadingRules.withTeeth(rows, fy, h, stepWidth, 0, w);
@@ -305,6 +311,9 @@ public final class SeamDetector {
                         ? SeamTemplate.find(px, anchors(kept), GapTiling.starts(image, kept, true)) : null;
             }
             if (fx != null && fx.found() && ShadingRules.backed(px, fx)) {
+                if (anchors(kept).length == 0) {
+                    loneX = new LoneFold(px, fx, rows, c);
+                }
                 folded += "x";
                 int[] ph = new int[c.phases().length];
                 Arrays.fill(ph, fx.phase());
@@ -374,6 +383,19 @@ public final class SeamDetector {
             c = new Columns(c.bands(), c.periods(), c.phases(), c.blend(), anchors(c.bands())[0]);
             folded += "x=2";
         }
+        // a fold that is the only evidence of a tiling (no seam seen along its axis, none along the other) must predict
+        // every held-out group of tiles, else one tile's smooth falloff is the better reading
+        if (lone != null && c.step() == 0 && c.bands().isEmpty() && !ShadingRules.predictsEveryTile(lone.p(),
+                lone.fold())) {
+            py = null;
+            rows = lone.rows();
+            folded = folded.replaceFirst("^y", "");
+        }
+        if (loneX != null && py == null && rows.isEmpty() && !ShadingRules.predictsEveryTile(loneX.p(),
+                loneX.fold())) {
+            c = loneX.columns();
+            folded = folded.replaceFirst("x(?!=)", "");
+        }
         List<Band> cols = c.bands();
         SeamComb.Period[] px = c.periods();
         int[] phases = c.phases();
@@ -391,6 +413,10 @@ public final class SeamDetector {
         List<Line> colLines = LoneEdges.lines(ex, cols, threshold);
         List<Line> rowLines = LoneEdges.lines(ey, rows, threshold);
         return new Found(cols, rows, regular, tiling, colLines, rowLines);
+    }
+
+    /** A fold of the shading taken where no seam showed along its axis, with the seams found before it. */
+    private record LoneFold(SeamTemplate.Profiles p, SeamTemplate.Fold fold, List<Band> rows, Columns columns) {
     }
 
     /** The blend bands of one axis as seams over the lines [from, to), marked "blend" and "noise" (their evidence). */

@@ -337,6 +337,28 @@ final class SeamTemplate {
         return base > 0 ? 1 - crossed / base : 0;
     }
 
+    /**
+     * @return the least, over the folds of tiles of {@link #score}, of the share of that fold's clipped residual the
+     *     template fitted to the other folds removes: a repeating shading is predicted in every tile, one falloff over
+     *     the whole image cut into tiles is not (its middle tile is a cap, its outer tiles slopes)
+     */
+    static double worstFold(Profiles p, int s, int ph) {
+        Fit all = fit(p, s, ph, -1, 1);
+        int tiles = all.tiles();
+        if (tiles < 2) {
+            return 0;
+        }
+        int folds = Math.min(FOLDS, tiles);
+        double clip = CLIP * RobustStats.MAD_TO_SIGMA * all.medianAbs(p, all.template);
+        double worst = Double.MAX_VALUE;
+        for (int k = 0; k < folds; k++) {
+            double base = all.residualOn(p, new double[s], k, folds, clip);
+            double crossed = all.residualOn(p, fit(p, s, ph, k, folds).template, k, folds, clip);
+            worst = Math.min(worst, base > 0 ? 1 - crossed / base : 0);
+        }
+        return worst;
+    }
+
     /** @return the template over one tile at step s, phase ph (index 0 = the border at ph), fitted to all tiles */
     static double[] template(Profiles p, int s, int ph) {
         return fit(p, s, ph, -1, 1).template;
