@@ -322,17 +322,14 @@ final class SeamTemplate {
      *     35:73-101, 1964)
      */
     static double score(Profiles p, int s, int ph) {
-        Fit all = fit(p, s, ph, -1, 1);
-        int tiles = all.tiles();
-        if (tiles < 2) {
+        double[][] r = foldResiduals(p, s, ph, false);
+        if (r == null) {
             return 0;
         }
-        int folds = Math.min(FOLDS, tiles);
-        double clip = CLIP * RobustStats.MAD_TO_SIGMA * all.medianAbs(p, all.template);
-        double base = all.residualOn(p, new double[s], -1, folds, clip);
+        double base = r[2][0];
         double crossed = 0;
-        for (int k = 0; k < folds; k++) {
-            crossed += all.residualOn(p, fit(p, s, ph, k, folds).template, k, folds, clip);
+        for (double c : r[1]) {
+            crossed += c;
         }
         return base > 0 ? 1 - crossed / base : 0;
     }
@@ -343,20 +340,43 @@ final class SeamTemplate {
      *     the whole image cut into tiles is not (its middle tile is a cap, its outer tiles slopes)
      */
     static double worstFold(Profiles p, int s, int ph) {
+        double[][] r = foldResiduals(p, s, ph, true);
+        if (r == null) {
+            return 0;
+        }
+        double worst = Double.MAX_VALUE;
+        for (int k = 0; k < r[0].length; k++) {
+            worst = Math.min(worst, r[0][k] > 0 ? 1 - r[1][k] / r[0][k] : 0);
+        }
+        return worst;
+    }
+
+    /**
+     * @param perFold whether each fold's residual without a template is wanted ({@link #worstFold}), else that of all
+     *     tiles ({@link #score}; the search's hot path makes only the one)
+     * @return per fold of tiles k: [0][k] its clipped residual without a template (perFold), [1][k] with the template
+     *     fitted to the other folds; [2][0] the clipped residual of all tiles without a template (not perFold); null
+     *     with fewer than two tiles
+     */
+    private static double[][] foldResiduals(Profiles p, int s, int ph, boolean perFold) {
         Fit all = fit(p, s, ph, -1, 1);
         int tiles = all.tiles();
         if (tiles < 2) {
-            return 0;
+            return null;
         }
         int folds = Math.min(FOLDS, tiles);
         double clip = CLIP * RobustStats.MAD_TO_SIGMA * all.medianAbs(p, all.template);
-        double worst = Double.MAX_VALUE;
-        for (int k = 0; k < folds; k++) {
-            double base = all.residualOn(p, new double[s], k, folds, clip);
-            double crossed = all.residualOn(p, fit(p, s, ph, k, folds).template, k, folds, clip);
-            worst = Math.min(worst, base > 0 ? 1 - crossed / base : 0);
+        double[][] r = new double[3][folds];
+        if (!perFold) {
+            r[2][0] = all.residualOn(p, new double[s], -1, folds, clip);
         }
-        return worst;
+        for (int k = 0; k < folds; k++) {
+            if (perFold) {
+                r[0][k] = all.residualOn(p, new double[s], k, folds, clip);
+            }
+            r[1][k] = all.residualOn(p, fit(p, s, ph, k, folds).template, k, folds, clip);
+        }
+        return r;
     }
 
     /** @return the template over one tile at step s, phase ph (index 0 = the border at ph), fitted to all tiles */
