@@ -44,9 +44,13 @@ import org.stackwright.volume.Volume;
  */
 class IndependentMosaicSeamTest {
 
-    /** one committed draw per layout (the first variant; the sweep draws both variants) and one trimmed draw */
+    /**
+     * one committed draw per layout (the first variant; the sweep draws both variants) and three trimmed draws: a
+     * trimmed 3x4 mosaic (the trimmed reading and its report), a trimmed snake (its shifted rows searched, {@link
+     * TileRowSeams#shiftedRows}) and a trimmed single tile (a lone fold must predict every tile, or nothing is found)
+     */
     static final String[] NAMES = {"a-steps-1", "b-shading-1", "c-snake-1", "d-blend-1", "e-lines-1", "f-single-1",
-        "a-steps-trimmed-1"};
+        "a-steps-trimmed-1", "c-snake-trimmed-1", "f-single-trimmed-1"};
 
     /**
      * The misses measured on the committed files (file -> problems as printed), NOT goals: the detector fails the
