@@ -139,7 +139,9 @@ public final class SeamDetector {
      * @param stepWidth band width given to a lone step or corner, pixels
      */
     public static Found detect(Volume image, double threshold, int stepWidth) {
-        Found whole = detectOnce(image, threshold, stepWidth);
+        // the shading's profiles and their best step do not depend on the reading: made once, shared by both
+        ShadingRules shading = new ShadingRules(image);
+        Found whole = detectOnce(image, shading, threshold, stepWidth);
         boolean uncropped = uncropped(whole.tiling(), image.width(), image.height());
         if (uncropped && !foldedAtZero(whole.tiling().folded())) {
             return whole;
@@ -152,7 +154,7 @@ public final class SeamDetector {
         // (measured on crop-tune a-steps-s7012: the fold at phase 0 gave 92 x 82 for 100 x 90, which its combs found
         // trimmed, every seam above 11; combs of teeth at the tooth limit only caught stray steps on shading-only
         // mosaics of InventedMosaic, ShadingSeamTest 3x3 of 128 with gaps, seed 59)
-        Found trimmed = SeamComb.freePhase(() -> detectOnce(image, threshold, stepWidth));
+        Found trimmed = SeamComb.freePhase(() -> detectOnce(image, shading, threshold, stepWidth));
         int a = axes(whole.tiling());
         int b = axes(trimmed.tiling());
         boolean taken = uncropped
@@ -209,7 +211,7 @@ public final class SeamDetector {
         return (a <= MAX_BAND || s - a <= 3) && (r <= MAX_BAND || s - r <= 3);
     }
 
-    private static Found detectOnce(Volume image, double threshold, int stepWidth) {
+    private static Found detectOnce(Volume image, ShadingRules shading, double threshold, int stepWidth) {
         int w = image.width();
         int h = image.height();
         double tooth = threshold / 2;
@@ -221,8 +223,6 @@ public final class SeamDetector {
         }
         List<Band> rows = py != null ? CombBands.seams(ey, py, tooth, threshold, stepWidth, 0, w)
                 : LoneEdges.lone(ey, threshold, stepWidth, 0, w);
-        // the rules that weigh the combs against the shading every tile shares (its profiles made once, when needed)
-        ShadingRules shading = new ShadingRules(image);
         Columns c = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, 0);
         String borrowed = "";
         if (py == null && c.step() > 0) {
@@ -279,7 +279,7 @@ public final class SeamDetector {
         LoneFold lone = null;
         LoneFold loneX = null;
         if (py == null && whole) {
-            SeamTemplate.Profiles alongY = SeamTemplate.profiles(image, false);
+            SeamTemplate.Profiles alongY = shading.alongY();
             SeamTemplate.Fold fy = SeamTemplate.find(alongY, anchors(rows), GapTiling.starts(image, rows, false));
             if (fy != null && fy.found() && ShadingRules.backed(alongY, fy)) {
                 if (anchors(rows).length == 0) {

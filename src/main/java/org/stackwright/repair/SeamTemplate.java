@@ -31,6 +31,17 @@ final class SeamTemplate {
     /** lines per block of the profiles */
     static final int BLOCK = 16;
     /**
+     * at most this many blocks per plane (longer lines go into larger blocks): the fits' work grows with the blocks,
+     * and 32 medians of 16 or more lines already give the template; images under 528 lines are unchanged by it
+     */
+    static final int MAX_BLOCKS = 32;
+    /**
+     * profiles longer than this are searched for the best step first binned to about this length, then at full
+     * resolution near the step found: the search's work grows with the length squared (a 2048-px axis took 128 s of
+     * CPU before, SeamDetectBenchmark); profiles up to this length are searched as before
+     */
+    static final int COARSE = 512;
+    /**
      * the cross-validated score a tiling needs; on invented mosaics ({@code InventedMosaic}, seeds 44-53) without
      * seams along the axis the best of all steps scored at most 0.010, at the true step of seams of shading only (2x4
      * tiles of 110 px, 3x3 of 128 px) 0.078 to 0.23 (our measurement, no published value)
@@ -81,6 +92,27 @@ final class SeamTemplate {
         int length() {
             return valid.length;
         }
+
+        /** @return these profiles averaged over bins of f positions (a bin is valid when all its positions are) */
+        Profiles binned(int f) {
+            int nb = length() / f;
+            double[][] mb = new double[m.length][nb];
+            boolean[] vb = new boolean[nb];
+            for (int b = 0; b < nb; b++) {
+                vb[b] = true;
+                for (int i = b * f; i < b * f + f; i++) {
+                    vb[b] &= valid[i];
+                }
+                for (int j = 0; j < m.length; j++) {
+                    double sum = 0;
+                    for (int i = b * f; i < b * f + f; i++) {
+                        sum += m[j][i];
+                    }
+                    mb[j][b] = sum / f;
+                }
+            }
+            return new Profiles(mb, vb);
+        }
     }
 
     private SeamTemplate() {
@@ -100,15 +132,16 @@ final class SeamTemplate {
         int step = alongX ? 1 : w;
         int lineStep = alongX ? w : 1;
         float[] f = v.data();
-        int perSlice = Math.max(1, lines / BLOCK);
+        int perSlice = Math.max(1, Math.min(MAX_BLOCKS, lines / BLOCK));
+        int blockLines = perSlice < lines / BLOCK ? lines / perSlice : BLOCK;
         double[][] m = new double[perSlice * v.depth()][n];
         long[] zeros = new long[n];
         double[] col = new double[lines];
         double[] win = new double[5];
         for (int z = 0; z < v.depth(); z++) {
             for (int j = 0; j < perSlice; j++) {
-                int l0 = from + j * BLOCK;
-                int l1 = j == perSlice - 1 ? to : l0 + BLOCK;
+                int l0 = from + j * blockLines;
+                int l1 = j == perSlice - 1 ? to : l0 + blockLines;
                 double[] raw = new double[n];
                 for (int i = 0; i < n; i++) {
                     int c = 0;
@@ -156,25 +189,46 @@ final class SeamTemplate {
     }
 
     private static int searchBestStep(Profiles p) {
+        int f = (p.length() + COARSE - 1) / COARSE;
+        if (f == 1) {
+            return searchBestStep(p, SeamComb.MIN_PITCH);
+        }
+        int coarse = searchBestStep(p.binned(f), (SeamComb.MIN_PITCH + f - 1) / f);
         int hi = p.length() / MIN_TILES;
-        if (hi < SeamComb.MIN_PITCH) {
+        if (coarse < 0 || hi < SeamComb.MIN_PITCH) {
             return -1;
         }
         double[] score = new double[hi + 2];
         Arrays.fill(score, Double.NEGATIVE_INFINITY);
-        int best = SeamComb.MIN_PITCH;
-        for (int s = SeamComb.MIN_PITCH; s <= hi; s += 2) {
+        int best = -1;
+        for (int s = Math.max(SeamComb.MIN_PITCH, (coarse - 1) * f); s <= Math.min(hi, (coarse + 1) * f); s++) {
+            scoreAt(p, s, score);
+            best = best < 0 || score[s] > score[best] ? s : best;
+        }
+        return best;
+    }
+
+    /** The search of {@link #bestStep} over steps from lo px on profiles of their full resolution. */
+    private static int searchBestStep(Profiles p, int lo) {
+        int hi = p.length() / MIN_TILES;
+        if (hi < lo) {
+            return -1;
+        }
+        double[] score = new double[hi + 2];
+        Arrays.fill(score, Double.NEGATIVE_INFINITY);
+        int best = lo;
+        for (int s = lo; s <= hi; s += 2) {
             scoreAt(p, s, score);
             best = score[s] > score[best] ? s : best;
         }
-        for (int s = Math.max(SeamComb.MIN_PITCH, best - 1); s <= Math.min(hi, best + 1); s++) {
+        for (int s = Math.max(lo, best - 1); s <= Math.min(hi, best + 1); s++) {
             scoreAt(p, s, score);
             best = score[s] > score[best] ? s : best;
         }
         // a multiple of the step fits as well: take the smallest step that explains nearly as much
         for (int div = MIN_TILES; div >= 2; div--) {
             int q = Math.round(best / (float) div);
-            for (int s = Math.max(SeamComb.MIN_PITCH, q - 2); s <= Math.min(hi, q + 2); s++) {
+            for (int s = Math.max(lo, q - 2); s <= Math.min(hi, q + 2); s++) {
                 scoreAt(p, s, score);
                 if (score[s] >= 0.9 * score[best]) {
                     best = s;

@@ -34,6 +34,7 @@ final class ShadingRules {
 
     private final Volume image;
     private SeamTemplate.Profiles alongX;
+    private SeamTemplate.Profiles alongY;
 
     /** @param image the image or stack the detection runs on, not modified */
     ShadingRules(Volume image) {
@@ -46,6 +47,14 @@ final class ShadingRules {
             alongX = SeamTemplate.profiles(image, true);
         }
         return alongX;
+    }
+
+    /** @return the shading's block profiles along y, made when a rule first needs them (they are read only) */
+    SeamTemplate.Profiles alongY() {
+        if (alongY == null) {
+            alongY = SeamTemplate.profiles(image, false);
+        }
+        return alongY;
     }
 
     /** @return whether a step along x is 0 or near the best step of the shading template along x */
