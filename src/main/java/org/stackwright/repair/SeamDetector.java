@@ -396,6 +396,10 @@ public final class SeamDetector {
             c = loneX.columns();
             folded = folded.replaceFirst("x(?!=)", "");
         }
+        // an uncropped mosaic whose width admits a snake: rows whose own steps show the shifted phase get it
+        if (whole) {
+            c = SnakeOwnRows.apply(image, rows, c, tooth, stepWidth);
+        }
         List<Band> cols = c.bands();
         SeamComb.Period[] px = c.periods();
         int[] phases = c.phases();

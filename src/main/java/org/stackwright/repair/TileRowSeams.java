@@ -142,7 +142,7 @@ final class TileRowSeams {
     }
 
     /** @return the peak evidence summed over the teeth of comb (pitch, phase), each looking a pixel aside */
-    private static double teethSum(SeamEvidence e, int pitch, int phase, double tooth) {
+    static double teethSum(SeamEvidence e, int pitch, int phase, double tooth) {
         double sum = 0;
         for (int b : new SeamComb.Period(pitch, phase, 0, 0, 0).borders(e.length())) {
             double t = 0;
