@@ -342,7 +342,8 @@ public final class SeamDetector {
             boolean free = false;
             if (g == null && SeamComb.freePhase() && askX != askY) {
                 // a trimmed mosaic: the grid's phase is free, the other axis's seams cut the blocks
-                g = GridBlocks.trimmed(image, askX, askX ? cutsY : cutsX, tooth, threshold);
+                g = GridBlocks.trimmed(image, askX, askX ? cutsY : cutsX, askX ? shading.pitchesX() : null, tooth,
+                        threshold);
                 free = true;
             }
             // a snake order's tile rows in two phases (SnakeBlocks), where that grid scores better than one phase
@@ -351,6 +352,12 @@ public final class SeamDetector {
             SnakeBlocks.Snake sn = !askX || askY || rows.isEmpty() ? null
                     : whole ? SnakeBlocks.find(image, cutsY, ex, tooth, threshold)
                     : SnakeBlocks.trimmed(image, cutsY, tooth, threshold);
+            // a trimmed snake's step must lie near the shading's, as the trimmed grid's (ShadingRules.pitchesX): with
+            // step, phase and shift free, two teeth per parity at about twice the step made snakes of row-by-row
+            // mosaics (crop-tune2 a-steps-s30004 and s30016: 224 and 155 for 100)
+            if (sn != null && !whole && !shading.withinPitchesX(sn.step())) {
+                sn = null;
+            }
             if (sn != null && (g == null || sn.score() > SnakeBlocks.scoreX(g, tooth))) {
                 c = TileRowSeams.snake(rows, sn, tooth, stepWidth, w, h, c.blend());
                 g = null;
