@@ -342,8 +342,14 @@ public final class SeamDetector {
             boolean free = false;
             if (g == null && SeamComb.freePhase() && askX != askY) {
                 // a trimmed mosaic: the grid's phase is free, the other axis's seams cut the blocks
-                g = GridBlocks.trimmed(image, askX, askX ? cutsY : cutsX, askX ? shading.pitchesX() : null, tooth,
-                        threshold);
+                g = GridBlocks.trimmed(image, askX, askX ? cutsY : cutsX, null, tooth, threshold);
+                // vertical seams: a pitch far from the shading's step (ShadingRules.pitchesX) gives way to the best
+                // grid near it, where there is one (the shading's step may itself be a fraction of the tile: crop-tune
+                // e-lines-s7404 shows 53 for 130, and there no grid near it passes)
+                if (askX && g != null && !shading.withinPitchesX(g.stepX())) {
+                    GridBlocks.Grid near = GridBlocks.trimmed(image, true, cutsY, shading.pitchesX(), tooth, threshold);
+                    g = near != null ? near : g;
+                }
                 free = true;
             }
             // a snake order's tile rows in two phases (SnakeBlocks), where that grid scores better than one phase

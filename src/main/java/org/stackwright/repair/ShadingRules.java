@@ -59,7 +59,9 @@ final class ShadingRules {
      * than its double or its half, over (2 S / 3, 3 S / 2). The shading's step is not exact (measured on the trimmed
      * 3 x 4 draws a-steps of crop-tune and crop-tune2: 95 to 117 for 100 and 110, a tenth off at most), but it tells
      * the tile from two tiles: a trimmed comb of two teeth, both strong, at twice the step outranks the true comb
-     * whose middle seam shows no step (measured: crop-tune2 a-steps-s30004 took 200, a snake of 224, for 100).
+     * whose middle seam shows no step (measured: crop-tune2 a-steps-s30004 took 200, a snake of 224, for 100). A
+     * trimmed grid of a pitch outside is taken only where no grid within passes: the shading's step may be a fraction
+     * of the tile (crop-tune e-lines-s7404: 53 for 130).
      *
      * @return {lowest, highest} pitch, or null when the shading shows no step along x
      */
