@@ -139,10 +139,11 @@ final class GridBlocks {
      *
      * @param alongX true for vertical seams (the blocks are tile rows cut at the horizontal seams)
      * @param cuts {start, end} of the other axis's seam bands, ascending
-     * @return the grid of the one axis (the other axis's step 0; its step from the first and last tooth), or null
-     *     when no comb passes
+     * @param pitches {lowest, highest} pitch searched ({@link ShadingRules#pitchesX}), null for all
+     * @return the grid of the one axis (the other axis's step 0; its step from the strong teeth, {@link #exactStep}),
+     *     or null when no comb passes
      */
-    static Grid trimmed(Volume image, boolean alongX, int[][] cuts, double tooth, double threshold) {
+    static Grid trimmed(Volume image, boolean alongX, int[][] cuts, int[] pitches, double tooth, double threshold) {
         int n = alongX ? image.width() : image.height();
         List<SeamEvidence> blocks = blocks(image, alongX, cuts, alongX ? image.height() : image.width());
         if (blocks.size() < 2) {
@@ -161,7 +162,9 @@ final class GridBlocks {
         double[] bestZ = null;
         int bestS = 0;
         double[] bestRank = null;
-        for (int s = SeamComb.MIN_PITCH; s < n; s++) {
+        int lo = pitches == null ? SeamComb.MIN_PITCH : Math.max(SeamComb.MIN_PITCH, pitches[0]);
+        int hi = pitches == null ? n - 1 : Math.min(n - 1, pitches[1]);
+        for (int s = lo; s <= hi; s++) {
             for (int p = 0; p < s; p++) {
                 List<Integer> at = new ArrayList<>();
                 List<Double> zs = new ArrayList<>();
@@ -202,10 +205,56 @@ final class GridBlocks {
         if (bestAt == null) {
             return null;
         }
-        // the step from the teeth's exact places (their one-pixel windows let neighbouring pitches tie)
-        bestS = Math.round((bestAt[bestAt.length - 1] - bestAt[0]) / (float) (bestAt.length - 1));
+        // the step from the strong teeth's exact places (their one-pixel windows let neighbouring pitches tie; a weak
+        // tooth's place is the largest noise in its window), the weak teeth put on the grid of the strong ones
+        bestS = exactStep(bestAt, bestZ, tooth);
         return alongX ? new Grid(bestS, 0, bestAt, new int[0], bestZ, new double[0])
                 : new Grid(0, bestS, new int[0], bestAt, new double[0], bestZ);
+    }
+
+    /**
+     * The step of a comb's teeth from the places of its strong teeth (above the tooth limit), by least squares over
+     * their tooth numbers; the weak teeth are moved, in place, onto that grid through the strong teeth (their own
+     * place within the one-pixel window is where the noise peaks). All teeth count when fewer than two are strong.
+     *
+     * @param at the teeth, ascending, one step apart give or take a pixel (modified: weak teeth moved)
+     * @param z the evidence of each tooth (not modified)
+     * @return the step, rounded to a pixel
+     */
+    static int exactStep(int[] at, double[] z, double tooth) {
+        int strong = 0;
+        for (double v : z) {
+            strong += v > tooth ? 1 : 0;
+        }
+        // tooth numbers k from the first tooth; least squares of at[k] = a + k s over the teeth used
+        double sk = 0;
+        double sb = 0;
+        double skk = 0;
+        double skb = 0;
+        int m = 0;
+        for (int k = 0; k < at.length; k++) {
+            if (strong >= 2 && z[k] <= tooth) {
+                continue;
+            }
+            sk += k;
+            sb += at[k];
+            skk += (double) k * k;
+            skb += (double) k * at[k];
+            m++;
+        }
+        double den = m * skk - sk * sk;
+        if (m < 2 || den <= 0) {
+            return at.length > 1 ? Math.round((at[at.length - 1] - at[0]) / (float) (at.length - 1)) : 0;
+        }
+        double s = (m * skb - sk * sb) / den;
+        double a = (sb - s * sk) / m;
+        int step = (int) Math.round(s);
+        for (int k = 0; k < at.length; k++) {
+            if (strong >= 2 && z[k] <= tooth) {
+                at[k] = (int) Math.round(a + k * s);
+            }
+        }
+        return step;
     }
 
     /**

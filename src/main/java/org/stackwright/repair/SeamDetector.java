@@ -342,7 +342,14 @@ public final class SeamDetector {
             boolean free = false;
             if (g == null && SeamComb.freePhase() && askX != askY) {
                 // a trimmed mosaic: the grid's phase is free, the other axis's seams cut the blocks
-                g = GridBlocks.trimmed(image, askX, askX ? cutsY : cutsX, tooth, threshold);
+                g = GridBlocks.trimmed(image, askX, askX ? cutsY : cutsX, null, tooth, threshold);
+                // vertical seams: a pitch far from the shading's step (ShadingRules.pitchesX) gives way to the best
+                // grid near it, where there is one (the shading's step may itself be a fraction of the tile: crop-tune
+                // e-lines-s7404 shows 53 for 130, and there no grid near it passes)
+                if (askX && g != null && !shading.withinPitchesX(g.stepX())) {
+                    GridBlocks.Grid near = GridBlocks.trimmed(image, true, cutsY, shading.pitchesX(), tooth, threshold);
+                    g = near != null ? near : g;
+                }
                 free = true;
             }
             // a snake order's tile rows in two phases (SnakeBlocks), where that grid scores better than one phase
@@ -351,6 +358,12 @@ public final class SeamDetector {
             SnakeBlocks.Snake sn = !askX || askY || rows.isEmpty() ? null
                     : whole ? SnakeBlocks.find(image, cutsY, ex, tooth, threshold)
                     : SnakeBlocks.trimmed(image, cutsY, tooth, threshold);
+            // a trimmed snake's step must lie near the shading's, as the trimmed grid's (ShadingRules.pitchesX): with
+            // step, phase and shift free, two teeth per parity at about twice the step made snakes of row-by-row
+            // mosaics (crop-tune2 a-steps-s30004 and s30016: 224 and 155 for 100)
+            if (sn != null && !whole && !shading.withinPitchesX(sn.step())) {
+                sn = null;
+            }
             if (sn != null && (g == null || sn.score() > SnakeBlocks.scoreX(g, tooth))) {
                 c = TileRowSeams.snake(rows, sn, tooth, stepWidth, w, h, c.blend());
                 g = null;

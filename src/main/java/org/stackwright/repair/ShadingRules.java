@@ -63,6 +63,29 @@ final class ShadingRules {
     }
 
     /**
+     * The pitches a trimmed grid of vertical seams may take ({@link GridBlocks#trimmed}, {@link SnakeBlocks#trimmed}):
+     * where the shading every tile shares shows a step S along x ({@link SeamTemplate#shownStep}), those nearer S
+     * than its double or its half, over (2 S / 3, 3 S / 2). The shading's step is not exact (measured on the trimmed
+     * 3 x 4 draws a-steps of crop-tune and crop-tune2: 95 to 117 for 100 and 110, a tenth off at most), but it tells
+     * the tile from two tiles: a trimmed comb of two teeth, both strong, at twice the step outranks the true comb
+     * whose middle seam shows no step (measured: crop-tune2 a-steps-s30004 took 200, a snake of 224, for 100). A
+     * trimmed grid of a pitch outside is taken only where no grid within passes: the shading's step may be a fraction
+     * of the tile (crop-tune e-lines-s7404: 53 for 130).
+     *
+     * @return {lowest, highest} pitch, or null when the shading shows no step along x
+     */
+    int[] pitchesX() {
+        int shown = SeamTemplate.shownStep(alongX());
+        return shown < 0 ? null : new int[] {2 * shown / 3 + 1, (3 * shown - 1) / 2};
+    }
+
+    /** @return whether pitch s lies within {@link #pitchesX} (true when the shading shows no step along x) */
+    boolean withinPitchesX(int s) {
+        int[] r = pitchesX();
+        return r == null || s >= r[0] && s <= r[1];
+    }
+
+    /**
      * @return whether the combs of the tile rows agree with the shading every tile shares: true when the shading shows
      *     no step of its own ({@link SeamTemplate#shownStep}); else the common step must lie near the shown one and,
      *     with valleys, each tile row's seams at the valley of that row's own shading template
