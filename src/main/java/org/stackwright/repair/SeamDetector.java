@@ -483,13 +483,45 @@ public final class SeamDetector {
         GridBlocks.Grid g = GridBlocks.thirds(image, alongX, cuts, otherStep, tooth, threshold);
         // a seam seen along the axis off the grid's teeth (a gap that halves a two-tile axis: the own shading sweep's
         // 2x4 seed 54 took three tiles of 71 for two of 110 without this) rules the grid out
-        if (g == null || !onGrid(own, alongX ? g.teethX() : g.teethY())) {
+        if (g == null || !onGrid(own, alongX ? g.teethX() : g.teethY()) || foldElsewhere(image, alongX, own, g)) {
             return null;
         }
         // a snake order's tile rows in two phases that score better are left to SnakeBlocks (measured on tune draw
         // c-snake-s7213: three tiles of 110 px, the one seam that shows in one phase, the snake in both)
         SnakeBlocks.Snake sn = alongX ? SnakeBlocks.find(image, cuts, ex, tooth, threshold) : null;
         return sn != null && sn.score() > SnakeBlocks.scoreX(g, tooth) ? null : g;
+    }
+
+    /**
+     * @return whether the shading's fold along the axis (with the seams found so far as anchors, or without the lone
+     *     steps among them, as the fold is retried below) would take three whole tiles of its own none of whose seams
+     *     lies within 2 px of the grid's stronger tooth: that tooth is then a stray step, not a seam (the own shading
+     *     sweep's 3x3 seed 49: a lone step at 244 gave three tiles of 122, the fold without it the true 128; on the
+     *     tune draws of the independent generator where the grid is right, the fold took the same step, one of 122 or
+     *     123 whose seams lie within 2 px of the tooth, e-lines-s7411 and s30403, one of 7 tiles, s7404, or none)
+     */
+    private static boolean foldElsewhere(Volume image, boolean alongX, List<Band> own, GridBlocks.Grid g) {
+        int n = alongX ? image.width() : image.height();
+        int[] teeth = alongX ? g.teethX() : g.teethY();
+        double[] z = alongX ? g.zX() : g.zY();
+        int strong = z[0] >= z[1] ? teeth[0] : teeth[1];
+        SeamTemplate.Profiles p = SeamTemplate.profiles(image, alongX);
+        List<Band> kept = own.stream().filter(b -> ShadingRules.coversGap(image, b)).toList();
+        for (List<Band> anchored : kept.size() < own.size() ? List.of(own, kept) : List.of(own)) {
+            SeamTemplate.Fold f = SeamTemplate.find(p, anchors(anchored), GapTiling.starts(image, anchored, alongX));
+            if (f == null || !f.found() || !ShadingRules.backed(p, f) || n / f.pitch() != 3
+                    || !GridBlocks.wholeTiles(f.pitch(), n)) {
+                continue;
+            }
+            boolean near = false;
+            for (int k = 1; k < 3; k++) {
+                near |= Math.abs(f.phase() + k * f.pitch() - strong) <= 2;
+            }
+            if (!near) {
+                return true;
+            }
+        }
+        return false;
     }
 
     /** @return whether every band's border (a gap's first zero, else its centre) lies within 2 px of a tooth */
