@@ -253,8 +253,12 @@ final class GridBlocks {
         // the step from the stronger tooth's exact place (the teeth's one-pixel windows let neighbouring steps tie)
         int k = best.z()[0] >= best.z()[1] ? 0 : 1;
         int s = Math.round(best.teeth()[k] / (float) (k + 1));
-        return alongX ? new Grid(s, 0, best.teeth(), new int[0], best.z(), new double[0])
-                : new Grid(0, s, new int[0], best.teeth(), new double[0], best.z());
+        // the other seam, which does not show, lies where the step puts it, not at its tooth's best pixel (tune2
+        // b-shading-s30113: that tooth at 233 for the seam at 236, step 118)
+        int[] teeth = best.teeth().clone();
+        teeth[1 - k] = (2 - k) * s;
+        return alongX ? new Grid(s, 0, teeth, new int[0], best.z(), new double[0])
+                : new Grid(0, s, new int[0], teeth, new double[0], best.z());
     }
 
     /**
