@@ -258,6 +258,59 @@ final class GridBlocks {
     }
 
     /**
+     * Three whole tiles along an axis of an uncropped mosaic, the other axis's seams known, where one of the two seams
+     * shows and the other does not: each tile's vignetting makes a step at its borders (its two edges differ where the
+     * optical centre is off the tile's centre), the same at every seam, and where two tiles' gains step the other way
+     * by about as much, that seam shows no step in any block (measured on tune draws e-lines-s7404, s7410, s7411,
+     * s7415 of the independent generator: one tooth at z 7 to 17 in blocks of single tiles, the other 1 to 4). The
+     * one seam that shows then fixes the grid, as the one seam that halves an axis fixes two tiles
+     * ({@code SeamDetector.halves}): a grid of three whole tiles of step s (n - 3 s in [0, {@link
+     * SeamDetector#MAX_BAND}]) whose stronger tooth, over the blocks cut at the other axis's seams, exceeds the seam
+     * limit (a seam by itself, as a lone edge must), or {@link SeamDetector#OTHER_AXIS} of it at the other axis's step
+     * (square tiles: one step tested instead of all, as when an axis borrows the other's step); of several steps, the
+     * one whose teeth show the most evidence.
+     *
+     * @param alongX true for vertical seams (the blocks are tile rows cut at the horizontal seams)
+     * @param cuts {start, end} of the other axis's seam bands, ascending
+     * @param otherStep the other axis's step, 0 when it has none
+     * @return the grid of the one axis (the other axis's step 0), or null when no tooth passes
+     */
+    static Grid thirds(Volume image, boolean alongX, int[][] cuts, int otherStep, double tooth, double threshold) {
+        int n = alongX ? image.width() : image.height();
+        List<SeamEvidence> blocks = blocks(image, alongX, cuts, alongX ? image.height() : image.width());
+        if (blocks.size() < 2) {
+            return null;
+        }
+        Axis best = null;
+        double[] rank = null;
+        for (int s = Math.max(SeamComb.MIN_PITCH, (n - MAX_BAND + 2) / 3); s <= n / 3; s++) {
+            if (n / s != 3 || !wholeTiles(s, n)) {
+                continue;
+            }
+            Axis a = teethOverBlocks(blocks, new int[blocks.size()], s, n, tooth);
+            double top = Math.max(a.z()[0], a.z()[1]);
+            double[] r = {top, a.z()[0] + a.z()[1]};
+            double limit = s == otherStep ? SeamDetector.OTHER_AXIS * threshold : threshold;
+            if (top > limit && (rank == null || java.util.Arrays.compare(r, rank) > 0)) {
+                rank = r;
+                best = a;
+            }
+        }
+        if (best == null) {
+            return null;
+        }
+        // the step from the stronger tooth's exact place (the teeth's one-pixel windows let neighbouring steps tie)
+        int k = best.z()[0] >= best.z()[1] ? 0 : 1;
+        int s = Math.round(best.teeth()[k] / (float) (k + 1));
+        // the other seam, which does not show, lies where the step puts it, not at its tooth's best pixel (tune2
+        // b-shading-s30113: that tooth at 233 for the seam at 236, step 118)
+        int[] teeth = best.teeth().clone();
+        teeth[1 - k] = (2 - k) * s;
+        return alongX ? new Grid(s, 0, teeth, new int[0], best.z(), new double[0])
+                : new Grid(0, s, new int[0], teeth, new double[0], best.z());
+    }
+
+    /**
      * @return the steps s of grids of m &gt;= 3 whole tiles (0 &lt;= n - m s &lt;= MAX_BAND) that have one of the
      *     {@link #SEEDS} strongest borders of the axis on a tooth (k s within one pixel of it)
      */

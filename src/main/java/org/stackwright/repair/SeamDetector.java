@@ -28,7 +28,9 @@ import org.stackwright.volume.Volume;
  * ({@link ShadingRules}, {@link SeamTemplate}) where the image bends at the fold's borders more than between them
  * (a smooth falloff, as in a single tile, folds at many steps). An axis of three or more whole tiles still without a
  * period is weighed in blocks of single tiles cut at the other axis's seams, where the gain steps of the tiles do not
- * cancel ({@link GridBlocks}). This class runs those steps in order and holds the results.
+ * cancel ({@link GridBlocks}); an axis of three whole tiles may take its step from the one of its two seams that
+ * shows there ({@link GridBlocks#thirds}), before the shading is asked. This class runs those steps in order and holds
+ * the results.
  */
 public final class SeamDetector {
 
@@ -87,8 +89,9 @@ public final class SeamDetector {
      *     fit it (with {@link #OTHER_AXIS} of the usual evidence per seam), else ""
      * @param folded the axes ("x", "y", "yx") whose step came from the shading every tile shares
      *     ({@link SeamTemplate}), because their seams are too faint at each border, and ("x=2", "y=2") those with two
-     *     tiles, whose step is the one seam that cuts the axis into two whole tiles, and ("x=gaps", "y=gaps") those
-     *     whose step the gaps of zeros and the axis's length fix ({@link GapTiling}); else ""
+     *     tiles, whose step is the one seam that cuts the axis into two whole tiles, ("x=3", "y=3") those of three
+     *     whole tiles whose step is the one of their two seams that shows ({@link GridBlocks#thirds}), and ("x=gaps",
+     *     "y=gaps") those whose step the gaps of zeros and the axis's length fix ({@link GapTiling}); else ""
      * @param trimmed whether the mosaic was read as trimmed (its end tiles partial, the grid's phase free): the seams
      *     near its ends are the least certain
      */
@@ -142,7 +145,12 @@ public final class SeamDetector {
         // the shading's profiles and their best step do not depend on the reading: made once, shared by both
         ShadingRules shading = new ShadingRules(image);
         Found whole = detectOnce(image, shading, threshold, stepWidth);
-        boolean uncropped = uncropped(whole.tiling(), image.width(), image.height());
+        // (an uncropped reading whose one axis came from the shading's fold and the other from one seam in blocks cut at
+        // that fold's seams, GridBlocks.thirds, shows nothing of that chain by itself: the trimmed reading is made too
+        // and weighed as for a mosaic read without a tiling, measured on crop-tune c-snake-s7206, whose uncropped reading
+        // found 128x86 that way and the trimmed one the truth 100x88 with the snake's overlap)
+        boolean uncropped = uncropped(whole.tiling(), image.width(), image.height())
+                && !foldThenThird(whole.tiling().folded());
         if (uncropped && !foldedAtZero(whole.tiling().folded())) {
             return whole;
         }
@@ -170,7 +178,7 @@ public final class SeamDetector {
      *     only tilings the gaps of zeros or two halves fix
      */
     static boolean foldedAtZero(String folded) {
-        String rest = folded.replace("x=gaps", "").replace("y=gaps", "").replace("x=2", "").replace("y=2", "");
+        String rest = folded.replaceAll("[xy]=(2|3|gaps)", "");
         return rest.contains("x") || rest.contains("y");
     }
 
@@ -178,6 +186,12 @@ public final class SeamDetector {
     private static boolean allShow(Found f, double threshold) {
         return java.util.stream.Stream.concat(f.columns().stream(), f.rows().stream())
                 .allMatch(b -> b.strength() > threshold);
+    }
+
+    /** @return whether one axis's step came from the shading's fold and the other's from {@link GridBlocks#thirds} */
+    private static boolean foldThenThird(String folded) {
+        String folds = folded.replaceAll("[xy]=(2|3|gaps)", "");
+        return folds.contains("y") && folded.contains("x=3") || folds.contains("x") && folded.contains("y=3");
     }
 
     /** @return the number of axes with a step */
@@ -278,6 +292,18 @@ public final class SeamDetector {
         // a fold along an axis where no seam showed by itself, weighed again at the end (ShadingRules.predictsEveryTile)
         LoneFold lone = null;
         LoneFold loneX = null;
+        SeamEvidence ex = SeamEvidence.of(image, true, 0, h);
+        // three whole tiles along an axis whose one seam shows (the other's gain step cancelled by the vignetting's):
+        // that seam fixes the grid before the shading is asked, whose best fold may lie a few pixels off or at
+        // another step (GridBlocks.thirds)
+        GridBlocks.Grid third = py == null && whole && c.step() > 0 ? thirds(image, false, rows, c.bands(), c.step(),
+                ex, ey, tooth, threshold) : null;
+        if (third != null) {
+            folded += "y=3";
+            py = new SeamComb.Period(third.stepY(), 0, 0, 0, 0);
+            rows = gridBands(third.teethY(), third.zY(), stepWidth, h, 0, w);
+            c = recut(image, shading, rows, c, tooth, threshold, stepWidth);
+        }
         if (py == null && whole) {
             SeamTemplate.Profiles alongY = shading.alongY();
             SeamTemplate.Fold fy = SeamTemplate.find(alongY, anchors(rows), GapTiling.starts(image, rows, false));
@@ -299,6 +325,12 @@ public final class SeamDetector {
             py = new SeamComb.Period(gy, 0, 0, 0, 0);
             rows = GapTiling.onGrid(rows, gy, h, stepWidth, 0, w);
             c = recut(image, shading, rows, c, tooth, threshold, stepWidth);
+        }
+        third = c.step() == 0 && whole && py != null ? thirds(image, true, c.bands(), rows, py.pitch(), ex, ey,
+                tooth, threshold) : null;
+        if (third != null) {
+            folded += "x=3";
+            c = gridColumns(c, third, stepWidth, w, h, false);
         }
         if (c.step() == 0 && whole) {
             SeamTemplate.Profiles px = shading.alongX();
@@ -332,7 +364,6 @@ public final class SeamDetector {
         // three or more whole tiles along an axis still without a period: its seams in blocks of single tiles, cut at
         // the other axis's seams, where the gains of the tiles do not cancel (GridBlocks)
         // (an axis with one seam that halves it has two whole tiles: that seam is a cut, the axis needs no grid)
-        SeamEvidence ex = SeamEvidence.of(image, true, 0, h);
         boolean askY = py == null && !(rows.size() == 1 && halves(rows.get(0), h));
         boolean askX = c.step() == 0 && !halvesAll(c, w);
         if (askY || askX) {
@@ -340,6 +371,7 @@ public final class SeamDetector {
             int[][] cutsX = askX ? null : spans(c.bands());
             GridBlocks.Grid g = GridBlocks.find(image, cutsX, cutsY, ex, ey, tooth, threshold);
             boolean free = false;
+            boolean fromThirds = false;
             if (g == null && SeamComb.freePhase() && askX != askY) {
                 // a trimmed mosaic: the grid's phase is free, the other axis's seams cut the blocks
                 g = GridBlocks.trimmed(image, askX, askX ? cutsY : cutsX, null, tooth, threshold);
@@ -351,6 +383,12 @@ public final class SeamDetector {
                     g = near != null ? near : g;
                 }
                 free = true;
+            } else if (g == null && whole && askX != askY) {
+                // three whole tiles whose one seam shows
+                int other = askX ? (py == null ? 0 : py.pitch()) : c.step();
+                g = GridBlocks.thirds(image, askX, askX ? cutsY : cutsX, other, tooth, threshold);
+                g = g != null && onGrid(askX ? c.bands() : rows, askX ? g.teethX() : g.teethY()) ? g : null;
+                fromThirds = g != null;
             }
             // a snake order's tile rows in two phases (SnakeBlocks), where that grid scores better than one phase
             // (an uncropped snake's shifted rows are read at the width's phase; a trimmed one's with step, phase and
@@ -369,6 +407,7 @@ public final class SeamDetector {
                 g = null;
             }
             if (g != null) {
+                folded += !fromThirds ? "" : askX ? "x=3" : "y=3";
                 if (askY) {
                     int phase = free ? g.teethY()[0] % g.stepY() : 0;
                     py = new SeamComb.Period(g.stepY(), phase, g.teethY().length, g.teethY().length, 0);
@@ -379,11 +418,7 @@ public final class SeamDetector {
                     }
                 }
                 if (askX) {
-                    SeamComb.Period[] per = new SeamComb.Period[c.periods().length];
-                    Arrays.fill(per, new SeamComb.Period(g.stepX(), 0, g.teethX().length, g.teethX().length, 0));
-                    int[] ph = new int[c.phases().length];
-                    Arrays.fill(ph, free ? g.teethX()[0] % g.stepX() : 0);
-                    c = new Columns(gridBands(g.teethX(), g.zX(), stepWidth, w, 0, h), per, ph, c.blend(), g.stepX());
+                    c = gridColumns(c, g, stepWidth, w, h, free);
                 }
             }
         }
@@ -434,6 +469,86 @@ public final class SeamDetector {
 
     /** A fold of the shading taken where no seam showed along its axis, with the seams found before it. */
     private record LoneFold(SeamTemplate.Profiles p, SeamTemplate.Fold fold, List<Band> rows, Columns columns) {
+    }
+
+    /** @return the vertical seams of a grid found in blocks of single tiles (its phase free in a trimmed reading) */
+    private static Columns gridColumns(Columns c, GridBlocks.Grid g, int stepWidth, int w, int h, boolean free) {
+        SeamComb.Period[] per = new SeamComb.Period[c.periods().length];
+        Arrays.fill(per, new SeamComb.Period(g.stepX(), 0, g.teethX().length, g.teethX().length, 0));
+        int[] ph = new int[c.phases().length];
+        Arrays.fill(ph, free ? g.teethX()[0] % g.stepX() : 0);
+        return new Columns(gridBands(g.teethX(), g.zX(), stepWidth, w, 0, h), per, ph, c.blend(), g.stepX());
+    }
+
+    /**
+     * @return the grid of three whole tiles along one axis from the one seam that shows ({@link GridBlocks#thirds}),
+     *     the blocks cut at the other axis's seams, where no grid of the usual rules ({@link GridBlocks#find}) passes
+     *     (a finer grid, whose teeth show, is left to it) and the seams already found along the axis lie on its teeth;
+     *     null when none
+     * @param own the seams found along the axis so far (lone edges, gaps)
+     * @param other the other axis's seams, where the blocks are cut
+     */
+    private static GridBlocks.Grid thirds(Volume image, boolean alongX, List<Band> own, List<Band> other,
+            int otherStep, SeamEvidence ex, SeamEvidence ey, double tooth, double threshold) {
+        if (other.isEmpty()) {
+            return null;
+        }
+        int[][] cuts = spans(other);
+        if (GridBlocks.find(image, alongX ? null : cuts, alongX ? cuts : null, ex, ey, tooth, threshold) != null) {
+            return null;
+        }
+        GridBlocks.Grid g = GridBlocks.thirds(image, alongX, cuts, otherStep, tooth, threshold);
+        // a seam seen along the axis off the grid's teeth (a gap that halves a two-tile axis: the own shading sweep's
+        // 2x4 seed 54 took three tiles of 71 for two of 110 without this) rules the grid out
+        if (g == null || !onGrid(own, alongX ? g.teethX() : g.teethY()) || foldElsewhere(image, alongX, own, g)) {
+            return null;
+        }
+        // a snake order's tile rows in two phases that score better are left to SnakeBlocks (measured on tune draw
+        // c-snake-s7213: three tiles of 110 px, the one seam that shows in one phase, the snake in both)
+        SnakeBlocks.Snake sn = alongX ? SnakeBlocks.find(image, cuts, ex, tooth, threshold) : null;
+        return sn != null && sn.score() > SnakeBlocks.scoreX(g, tooth) ? null : g;
+    }
+
+    /**
+     * @return whether the shading's fold along the axis (with the seams found so far as anchors, or without the lone
+     *     steps among them, as the fold is retried below) would take three whole tiles of its own none of whose seams
+     *     lies within 2 px of the grid's stronger tooth: that tooth is then a stray step, not a seam (the own shading
+     *     sweep's 3x3 seed 49: a lone step at 244 gave three tiles of 122, the fold without it the true 128; on the
+     *     tune draws of the independent generator where the grid is right, the fold took the same step, one of 122 or
+     *     123 whose seams lie within 2 px of the tooth, e-lines-s7411 and s30403, one of 7 tiles, s7404, or none)
+     */
+    private static boolean foldElsewhere(Volume image, boolean alongX, List<Band> own, GridBlocks.Grid g) {
+        int n = alongX ? image.width() : image.height();
+        int[] teeth = alongX ? g.teethX() : g.teethY();
+        double[] z = alongX ? g.zX() : g.zY();
+        int strong = z[0] >= z[1] ? teeth[0] : teeth[1];
+        SeamTemplate.Profiles p = SeamTemplate.profiles(image, alongX);
+        List<Band> kept = own.stream().filter(b -> ShadingRules.coversGap(image, b)).toList();
+        for (List<Band> anchored : kept.size() < own.size() ? List.of(own, kept) : List.of(own)) {
+            SeamTemplate.Fold f = SeamTemplate.find(p, anchors(anchored), GapTiling.starts(image, anchored, alongX));
+            if (f == null || !f.found() || !ShadingRules.backed(p, f) || n / f.pitch() != 3
+                    || !GridBlocks.wholeTiles(f.pitch(), n)) {
+                continue;
+            }
+            boolean near = false;
+            for (int k = 1; k < 3; k++) {
+                near |= Math.abs(f.phase() + k * f.pitch() - strong) <= 2;
+            }
+            if (!near) {
+                return true;
+            }
+        }
+        return false;
+    }
+
+    /** @return whether every band's border (a gap's first zero, else its centre) lies within 2 px of a tooth */
+    private static boolean onGrid(List<Band> bands, int[] teeth) {
+        for (int a : anchors(bands)) {
+            if (Arrays.stream(teeth).noneMatch(t -> Math.abs(t - a) <= 2)) {
+                return false;
+            }
+        }
+        return true;
     }
 
     /** The blend bands of one axis as seams over the lines [from, to), marked "blend" and "noise" (their evidence). */

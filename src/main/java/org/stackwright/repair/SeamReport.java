@@ -58,9 +58,10 @@ final class SeamReport {
         tiling.put("tile_height", t.stepY() > 0 && overlap > 0 ? t.stepY() + overlap : t.stepY());
         tiling.put("step_from_other_axis", t.borrowed().isEmpty() ? null : t.borrowed());
         String shaded = t.folded().replace("x=gaps", "").replace("y=gaps", "")
-                .replace("x=2", "").replace("y=2", "");
+                .replace("x=2", "").replace("y=2", "").replace("x=3", "").replace("y=3", "");
         String gapped = (t.folded().contains("x=gaps") ? "x" : "") + (t.folded().contains("y=gaps") ? "y" : "");
-        String halved = (t.folded().contains("x=2") ? "x" : "") + (t.folded().contains("y=2") ? "y" : "");
+        String halved = (t.folded().contains("x=2") || t.folded().contains("x=3") ? "x" : "")
+                + (t.folded().contains("y=2") || t.folded().contains("y=3") ? "y" : "");
         tiling.put("step_from_shading", shaded.isEmpty() ? null : shaded);
         tiling.put("step_from_one_seam", halved.isEmpty() ? null : halved);
         tiling.put("step_from_gaps", gapped.isEmpty() ? null : gapped);
@@ -106,6 +107,11 @@ final class SeamReport {
             if (t.folded().contains(axis + "=2")) {
                 r.line(String.format(Locale.ROOT, "two tiles along %s: the one seam cuts the image into two whole "
                         + "tiles, so its position is taken as the step (an uncropped mosaic)", axis));
+            }
+            if (t.folded().contains(axis + "=3")) {
+                r.line(String.format(Locale.ROOT, "three tiles along %s: one of the two seams shows, the other not (the "
+                        + "tiles' gains and their vignetting cancel there); the one that shows fixes the step of three "
+                        + "whole tiles (an uncropped mosaic); check the mask at the other", axis));
             }
         }
         if (!gapped.isEmpty()) {
