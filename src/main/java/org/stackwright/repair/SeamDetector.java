@@ -297,7 +297,7 @@ public final class SeamDetector {
         // that seam fixes the grid before the shading is asked, whose best fold may lie a few pixels off or at
         // another step (GridBlocks.thirds)
         GridBlocks.Grid third = py == null && whole && c.step() > 0 ? thirds(image, false, rows, c.bands(), c.step(),
-                ex, ey, tooth, threshold) : null;
+                ex, ey, shading, tooth, threshold) : null;
         if (third != null) {
             folded += "y=3";
             py = new SeamComb.Period(third.stepY(), 0, 0, 0, 0);
@@ -327,7 +327,7 @@ public final class SeamDetector {
             c = recut(image, shading, rows, c, tooth, threshold, stepWidth);
         }
         third = c.step() == 0 && whole && py != null ? thirds(image, true, c.bands(), rows, py.pitch(), ex, ey,
-                tooth, threshold) : null;
+                shading, tooth, threshold) : null;
         if (third != null) {
             folded += "x=3";
             c = gridColumns(c, third, stepWidth, w, h, false);
@@ -489,7 +489,7 @@ public final class SeamDetector {
      * @param other the other axis's seams, where the blocks are cut
      */
     private static GridBlocks.Grid thirds(Volume image, boolean alongX, List<Band> own, List<Band> other,
-            int otherStep, SeamEvidence ex, SeamEvidence ey, double tooth, double threshold) {
+            int otherStep, SeamEvidence ex, SeamEvidence ey, ShadingRules shading, double tooth, double threshold) {
         if (other.isEmpty()) {
             return null;
         }
@@ -500,7 +500,7 @@ public final class SeamDetector {
         GridBlocks.Grid g = GridBlocks.thirds(image, alongX, cuts, otherStep, tooth, threshold);
         // a seam seen along the axis off the grid's teeth (a gap that halves a two-tile axis: the own shading sweep's
         // 2x4 seed 54 took three tiles of 71 for two of 110 without this) rules the grid out
-        if (g == null || !onGrid(own, alongX ? g.teethX() : g.teethY()) || foldElsewhere(image, alongX, own, g)) {
+        if (g == null || !onGrid(own, alongX ? g.teethX() : g.teethY()) || foldElsewhere(image, shading, alongX, own, g)) {
             return null;
         }
         // a snake order's tile rows in two phases that score better are left to SnakeBlocks (measured on tune draw
@@ -517,12 +517,13 @@ public final class SeamDetector {
      *     tune draws of the independent generator where the grid is right, the fold took the same step, one of 122 or
      *     123 whose seams lie within 2 px of the tooth, e-lines-s7411 and s30403, one of 7 tiles, s7404, or none)
      */
-    private static boolean foldElsewhere(Volume image, boolean alongX, List<Band> own, GridBlocks.Grid g) {
+    private static boolean foldElsewhere(Volume image, ShadingRules shading, boolean alongX, List<Band> own,
+            GridBlocks.Grid g) {
         int n = alongX ? image.width() : image.height();
         int[] teeth = alongX ? g.teethX() : g.teethY();
         double[] z = alongX ? g.zX() : g.zY();
         int strong = z[0] >= z[1] ? teeth[0] : teeth[1];
-        SeamTemplate.Profiles p = SeamTemplate.profiles(image, alongX);
+        SeamTemplate.Profiles p = alongX ? shading.alongX() : shading.alongY();
         List<Band> kept = own.stream().filter(b -> ShadingRules.coversGap(image, b)).toList();
         for (List<Band> anchored : kept.size() < own.size() ? List.of(own, kept) : List.of(own)) {
             SeamTemplate.Fold f = SeamTemplate.find(p, anchors(anchored), GapTiling.starts(image, anchored, alongX));
