@@ -14,8 +14,8 @@ import org.stackwright.volume.Volume;
  * Time of {@code seam-mask --detect} on workstation-sized mosaics; not a test. The mosaics come from the independent
  * generator at about 2000 px a side, whole and trimmed ({@code tools/benchmark/make_large_mosaics.py DIR}); run
  * <pre>
- * /usr/bin/python3 tools/benchmark/make_large_mosaics.py /tmp/large
- * tools/benchmark.sh org.stackwright.repair.SeamDetectBenchmark /tmp/large [RUNS]
+ * /usr/bin/python3 tools/benchmark/make_large_mosaics.py target/large-mosaics
+ * tools/benchmark.sh org.stackwright.repair.SeamDetectBenchmark target/large-mosaics [RUNS]
  * </pre>
  * For each mosaic: the best of RUNS detections (second argument, 3 by default; the first run includes the JIT's
  * warm-up; the detector runs on one thread), whether it met the
@@ -29,7 +29,7 @@ public final class SeamDetectBenchmark {
     }
 
     public static void main(String[] args) throws Exception {
-        Path dir = Path.of(args.length > 0 ? args[0] : "/tmp/large");
+        Path dir = Path.of(args.length > 0 ? args[0] : "target/large-mosaics");
         int runs = args.length > 1 ? Integer.parseInt(args[1]) : 3;
         List<String[]> table = new ArrayList<>();
         for (String line : Files.readAllLines(dir.resolve("truth.txt"))) {
