@@ -32,6 +32,11 @@ class CancelSignalTest {
     void sigintStopsWithinOneIterationAndLeavesNoFile() throws Exception {
         assumeTrue(Files.isExecutable(Paths.get("/bin/kill")) || Files.isExecutable(Paths.get("/usr/bin/kill")),
                 "needs the kill command (POSIX)");
+        // a process started in the background without job control (nohup, `cmd &` in a script) ignores SIGINT, and
+        // its children inherit that: their JVM installs no handler, so the signal cannot be tested there (measured:
+        // a verify started with `nohup ... &` failed here twice, the same verify in the foreground passed)
+        assumeTrue(!sigintIgnored(), "SIGINT is ignored in this process (started in the background without job "
+                + "control); run the tests in the foreground to test cancelling");
         try (Fixtures files = new Fixtures()) {
             Path out = files.path("slow.tif");
             String java = Paths.get(System.getProperty("java.home"), "bin", "java").toString();
@@ -80,5 +85,19 @@ class CancelSignalTest {
             }
         }
         return last;
+    }
+
+    /** @return whether this process ignores SIGINT (Linux: bit 2 of SigIgn in /proc/self/status); false elsewhere */
+    static boolean sigintIgnored() {
+        try {
+            for (String l : Files.readAllLines(Paths.get("/proc/self/status"))) {
+                if (l.startsWith("SigIgn:")) {
+                    return (Long.parseLong(l.substring(7).trim(), 16) & 2L) != 0;
+                }
+            }
+        } catch (java.io.IOException | RuntimeException e) {
+            return false;
+        }
+        return false;
     }
 }
