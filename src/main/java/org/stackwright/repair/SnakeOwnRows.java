@@ -63,12 +63,14 @@ final class SnakeOwnRows {
         // per row: 1 shows the other phase, 0 the common one, -1 neither
         int[] shows = new int[stripes];
         int[] at = new int[stripes];
+        SeamEvidence[] ev = new SeamEvidence[stripes];
         int[] cuts = new int[stripes + 1];
         cuts[stripes] = Integer.MAX_VALUE;
         for (int s = 0; s < stripes; s++) {
             cuts[s] = s == 0 ? 0 : rows.get(s - 1).centre();
             int[] y = TileRowSeams.stripe(rows, s, h);
             SeamEvidence e = SeamEvidence.of(image, true, y[0], y[1], true);
+            ev[s] = e;
             int best = -1;
             double top = 0;
             for (int d = -SeamDetector.MAX_BAND; d <= SeamDetector.MAX_BAND; d++) {
@@ -116,8 +118,7 @@ final class SnakeOwnRows {
                 continue;
             }
             phases[s] = at[s];
-            int[] y = TileRowSeams.stripe(rows, s, h);
-            SeamEvidence e = SeamEvidence.of(image, true, y[0], y[1], true);
+            SeamEvidence e = ev[s];
             for (int b : new SeamComb.Period(step, at[s], 0, 0, 0).borders(w)) {
                 // the first and last tiles are whole (as ShadingRules.withTeeth lays a fold's seams)
                 if (b < step - SeamComb.END_SLACK || w - b < step - SeamComb.END_SLACK) {
