@@ -65,6 +65,9 @@ class IndependentMosaicSeamTest {
      */
     static final Map<String, List<String>> MEASURED_MISSES = Map.of();
 
+    /** How a problem list names a defect line (column or filament) that lies inside a seam band. */
+    static final String LINE_IN_BAND = "defect line";
+
     /** The truth of one mosaic, from {@code mosaics/truth.txt}. */
     record Truth(String name, int width, int height, int stepX, int stepY, int overlap, boolean snake, boolean blend,
             List<int[]> seamsY, Map<Integer, List<int[]>> seamsX, Map<Integer, Integer> probeY, List<Integer> linesX) {
@@ -119,13 +122,16 @@ class IndependentMosaicSeamTest {
         Path file = Path.of(IndependentMosaicSeamTest.class.getResource("/reference/mosaics/" + t.name() + ".tif")
                 .toURI());
         List<String> problems = detect(file, t);
+        // defect columns and filaments are never inside a seam band (held on every committed file)
+        assertTrue(problems.stream().noneMatch(p -> p.startsWith(LINE_IN_BAND)), t.name() + ": " + problems);
         assertEquals(MEASURED_MISSES.getOrDefault(t.name(), List.of()), problems, t.name());
     }
 
     /**
      * Fresh draws of the same layouts, made by {@code make_mosaics.py --sweep N DIR} (not committed): how often each
-     * layout meets the goals. A measurement for README, off by default ({@code -Dstackwright.independentmosaics=DIR});
-     * it holds only that defect lines are never seams.
+     * layout meets the goals. A measurement for README, off by default ({@code -Dstackwright.independentmosaics=DIR}).
+     * A defect line inside a seam band is counted and printed here (the committed files assert it never happens), so
+     * one such draw does not end the measurement of the others.
      */
     @Test
     void sweepOverFreshDraws() throws IOException {
@@ -141,6 +147,7 @@ class IndependentMosaicSeamTest {
         }
         // per layout (the name before "-s"): draws, all goals met, seams, seams found, false bands, steps exact
         Map<String, int[]> tally = new TreeMap<>();
+        List<String> linesInBands = new ArrayList<>();
         for (String[] r : table) {
             if (!r[0].equals("size")) {
                 continue;
@@ -156,15 +163,17 @@ class IndependentMosaicSeamTest {
             c[3] += seams - missed;
             c[4] += problems.stream().filter(p -> p.contains("extra band")).count();
             c[5] += problems.stream().noneMatch(p -> p.startsWith("step")) ? 1 : 0;
+            problems.stream().filter(p -> p.startsWith(LINE_IN_BAND)).forEach(p -> linesInBands.add(t.name() + ": " + p));
         }
         tally.forEach((k, c) -> System.out.printf(Locale.ROOT, "%-10s %d draws: all goals met in %d; seams found "
                 + "within 2 px %d of %d; false bands %d; tile step exact on both axes in %d%n", k, c[0], c[1], c[3],
                 c[2], c[4], c[5]));
+        System.out.printf(Locale.ROOT, "defect lines inside seam bands: %d %s%n", linesInBands.size(), linesInBands);
     }
 
     /**
-     * Reads the file as the command line does, detects with the command's defaults, prints what was found and checks
-     * that no defect line lies in a seam band. @return the departures from the goals
+     * Reads the file as the command line does, detects with the command's defaults and prints what was found.
+     * @return the departures from the goals, a defect line inside a seam band among them
      */
     static List<String> detect(Path file, Truth t) {
         Volume img = InputChecks.oneVolume("input", TiffFiles.open(file, "--input"));
@@ -173,6 +182,13 @@ class IndependentMosaicSeamTest {
         // the command's defaults: --threshold 8, --seam-width 4
         SeamDetector.Found f = SeamDetector.detect(img, 8, 4);
         List<String> problems = problems(t, f);
+        for (int x : t.linesX()) {
+            for (SeamDetector.Band b : f.columns()) {
+                if (x >= b.start() - 2 && x < b.end() + 2) {
+                    problems.add(LINE_IN_BAND + " at x=" + x + " inside seam band " + b);
+                }
+            }
+        }
         SeamDetector.Tiling tl = f.tiling();
         System.out.printf(Locale.ROOT, "%-12s step %dx%d (true %dx%d), overlap seen %d (true %d), blend %dx%d, "
                 + "step from the other axis '%s', from the shading '%s', read as trimmed %s, looks x=%s y=%s, lines not seams x=%s; %s%n",
@@ -180,13 +196,6 @@ class IndependentMosaicSeamTest {
                 tl.blendY(), tl.borrowed(), tl.folded(), tl.trimmed(), looks(f.columns()), looks(f.rows()),
                 f.columnLines().stream().map(SeamDetector.Line::position).toList(),
                 problems.isEmpty() ? "all seams within 2 px, nothing else, step exact" : problems);
-        // defect columns and filaments are never inside a seam band (held on every file)
-        for (int x : t.linesX()) {
-            for (SeamDetector.Band b : f.columns()) {
-                assertTrue(x < b.start() - 2 || x >= b.end() + 2, t.name() + ": line at x=" + x
-                        + " inside seam band " + b);
-            }
-        }
         return problems;
     }
 
