@@ -137,11 +137,12 @@ public final class SeamDetector {
     }
 
     /**
-     * @param image the image or stack, not modified
+     * @param stack the image or stack, not modified; of a deep stack only {@link SeamSlices#read} are read
      * @param threshold sign-test z a seam must exceed somewhere; teeth of a repeating comb need half of it
      * @param stepWidth band width given to a lone step or corner, pixels
      */
-    public static Found detect(Volume image, double threshold, int stepWidth) {
+    public static Found detect(Volume stack, double threshold, int stepWidth) {
+        Volume image = SeamSlices.of(stack);
         // the shading's profiles and their best step do not depend on the reading: made once, shared by both
         ShadingRules shading = new ShadingRules(image);
         Found whole = detectOnce(image, shading, threshold, stepWidth);

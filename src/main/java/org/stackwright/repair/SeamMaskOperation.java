@@ -98,7 +98,7 @@ public final class SeamMaskOperation implements Operation {
             // levelling works on a grid of tiles: the vertical seams of the first tile row
             f.columns().stream().filter(b -> b.from() == 0).forEach(b -> colBands.add(new int[] {b.start(), b.end()}));
             f.rows().forEach(b -> rowBands.add(new int[] {b.start(), b.end()}));
-            SeamReport.detected(f, w, h, r, ctx);
+            SeamReport.detected(f, w, h, img.depth(), r, ctx);
         } else {
             if (!v.given("grid") || !v.given("tile")) {
                 throw new IllegalArgumentException("grid and tile are required unless detect is given: e.g. "

@@ -1,10 +1,12 @@
 package org.stackwright.repair;
 
 import java.util.ArrayList;
+import java.util.Arrays;
 import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Locale;
 import java.util.Map;
+import java.util.stream.Collectors;
 
 import org.stackwright.op.Result;
 import org.stackwright.op.RunContext;
@@ -37,8 +39,8 @@ final class SeamReport {
         return phase >= 0 ? Math.floorMod(phase, step) : 0;
     }
 
-    /** Records and reports a detection. */
-    static void detected(SeamDetector.Found f, int w, int h, Result r, RunContext ctx) {
+    /** Records and reports a detection in an image of w x h x depth. */
+    static void detected(SeamDetector.Found f, int w, int h, int depth, Result r, RunContext ctx) {
         SeamDetector.Tiling t = f.tiling();
         r.record("vertical_seams", describe(f.columns()));
         r.record("horizontal_seams", describe(f.rows()));
@@ -75,6 +77,16 @@ final class SeamReport {
         int[] cy = SeamDetector.centres(f.rows());
         r.line(String.format(Locale.ROOT, "found %d vertical seams at x = %s and %d horizontal seams at y = %s",
                 f.columns().size(), describeShort(f.columns(), h), f.rows().size(), describeShort(f.rows(), w)));
+        if (depth > 1) {
+            int[] read = SeamSlices.read(depth);
+            r.record("slices_read", Arrays.stream(read).map(z -> z + 1).boxed().toList());
+            if (read.length < depth) {
+                r.line(String.format(Locale.ROOT, "seams looked for on %d of the %d slices (%s), spread evenly: the "
+                        + "tiles of a z-stack are placed once for every slice, so the one mask found holds for all of them",
+                        read.length, depth, Arrays.stream(read).mapToObj(z -> Integer.toString(z + 1))
+                        .collect(Collectors.joining(", "))));
+            }
+        }
         if (t.stepX() > 0 || t.stepY() > 0) {
             r.line(String.format(Locale.ROOT, "tile step %d x %d px (seams repeat every %d px along x, %d px along y), "
                     + "origin (%s, %s); %s%s", t.stepX(), t.stepY(), t.stepX(), t.stepY(), tiling.get("origin_x"),

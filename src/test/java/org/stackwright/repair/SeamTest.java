@@ -93,6 +93,21 @@ class SeamTest {
         assertArrayEquals(planted, f.mask(512, 384));
     }
 
+    // A tiled z-stack has its seams at one place in every slice: of a 20-slice stack the detector reads 8 slices,
+    // spread evenly from the first to the last, and finds the planted seams exactly, as on one plane; the stack is
+    // not modified.
+    @Test
+    void deepStackReadsEvenlySpreadSlices() {
+        assertArrayEquals(new int[] {0, 3, 5, 8, 11, 14, 16, 19}, SeamSlices.read(20));
+        assertArrayEquals(new int[] {0, 1, 2}, SeamSlices.read(3));
+        Volume img = field(512, 384, 20, 3);
+        byte[] planted = Damage.seams(img, 3, 4, 4, 0.55, 0.12, 100, 4);
+        float[] before = img.data().clone();
+        SeamDetector.Found f = SeamDetector.detect(img, 8, 4);
+        assertArrayEquals(planted, f.mask(512, 384));
+        assertArrayEquals(before, img.data());
+    }
+
     // The bundled demo (3x4 grid, 4-pixel seams, 60 defective pixels), and its specimen recorded without seams:
     // the noise-free truth with the demo's background (20 photons), offset (100 ADU) and Poisson-Gaussian noise
     // added here. (The sign test assumes noise: on the noise-free truth itself smooth haze steps the same way in
