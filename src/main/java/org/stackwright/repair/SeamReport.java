@@ -132,6 +132,14 @@ final class SeamReport {
                     + "seams are marked where it puts them; check the mask there", gapped.length() == 2 ? "x and y"
                     : gapped));
         }
+        List<Integer> bare = rowsWithoutSeams(f, h);
+        if (!bare.isEmpty()) {
+            r.record("tile_rows_without_seams", bare);
+            r.line(String.format(Locale.ROOT, "tile row%s %s (from the top) show%s no vertical seams while the others "
+                    + "do: nothing was marked there rather than a guess (a snake's shifted row whose own seams show no "
+                    + "phase is left out so); check the mask there or give the layout (--grid, --tile, --overlap, "
+                    + "--order)", bare.size() > 1 ? "s" : "", bare, bare.size() > 1 ? "" : "s"));
+        }
         if (!f.columnLines().isEmpty() || !f.rowLines().isEmpty()) {
             r.line(String.format(Locale.ROOT, "not seams (they do not repeat with the tile step): vertical lines at x = "
                     + "%s, horizontal lines at y = %s; check them with find-defects (defective columns and rows)",
@@ -146,8 +154,29 @@ final class SeamReport {
         }
     }
 
+    /**
+     * @return the tile rows (1-based, between the horizontal seams found) that no vertical seam crosses while another
+     *     tile row has one: their seams were left out, and the mask is thinner there than the tiling
+     */
+    static List<Integer> rowsWithoutSeams(SeamDetector.Found f, int h) {
+        List<Integer> bare = new ArrayList<>();
+        if (f.columns().isEmpty()) {
+            return bare;
+        }
+        int[] cy = SeamDetector.centres(f.rows());
+        for (int s = 0; s <= cy.length; s++) {
+            int mid = ((s == 0 ? 0 : cy[s - 1]) + (s == cy.length ? h : cy[s])) / 2;
+            if (f.columns().stream().noneMatch(b -> b.from() <= mid && mid < b.to())) {
+                bare.add(s + 1);
+            }
+        }
+        return bare.size() == cy.length + 1 ? List.of() : bare;
+    }
+
     /** Checks a layout against the image: is there seam evidence within 2 px of each of the layout's seams? */
-    static void checkLayout(Volume img, TileLayout layout, double threshold, int stepWidth, Result r, RunContext ctx) {
+    static void checkLayout(Volume stack, TileLayout layout, double threshold, int stepWidth, Result r,
+            RunContext ctx) {
+        Volume img = SeamSlices.of(stack);
         double tooth = threshold / 2;
         int seen = 0;
         int total = 0;

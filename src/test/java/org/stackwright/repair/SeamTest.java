@@ -6,10 +6,13 @@ import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.nio.file.Path;
+import java.util.List;
 import java.util.SplittableRandom;
 
 import org.apache.commons.math3.random.Well19937c;
 import org.junit.jupiter.api.Test;
+import org.stackwright.op.Result;
+import org.stackwright.op.RunContext;
 import org.stackwright.simulate.Damage;
 import org.stackwright.volume.TiffFiles;
 import org.stackwright.volume.Volume;
@@ -106,6 +109,31 @@ class SeamTest {
         SeamDetector.Found f = SeamDetector.detect(img, 8, 4);
         assertArrayEquals(planted, f.mask(512, 384));
         assertArrayEquals(before, img.data());
+    }
+
+    // A tile row that no vertical seam crosses while the others have theirs (a snake's shifted row whose own seams
+    // show no phase loses its bands, SnakeOwnRows) is named in the report and the record: the mask is thinner there
+    // than the tiling, and the user must know where.
+    @Test
+    void reportNamesTileRowsLeftWithoutSeams() {
+        SeamDetector.Tiling t = new SeamDetector.Tiling(100, 100, new int[] {50, -1, 50}, 100, -1, 0, 0, "", "", false);
+        List<String> step = List.of("step");
+        List<SeamDetector.Band> rows = List.of(new SeamDetector.Band(98, 102, 20, 0, 300, step),
+                new SeamDetector.Band(198, 202, 20, 0, 300, step));
+        List<SeamDetector.Band> cols = List.of(new SeamDetector.Band(48, 52, 20, 0, 100, step),
+                new SeamDetector.Band(48, 52, 20, 200, 300, step));
+        SeamDetector.Found f = new SeamDetector.Found(cols, rows, true, t, List.of(), List.of());
+        Result r = new Result();
+        SeamReport.detected(f, 300, 300, 1, r, RunContext.quiet(1));
+        assertEquals(List.of(2), r.record().get("tile_rows_without_seams"));
+        assertTrue(r.report().stream().anyMatch(l -> l.startsWith("tile row [2] (from the top) shows no vertical")),
+                r.report().toString());
+        // every tile row crossed: nothing said
+        List<SeamDetector.Band> all = List.of(new SeamDetector.Band(48, 52, 20, 0, 300, step));
+        Result whole = new Result();
+        SeamReport.detected(new SeamDetector.Found(all, rows, true, t, List.of(), List.of()), 300, 300, 1, whole,
+                RunContext.quiet(1));
+        assertTrue(!whole.record().containsKey("tile_rows_without_seams"), whole.record().toString());
     }
 
     // The bundled demo (3x4 grid, 4-pixel seams, 60 defective pixels), and its specimen recorded without seams:
