@@ -307,8 +307,10 @@ public final class SeamDetector {
         }
         if (py == null && whole) {
             SeamTemplate.Profiles alongY = shading.alongY();
-            SeamTemplate.Fold fy = SeamTemplate.find(alongY, anchors(rows), GapTiling.starts(image, rows, false));
+            int[] gapsY = GapTiling.starts(image, rows, false);
+            SeamTemplate.Fold fy = SeamTemplate.find(alongY, anchors(rows), gapsY);
             if (fy != null && fy.found() && ShadingRules.backed(alongY, fy)) {
+                fy = FoldEdges.throughEdges(alongY, fy, ey, rows, anchors(rows), gapsY, threshold);
                 if (anchors(rows).length == 0) {
                     lone = new LoneFold(alongY, fy, rows, c);
                 }
@@ -344,6 +346,8 @@ public final class SeamDetector {
                         ? SeamTemplate.find(px, anchors(kept), GapTiling.starts(image, kept, true)) : null;
             }
             if (fx != null && fx.found() && ShadingRules.backed(px, fx)) {
+                fx = FoldEdges.throughEdges(px, fx, ex, kept, anchors(kept), GapTiling.starts(image, kept, true),
+                        threshold);
                 if (anchors(kept).length == 0) {
                     loneX = new LoneFold(px, fx, rows, c);
                 }

@@ -268,6 +268,14 @@ final class SeamTemplate {
      * @param gaps first zero of every gap of zeros along the axis, may be empty
      */
     static Fold find(Profiles p, int[] anchors, int[] gaps) {
+        return find(p, anchors, gaps, 1);
+    }
+
+    /**
+     * As {@link #find(Profiles, int[], int[])} over steps within widen times the search's reach of the best step: a
+     * fold through a seam that shows by itself may lie further from the best-scoring step ({@link FoldEdges})
+     */
+    static Fold find(Profiles p, int[] anchors, int[] gaps, int widen) {
         int n = p.length();
         int hi = n / MIN_TILES;
         int best = bestStep(p);
@@ -280,7 +288,8 @@ final class SeamTemplate {
         // within FIT / 2 of the seam (an off-centre vignetting moves the sharpest corner by a few pixels; our
         // measurement on InventedMosaic: up to 3 px)
         Fold pick = null;
-        for (int s = Math.max(SeamComb.MIN_PITCH, best - reach(best)); s <= Math.min(hi, best + reach(best)); s++) {
+        int r = widen * reach(best);
+        for (int s = Math.max(SeamComb.MIN_PITCH, best - r); s <= Math.min(hi, best + r); s++) {
             if (!onTeeth(anchors, s, 0, 1) || !onTeeth(gaps, s, 0, 0) || n % s > SeamDetector.MAX_BAND) {
                 continue;
             }
