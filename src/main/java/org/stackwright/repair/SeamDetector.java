@@ -465,7 +465,7 @@ public final class SeamDetector {
             }
         }
         Tiling tiling = new Tiling(stepX, py == null ? 0 : py.pitch(), phases, py == null ? -1 : py.phase(),
-                TileRowSeams.snakeShift(phases, stepX), blendX, blendY, borrowed, folded, !whole);
+                snakeOverlap(phases, stepX, w, whole), blendX, blendY, borrowed, folded, !whole);
         boolean regular = (py != null || rows.isEmpty()) && (stepX > 0 || cols.isEmpty());
         List<Line> colLines = LoneEdges.lines(ex, cols, threshold);
         List<Line> rowLines = LoneEdges.lines(ey, rows, threshold);
@@ -625,6 +625,19 @@ public final class SeamDetector {
     private static int[] anchors(List<Band> bands) {
         return bands.stream().mapToInt(b -> b.looks().contains("gap") ? b.start() : b.centre()).distinct().sorted()
                 .toArray();
+    }
+
+    /**
+     * @return the overlap a snake's shift shows ({@link TileRowSeams#snakeShift}), -1 when none; on an uncropped
+     *     reading the width past whole steps where that lies within a pixel of the shift: an uncropped snake is whole
+     *     steps plus one overlap wide, while each phase found may lie a pixel off the border (measured on the
+     *     independent generator's whole snakes: tune c-snake s7208 13 for 12, tune2 s30217 17 for 18, held-out
+     *     s100208 11 for 12, every seam within 2 px)
+     */
+    static int snakeOverlap(int[] phases, int step, int w, boolean whole) {
+        int shift = TileRowSeams.snakeShift(phases, step);
+        int over = step > 0 ? Math.floorMod(w, step) : -1;
+        return whole && shift > 0 && over >= 3 && Math.abs(over - shift) <= 1 ? over : shift;
     }
 
     /** @return the positions of the bands' centres, ascending, without repeats */

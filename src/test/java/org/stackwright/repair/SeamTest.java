@@ -136,6 +136,17 @@ class SeamTest {
         assertTrue(!whole.record().containsKey("tile_rows_without_seams"), whole.record().toString());
     }
 
+    // An uncropped snake is whole steps plus one overlap wide (the geometry of the layout, no published source): the
+    // shift its rows' phases show (11 px here, each phase a pixel off) gives way to the width past whole steps (412 =
+    // 4 x 100 + 12) within a pixel, not further, and not on a trimmed reading, whose width says nothing of it.
+    @Test
+    void uncroppedSnakeOverlapFromItsWidth() {
+        assertEquals(12, SeamDetector.snakeOverlap(new int[] {0, 11, 0}, 100, 412, true));
+        assertEquals(11, SeamDetector.snakeOverlap(new int[] {0, 11, 0}, 100, 412, false));
+        assertEquals(9, SeamDetector.snakeOverlap(new int[] {0, 9, 0}, 100, 412, true));
+        assertEquals(-1, SeamDetector.snakeOverlap(new int[] {0, 0, 0}, 100, 412, true));
+    }
+
     // The bundled demo (3x4 grid, 4-pixel seams, 60 defective pixels), and its specimen recorded without seams:
     // the noise-free truth with the demo's background (20 photons), offset (100 ADU) and Poisson-Gaussian noise
     // added here. (The sign test assumes noise: on the noise-free truth itself smooth haze steps the same way in
