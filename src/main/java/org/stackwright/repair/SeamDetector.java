@@ -163,9 +163,6 @@ public final class SeamDetector {
         // trimmed, every seam above 11; combs of teeth at the tooth limit only caught stray steps on shading-only
         // mosaics of InventedMosaic, ShadingSeamTest 3x3 of 128 with gaps, seed 59)
         Found trimmed = SeamComb.freePhase(() -> detectOnce(image, shading, threshold, stepWidth));
-        if (Boolean.getBoolean("cs.debug")) {
-            System.err.println("whole " + whole.tiling() + " " + Arrays.toString(whole.tiling().phaseX()) + " trimmed " + trimmed.tiling());
-        }
         int a = axes(whole.tiling());
         int b = axes(trimmed.tiling());
         boolean taken = uncropped
