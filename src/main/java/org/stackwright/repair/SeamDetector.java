@@ -296,8 +296,9 @@ public final class SeamDetector {
         LoneFold lone = null;
         LoneFold loneX = null;
         SeamEvidence ex = SeamEvidence.of(image, true, 0, h);
-        // a trimmed mosaic of shading only, neither axis with a step, a gap on each: square tiles whose teeth through
-        // the gaps show the shading's corners (TrimmedShadingGrid)
+        // a trimmed mosaic of shading only, an axis without a step, a gap on it: square tiles whose teeth through the
+        // gaps show the shading's corners (TrimmedShadingGrid); the other axis's step where that has one and it passes
+        // (borrow), else the square grid of both axes, which then replaces the other axis's comb
         TrimmedShadingGrid.Grid sq = !whole && (py == null || c.step() == 0)
                 ? TrimmedShadingGrid.find(ex, ey, shading.alongX(), shading.alongY()) : null;
         int[] lent = null;
