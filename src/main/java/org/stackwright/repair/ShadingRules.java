@@ -211,7 +211,7 @@ final class ShadingRules {
     }
 
     /** @return the slope of a least-squares straight line through row[from .. from + FIT) */
-    private static double slope(double[] row, int from) {
+    static double slope(double[] row, int from) {
         int fit = SeamTemplate.FIT;
         double mt = 0.5 * (fit - 1);
         double num = 0;
