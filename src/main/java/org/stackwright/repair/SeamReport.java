@@ -59,7 +59,10 @@ final class SeamReport {
         tiling.put("tile_width", t.stepX() > 0 && overlap > 0 ? t.stepX() + overlap : t.stepX());
         tiling.put("tile_height", t.stepY() > 0 && overlap > 0 ? t.stepY() + overlap : t.stepY());
         tiling.put("step_from_other_axis", t.borrowed().isEmpty() ? null : t.borrowed());
-        String shaded = t.folded().replace("x=gaps", "").replace("y=gaps", "")
+        String cornered = t.folded().contains("xy=corners") ? "xy" : (t.folded().contains("x=corners") ? "x" : "")
+                + (t.folded().contains("y=corners") ? "y" : "");
+        String shaded = t.folded().replace("xy=corners", "").replace("x=corners", "").replace("y=corners", "")
+                .replace("x=gaps", "").replace("y=gaps", "")
                 .replace("x=2", "").replace("y=2", "").replace("x=3", "").replace("y=3", "");
         String gapped = (t.folded().contains("x=gaps") ? "x" : "") + (t.folded().contains("y=gaps") ? "y" : "");
         String halved = (t.folded().contains("x=2") || t.folded().contains("x=3") ? "x" : "")
@@ -67,6 +70,7 @@ final class SeamReport {
         tiling.put("step_from_shading", shaded.isEmpty() ? null : shaded);
         tiling.put("step_from_one_seam", halved.isEmpty() ? null : halved);
         tiling.put("step_from_gaps", gapped.isEmpty() ? null : gapped);
+        tiling.put("step_from_square_tiles", cornered.isEmpty() ? null : cornered);
         String noise = (f.columns().stream().anyMatch(b -> b.looks().contains("noise")) ? "x" : "")
                 + (f.rows().stream().anyMatch(b -> b.looks().contains("noise")) ? "y" : "");
         tiling.put("blend_from_noise", noise.isEmpty() ? null : noise);
@@ -125,6 +129,12 @@ final class SeamReport {
                         + "tiles' gains and their vignetting cancel there); the one that shows fixes the step of three "
                         + "whole tiles (an uncropped mosaic); check the mask at the other", axis));
             }
+        }
+        if (!cornered.isEmpty()) {
+            r.line(String.format(Locale.ROOT, "the seams along %s show no period of their own in this trimmed mosaic: "
+                    + "the tiles are taken as square, and the step is the one whose seams through the gaps of zeros all "
+                    + "show the shading's darkest corner; check the mask, and give the layout (--grid, --tile) if the "
+                    + "tiles are not square", cornered.length() == 2 ? "x and y" : cornered));
         }
         if (!gapped.isEmpty()) {
             r.line(String.format(Locale.ROOT, "the seams along %s show no period of their own: the gaps of zeros and "

@@ -48,11 +48,13 @@ class IndependentMosaicSeamTest {
      * one committed draw per layout (the first variant; the sweep draws both variants) and three trimmed draws: a
      * trimmed 3x4 mosaic (the trimmed reading and its report), a trimmed snake (its shifted rows searched, {@link
      * TileRowSeams#shiftedRows}) and a trimmed single tile (a lone fold must predict every tile, or nothing is found);
-     * and two whole draws whose horizontal seams show only in the shading's fold, which scored best 3-4 px off the
+     * a trimmed 3x3 mosaic of shading only with gaps (square tiles from the shading's corners, {@link
+     * TrimmedShadingGrid}: before, 118 x 191 for 118 x 118); and two whole draws whose horizontal seams show only in the shading's fold, which scored best 3-4 px off the
      * step, while one seam shows as a lone step edge ({@link FoldEdges}: before, 87 for 90 and 92 for 88)
      */
     static final String[] NAMES = {"a-steps-1", "b-shading-1", "c-snake-1", "d-blend-1", "e-lines-1", "f-single-1",
-        "a-steps-trimmed-1", "c-snake-trimmed-1", "f-single-trimmed-1", "a-steps-edge-1", "c-snake-edge-1"};
+        "a-steps-trimmed-1", "b-shading-trimmed-1", "c-snake-trimmed-1", "f-single-trimmed-1", "a-steps-edge-1",
+        "c-snake-edge-1"};
 
     /**
      * The misses measured on the committed files (file -> problems as printed), NOT goals: the detector fails the

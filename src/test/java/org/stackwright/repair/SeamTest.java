@@ -136,6 +136,23 @@ class SeamTest {
         assertTrue(!whole.record().containsKey("tile_rows_without_seams"), whole.record().toString());
     }
 
+    // A trimmed mosaic's step from the shading's corners of square tiles (TrimmedShadingGrid) is said, with its
+    // assumption and what to do if it does not hold, and recorded, not taken for a fold of the shading.
+    @Test
+    void reportSaysSquareTilesWereAssumed() {
+        SeamDetector.Tiling t = new SeamDetector.Tiling(118, 118, new int[] {50}, 60, -1, 0, 0, "", "xy=corners", true);
+        List<String> step = List.of("shading");
+        SeamDetector.Found f = new SeamDetector.Found(List.of(new SeamDetector.Band(48, 52, 3, 0, 300, step)),
+                List.of(new SeamDetector.Band(58, 62, 3, 0, 300, step)), true, t, List.of(), List.of());
+        Result r = new Result();
+        SeamReport.detected(f, 300, 300, 1, r, RunContext.quiet(1));
+        @SuppressWarnings("unchecked")
+        java.util.Map<String, Object> tiling = (java.util.Map<String, Object>) r.record().get("tiling");
+        assertEquals("xy", tiling.get("step_from_square_tiles"));
+        assertEquals(null, tiling.get("step_from_shading"));
+        assertTrue(r.report().stream().anyMatch(l -> l.contains("the tiles are taken as square")), r.report().toString());
+    }
+
     // An uncropped snake is whole steps plus one overlap wide (the geometry of the layout, no published source): the
     // shift its rows' phases show (11 px here, each phase a pixel off) gives way to the width past whole steps (412 =
     // 4 x 100 + 12) within a pixel, not further, and not on a trimmed reading, whose width says nothing of it.
