@@ -13,7 +13,9 @@ import org.stackwright.volume.Volume;
  * The residual of the discrete Laplacian (pixel minus the mean of its four neighbours) was used before: it leaves the
  * curvature of the specimen's cells and puncta in the residual, which varies from line to line and moved the fitted
  * band centres by 0.8-1.2 px rms on the invented mosaics (0.44 on a flat specimen; the second difference along the line: 0.8-0.9); the fourth difference along the
- * line gives 0.45-0.54 px on both, and the tile step came out exact on many more draws (README, repair). The noise
+ * line gives 0.45-0.54 px on both, and the tile step came out exact on many more draws (README, repair). Without a
+ * prediction the ratio of a line is the mean of that along the line and that of the fourth difference across the
+ * lines (see {@link #across}), which halves the variance's noise less a shared part. The noise
  * expected at each level is measured over the whole image (a curve of the residual variance
  * against the level, {@link LevelCurve}), so photon noise that grows with the signal and the tile shading are
  * divided out: z = |d| / sigma(level). The ratio of a column is a trimmed mean of its z^2
