@@ -41,6 +41,11 @@ public final class SeamDetector {
      * along the other axis: one pitch tested instead of all pitches needs a smaller allowance for the search.
      */
     static final double OTHER_AXIS = 0.75;
+    /**
+     * The lengths past the last whole step of the two axes of an uncropped mosaic ({@link #sameOverlap}) differ by at
+     * most this (pixels): each step is known to a pixel. Not tuned: equal on every uncropped draw measured.
+     */
+    static final int SAME_OVERLAP = 2;
 
     /**
      * A seam band [start, end) along one axis, over the lines [from, to) of the other axis.
@@ -149,7 +154,8 @@ public final class SeamDetector {
         // (an uncropped reading whose one axis came from the shading's fold and the other from one seam in blocks cut at
         // that fold's seams, GridBlocks.thirds, shows nothing of that chain by itself: the trimmed reading is made too
         // and weighed as for a mosaic read without a tiling, measured on crop-tune c-snake-s7206, whose uncropped reading
-        // found 128x86 that way and the trimmed one the truth 100x88 with the snake's overlap)
+        // found 128x86 that way and the trimmed one the truth 100x88 with the snake's overlap; an uncropped tiling whose
+        // axes leave different lengths past their whole steps, sameOverlap, is weighed so too)
         boolean uncropped = uncropped(whole.tiling(), image.width(), image.height())
                 && !foldThenThird(whole.tiling().folded());
         if (uncropped && !foldedAtZero(whole.tiling().folded())) {
@@ -205,10 +211,12 @@ public final class SeamDetector {
 
     /**
      * @return whether both axes have a step and every phase found starts the tiles at the first pixel and ends them
-     *     at the last, give or take an overlap (up to {@link #MAX_BAND}; a snake row starts at the overlap)
+     *     at the last, give or take an overlap (up to {@link #MAX_BAND}; a snake row starts at the overlap), the same
+     *     overlap on both axes ({@link #sameOverlap})
      */
     static boolean uncropped(Tiling t, int w, int h) {
-        if (t.stepX() <= 0 || t.stepY() <= 0 || !whole(t.phaseY(), t.stepY(), h)) {
+        if (t.stepX() <= 0 || t.stepY() <= 0 || !whole(t.phaseY(), t.stepY(), h)
+                || !sameOverlap(w, t.stepX(), h, t.stepY())) {
             return false;
         }
         for (int p : t.phaseX()) {
@@ -217,6 +225,27 @@ public final class SeamDetector {
             }
         }
         return true;
+    }
+
+    /**
+     * Whether the two axes leave the same length past their whole steps (n mod step, taken between minus and plus half
+     * a step: a phase a few pixels short of a step counts as 0, {@link #whole}) within {@link #SAME_OVERLAP}: a
+     * mosaic's tiles overlap by one number of pixels on both axes (so both generators of the tests make them; a
+     * stitcher given one overlap share for tiles that are not square would not, and its uncropped tiling is then
+     * weighed against the trimmed reading as one that does not start at the first pixel), so an uncropped mosaic read
+     * with its true steps shows its overlap on both axes, and a trimmed one, whose ends are cut anywhere, seldom does. Rules of whole tiles read into trimmed
+     * mosaics (three whole tiles from one seam, {@link GridBlocks#thirds}, folds at phase 0) gave tilings that start
+     * and end at the image's ends but leave different lengths: crop-tune c-snake-s7201 (110 x 102: 109, i.e. -1, and
+     * 14), e-lines-s7402 (110 x 116: 13 and 5), crop-tune2 e-lines-s30402 (87 x 126: 24 and 2).
+     */
+    static boolean sameOverlap(int w, int stepX, int h, int stepY) {
+        return Math.abs(past(w, stepX) - past(h, stepY)) <= SAME_OVERLAP;
+    }
+
+    /** @return n mod s, in (-s / 2, s / 2] */
+    private static int past(int n, int s) {
+        int r = Math.floorMod(n, s);
+        return 2 * r > s ? r - s : r;
     }
 
     /**
