@@ -230,16 +230,23 @@ public final class SeamDetector {
     /**
      * Whether the two axes leave the same length past their whole steps (n mod step, taken between minus and plus half
      * a step: a phase a few pixels short of a step counts as 0, {@link #whole}) within {@link #SAME_OVERLAP}: a
-     * mosaic's tiles overlap by one number of pixels on both axes (so both generators of the tests make them; a
-     * stitcher given one overlap share for tiles that are not square would not, and its uncropped tiling is then
-     * weighed against the trimmed reading as one that does not start at the first pixel), so an uncropped mosaic read
+     * mosaic's tiles overlap by one number of pixels on both axes (so both generators of the tests make them), or by
+     * one share of tiles that are not square (a stitcher given the overlap as a percentage: 10 % of 200 x 150 px
+     * tiles is 20 and 15 px), so an uncropped mosaic read
      * with its true steps shows its overlap on both axes, and a trimmed one, whose ends are cut anywhere, seldom does. Rules of whole tiles read into trimmed
      * mosaics (three whole tiles from one seam, {@link GridBlocks#thirds}, folds at phase 0) gave tilings that start
      * and end at the image's ends but leave different lengths: crop-tune c-snake-s7201 (110 x 102: 109, i.e. -1, and
      * 14), e-lines-s7402 (110 x 116: 13 and 5), crop-tune2 e-lines-s30402 (87 x 126: 24 and 2).
      */
     static boolean sameOverlap(int w, int stepX, int h, int stepY) {
-        return Math.abs(past(w, stepX) - past(h, stepY)) <= SAME_OVERLAP;
+        int ox = past(w, stepX);
+        int oy = past(h, stepY);
+        if (Math.abs(ox - oy) <= SAME_OVERLAP) {
+            return true;
+        }
+        // one share of tiles that are not square (a stitcher given the overlap as a percentage): the overlap along y
+        // that share gives, from the one along x, within the same allowance
+        return ox > 0 && oy > 0 && Math.abs(oy - ox * (double) (stepY + oy) / (stepX + ox)) <= SAME_OVERLAP;
     }
 
     /** @return n mod s, in (-s / 2, s / 2] */

@@ -153,6 +153,19 @@ class SeamTest {
         assertTrue(r.report().stream().anyMatch(l -> l.contains("the tiles are taken as square")), r.report().toString());
     }
 
+    // An uncropped mosaic's tiles overlap by one number of pixels on both axes, or one share of tiles that are not
+    // square (the layout's geometry, no published source): 412 x 276 at steps 100 x 88 leaves 12 and 12; 10 % of
+    // 200 x 150 px tiles, 3 x 3, leaves 20 and 15 (560 x 420 at steps 180 x 135). A trimmed mosaic read as whole
+    // tiles, cut anywhere, seldom keeps either: 343 x 353 at 110 x 116 leaves 13 and 5 (as crop-tune e-lines-s7402),
+    // 372 x 380 at 87 x 126 leaves 24 and 2 (crop-tune2 e-lines-s30402).
+    @Test
+    void uncroppedAxesShareOneOverlap() {
+        assertTrue(SeamDetector.sameOverlap(412, 100, 276, 88));
+        assertTrue(SeamDetector.sameOverlap(560, 180, 420, 135));
+        assertTrue(!SeamDetector.sameOverlap(343, 110, 353, 116));
+        assertTrue(!SeamDetector.sameOverlap(372, 87, 380, 126));
+    }
+
     // An uncropped snake is whole steps plus one overlap wide (the geometry of the layout, no published source): the
     // shift its rows' phases show (11 px here, each phase a pixel off) gives way to the width past whole steps (412 =
     // 4 x 100 + 12) within a pixel, not further, and not on a trimmed reading, whose width says nothing of it.
