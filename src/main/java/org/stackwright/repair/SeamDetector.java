@@ -336,42 +336,35 @@ public final class SeamDetector {
         // a trimmed mosaic of shading only, an axis without a step, a gap on it: square tiles whose teeth through the
         // gaps show the shading's corners (TrimmedShadingGrid); the other axis's step where that has one and it passes
         // (borrow), else the square grid of both axes, which then replaces the other axis's comb
-        TrimmedShadingGrid.Grid sq = !whole && (py == null || c.step() == 0)
-                ? TrimmedShadingGrid.find(ex, ey, shading.alongX(), shading.alongY()) : null;
         int[] lent = null;
         if (!whole && py != null && c.step() == 0) {
             lent = TrimmedShadingGrid.borrow(ex, shading.alongX(), py.pitch());
         } else if (!whole && py == null && c.step() > 0) {
             lent = TrimmedShadingGrid.borrow(ey, shading.alongY(), c.step());
         }
+        // (the square grid of both axes is searched only where no step was lent: a lent step is taken before it)
+        TrimmedShadingGrid.Grid sq = lent == null && !whole && (py == null || c.step() == 0)
+                ? TrimmedShadingGrid.find(ex, ey, shading.alongX(), shading.alongY()) : null;
         if (lent != null && py != null) {
             // the vertical seams at the horizontal ones' step, square tiles
             folded += "x=corners";
             Columns base = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, -1);
-            SeamComb.Period[] per = new SeamComb.Period[base.periods().length];
-            Arrays.fill(per, new SeamComb.Period(py.pitch(), lent[0] % py.pitch(), 0, 0, 0));
-            int[] ph = new int[base.phases().length];
-            Arrays.fill(ph, lent[0] % py.pitch());
-            c = new Columns(onTeeth(base.bands(), lent, ex, stepWidth, 0, h), per, ph, base.blend(), py.pitch());
-            sq = null;
+            c = onePhase(base, onTeeth(base.bands(), lent, ex, stepWidth, 0, h), py.pitch(), lent[0] % py.pitch(),
+                    base.blend());
         } else if (lent != null) {
             // the horizontal seams at the vertical ones' step
             folded += "y=corners";
             py = new SeamComb.Period(c.step(), lent[0] % c.step(), 0, 0, 0);
             rows = onTeeth(rows, lent, ey, stepWidth, 0, w);
             c = recut(image, shading, rows, c, tooth, threshold, stepWidth);
-            sq = null;
         }
         if (sq != null) {
             folded += "xy=corners";
             py = new SeamComb.Period(sq.step(), sq.phaseY(), 0, 0, 0);
             rows = onTeeth(rows, sq.teethY(), ey, stepWidth, 0, w);
             Columns base = TileRowSeams.columns(image, shading, rows, tooth, threshold, stepWidth, -1);
-            SeamComb.Period[] per = new SeamComb.Period[base.periods().length];
-            Arrays.fill(per, new SeamComb.Period(sq.step(), sq.phaseX(), 0, 0, 0));
-            int[] ph = new int[base.phases().length];
-            Arrays.fill(ph, sq.phaseX());
-            c = new Columns(onTeeth(c.bands(), sq.teethX(), ex, stepWidth, 0, h), per, ph, c.blend(), sq.step());
+            c = onePhase(base, onTeeth(c.bands(), sq.teethX(), ex, stepWidth, 0, h), sq.step(), sq.phaseX(),
+                    c.blend());
         }
         // three whole tiles along an axis whose one seam shows (the other's gain step cancelled by the vignetting's):
         // that seam fixes the grid before the shading is asked, whose best fold may lie a few pixels off or at
@@ -553,6 +546,15 @@ public final class SeamDetector {
 
     /** A fold of the shading taken where no seam showed along its axis, with the seams found before it. */
     private record LoneFold(SeamTemplate.Profiles p, SeamTemplate.Fold fold, List<Band> rows, Columns columns) {
+    }
+
+    /** @return columns of one step and phase in every tile row of shape (as many rows), over these bands */
+    private static Columns onePhase(Columns shape, List<Band> bands, int step, int phase, int blend) {
+        SeamComb.Period[] per = new SeamComb.Period[shape.periods().length];
+        Arrays.fill(per, new SeamComb.Period(step, phase, 0, 0, 0));
+        int[] ph = new int[shape.phases().length];
+        Arrays.fill(ph, phase);
+        return new Columns(bands, per, ph, blend, step);
     }
 
     /**
