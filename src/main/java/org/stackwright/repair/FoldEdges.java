@@ -42,7 +42,7 @@ final class FoldEdges {
             List<Band> seams, int[] anchors, int[] gaps, double threshold) {
         List<Line> edges = LoneEdges.lines(e, seams, threshold).stream().filter(l -> l.width() == 0)
                 .sorted(Comparator.comparingDouble(Line::strength).reversed()).toList();
-        double own = teeth(e, fold, p.length());
+        double own = teeth(e, fold, threshold);
         for (Line edge : edges) {
             if (onTooth(fold, edge.position())) {
                 return fold;
@@ -51,7 +51,7 @@ final class FoldEdges {
             with[anchors.length] = edge.position();
             Arrays.sort(with);
             SeamTemplate.Fold f = SeamTemplate.find(p, with, gaps, WIDEN);
-            if (f != null && f.found() && ShadingRules.backed(p, f) && teeth(e, f, p.length()) > own) {
+            if (f != null && f.found() && ShadingRules.backed(p, f) && teeth(e, f, threshold) > own) {
                 return f;
             }
         }
@@ -64,16 +64,8 @@ final class FoldEdges {
         return Math.min(d, f.pitch() - d) <= 1;
     }
 
-    /** @return the sum over the fold's inner teeth of the strongest step evidence within a pixel of each */
-    static double teeth(SeamEvidence e, SeamTemplate.Fold f, int n) {
-        double sum = 0;
-        for (int k = f.phase() > 0 ? f.phase() : f.pitch(); k < n - 1; k += f.pitch()) {
-            double m = 0;
-            for (int d = -1; d <= 1; d++) {
-                m = Math.max(m, e.strength(k + d));
-            }
-            sum += m;
-        }
-        return sum;
+    /** @return the step evidence at the fold's teeth ({@link TileRowSeams#teethSum}, narrow lines not counted) */
+    private static double teeth(SeamEvidence e, SeamTemplate.Fold f, double threshold) {
+        return TileRowSeams.teethSum(e, f.pitch(), f.phase(), threshold / 2);
     }
 }
